@@ -1,0 +1,75 @@
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import express from 'express';
+import helmet from 'helmet';
+import { csrfProtection } from './auth/csrf.ts';
+import { loadUser } from './auth/guard.ts';
+import { sessionMiddleware } from './auth/session.ts';
+import type { AppContext } from './context.ts';
+import { apiNotFound, errorHandler } from './http/errors.ts';
+import type { RouteSpec } from './http/route-table.ts';
+import { allRouteGroups } from './routes/all.ts';
+
+export interface CreatedApp {
+  app: express.Express;
+  routes: RouteSpec[];
+}
+
+/** The Express app: API under /api, and the built client (when given) for everything else. */
+export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): CreatedApp {
+  const app = express();
+  const production = ctx.env.NODE_ENV === 'production';
+  app.disable('x-powered-by');
+  if (ctx.env.TRUST_PROXY) app.set('trust proxy', 1);
+
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: false,
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'"],
+          styleSrc: ["'self'"],
+          imgSrc: ["'self'", 'data:'],
+          fontSrc: ["'self'"],
+          connectSrc: ["'self'"],
+          objectSrc: ["'none'"],
+          baseUri: ["'self'"],
+          formAction: ["'self'"],
+          frameAncestors: ["'none'"],
+        },
+      },
+      crossOriginEmbedderPolicy: false,
+    }),
+  );
+
+  app.use(
+    '/api',
+    express.json({ limit: '256kb' }),
+    sessionMiddleware({ pool: ctx.pool, secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY }),
+    csrfProtection,
+    loadUser(ctx.db),
+    (_req, res, next) => {
+      res.setHeader('Cache-Control', 'no-store');
+      next();
+    },
+  );
+
+  const routes: RouteSpec[] = [];
+  for (const group of allRouteGroups(ctx)) {
+    app.use(group.base, group.router);
+    routes.push(...group.specs);
+  }
+  app.use('/api', apiNotFound);
+
+  if (opts.staticDir && existsSync(opts.staticDir)) {
+    const dir = opts.staticDir;
+    app.use(express.static(dir, { index: false, maxAge: '1h', immutable: false }));
+    app.get('/{*splat}', (_req, res) => {
+      res.sendFile(join(dir, 'index.html'));
+    });
+  }
+
+  app.use(errorHandler({ production, log: (err) => ctx.log('error', 'request failed', err) }));
+  return { app, routes };
+}

@@ -1,0 +1,53 @@
+/**
+ * Who may call what: every route states its access in the route table, and
+ * this is the one place that enforces it. Ownership checks (this class, this
+ * attempt) live beside it in access.ts.
+ */
+import { eq } from 'drizzle-orm';
+import type { Request, RequestHandler } from 'express';
+import type { Role, SessionUser } from '../../shared/api/auth.ts';
+import type { Db } from '../db/client.ts';
+import { users } from '../db/schema.ts';
+import { HttpError } from '../http/errors.ts';
+
+export type Access = 'public' | 'signed-in' | readonly Role[];
+
+declare module 'express-serve-static-core' {
+  interface Request {
+    user?: SessionUser;
+  }
+}
+
+export function currentUser(req: Request): SessionUser {
+  if (!req.user) throw new HttpError(401, 'Sign in first');
+  return req.user;
+}
+
+/** Loads the signed-in user on every request, so a disabled account or changed role takes effect at once. */
+export function loadUser(db: Db): RequestHandler {
+  return async (req, _res, next) => {
+    const id = req.session?.userId;
+    if (!id) return next();
+    const [row] = await db
+      .select({ id: users.id, email: users.email, name: users.name, role: users.role, disabled: users.disabled })
+      .from(users)
+      .where(eq(users.id, id));
+    if (!row || row.disabled) {
+      await new Promise<void>((resolve) => req.session.destroy(() => resolve()));
+      return next();
+    }
+    req.user = { id: row.id, email: row.email, name: row.name, role: row.role };
+    next();
+  };
+}
+
+export function requireAccess(access: Access): RequestHandler {
+  return (req, _res, next) => {
+    if (access === 'public') return next();
+    if (!req.user) return next(new HttpError(401, 'Sign in first'));
+    if (access === 'signed-in' || access.includes(req.user.role)) return next();
+    next(new HttpError(403, 'Your role cannot do this'));
+  };
+}
+
+export const requireRole = (...roles: Role[]): RequestHandler => requireAccess(roles);

@@ -1,0 +1,25 @@
+import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres';
+import pg from 'pg';
+import * as schema from './schema.ts';
+
+export type Db = NodePgDatabase<typeof schema>;
+
+export interface Database {
+  pool: pg.Pool;
+  db: Db;
+  close(): Promise<void>;
+}
+
+export function connect(url: string, max = 20): Database {
+  // Fail fast when PostgreSQL is away, so requests answer 503 instead of hanging.
+  const pool = new pg.Pool({ connectionString: url, max, connectionTimeoutMillis: 2_000, idleTimeoutMillis: 30_000 });
+  pool.on('error', () => {
+    // An idle client lost its server (restart); the pool replaces it on next use.
+  });
+  const db = drizzle(pool, { schema });
+  return { pool, db, close: () => pool.end() };
+}
+
+/** A transaction handle; queries that may run inside one take `DbOrTx`. */
+export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
+export type DbOrTx = Db | Tx;

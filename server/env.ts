@@ -1,0 +1,32 @@
+/** The server's environment, validated once at boot. */
+import { z } from 'zod';
+
+const envSchema = z.object({
+  NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
+  DATABASE_URL: z.string().min(1, 'DATABASE_URL is required'),
+  PORT: z.coerce.number().int().min(0).max(65535).default(5180),
+  HOST: z.string().default('127.0.0.1'),
+  /** Public address of the app, used in e-mailed links. */
+  APP_URL: z.string().url().optional(),
+  SESSION_SECRET: z.string().min(16).default('loadline-development-secret-change-me'),
+  /** Set when the app runs behind a TLS-terminating proxy: cookies become Secure. */
+  TRUST_PROXY: z
+    .enum(['0', '1', 'true', 'false'])
+    .default('0')
+    .transform((v) => v === '1' || v === 'true'),
+  SMTP_HOST: z.string().default('127.0.0.1'),
+  SMTP_PORT: z.coerce.number().int().min(0).max(65535).default(0),
+  MAIL_FROM: z.string().default('Loadline <no-reply@loadline.invalid>'),
+  SIGN_IN_LIMIT: z.coerce.number().int().min(1).default(10),
+});
+
+export type Env = z.infer<typeof envSchema>;
+
+export function readEnv(source: NodeJS.ProcessEnv = process.env): Env {
+  const parsed = envSchema.safeParse(source);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`);
+    throw new Error(`Invalid environment:\n${lines.join('\n')}`);
+  }
+  return parsed.data;
+}

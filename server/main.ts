@@ -1,0 +1,55 @@
+/**
+ * Builds the context and listens. `scripts/start.ts` and the tests call
+ * `startServer`; nothing here starts a database.
+ */
+import type { AddressInfo } from 'node:net';
+import type { Server } from 'node:http';
+import { createApp } from './app.ts';
+import type { AppContext } from './context.ts';
+import { connect } from './db/client.ts';
+import { readEnv, type Env } from './env.ts';
+import { makeLogger } from './logger.ts';
+import { smtpMailer } from './services/mailer.ts';
+
+export interface RunningServer {
+  url: string;
+  port: number;
+  ctx: AppContext;
+  server: Server;
+  close(): Promise<void>;
+}
+
+export function buildContext(env: Env, logLevel: 'info' | 'warn' | 'error' | 'silent' = 'info'): AppContext & { closeDb(): Promise<void> } {
+  const database = connect(env.DATABASE_URL);
+  return {
+    env,
+    db: database.db,
+    pool: database.pool,
+    mailer: smtpMailer({ host: env.SMTP_HOST, port: env.SMTP_PORT, from: env.MAIL_FROM }),
+    log: makeLogger(logLevel),
+    closeDb: () => database.close(),
+  };
+}
+
+export async function startServer(opts: { env?: Env; staticDir?: string; logLevel?: 'info' | 'warn' | 'error' | 'silent' } = {}): Promise<RunningServer> {
+  const env = opts.env ?? readEnv();
+  const ctx = buildContext(env, opts.logLevel);
+  const { app } = createApp(ctx, { staticDir: opts.staticDir });
+  const server = await new Promise<Server>((resolve, reject) => {
+    const s = app.listen(env.PORT, env.HOST, (err?: Error) => (err ? reject(err) : resolve(s)));
+  });
+  const port = (server.address() as AddressInfo).port;
+  return {
+    url: `http://${env.HOST}:${port}`,
+    port,
+    ctx,
+    server,
+    async close() {
+      await new Promise<void>((resolve) => {
+        server.close(() => resolve());
+        server.closeAllConnections();
+      });
+      await ctx.closeDb();
+    },
+  };
+}

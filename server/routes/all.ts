@@ -1,0 +1,9 @@
+/** Every API route group, in mounting order. A new group is added here and nowhere else. */
+import type { AppContext } from '../context.ts';
+import type { RouteGroup } from '../http/route-table.ts';
+import { authRoutes } from './auth.ts';
+import { outboxRoutes, userRoutes } from './users.ts';
+
+export function allRouteGroups(ctx: AppContext): RouteGroup[] {
+  return [authRoutes(ctx), userRoutes(ctx), outboxRoutes(ctx)];
+}

@@ -1,0 +1,35 @@
+import type { Request } from 'express';
+import type { AppContext } from '../context.ts';
+import { issueToken, type TokenPurpose } from './tokens.ts';
+
+export function appUrl(ctx: AppContext, req: Request): string {
+  return ctx.env.APP_URL ?? `${req.protocol}://${req.get('host')}`;
+}
+
+const copy: Record<TokenPurpose, { subject: string; intro: string }> = {
+  invite: {
+    subject: 'You are invited to Loadline',
+    intro: 'An account has been made for you on Loadline, the charging-system bench. Choose a password to sign in:',
+  },
+  reset: {
+    subject: 'Reset your Loadline password',
+    intro: 'Someone (we hope you) asked to reset your Loadline password. Choose a new one here:',
+  },
+};
+
+/** Issues a token and e-mails its link. The link works once and expires. */
+export async function sendPasswordLink(
+  ctx: AppContext,
+  req: Request,
+  user: { id: number; email: string; name: string },
+  purpose: TokenPurpose,
+): Promise<void> {
+  const token = await issueToken(ctx.db, user.id, purpose);
+  const link = `${appUrl(ctx, req)}/set-password?token=${encodeURIComponent(token)}`;
+  const hours = purpose === 'invite' ? '7 days' : '1 hour';
+  await ctx.mailer.send({
+    to: user.email,
+    subject: copy[purpose].subject,
+    text: `Hello ${user.name},\n\n${copy[purpose].intro}\n\n${link}\n\nThe link works once and expires in ${hours}. If you did not expect this message, ignore it.\n\n— Loadline`,
+  });
+}

@@ -1,0 +1,59 @@
+import type { ReactNode } from 'react';
+import { ApiError } from '../../lib/api-client.ts';
+
+export function Spinner({ label = 'Loading' }: { label?: string }) {
+  return (
+    <div role="status" className="flex items-center gap-2 text-sm text-slate-500">
+      <svg className="h-4 w-4 animate-spin" viewBox="0 0 24 24" aria-hidden="true">
+        <circle cx="12" cy="12" r="9" fill="none" stroke="currentColor" strokeOpacity="0.25" strokeWidth="3" />
+        <path d="M21 12a9 9 0 0 0-9-9" fill="none" stroke="currentColor" strokeWidth="3" strokeLinecap="round" />
+      </svg>
+      <span>{label}…</span>
+    </div>
+  );
+}
+
+export function ErrorState({ error, retry }: { error: unknown; retry?: () => void }) {
+  const message = error instanceof ApiError || error instanceof Error ? error.message : 'Something went wrong';
+  return (
+    <div role="alert" className="rounded-lg border border-stop-600/30 bg-stop-100/60 p-4 text-sm text-stop-700">
+      <p className="font-medium">That did not work</p>
+      <p className="mt-1">{message}</p>
+      {retry && (
+        <button type="button" onClick={retry} className="mt-2 font-medium underline underline-offset-2">
+          Try again
+        </button>
+      )}
+    </div>
+  );
+}
+
+export function EmptyState({ title, children }: { title: string; children?: ReactNode }) {
+  return (
+    <div className="rounded-lg border border-dashed border-slate-300 bg-white/60 p-8 text-center">
+      <p className="font-medium text-slate-800">{title}</p>
+      {children && <div className="mt-1 text-sm text-slate-500">{children}</div>}
+    </div>
+  );
+}
+
+export function PageHeader({ title, description, actions }: { title: string; description?: ReactNode; actions?: ReactNode }) {
+  return (
+    <div className="mb-6 flex flex-wrap items-end justify-between gap-4">
+      <div>
+        <h1 className="text-2xl font-semibold tracking-tight text-slate-900">{title}</h1>
+        {description && <p className="mt-1 max-w-3xl text-sm text-slate-600">{description}</p>}
+      </div>
+      {actions && <div className="flex gap-2">{actions}</div>}
+    </div>
+  );
+}
+
+export function Panel({ title, children, className = '' }: { title?: ReactNode; children: ReactNode; className?: string }) {
+  return (
+    <section className={`rounded-xl bg-white p-5 shadow-sm ring-1 ring-slate-200 ${className}`}>
+      {title && <h2 className="mb-3 text-sm font-semibold uppercase tracking-wide text-slate-500">{title}</h2>}
+      {children}
+    </section>
+  );
+}
