@@ -1,0 +1,290 @@
+/**
+ * Faults as transforms of component parameters. A fault has a kind, a
+ * severity 0..1, an onset in sim seconds and an optional intermittent
+ * pattern; `applyFaults` turns the healthy parameters into the effective ones
+ * at a moment. Several faults combine: each transform is applied in turn, so
+ * two resistive faults add and a weak battery with a stuck draw is both.
+ *
+ * Scenario faults and faults injected live use the same type and the same
+ * event (`fault-inject`), so a replay reproduces both.
+ */
+
+import type { VehicleParams } from './params.ts';
+
+export type FaultKind =
+  | 'fusible-link-open'
+  | 'diode-open'
+  | 'diode-shorted'
+  | 'stator-phase-open'
+  | 'field-open'
+  | 'regulator-set-high'
+  | 'regulator-set-low'
+  | 'regulator-full-field'
+  | 'belt-slip'
+  | 'bplus-high-resistance'
+  | 'ground-high-resistance'
+  | 'battery-weak'
+  | 'key-off-draw'
+  | 'wrong-rating'
+  | 'post-corroded';
+
+export interface IntermittentPattern {
+  /** One on/off cycle. */
+  periodS: number;
+  /** Fraction of each period during which the fault is present, starting at the onset. */
+  onFraction01: number;
+}
+
+export interface Fault {
+  id: string;
+  kind: FaultKind;
+  severity01: number;
+  /** Sim time at which the fault appears. */
+  onsetS: number;
+  intermittent?: IntermittentPattern | null;
+}
+
+/** The bench tests an instructor can expect to reveal a fault. */
+export type DiagnosticTest =
+  | 'battery-ocv'
+  | 'battery-load'
+  | 'regulated-voltage'
+  | 'output'
+  | 'voltage-drop-positive'
+  | 'voltage-drop-ground'
+  | 'ripple'
+  | 'key-off-draw'
+  | 'cranking';
+
+export interface FaultCatalogEntry {
+  label: string;
+  /** One line for instructors: what is wrong in the car. */
+  description: string;
+  /** What severity 0..1 means for this kind. */
+  severityMeaning: string;
+  revealedBy: DiagnosticTest[];
+}
+
+export const FAULT_KINDS: readonly FaultKind[] = [
+  'fusible-link-open',
+  'diode-open',
+  'diode-shorted',
+  'stator-phase-open',
+  'field-open',
+  'regulator-set-high',
+  'regulator-set-low',
+  'regulator-full-field',
+  'belt-slip',
+  'bplus-high-resistance',
+  'ground-high-resistance',
+  'battery-weak',
+  'key-off-draw',
+  'wrong-rating',
+  'post-corroded',
+];
+
+export const FAULT_CATALOG: Readonly<Record<FaultKind, FaultCatalogEntry>> = {
+  'fusible-link-open': {
+    label: 'Fusible link open',
+    description: 'The link in the B+ cable has burnt open: no charge reaches the battery.',
+    severityMeaning: 'Not used (open is open).',
+    revealedBy: ['regulated-voltage', 'output', 'voltage-drop-positive', 'ripple'],
+  },
+  'diode-open': {
+    label: 'Open rectifier diode',
+    description: 'One positive diode no longer conducts: output down, ripple at the electrical frequency.',
+    severityMeaning: 'Not used (one diode, phase A positive).',
+    revealedBy: ['output', 'ripple'],
+  },
+  'diode-shorted': {
+    label: 'Shorted rectifier diode',
+    description: 'One positive diode conducts both ways: output far down, heavy ripple, and a key-off drain through the unit.',
+    severityMeaning: 'Key-off leakage through the unit: 0.1 A at 0 to 2 A at 1.',
+    revealedBy: ['output', 'ripple', 'key-off-draw'],
+  },
+  'stator-phase-open': {
+    label: 'Open stator phase',
+    description: 'One stator winding is broken: output down to about two thirds, ripple at twice the electrical frequency.',
+    severityMeaning: 'Not used.',
+    revealedBy: ['output', 'ripple'],
+  },
+  'field-open': {
+    label: 'Open field (worn brushes)',
+    description: 'Worn brushes or a broken rotor winding: little or no field current, so little or no output and no ripple.',
+    severityMeaning: 'Brush resistance: 0 adds 2 ohm, 0.5 adds about 60 ohm, 1 is open.',
+    revealedBy: ['regulated-voltage', 'output'],
+  },
+  'regulator-set-high': {
+    label: 'Regulator set high',
+    description: 'The regulator holds too high a voltage: overcharging, boiling battery, bulbs failing.',
+    severityMeaning: 'Set point raised by 0.3 V at 0 to 2.0 V at 1.',
+    revealedBy: ['regulated-voltage'],
+  },
+  'regulator-set-low': {
+    label: 'Regulator set low',
+    description: 'The regulator holds too low a voltage: the battery is never fully charged.',
+    severityMeaning: 'Set point lowered by 0.3 V at 0 to 1.5 V at 1.',
+    revealedBy: ['regulated-voltage', 'battery-ocv'],
+  },
+  'regulator-full-field': {
+    label: 'Regulator stuck at full field',
+    description: 'The field driver is shorted on: the voltage climbs with speed, above 16 V with light loads.',
+    severityMeaning: 'Lowest field duty: 0.5 at 0 to 1 (full field) at 1.',
+    revealedBy: ['regulated-voltage'],
+  },
+  'belt-slip': {
+    label: 'Belt slipping',
+    description: 'A glazed or loose belt slips under load: output falls off when the load rises, often with a squeal.',
+    severityMeaning: 'Belt grip reduced by 30 % at 0 to 90 % at 1.',
+    revealedBy: ['output'],
+  },
+  'bplus-high-resistance': {
+    label: 'High resistance on the B+ side',
+    description: 'A corroded B+ terminal or damaged charging cable: a large positive-side voltage drop under load.',
+    severityMeaning: 'Extra resistance: 50 milliohm times severity (0.2 is 0.01 ohm).',
+    revealedBy: ['voltage-drop-positive', 'output'],
+  },
+  'ground-high-resistance': {
+    label: 'High resistance on the ground side',
+    description: 'A loose or corroded engine ground strap: a large ground-side drop, slow cranking.',
+    severityMeaning: 'Extra resistance: 50 milliohm times severity.',
+    revealedBy: ['voltage-drop-ground', 'cranking', 'output'],
+  },
+  'battery-weak': {
+    label: 'Weak (sulfated) battery',
+    description: 'A sulfated battery: lower capacity and much higher internal resistance; fails the load test.',
+    severityMeaning: 'Internal resistance times 1 + 4 x severity; capacity times 1 - 0.75 x severity.',
+    revealedBy: ['battery-load', 'cranking', 'battery-ocv'],
+  },
+  'key-off-draw': {
+    label: 'Excessive key-off draw',
+    description: 'An accessory stays on with the key off and drains the battery overnight.',
+    severityMeaning: 'Stuck load: 0.05 A at 0 to 1 A (a lamp) at 1.',
+    revealedBy: ['key-off-draw', 'battery-ocv'],
+  },
+  'wrong-rating': {
+    label: 'Wrong alternator rating fitted',
+    description: 'A lower-rated unit was fitted: it works but cannot reach the car’s specified output.',
+    severityMeaning: 'Fitted unit rated 1 - 0.5 x severity of the specified rating (severity 0.33: 150 A car, 100 A unit).',
+    revealedBy: ['output'],
+  },
+  'post-corroded': {
+    label: 'Corroded battery post',
+    description: 'Corrosion between the positive post and its clamp: hard starting, low charge, drop across the clamp.',
+    severityMeaning: 'Post-to-clamp resistance: 100 milliohm times severity.',
+    revealedBy: ['cranking', 'voltage-drop-positive', 'battery-load'],
+  },
+};
+
+/** Whether a fault is present at the given sim time. */
+export function isFaultActive(fault: Fault, timeS: number): boolean {
+  if (timeS < fault.onsetS) return false;
+  const pattern = fault.intermittent;
+  if (!pattern || pattern.periodS <= 0) return true;
+  const phase = ((timeS - fault.onsetS) % pattern.periodS) / pattern.periodS;
+  return phase < pattern.onFraction01;
+}
+
+function clamp01(x: number): number {
+  return x < 0 ? 0 : x > 1 ? 1 : x;
+}
+
+function withIndex(list: readonly number[], index: number): number[] {
+  return list.includes(index) ? [...list] : [...list, index].sort((a, b) => a - b);
+}
+
+/** One fault's transform of the parameters (returns a new object; `p` is not changed). */
+function applyOne(p: VehicleParams, fault: Fault): VehicleParams {
+  const s = clamp01(fault.severity01);
+  switch (fault.kind) {
+    case 'fusible-link-open':
+      return { ...p, wiring: { ...p.wiring, fusibleLinkOpen: true } };
+    case 'diode-open':
+      return { ...p, alternator: { ...p.alternator, openDiodes: withIndex(p.alternator.openDiodes, 0) } };
+    case 'diode-shorted':
+      return {
+        ...p,
+        alternator: {
+          ...p.alternator,
+          shortedDiodes: withIndex(p.alternator.shortedDiodes, 0),
+          keyOffLeakageA: p.alternator.keyOffLeakageA + 0.1 + 1.9 * s,
+        },
+      };
+    case 'stator-phase-open':
+      return { ...p, alternator: { ...p.alternator, openPhases: withIndex(p.alternator.openPhases, 0) } };
+    case 'field-open': {
+      const extra = s >= 1 ? 1e6 : 2 + 240 * s * s;
+      return { ...p, alternator: { ...p.alternator, brushResistanceOhm: p.alternator.brushResistanceOhm + extra } };
+    }
+    case 'regulator-set-high':
+      return { ...p, regulator: { ...p.regulator, setPointVAt25C: p.regulator.setPointVAt25C + 0.3 + 1.7 * s } };
+    case 'regulator-set-low':
+      return { ...p, regulator: { ...p.regulator, setPointVAt25C: p.regulator.setPointVAt25C - (0.3 + 1.2 * s) } };
+    case 'regulator-full-field':
+      return { ...p, regulator: { ...p.regulator, dutyFloor01: Math.max(p.regulator.dutyFloor01, 0.5 + 0.5 * s) } };
+    case 'belt-slip':
+      return { ...p, belt: { ...p.belt, gripNm: p.belt.gripNm * (1 - (0.3 + 0.6 * s)) } };
+    case 'bplus-high-resistance':
+      return { ...p, wiring: { ...p.wiring, bplusExtraOhm: p.wiring.bplusExtraOhm + 0.05 * s } };
+    case 'ground-high-resistance':
+      return { ...p, wiring: { ...p.wiring, groundExtraOhm: p.wiring.groundExtraOhm + 0.05 * s } };
+    case 'battery-weak':
+      return {
+        ...p,
+        battery: {
+          ...p.battery,
+          internalResistanceOhmAt25C: p.battery.internalResistanceOhmAt25C * (1 + 4 * s),
+          capacityAh: p.battery.capacityAh * (1 - 0.75 * s),
+        },
+      };
+    case 'key-off-draw':
+      return { ...p, loads: { ...p.loads, stuckDrawA: p.loads.stuckDrawA + 0.05 + 0.95 * s } };
+    case 'wrong-rating': {
+      // A smaller unit of the same family: less copper and iron, so higher
+      // impedance in proportion (output limit ~ EMF / reactance).
+      const k = 1 - 0.5 * s;
+      const a = p.alternator;
+      return {
+        ...p,
+        alternator: {
+          ...a,
+          ratedCurrentA: a.ratedCurrentA * k,
+          synchronousInductanceH: a.synchronousInductanceH / k,
+          statorResistanceOhmAt20C: a.statorResistanceOhmAt20C / k,
+        },
+      };
+    }
+    case 'post-corroded':
+      return { ...p, wiring: { ...p.wiring, postClampPosOhm: p.wiring.postClampPosOhm + 0.1 * s } };
+    default:
+      return assertNever(fault.kind);
+  }
+}
+
+function assertNever(x: never): never {
+  throw new Error(`Unknown fault kind: ${String(x)}`);
+}
+
+/**
+ * The effective parameters at `timeS` with every fault that is present then.
+ * Pure: returns `params` itself when no fault is active.
+ */
+export function applyFaults(params: VehicleParams, faults: readonly Fault[], timeS: number): VehicleParams {
+  let p = params;
+  for (const fault of faults) {
+    if (isFaultActive(fault, timeS)) p = applyOne(p, fault);
+  }
+  return p;
+}
+
+/**
+ * A small integer that changes exactly when the set of active faults changes
+ * (bit i = faults[i] active). The step uses it to reuse effective parameters.
+ */
+export function activeFaultMask(faults: readonly Fault[], timeS: number): number {
+  let mask = 0;
+  for (let i = 0; i < faults.length && i < 30; i++) {
+    if (isFaultActive(faults[i]!, timeS)) mask |= 1 << i;
+  }
+  return mask;
+}

@@ -1,0 +1,145 @@
+/**
+ * The bench's input events and the controls they set. An attempt's event log
+ * is a list of these, ordered by `atMs` (integer sim milliseconds); an event
+ * takes effect before the first step whose start time is >= its `atMs`, and
+ * events with the same `atMs` apply in log order.
+ *
+ * Controls are what the events have set so far: the key, the rpm the
+ * assistant holds, switches, the pile dial, where the leads and the clamp
+ * are, and the faults injected so far.
+ */
+
+import type { Fault } from './faults.ts';
+
+/** Where a voltmeter lead can be clipped. */
+export type ConnectionPoint =
+  | 'battery-pos'
+  | 'battery-neg'
+  | 'jump-pos'
+  | 'jump-neg'
+  | 'alt-bplus'
+  | 'alt-case'
+  | 'engine-ground'
+  | 'chassis';
+
+export const CONNECTION_POINTS: readonly ConnectionPoint[] = [
+  'battery-pos',
+  'battery-neg',
+  'jump-pos',
+  'jump-neg',
+  'alt-bplus',
+  'alt-case',
+  'engine-ground',
+  'chassis',
+];
+
+/** What the inductive clamp can enclose. */
+export type Conductor = 'bplus-cable' | 'battery-pos-cable' | 'battery-neg-cable' | 'ground-strap' | 'sense-line';
+
+export const CONDUCTORS: readonly Conductor[] = [
+  'bplus-cable',
+  'battery-pos-cable',
+  'battery-neg-cable',
+  'ground-strap',
+  'sense-line',
+];
+
+export type KeyPosition = 'off' | 'on' | 'start';
+export type LeadColour = 'red' | 'black';
+/** The arrow on the clamp jaw: conventional current in that direction reads positive. */
+export type ClampArrow = 'toward-battery' | 'toward-alternator';
+
+export type InputEvent =
+  | { kind: 'key'; atMs: number; position: KeyPosition }
+  | { kind: 'rpm'; atMs: number; rpm: number }
+  | { kind: 'accessory'; atMs: number; id: string; on: boolean }
+  | { kind: 'pile'; atMs: number; dial01: number }
+  | { kind: 'lead'; atMs: number; which: LeadColour; point: ConnectionPoint | null }
+  | { kind: 'clamp'; atMs: number; conductor: Conductor | null; arrow: ClampArrow }
+  | { kind: 'clamp-zero'; atMs: number }
+  | { kind: 'ammeter'; atMs: number; inSeries: boolean }
+  | { kind: 'bplus-disconnect'; atMs: number; connected: boolean }
+  | { kind: 'fault-inject'; atMs: number; fault: Fault }
+  | { kind: 'fault-clear'; atMs: number; faultId: string };
+
+export type InputKind = InputEvent['kind'];
+
+export interface Controls {
+  key: KeyPosition;
+  /** The rpm the assistant holds; at or below idle the engine idles. */
+  heldRpm: number;
+  /** Ids of the accessories switched on, sorted. */
+  accessoriesOn: string[];
+  pileDial01: number;
+  leads: { red: ConnectionPoint | null; black: ConnectionPoint | null };
+  clamp: { conductor: Conductor | null; arrow: ClampArrow };
+  /** Subtracted from the clamp's raw reading; set by clamp-zero. */
+  clampZeroA: number;
+  /** Series ammeter between the battery negative post and its cable. */
+  ammeterInSeries: boolean;
+  /** The B+ lead at the alternator stud (false: removed to isolate a drain). */
+  bplusConnected: boolean;
+  faults: Fault[];
+}
+
+export function initialControls(): Controls {
+  return {
+    key: 'off',
+    heldRpm: 0,
+    accessoriesOn: [],
+    pileDial01: 0,
+    leads: { red: null, black: null },
+    clamp: { conductor: null, arrow: 'toward-battery' },
+    clampZeroA: 0,
+    ammeterInSeries: false,
+    bplusConnected: true,
+    faults: [],
+  };
+}
+
+function clamp01(x: number): number {
+  return Number.isFinite(x) ? (x < 0 ? 0 : x > 1 ? 1 : x) : 0;
+}
+
+/**
+ * Controls after one event. `rawClampA` is the clamp's reading before zeroing
+ * at this moment (the clamp-zero event stores it); pass it from the
+ * instruments (`rawClampReadingA`). Pure: `controls` is not changed.
+ */
+export function applyInput(controls: Controls, event: InputEvent, rawClampA: number): Controls {
+  switch (event.kind) {
+    case 'key':
+      return { ...controls, key: event.position };
+    case 'rpm':
+      return { ...controls, heldRpm: Number.isFinite(event.rpm) ? Math.max(0, event.rpm) : 0 };
+    case 'accessory': {
+      const others = controls.accessoriesOn.filter((id) => id !== event.id);
+      return { ...controls, accessoriesOn: event.on ? [...others, event.id].sort() : others };
+    }
+    case 'pile':
+      return { ...controls, pileDial01: clamp01(event.dial01) };
+    case 'lead':
+      return { ...controls, leads: { ...controls.leads, [event.which]: event.point } };
+    case 'clamp':
+      return { ...controls, clamp: { conductor: event.conductor, arrow: event.arrow } };
+    case 'clamp-zero':
+      return { ...controls, clampZeroA: rawClampA };
+    case 'ammeter':
+      return { ...controls, ammeterInSeries: event.inSeries };
+    case 'bplus-disconnect':
+      return { ...controls, bplusConnected: event.connected };
+    case 'fault-inject':
+      return {
+        ...controls,
+        faults: [...controls.faults.filter((f) => f.id !== event.fault.id), event.fault],
+      };
+    case 'fault-clear':
+      return { ...controls, faults: controls.faults.filter((f) => f.id !== event.faultId) };
+    default:
+      return assertNever(event);
+  }
+}
+
+function assertNever(x: never): never {
+  throw new Error(`Unknown input event: ${JSON.stringify(x)}`);
+}

@@ -1,0 +1,389 @@
+/**
+ * Vehicle parameters: everything the model needs to know about one car's
+ * engine, belt, alternator, regulator, battery, wiring and loads, plus the
+ * bench's carbon-pile tester. Plain JSON data; a scenario stores one of these.
+ *
+ * Units are in the field names (V, A, Ohm, H, S, s, C = degrees Celsius,
+ * Nm, Ah, J, W, m, Awg = American wire gauge number, 01 = a fraction 0..1).
+ *
+ * Fields that faults transform (open diodes, extra resistances, a stuck draw)
+ * are ordinary parameters too: a healthy car has them empty or zero.
+ */
+
+export interface EngineParams {
+  idleRpm: number;
+  /** Highest rpm the assistant will hold on the throttle. */
+  maxHeldRpm: number;
+  /** First-order lag of engine speed toward the held rpm. */
+  lagTimeConstantS: number;
+  /** Cranking speed with 10 V at the starter. */
+  crankRpm: number;
+  /** Starter draw with 10 V at the starter. */
+  crankCurrentA: number;
+  /** Below this at the starter the engine turns too slowly to fire. */
+  minCrankVoltageV: number;
+  /** Cranking time at or above the minimum voltage before the engine fires. */
+  crankToStartS: number;
+}
+
+export interface BeltParams {
+  /** Crank pulley diameter over alternator pulley diameter. */
+  pulleyRatio: number;
+  /** Largest torque the belt passes to the alternator pulley before slipping. */
+  gripNm: number;
+}
+
+export interface AlternatorParams {
+  /** Nameplate rating (SAE J56 I_R: hot-rated unit, cold, 13.5 V, at ratedAltRpm). */
+  ratedCurrentA: number;
+  /** Alternator speed at which the nameplate rating is given. */
+  ratedAltRpm: number;
+  polePairs: number;
+  /** Alternator speed at which the full-field unit just reaches 13.5 V with no load. */
+  cutInAltRpm: number;
+  /** One stator phase (star), copper at 20 C. */
+  statorResistanceOhmAt20C: number;
+  /** Per-phase synchronous inductance: what makes output self-limit at speed. */
+  synchronousInductanceH: number;
+  /** Rotor (field) winding at 20 C. */
+  fieldResistanceOhmAt20C: number;
+  fieldInductanceH: number;
+  /** Brush and slip-ring contact resistance in series with the field (worn brushes raise it). */
+  brushResistanceOhm: number;
+  /** Field current at which the claw-pole iron is at the knee of saturation. */
+  fieldKneeCurrentA: number;
+  /** Rectifier diodes (Shockley model), all six alike. */
+  diodeSaturationCurrentA: number;
+  diodeEmissionCoefficient: number;
+  diodeSeriesResistanceOhm: number;
+  /** Failed diodes, indices 0..5: 0-2 positive (phases A-C to B+), 3-5 negative (case to A-C). */
+  openDiodes: number[];
+  shortedDiodes: number[];
+  /** Open stator phases, indices 0..2. */
+  openPhases: number[];
+  /** Current from B+ to case through the unit with the engine stopped (a leaking or shorted diode feeding the field circuit); 0 when healthy. */
+  keyOffLeakageA: number;
+  /** Winding temperature at the start of the attempt. */
+  initialTempC: number;
+  /** Winding temperature rise above underhood air at sustained rated output. */
+  fullLoadTempRiseC: number;
+  thermalTimeConstantS: number;
+  /** Electrical output power over shaft power, for the belt torque. */
+  efficiency01: number;
+}
+
+export type RegulatorSense = 'battery' | 'bplus';
+
+export interface RegulatorParams {
+  /** Regulated voltage at the sense point with the regulator at 25 C. */
+  setPointVAt25C: number;
+  /** Set-point change per degree of regulator temperature (negative: lower when hot). */
+  tempCoeffVPerC: number;
+  /** Where the regulator reads the voltage it holds: the battery (remote sense line) or its own B+ stud. */
+  sense: RegulatorSense;
+  /** Field duty the regulator never goes below (a shorted field driver is 1: full field). */
+  dutyFloor01: number;
+  /** Field duty with the key on and the engine stopped (pre-excitation). */
+  preExcitationDuty01: number;
+}
+
+export interface BatteryParams {
+  /** Cold-cranking amps: 30 s at -18 C to 7.2 V, new. */
+  cca: number;
+  capacityAh: number;
+  ageYears: number;
+  initialSoc01: number;
+  tempC: number;
+  /** Ohmic internal resistance, new, full, at 25 C. */
+  internalResistanceOhmAt25C: number;
+  /** Surface charge at the start (e.g. just off the charger); decays at rest. */
+  initialSurfaceChargeV: number;
+  /** Time constant of the surface (polarisation) charge. */
+  surfaceChargeTimeConstantS: number;
+}
+
+export interface WiringParams {
+  /** Alternator B+ stud to the positive junction (jump post, fuse box). */
+  bplusCableAwg: number;
+  bplusCableLengthM: number;
+  /** Fusible link in the B+ cable. */
+  fusibleLinkAwg: number;
+  fusibleLinkLengthM: number;
+  /** Current the link carries indefinitely; above it the link heats toward melting. */
+  fusibleLinkRatingA: number;
+  /** Adiabatic melting integral: a large overload opens the link after about I2t / I^2 seconds. */
+  fusibleLinkI2tA2s: number;
+  /** A link that is open (burnt) from the start. */
+  fusibleLinkOpen: boolean;
+  batteryPosCableAwg: number;
+  batteryPosCableLengthM: number;
+  batteryNegCableAwg: number;
+  batteryNegCableLengthM: number;
+  /** Engine block to body. */
+  groundStrapAwg: number;
+  groundStrapLengthM: number;
+  /** Each bolted or crimped joint. */
+  connectionResistanceOhm: number;
+  /** Extra resistance in the B+ circuit (corroded terminal, damaged cable). */
+  bplusExtraOhm: number;
+  /** Extra resistance in the ground path from the alternator case to the battery negative. */
+  groundExtraOhm: number;
+  /** Battery post to cable clamp, positive and negative. */
+  postClampPosOhm: number;
+  postClampNegOhm: number;
+  /** Regulator sense line to the battery positive. */
+  senseLineOhm: number;
+}
+
+/** A switchable vehicle load: either a constant current (electronics) or a resistance (lamps, heaters). */
+export type AccessoryParams =
+  | { id: string; label: string; currentA: number }
+  | { id: string; label: string; resistanceOhm: number };
+
+export interface LoadParams {
+  /** Engine-management and body electronics with the key on. */
+  baseElectronicsA: number;
+  /** Draw with the key off while modules are still awake. */
+  keyOffAwakeA: number;
+  /** Draw with the key off after every module has gone to sleep. */
+  keyOffSleepA: number;
+  /** Time after key-off (or after the battery circuit is broken) before modules sleep. */
+  moduleSleepDelayS: number;
+  accessories: AccessoryParams[];
+  /** A load that stays on with the key off (glovebox lamp, relay stuck on); 0 when healthy. */
+  stuckDrawA: number;
+}
+
+export interface PileParams {
+  /** Current the carbon pile draws at 12 V with the dial fully on. */
+  maxCurrentAAt12V: number;
+  heatCapacityJPerC: number;
+  coolingWPerC: number;
+  /** Thermal cut-out: the pile opens above this... */
+  tripC: number;
+  /** ...and closes again only with the dial at zero and the pile below this. */
+  resetC: number;
+  /** Temperature at which the dial's heat band turns amber. */
+  warnC: number;
+}
+
+export interface VehicleParams {
+  label: string;
+  engine: EngineParams;
+  belt: BeltParams;
+  alternator: AlternatorParams;
+  regulator: RegulatorParams;
+  battery: BatteryParams;
+  wiring: WiringParams;
+  loads: LoadParams;
+  pile: PileParams;
+  ambientC: number;
+  engineTempC: number;
+}
+
+/** An invented midsize car: 150 A alternator on a 2.8:1 pulley, 600 CCA 60 Ah battery. */
+export function defaultVehicleParams(): VehicleParams {
+  return {
+    label: 'Midsize sedan, 2.4 L (invented)',
+    engine: {
+      idleRpm: 750,
+      maxHeldRpm: 3500,
+      lagTimeConstantS: 0.35,
+      crankRpm: 200,
+      crankCurrentA: 170,
+      minCrankVoltageV: 8.5,
+      crankToStartS: 0.9,
+    },
+    belt: { pulleyRatio: 2.8, gripNm: 28 },
+    alternator: {
+      ratedCurrentA: 150,
+      ratedAltRpm: 6000,
+      polePairs: 6,
+      cutInAltRpm: 1000,
+      statorResistanceOhmAt20C: 0.022,
+      synchronousInductanceH: 90e-6,
+      fieldResistanceOhmAt20C: 2.7,
+      fieldInductanceH: 0.22,
+      brushResistanceOhm: 0.1,
+      fieldKneeCurrentA: 3.2,
+      diodeSaturationCurrentA: 1e-7,
+      diodeEmissionCoefficient: 1.6,
+      diodeSeriesResistanceOhm: 0.0015,
+      openDiodes: [],
+      shortedDiodes: [],
+      openPhases: [],
+      keyOffLeakageA: 0,
+      initialTempC: 25,
+      fullLoadTempRiseC: 80,
+      thermalTimeConstantS: 600,
+      efficiency01: 0.55,
+    },
+    regulator: {
+      setPointVAt25C: 14.2,
+      tempCoeffVPerC: -0.01,
+      sense: 'battery',
+      dutyFloor01: 0,
+      preExcitationDuty01: 0.15,
+    },
+    battery: {
+      cca: 600,
+      capacityAh: 60,
+      ageYears: 1,
+      initialSoc01: 0.9,
+      tempC: 25,
+      internalResistanceOhmAt25C: 0.0042,
+      initialSurfaceChargeV: 0,
+      surfaceChargeTimeConstantS: 20,
+    },
+    wiring: {
+      bplusCableAwg: 4,
+      bplusCableLengthM: 1.0,
+      fusibleLinkAwg: 8,
+      fusibleLinkLengthM: 0.15,
+      fusibleLinkRatingA: 150,
+      fusibleLinkI2tA2s: 337_500,
+      fusibleLinkOpen: false,
+      batteryPosCableAwg: 2,
+      batteryPosCableLengthM: 0.6,
+      batteryNegCableAwg: 2,
+      batteryNegCableLengthM: 0.5,
+      groundStrapAwg: 4,
+      groundStrapLengthM: 0.4,
+      connectionResistanceOhm: 0.0002,
+      bplusExtraOhm: 0,
+      groundExtraOhm: 0,
+      postClampPosOhm: 0.0001,
+      postClampNegOhm: 0.0001,
+      senseLineOhm: 0.05,
+    },
+    loads: {
+      baseElectronicsA: 12,
+      keyOffAwakeA: 0.45,
+      keyOffSleepA: 0.025,
+      moduleSleepDelayS: 180,
+      accessories: [
+        { id: 'headlamps', label: 'Headlamps (low beam)', resistanceOhm: 1.3 },
+        { id: 'high-beams', label: 'High beams', resistanceOhm: 1.2 },
+        { id: 'blower', label: 'Heater blower (high)', resistanceOhm: 0.75 },
+        { id: 'rear-defrost', label: 'Rear window defroster', resistanceOhm: 0.9 },
+        { id: 'wipers', label: 'Wipers', currentA: 5 },
+        { id: 'audio', label: 'Audio system', currentA: 4 },
+        { id: 'radiator-fan', label: 'Radiator fan', currentA: 22 },
+      ],
+      stuckDrawA: 0,
+    },
+    pile: {
+      maxCurrentAAt12V: 800,
+      heatCapacityJPerC: 500,
+      coolingWPerC: 5,
+      tripC: 400,
+      resetC: 150,
+      warnC: 250,
+    },
+    ambientC: 25,
+    engineTempC: 85,
+  };
+}
+
+export interface ParamBound {
+  min: number;
+  max: number;
+  unit: string;
+  label: string;
+  /** Whole numbers only. */
+  integer?: boolean;
+}
+
+type NumericKeys<T> = { [K in keyof T]: T[K] extends number ? K & string : never }[keyof T];
+type Group = 'engine' | 'belt' | 'alternator' | 'regulator' | 'battery' | 'wiring' | 'loads' | 'pile';
+
+/** Dotted paths of every numeric parameter, e.g. 'alternator.ratedCurrentA'. */
+export type NumericParamPath =
+  | { [G in Group]: `${G}.${NumericKeys<VehicleParams[G]>}` }[Group]
+  | NumericKeys<VehicleParams>;
+
+/** Sensible bounds for the scenario editor; the model stays stable inside them. */
+export const VEHICLE_PARAM_BOUNDS: Record<NumericParamPath, ParamBound> = {
+  'engine.idleRpm': { min: 500, max: 1200, unit: 'rpm', label: 'Idle speed', integer: true },
+  'engine.maxHeldRpm': { min: 1500, max: 5000, unit: 'rpm', label: 'Highest held speed', integer: true },
+  'engine.lagTimeConstantS': { min: 0.05, max: 2, unit: 's', label: 'Engine speed lag' },
+  'engine.crankRpm': { min: 80, max: 350, unit: 'rpm', label: 'Cranking speed at 10 V', integer: true },
+  'engine.crankCurrentA': { min: 60, max: 400, unit: 'A', label: 'Starter draw at 10 V' },
+  'engine.minCrankVoltageV': { min: 6, max: 10.5, unit: 'V', label: 'Lowest starter voltage that still starts' },
+  'engine.crankToStartS': { min: 0.2, max: 5, unit: 's', label: 'Cranking time to start' },
+  'belt.pulleyRatio': { min: 1.3, max: 3.5, unit: ':1', label: 'Pulley ratio' },
+  'belt.gripNm': { min: 2, max: 60, unit: 'N·m', label: 'Belt grip at the alternator pulley' },
+  'alternator.ratedCurrentA': { min: 60, max: 250, unit: 'A', label: 'Rated output' },
+  'alternator.ratedAltRpm': { min: 4000, max: 8000, unit: 'rpm', label: 'Speed of the rating', integer: true },
+  'alternator.polePairs': { min: 4, max: 9, unit: 'pairs', label: 'Rotor pole pairs', integer: true },
+  'alternator.cutInAltRpm': { min: 700, max: 1600, unit: 'rpm', label: 'Cut-in speed (alternator)', integer: true },
+  'alternator.statorResistanceOhmAt20C': { min: 0.005, max: 0.1, unit: 'Ω', label: 'Stator resistance per phase (20 °C)' },
+  'alternator.synchronousInductanceH': { min: 20e-6, max: 400e-6, unit: 'H', label: 'Synchronous inductance per phase' },
+  'alternator.fieldResistanceOhmAt20C': { min: 1.5, max: 6, unit: 'Ω', label: 'Field resistance (20 °C)' },
+  'alternator.fieldInductanceH': { min: 0.05, max: 1, unit: 'H', label: 'Field inductance' },
+  'alternator.brushResistanceOhm': { min: 0, max: 1e6, unit: 'Ω', label: 'Brush contact resistance' },
+  'alternator.fieldKneeCurrentA': { min: 1, max: 8, unit: 'A', label: 'Field current at saturation knee' },
+  'alternator.diodeSaturationCurrentA': { min: 1e-12, max: 1e-5, unit: 'A', label: 'Diode saturation current' },
+  'alternator.diodeEmissionCoefficient': { min: 1, max: 2.5, unit: '', label: 'Diode emission coefficient' },
+  'alternator.diodeSeriesResistanceOhm': { min: 0, max: 0.01, unit: 'Ω', label: 'Diode series resistance' },
+  'alternator.keyOffLeakageA': { min: 0, max: 5, unit: 'A', label: 'Key-off leakage through the unit' },
+  'alternator.initialTempC': { min: -30, max: 130, unit: '°C', label: 'Alternator temperature at start' },
+  'alternator.fullLoadTempRiseC': { min: 20, max: 120, unit: '°C', label: 'Temperature rise at rated output' },
+  'alternator.thermalTimeConstantS': { min: 60, max: 3600, unit: 's', label: 'Alternator warm-up time constant' },
+  'alternator.efficiency01': { min: 0.3, max: 0.8, unit: '', label: 'Alternator efficiency' },
+  'regulator.setPointVAt25C': { min: 12.5, max: 16.5, unit: 'V', label: 'Regulator set point (25 °C)' },
+  'regulator.tempCoeffVPerC': { min: -0.03, max: 0, unit: 'V/°C', label: 'Set-point temperature slope' },
+  'regulator.dutyFloor01': { min: 0, max: 1, unit: '', label: 'Minimum field duty' },
+  'regulator.preExcitationDuty01': { min: 0, max: 0.5, unit: '', label: 'Field duty, key on, engine stopped' },
+  'battery.cca': { min: 250, max: 1200, unit: 'A', label: 'Cold-cranking amps', integer: true },
+  'battery.capacityAh': { min: 30, max: 120, unit: 'Ah', label: 'Capacity' },
+  'battery.ageYears': { min: 0, max: 12, unit: 'years', label: 'Battery age' },
+  'battery.initialSoc01': { min: 0, max: 1, unit: '', label: 'State of charge at start' },
+  'battery.tempC': { min: -30, max: 55, unit: '°C', label: 'Battery temperature' },
+  'battery.internalResistanceOhmAt25C': { min: 0.002, max: 0.05, unit: 'Ω', label: 'Internal resistance (new, full, 25 °C)' },
+  'battery.initialSurfaceChargeV': { min: 0, max: 0.6, unit: 'V', label: 'Surface charge at start' },
+  'battery.surfaceChargeTimeConstantS': { min: 5, max: 600, unit: 's', label: 'Surface-charge time constant' },
+  'wiring.bplusCableAwg': { min: 0, max: 10, unit: 'AWG', label: 'B+ cable gauge', integer: true },
+  'wiring.bplusCableLengthM': { min: 0.2, max: 4, unit: 'm', label: 'B+ cable length' },
+  'wiring.fusibleLinkAwg': { min: 4, max: 18, unit: 'AWG', label: 'Fusible link gauge', integer: true },
+  'wiring.fusibleLinkLengthM': { min: 0.05, max: 0.3, unit: 'm', label: 'Fusible link length' },
+  'wiring.fusibleLinkRatingA': { min: 30, max: 400, unit: 'A', label: 'Fusible link rating' },
+  'wiring.fusibleLinkI2tA2s': { min: 1e3, max: 1e7, unit: 'A²s', label: 'Fusible link melting I²t' },
+  'wiring.batteryPosCableAwg': { min: 0, max: 8, unit: 'AWG', label: 'Battery positive cable gauge', integer: true },
+  'wiring.batteryPosCableLengthM': { min: 0.2, max: 5, unit: 'm', label: 'Battery positive cable length' },
+  'wiring.batteryNegCableAwg': { min: 0, max: 8, unit: 'AWG', label: 'Battery negative cable gauge', integer: true },
+  'wiring.batteryNegCableLengthM': { min: 0.2, max: 5, unit: 'm', label: 'Battery negative cable length' },
+  'wiring.groundStrapAwg': { min: 0, max: 10, unit: 'AWG', label: 'Engine ground strap gauge', integer: true },
+  'wiring.groundStrapLengthM': { min: 0.1, max: 2, unit: 'm', label: 'Engine ground strap length' },
+  'wiring.connectionResistanceOhm': { min: 0, max: 0.005, unit: 'Ω', label: 'Resistance of each joint' },
+  'wiring.bplusExtraOhm': { min: 0, max: 1, unit: 'Ω', label: 'Extra B+ circuit resistance' },
+  'wiring.groundExtraOhm': { min: 0, max: 1, unit: 'Ω', label: 'Extra ground path resistance' },
+  'wiring.postClampPosOhm': { min: 0, max: 1, unit: 'Ω', label: 'Positive post-to-clamp resistance' },
+  'wiring.postClampNegOhm': { min: 0, max: 1, unit: 'Ω', label: 'Negative post-to-clamp resistance' },
+  'wiring.senseLineOhm': { min: 0, max: 1e6, unit: 'Ω', label: 'Sense line resistance' },
+  'loads.baseElectronicsA': { min: 0, max: 40, unit: 'A', label: 'Base electronics, key on' },
+  'loads.keyOffAwakeA': { min: 0, max: 3, unit: 'A', label: 'Key-off draw, modules awake' },
+  'loads.keyOffSleepA': { min: 0, max: 0.2, unit: 'A', label: 'Key-off draw, modules asleep' },
+  'loads.moduleSleepDelayS': { min: 5, max: 4500, unit: 's', label: 'Module sleep delay' },
+  'loads.stuckDrawA': { min: 0, max: 5, unit: 'A', label: 'Load stuck on with the key off' },
+  'pile.maxCurrentAAt12V': { min: 200, max: 1500, unit: 'A', label: 'Carbon pile, full dial at 12 V' },
+  'pile.heatCapacityJPerC': { min: 50, max: 5000, unit: 'J/°C', label: 'Carbon pile heat capacity' },
+  'pile.coolingWPerC': { min: 0.5, max: 50, unit: 'W/°C', label: 'Carbon pile cooling' },
+  'pile.tripC': { min: 150, max: 800, unit: '°C', label: 'Carbon pile cut-out temperature' },
+  'pile.resetC': { min: 30, max: 400, unit: '°C', label: 'Carbon pile reset temperature' },
+  'pile.warnC': { min: 50, max: 600, unit: '°C', label: 'Carbon pile warning temperature' },
+  ambientC: { min: -30, max: 50, unit: '°C', label: 'Ambient temperature' },
+  engineTempC: { min: -30, max: 120, unit: '°C', label: 'Engine coolant temperature' },
+};
+
+/** Copper resistance per metre at 20 C by AWG (HyperPhysics wire-gauge table, after Floyd). */
+const COPPER_MILLIOHM_PER_M: Readonly<Record<number, number>> = {
+  0: 0.323, 1: 0.407, 2: 0.513, 3: 0.647, 4: 0.815, 5: 1.028, 6: 1.296, 7: 1.634, 8: 2.061,
+  9: 2.6, 10: 3.277, 11: 4.13, 12: 5.21, 13: 6.57, 14: 8.28, 15: 10.4, 16: 13.2, 17: 16.6, 18: 20.9,
+};
+
+/** Resistance of a copper conductor of the given gauge and length at 20 C. */
+export function copperResistanceOhm(awg: number, lengthM: number): number {
+  const g = Math.min(18, Math.max(0, Math.round(awg)));
+  return ((COPPER_MILLIOHM_PER_M[g] ?? 0.815) / 1000) * lengthM;
+}
