@@ -33,7 +33,8 @@ export function loadUser(db: Db): RequestHandler {
       .from(users)
       .where(eq(users.id, id));
     if (!row || row.disabled) {
-      await new Promise<void>((resolve) => req.session.destroy(() => resolve()));
+      // The account is gone or disabled: the request continues as anonymous, on a fresh session.
+      await new Promise<void>((resolve, reject) => req.session.regenerate((err) => (err ? reject(err) : resolve())));
       return next();
     }
     req.user = { id: row.id, email: row.email, name: row.name, role: row.role };

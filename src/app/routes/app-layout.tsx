@@ -1,17 +1,13 @@
-import { NavLink, Outlet, redirect, useNavigate, useNavigation, type LoaderFunctionArgs } from 'react-router-dom';
+import { NavLink, Outlet, useNavigate, useNavigation, type LoaderFunctionArgs } from 'react-router-dom';
 import { Logo } from '../../components/ui/logo.tsx';
-import { useMe, meQueryOptions } from '../../features/auth/api/get-me.ts';
+import { useMe } from '../../features/auth/api/get-me.ts';
 import { useSignOut } from '../../features/auth/api/sign-out.ts';
 import { paths } from '../../config/paths.ts';
-import { queryClient } from '../../lib/query-client.ts';
 import { NAV } from '../nav.ts';
+import { requireSignedIn } from './role-guard.tsx';
 
 export async function appLayoutLoader({ request }: LoaderFunctionArgs) {
-  const me = await queryClient.ensureQueryData(meQueryOptions());
-  if (!me.user) {
-    const url = new URL(request.url);
-    throw redirect(paths.signIn.href(url.pathname === '/' ? undefined : url.pathname + url.search));
-  }
+  await requireSignedIn(request);
   return null;
 }
 

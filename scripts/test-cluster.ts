@@ -1,0 +1,42 @@
+/**
+ * The throwaway database of the test command: its own port and folder,
+ * migrated and seeded once into a template that each test file copies.
+ */
+import { mkdtempSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { connect } from '../server/db/client.ts';
+import { applyMigrations } from '../server/db/migrate.ts';
+import { seedDemo } from '../server/db/seed.ts';
+import { ensureDatabase, startCluster } from './pg-cluster.ts';
+
+export const TEMPLATE_DB = 'loadline_template';
+
+export async function withTestCluster<T>(fn: (env: NodeJS.ProcessEnv) => T | Promise<T>): Promise<T> {
+  const port = Number(process.env.LOADLINE_TEST_PG_PORT ?? 54339);
+  const dataDir = join(mkdtempSync(join(tmpdir(), 'loadline-test-')), 'pg');
+  const cluster = startCluster({ dataDir, port, socketDir: `/tmp/loadline-t${port}`, throwaway: true, log: (l) => console.log(l) });
+  const stop = () => cluster.stop();
+  process.on('exit', stop);
+  process.on('SIGINT', () => {
+    stop();
+    process.exit(130);
+  });
+  try {
+    await ensureDatabase(cluster, TEMPLATE_DB);
+    const database = connect(cluster.url(TEMPLATE_DB), 2);
+    await applyMigrations(database.db);
+    await seedDemo(database.db);
+    await database.close();
+    return await fn({
+      ...process.env,
+      NODE_ENV: 'test',
+      LOADLINE_TEST_PG: cluster.url(''),
+      LOADLINE_TEST_TEMPLATE: TEMPLATE_DB,
+      LOADLINE_TEST_PG_BIN_PORT: String(port),
+      LOADLINE_TEST_PG_DATA: cluster.dataDir,
+    });
+  } finally {
+    stop();
+  }
+}

@@ -1,0 +1,64 @@
+import type { Browser } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
+import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
+import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+
+let browser: Browser;
+let app: E2eServer;
+
+beforeAll(async () => {
+  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
+});
+afterAll(async () => {
+  await browser?.close();
+  await app?.close();
+});
+
+const expectedNav = {
+  student: ['Bench', 'My attempts'],
+  instructor: ['Scenarios', 'Classes'],
+  admin: ['Users', 'Outbox'],
+} as const;
+
+describe('signing in as each role', () => {
+  for (const role of ['student', 'instructor', 'admin'] as const) {
+    it(`shows a ${role} their own navigation`, async () => {
+      const person = DEMO_PEOPLE.find((p) => p.role === role)!;
+      const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+      const problems = watchConsole(page);
+      await signInAs(page, app.url, person.email);
+      const nav = page.getByRole('navigation', { name: 'Main' });
+      const links = await nav.getByRole('link').allTextContents();
+      expect(links).toEqual([...expectedNav[role]]);
+      await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toBe(expectedNav[role][0]);
+      await page.screenshot({ path: `${SCREENSHOT_DIR}/sign-in-${role}.png`, fullPage: true });
+      expect(problems).toEqual([]);
+      await page.getByRole('button', { name: 'Sign out' }).click();
+      await page.waitForURL(/\/sign-in/);
+      await page.close();
+    });
+  }
+
+  it('shows an error for a wrong password and keeps the user on the sign-in page', async () => {
+    const page = await browser.newPage();
+    await page.goto(`${app.url}/sign-in`);
+    await page.getByLabel('E-mail').fill(DEMO_PEOPLE[0]!.email);
+    await page.getByLabel('Password').fill('definitely-wrong');
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await expect.poll(() => page.getByRole('alert').first().textContent()).toMatch(/not right/);
+    expect(new URL(page.url()).pathname).toBe('/sign-in');
+    await page.close();
+  });
+
+  it('sends a signed-out visitor to sign-in and shows a 404 page for unknown addresses', async () => {
+    const page = await browser.newPage();
+    await page.goto(`${app.url}/admin/users`);
+    await page.waitForURL(/\/sign-in\?next=/);
+    await signInAs(page, app.url, DEMO_PEOPLE.find((p) => p.role === 'student')!.email);
+    await page.goto(`${app.url}/no/such/page`);
+    await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toMatch(/nothing at this address/);
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/not-found.png` });
+    await page.close();
+  });
+});

@@ -1,0 +1,55 @@
+import { fileURLToPath } from 'node:url';
+import type { Page } from 'playwright-core';
+import { readEnv } from '../../server/env.ts';
+import { startServer, type RunningServer } from '../../server/main.ts';
+import { startSmtpFake, type SmtpFake } from '../../server/services/smtp-fake.ts';
+import { connect } from '../../server/db/client.ts';
+import { DEMO_PASSWORD } from '../../server/db/demo-people.ts';
+import { createTestDatabase } from '../server/support.ts';
+
+const distDir = fileURLToPath(new URL('../../dist', import.meta.url));
+
+export interface E2eServer {
+  server: RunningServer;
+  url: string;
+  close(): Promise<void>;
+}
+
+/** The built client and the API on a fresh copy of the demo database. */
+export async function startE2eServer(): Promise<E2eServer> {
+  const databaseUrl = await createTestDatabase();
+  const mailDb = connect(databaseUrl, 2);
+  const smtp: SmtpFake = await startSmtpFake(mailDb.db, 0);
+  const server = await startServer({
+    env: readEnv({ NODE_ENV: 'production', DATABASE_URL: databaseUrl, PORT: '0', SMTP_PORT: String(smtp.port), SIGN_IN_LIMIT: '1000' }),
+    staticDir: distDir,
+    logLevel: 'silent',
+  });
+  return {
+    server,
+    url: server.url,
+    async close() {
+      await server.close();
+      await smtp.close();
+      await mailDb.close();
+    },
+  };
+}
+
+/** Collects console errors and CSP violations, which fail a test. */
+export function watchConsole(page: Page): string[] {
+  const problems: string[] = [];
+  page.on('console', (m) => {
+    if (m.type() === 'error') problems.push(m.text());
+  });
+  page.on('pageerror', (e) => problems.push(String(e)));
+  return problems;
+}
+
+export async function signInAs(page: Page, baseUrl: string, email: string, password = DEMO_PASSWORD): Promise<void> {
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
+}
