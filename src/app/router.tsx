@@ -8,7 +8,8 @@ import { NotFoundPage, RouteErrorPage } from './routes/not-found.tsx';
 import { ForgotPasswordPage, SetPasswordPage } from './routes/password.tsx';
 import { roleLoader } from './routes/role-guard.tsx';
 import { SignInPage, signInLoader } from './routes/sign-in.tsx';
-import { studentRoutes, instructorRoutes } from './routes/feature-routes.tsx';
+import { instructorRoutes } from './routes/instructor-routes.tsx';
+import { studentRoutes } from './routes/student-routes.tsx';
 
 export const router = createBrowserRouter([
   { path: paths.signIn.pattern, loader: signInLoader, element: <SignInPage />, errorElement: <RouteErrorPage /> },
