@@ -59,20 +59,22 @@ const DEFAULT_MAX_HARMONIC = 36;
 const MIN_SETTLE_CYCLES = 12;
 const MAX_SETTLE_CYCLES = 400;
 const SETTLE_TIME_CONSTANTS = 8;
-// Keeps nodes that only diodes reach (an open phase, the star point) from
+// Keeps the star point, which only the windings and diodes reach, from
 // floating in the DC operating point; at 1 GOhm it draws nanoamps.
 const BLEED_RESISTANCE_OHM = 1e9;
 
 // The default reltol (1e-3) leaves the mean output about 0.4 % off the
 // converged value for a diode bridge; 1e-4 brings it within about 0.05 %.
-// Sharp diodes with little or no inductance sometimes stop the engine with
-// "timestep too small"; a larger junction gmin, then the gear method, then a
-// finer step get past that without moving the result measurably.
+// The default junction gmin (1e-12 S) lets lightly loaded bridges crawl
+// through tiny time steps; 1e-8 S leaks 0.14 uA per diode at 14 V and keeps
+// the step near the maximum. Sharp diodes with little inductance sometimes
+// still stop with "timestep too small"; the gear method, then a finer step,
+// get past that without moving the result measurably.
 const SOLVER_ATTEMPTS = [
-  { solverOptions: 'reltol=1e-4', stepScale: 1 },
   { solverOptions: 'reltol=1e-4 gmin=1e-8', stepScale: 1 },
   { solverOptions: 'reltol=1e-4 gmin=1e-8 method=gear', stepScale: 1 },
-  { solverOptions: 'reltol=1e-4 gmin=1e-8', stepScale: 1.5 },
+  { solverOptions: 'reltol=1e-4 gmin=1e-9', stepScale: 1.5 },
+  { solverOptions: 'reltol=1e-4', stepScale: 2 },
 ] as const;
 
 const PHASES = ['a', 'b', 'c'] as const;
@@ -170,14 +172,13 @@ export function netlistFor(
   const w = transientWindow(circuit, o);
   const open = new Set(circuit.openDiodes);
   const shorted = new Set(circuit.shortedDiodes.filter((i) => !open.has(i)));
-  const openPhases = new Set(circuit.openPhases);
+  // With two phases open the star point has no return path, so the third
+  // winding carries no current either: treat it as open too.
+  const openPhases = new Set(circuit.openPhases.length >= 2 ? [0, 1, 2] : circuit.openPhases);
   const lines: string[] = [title];
 
   PHASES.forEach((x, i) => {
-    if (openPhases.has(i)) {
-      lines.push(`rbleed_${x} p_${x} cs ${BLEED_RESISTANCE_OHM}`);
-      return;
-    }
+    if (openPhases.has(i)) return;
     const shiftDeg = PHASE_SHIFT_DEG[i] ?? 0;
     lines.push(`vemf_${x} e_${x} st SIN(0 ${num(circuit.phaseEmfPeakV, 'phaseEmfPeakV')} ${num(circuit.electricalHz, 'electricalHz')} 0 0 ${shiftDeg})`);
     if (circuit.synchronousInductanceH > 0) {
@@ -187,17 +188,23 @@ export function netlistFor(
       lines.push(seriesResistance(`s_${x}`, `e_${x}`, `p_${x}`, circuit.statorResistanceOhm, 'statorResistanceOhm'));
     }
   });
-  lines.push(`rbleed_st st cs ${BLEED_RESISTANCE_OHM}`);
+  if (openPhases.size < 3) lines.push(`rbleed_st st cs ${BLEED_RESISTANCE_OHM}`);
 
   for (let d = 0; d < 6; d++) {
-    const x = PHASES[d % 3] ?? 'a';
+    const phase = d % 3;
+    const x = PHASES[phase] ?? 'a';
     const [anode, cathode] = d < 3 ? [`p_${x}`, 'bp'] : ['cs', `p_${x}`];
     if (open.has(d)) continue;
     if (shorted.has(d)) {
       lines.push(`rshort${d} ${anode} ${cathode} ${num(o.shortedDiodeResistanceOhm, 'shortedDiodeResistanceOhm')}`);
-    } else {
-      lines.push(`d${d} ${anode} ${cathode} drect`);
+      continue;
     }
+    // The two diodes of an open phase pass only leakage (nanoamps) unless the
+    // other one is shorted; left in, their junction node floats between two
+    // reverse junctions and the engine crawls through tiny time steps.
+    const partner = d < 3 ? d + 3 : d - 3;
+    if (openPhases.has(phase) && !shorted.has(partner)) continue;
+    lines.push(`d${d} ${anode} ${cathode} drect`);
   }
   const dm = circuit.diode;
   lines.push(
