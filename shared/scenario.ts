@@ -1,0 +1,554 @@
+/**
+ * The scenario document: one JSON format (`loadline.scenario`) for the API,
+ * the editor, file import/export and the demo library in scenarios/.
+ *
+ * A document goes through `normaliseScenario` (fills what older or partial
+ * files leave out; the place to migrate `formatVersion`) and then the zod
+ * parse, which names each bad field by its dotted path.
+ */
+import { z } from 'zod';
+import { FAULT_CATALOG, FAULT_KINDS, type DiagnosticTest, type FaultKind } from '../sim/faults.ts';
+import { defaultVehicleParams, VEHICLE_PARAM_BOUNDS, type NumericParamPath, type VehicleParams } from '../sim/params.ts';
+
+export const SCENARIO_FORMAT = 'loadline.scenario';
+export const SCENARIO_FORMAT_VERSION = 1;
+
+export const DIFFICULTIES = ['intro', 'core', 'advanced'] as const;
+export type Difficulty = (typeof DIFFICULTIES)[number];
+export const DIFFICULTY_LABELS: Readonly<Record<Difficulty, string>> = { intro: 'Intro', core: 'Core', advanced: 'Advanced' };
+
+export const VEHICLE_KINDS = ['compact car', 'midsize car', 'full-size car', 'pickup', 'van', 'suv', 'light truck', 'utility vehicle'] as const;
+export type VehicleKind = (typeof VEHICLE_KINDS)[number];
+
+export const DIAGNOSTIC_TESTS = [
+  'battery-ocv',
+  'battery-load',
+  'regulated-voltage',
+  'output',
+  'voltage-drop-positive',
+  'voltage-drop-ground',
+  'ripple',
+  'key-off-draw',
+  'cranking',
+] as const satisfies readonly DiagnosticTest[];
+
+export const DIAGNOSTIC_TEST_LABELS: Readonly<Record<DiagnosticTest, string>> = {
+  'battery-ocv': 'Battery state of charge (open-circuit voltage)',
+  'battery-load': 'Battery load test',
+  'regulated-voltage': 'Regulated (no-load) charging voltage',
+  output: 'Output test under carbon-pile load',
+  'voltage-drop-positive': 'Voltage drop, positive side',
+  'voltage-drop-ground': 'Voltage drop, ground side',
+  ripple: 'AC ripple (diode) check',
+  'key-off-draw': 'Key-off draw',
+  cranking: 'Cranking voltage',
+};
+
+export type DiagnosisChoice = FaultKind | 'none';
+export const NO_FAULT_LABEL = 'No fault: the charging system is healthy';
+
+export function diagnosisLabel(choice: DiagnosisChoice): string {
+  return choice === 'none' ? NO_FAULT_LABEL : FAULT_CATALOG[choice].label;
+}
+
+// ---------------------------------------------------------------------------
+// Numbers with bounds and units
+
+function describe(b: { min: number; max: number; unit: string }): string {
+  const unit = b.unit && b.unit !== ':1' ? ` ${b.unit}` : b.unit;
+  return `${formatBound(b.min)} to ${formatBound(b.max)}${unit}`;
+}
+
+function formatBound(n: number): string {
+  if (n !== 0 && (Math.abs(n) < 0.001 || Math.abs(n) >= 1e5)) return n.toExponential().replace('e+', 'e');
+  return String(n);
+}
+
+/** A number field with a label, unit and range; the messages say what is allowed. */
+export function boundedNumber(b: { min: number; max: number; unit: string; label: string; integer?: boolean }) {
+  const range = describe(b);
+  let s = z.number({ error: (iss) => (iss.input === undefined ? `${b.label} is required (${range})` : `${b.label} must be a number (${range})`) });
+  if (b.integer) s = s.int(`${b.label} must be a whole number (${range})`);
+  return s.min(b.min, `${b.label} must be at least ${formatBound(b.min)}${b.unit && b.unit !== ':1' ? ` ${b.unit}` : ''} (${range})`).max(
+    b.max,
+    `${b.label} must be at most ${formatBound(b.max)}${b.unit && b.unit !== ':1' ? ` ${b.unit}` : ''} (${range})`,
+  );
+}
+
+const p = (path: NumericParamPath) => boundedNumber(VEHICLE_PARAM_BOUNDS[path]);
+
+const text = (label: string, min: number, max: number) =>
+  z
+    .string({ error: (iss) => (iss.input === undefined ? `${label} is required` : `${label} must be text`) })
+    .trim()
+    .min(min, min === 1 ? `${label} is required` : `${label} must be at least ${min} characters`)
+    .max(max, `${label} must be at most ${max} characters`);
+
+const indexList = (label: string, maxIndex: number) =>
+  z
+    .array(z.number().int(`${label}: each entry is a whole number`).min(0, `${label}: indices start at 0`).max(maxIndex, `${label}: indices go up to ${maxIndex}`), {
+      error: `${label} must be a list of indices 0 to ${maxIndex}`,
+    })
+    .max(maxIndex + 1, `${label}: at most ${maxIndex + 1} entries`)
+    .refine((xs) => new Set(xs).size === xs.length, `${label}: each index at most once`);
+
+export const ACCESSORY_BOUNDS = {
+  currentA: { min: 0, max: 60, unit: 'A', label: 'Accessory current' },
+  resistanceOhm: { min: 0.1, max: 100, unit: 'Ω', label: 'Accessory resistance' },
+} as const;
+
+const accessoryId = z
+  .string({ error: 'Accessory id is required' })
+  .regex(/^[a-z0-9][a-z0-9-]{0,39}$/, 'Accessory id: lower-case letters, digits and dashes, up to 40 characters');
+
+export const accessorySchema = z.union(
+  [
+    z.strictObject({ id: accessoryId, label: text('Accessory name', 1, 60), currentA: boundedNumber(ACCESSORY_BOUNDS.currentA) }),
+    z.strictObject({ id: accessoryId, label: text('Accessory name', 1, 60), resistanceOhm: boundedNumber(ACCESSORY_BOUNDS.resistanceOhm) }),
+  ],
+  { error: 'An accessory has an id, a name and either currentA (a constant-current load) or resistanceOhm (a lamp or heater)' },
+);
+
+export const vehicleParamsSchema = z.strictObject({
+  label: text('Parameter set label', 1, 120),
+  engine: z.strictObject({
+    idleRpm: p('engine.idleRpm'),
+    maxHeldRpm: p('engine.maxHeldRpm'),
+    lagTimeConstantS: p('engine.lagTimeConstantS'),
+    crankRpm: p('engine.crankRpm'),
+    crankCurrentA: p('engine.crankCurrentA'),
+    minCrankVoltageV: p('engine.minCrankVoltageV'),
+    crankToStartS: p('engine.crankToStartS'),
+  }),
+  belt: z.strictObject({ pulleyRatio: p('belt.pulleyRatio'), gripNm: p('belt.gripNm') }),
+  alternator: z.strictObject({
+    ratedCurrentA: p('alternator.ratedCurrentA'),
+    ratedAltRpm: p('alternator.ratedAltRpm'),
+    polePairs: p('alternator.polePairs'),
+    cutInAltRpm: p('alternator.cutInAltRpm'),
+    statorResistanceOhmAt20C: p('alternator.statorResistanceOhmAt20C'),
+    synchronousInductanceH: p('alternator.synchronousInductanceH'),
+    fieldResistanceOhmAt20C: p('alternator.fieldResistanceOhmAt20C'),
+    fieldInductanceH: p('alternator.fieldInductanceH'),
+    brushResistanceOhm: p('alternator.brushResistanceOhm'),
+    fieldKneeCurrentA: p('alternator.fieldKneeCurrentA'),
+    diodeSaturationCurrentA: p('alternator.diodeSaturationCurrentA'),
+    diodeEmissionCoefficient: p('alternator.diodeEmissionCoefficient'),
+    diodeSeriesResistanceOhm: p('alternator.diodeSeriesResistanceOhm'),
+    openDiodes: indexList('Open diodes', 5),
+    shortedDiodes: indexList('Shorted diodes', 5),
+    openPhases: indexList('Open stator phases', 2),
+    keyOffLeakageA: p('alternator.keyOffLeakageA'),
+    initialTempC: p('alternator.initialTempC'),
+    fullLoadTempRiseC: p('alternator.fullLoadTempRiseC'),
+    thermalTimeConstantS: p('alternator.thermalTimeConstantS'),
+    efficiency01: p('alternator.efficiency01'),
+  }),
+  regulator: z.strictObject({
+    setPointVAt25C: p('regulator.setPointVAt25C'),
+    tempCoeffVPerC: p('regulator.tempCoeffVPerC'),
+    sense: z.enum(['battery', 'bplus'], { error: 'Regulator sense must be "battery" (remote sense line) or "bplus" (its own B+ stud)' }),
+    dutyFloor01: p('regulator.dutyFloor01'),
+    preExcitationDuty01: p('regulator.preExcitationDuty01'),
+  }),
+  battery: z.strictObject({
+    cca: p('battery.cca'),
+    capacityAh: p('battery.capacityAh'),
+    ageYears: p('battery.ageYears'),
+    initialSoc01: p('battery.initialSoc01'),
+    tempC: p('battery.tempC'),
+    internalResistanceOhmAt25C: p('battery.internalResistanceOhmAt25C'),
+    initialSurfaceChargeV: p('battery.initialSurfaceChargeV'),
+    surfaceChargeTimeConstantS: p('battery.surfaceChargeTimeConstantS'),
+  }),
+  wiring: z.strictObject({
+    bplusCableAwg: p('wiring.bplusCableAwg'),
+    bplusCableLengthM: p('wiring.bplusCableLengthM'),
+    fusibleLinkAwg: p('wiring.fusibleLinkAwg'),
+    fusibleLinkLengthM: p('wiring.fusibleLinkLengthM'),
+    fusibleLinkRatingA: p('wiring.fusibleLinkRatingA'),
+    fusibleLinkI2tA2s: p('wiring.fusibleLinkI2tA2s'),
+    fusibleLinkOpen: z.boolean({ error: 'Fusible link open must be true or false' }),
+    batteryPosCableAwg: p('wiring.batteryPosCableAwg'),
+    batteryPosCableLengthM: p('wiring.batteryPosCableLengthM'),
+    batteryNegCableAwg: p('wiring.batteryNegCableAwg'),
+    batteryNegCableLengthM: p('wiring.batteryNegCableLengthM'),
+    groundStrapAwg: p('wiring.groundStrapAwg'),
+    groundStrapLengthM: p('wiring.groundStrapLengthM'),
+    connectionResistanceOhm: p('wiring.connectionResistanceOhm'),
+    bplusExtraOhm: p('wiring.bplusExtraOhm'),
+    groundExtraOhm: p('wiring.groundExtraOhm'),
+    postClampPosOhm: p('wiring.postClampPosOhm'),
+    postClampNegOhm: p('wiring.postClampNegOhm'),
+    senseLineOhm: p('wiring.senseLineOhm'),
+  }),
+  loads: z.strictObject({
+    baseElectronicsA: p('loads.baseElectronicsA'),
+    keyOffAwakeA: p('loads.keyOffAwakeA'),
+    keyOffSleepA: p('loads.keyOffSleepA'),
+    moduleSleepDelayS: p('loads.moduleSleepDelayS'),
+    accessories: z
+      .array(accessorySchema, { error: 'Accessories must be a list' })
+      .max(16, 'At most 16 accessories')
+      .refine((xs) => new Set(xs.map((a) => a.id)).size === xs.length, 'Each accessory needs its own id'),
+    stuckDrawA: p('loads.stuckDrawA'),
+  }),
+  pile: z
+    .strictObject({
+      maxCurrentAAt12V: p('pile.maxCurrentAAt12V'),
+      heatCapacityJPerC: p('pile.heatCapacityJPerC'),
+      coolingWPerC: p('pile.coolingWPerC'),
+      tripC: p('pile.tripC'),
+      resetC: p('pile.resetC'),
+      warnC: p('pile.warnC'),
+    })
+    .refine((x) => x.resetC < x.warnC && x.warnC < x.tripC, {
+      error: 'Carbon pile temperatures must rise: reset below warning below cut-out',
+      path: ['warnC'],
+    }),
+  ambientC: p('ambientC'),
+  engineTempC: p('engineTempC'),
+});
+
+// ---------------------------------------------------------------------------
+// Faults, pass rules, the document
+
+export const FAULT_BOUNDS = {
+  severity01: { min: 0, max: 1, unit: '', label: 'Severity' },
+  onsetS: { min: 0, max: 3600, unit: 's', label: 'Onset' },
+  periodS: { min: 0.5, max: 600, unit: 's', label: 'Intermittent period' },
+  onFraction01: { min: 0.05, max: 1, unit: '', label: 'Fraction of each period the fault is present' },
+} as const;
+
+export const faultKindSchema = z.enum(FAULT_KINDS as readonly [FaultKind, ...FaultKind[]], {
+  error: `Fault kind must be one of: ${FAULT_KINDS.join(', ')}`,
+});
+
+export const diagnosisChoiceSchema = z.union([faultKindSchema, z.literal('none')], {
+  error: `A diagnosis choice is a fault kind or "none" (${FAULT_KINDS.join(', ')}, none)`,
+});
+
+export const diagnosticTestSchema = z.enum(DIAGNOSTIC_TESTS, { error: `A test is one of: ${DIAGNOSTIC_TESTS.join(', ')}` });
+
+export const faultSchema = z.strictObject({
+  id: z
+    .string({ error: 'Fault id is required' })
+    .regex(/^[a-z0-9][a-z0-9-]{0,39}$/, 'Fault id: lower-case letters, digits and dashes, up to 40 characters'),
+  kind: faultKindSchema,
+  severity01: boundedNumber(FAULT_BOUNDS.severity01),
+  onsetS: boundedNumber(FAULT_BOUNDS.onsetS),
+  intermittent: z
+    .strictObject({ periodS: boundedNumber(FAULT_BOUNDS.periodS), onFraction01: boundedNumber(FAULT_BOUNDS.onFraction01) })
+    .nullable()
+    .optional(),
+});
+
+/**
+ * Pass rules with their sources:
+ * - output within 10 % of rating: common practice, no source (makers also use 60–70 % of rating or within 15 A, hence a setting);
+ * - regulated 13.5–14.5 V: vehicle maker's technical information on the regulator's normal band;
+ * - drops 0.2 V positive and ground: vehicle maker's charging-circuit procedure / voltage-drop test guide;
+ * - ripple 0.5 V AC at B+ to case: dealer technical magazine on ripple testing;
+ * - key-off draw 50 mA: vehicle maker's drain test (25–50 mA after the modules sleep);
+ * - battery load 9.6 V at 21 °C and 12.4 V charged before load testing: vehicle makers' battery test procedures.
+ */
+export const PASS_RULE_BOUNDS = {
+  percent: { min: 10, max: 100, unit: '%', label: 'Output pass mark' },
+  amps: { min: 1, max: 100, unit: 'A', label: 'Output allowance below rating' },
+  outputLoadedVoltageV: { min: 11, max: 13.5, unit: 'V', label: 'Voltage held during the output test' },
+  regulatedMinV: { min: 12.5, max: 15, unit: 'V', label: 'Lowest regulated voltage' },
+  regulatedMaxV: { min: 13, max: 16, unit: 'V', label: 'Highest regulated voltage' },
+  maxDropPositiveV: { min: 0.05, max: 1, unit: 'V', label: 'Largest positive-side drop' },
+  maxDropGroundV: { min: 0.05, max: 1, unit: 'V', label: 'Largest ground-side drop' },
+  maxRippleVac: { min: 0.02, max: 2, unit: 'V AC', label: 'Largest ripple' },
+  maxKeyOffDrawA: { min: 0.005, max: 0.5, unit: 'A', label: 'Largest key-off draw' },
+  batteryLoadMinV: { min: 8, max: 10.5, unit: 'V', label: 'Lowest voltage at the end of the load test' },
+  socChargedMinV: { min: 12, max: 12.8, unit: 'V', label: 'Lowest resting voltage of a charged battery' },
+} as const;
+
+export const outputRuleSchema = z.discriminatedUnion(
+  'mode',
+  [
+    z.strictObject({ mode: z.literal('percent-of-rating'), percent: boundedNumber(PASS_RULE_BOUNDS.percent) }),
+    z.strictObject({ mode: z.literal('within-amps'), amps: boundedNumber(PASS_RULE_BOUNDS.amps) }),
+  ],
+  { error: 'Output rule mode must be "percent-of-rating" (with percent) or "within-amps" (with amps)' },
+);
+export type OutputRule = z.infer<typeof outputRuleSchema>;
+
+const b = PASS_RULE_BOUNDS;
+export const passRulesSchema = z
+  .strictObject({
+    output: outputRuleSchema,
+    outputLoadedVoltageV: boundedNumber(b.outputLoadedVoltageV),
+    regulatedMinV: boundedNumber(b.regulatedMinV),
+    regulatedMaxV: boundedNumber(b.regulatedMaxV),
+    maxDropPositiveV: boundedNumber(b.maxDropPositiveV),
+    maxDropGroundV: boundedNumber(b.maxDropGroundV),
+    maxRippleVac: boundedNumber(b.maxRippleVac),
+    maxKeyOffDrawA: boundedNumber(b.maxKeyOffDrawA),
+    batteryLoadMinV: boundedNumber(b.batteryLoadMinV),
+    socChargedMinV: boundedNumber(b.socChargedMinV),
+  })
+  .refine((r) => r.regulatedMinV < r.regulatedMaxV, { error: 'The lowest regulated voltage must be below the highest', path: ['regulatedMaxV'] });
+export type PassRules = z.infer<typeof passRulesSchema>;
+
+export function defaultPassRules(): PassRules {
+  return {
+    output: { mode: 'percent-of-rating', percent: 90 },
+    outputLoadedVoltageV: 12,
+    regulatedMinV: 13.5,
+    regulatedMaxV: 14.5,
+    maxDropPositiveV: 0.2,
+    maxDropGroundV: 0.2,
+    maxRippleVac: 0.5,
+    maxKeyOffDrawA: 0.05,
+    batteryLoadMinV: 9.6,
+    socChargedMinV: 12.4,
+  };
+}
+
+/** The least output (A) that passes the output test for a given rating. */
+export function outputPassMarkA(rule: OutputRule, ratedCurrentA: number): number {
+  return rule.mode === 'percent-of-rating' ? (ratedCurrentA * rule.percent) / 100 : Math.max(0, ratedCurrentA - rule.amps);
+}
+
+const stringList = (label: string, maxItems: number, maxLength: number) =>
+  z.array(text(label, 1, maxLength), { error: `${label}s must be a list of text` }).max(maxItems, `At most ${maxItems} ${label.toLowerCase()}s`);
+
+export const scenarioSchema = z
+  .strictObject({
+    format: z.literal(SCENARIO_FORMAT, { error: `format must be "${SCENARIO_FORMAT}"` }),
+    formatVersion: z.literal(SCENARIO_FORMAT_VERSION, {
+      error: `formatVersion must be ${SCENARIO_FORMAT_VERSION} (a file from a newer version of Loadline cannot be read here)`,
+    }),
+    title: text('Title', 3, 120),
+    summary: text('Summary (the customer’s complaint)', 10, 2000),
+    difficulty: z.enum(DIFFICULTIES, { error: `Difficulty must be one of: ${DIFFICULTIES.join(', ')}` }),
+    vehicle: z.strictObject({
+      name: text('Vehicle name', 2, 120),
+      kind: z.enum(VEHICLE_KINDS, { error: `Vehicle kind must be one of: ${VEHICLE_KINDS.join(', ')}` }),
+      engineDescription: text('Engine description', 2, 200),
+      params: vehicleParamsSchema,
+    }),
+    faults: z
+      .array(faultSchema, { error: 'Faults must be a list' })
+      .max(6, 'At most 6 faults in one scenario')
+      .refine((xs) => new Set(xs.map((f) => f.id)).size === xs.length, 'Each fault needs its own id'),
+    testsExpected: z
+      .array(diagnosticTestSchema, { error: 'Tests expected must be a list' })
+      .min(1, 'Choose at least one test the student is expected to run')
+      .refine((xs) => new Set(xs).size === xs.length, 'Each test at most once'),
+    passRules: passRulesSchema,
+    diagnosisChoices: z
+      .array(diagnosisChoiceSchema, { error: 'Diagnosis choices must be a list' })
+      .min(3, 'Offer at least 3 diagnosis choices (the answer and distractors)')
+      .max(FAULT_KINDS.length + 1, 'Too many diagnosis choices')
+      .refine((xs) => new Set(xs).size === xs.length, 'Each diagnosis choice at most once'),
+    hints: stringList('Hint', 10, 500),
+    objectives: stringList('Objective', 10, 300),
+  })
+  .superRefine((doc, ctx) => {
+    for (const kind of new Set(doc.faults.map((f) => f.kind))) {
+      if (!doc.diagnosisChoices.includes(kind)) {
+        ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: `Diagnosis choices must include the scenario's fault "${kind}"` });
+      }
+    }
+    if (doc.faults.length === 0 && !doc.diagnosisChoices.includes('none')) {
+      ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: 'A scenario without faults must offer "none" among the diagnosis choices' });
+    }
+  });
+
+export type ScenarioDefinition = z.infer<typeof scenarioSchema>;
+export type ScenarioFault = z.infer<typeof faultSchema>;
+
+// Compile-time checks that the schema and the model agree on the parameter and fault shapes.
+type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false;
+const paramsMatch: Same<z.infer<typeof vehicleParamsSchema>, VehicleParams> = true;
+const testsMatch: Same<(typeof DIAGNOSTIC_TESTS)[number], DiagnosticTest> = true;
+void paramsMatch;
+void testsMatch;
+
+// ---------------------------------------------------------------------------
+// Restore: fill defaults of older or partial files before parsing
+
+type Json = Record<string, unknown>;
+const isObject = (x: unknown): x is Json => typeof x === 'object' && x !== null && !Array.isArray(x);
+
+/** Fills missing keys of `target` from `defaults`, recursively through plain objects. Arrays and present values are kept. */
+function fillDefaults(target: Json, defaults: Json): Json {
+  const out: Json = { ...target };
+  for (const [key, def] of Object.entries(defaults)) {
+    const have = out[key];
+    if (have === undefined) out[key] = structuredClone(def);
+    else if (isObject(have) && isObject(def)) out[key] = fillDefaults(have, def);
+  }
+  return out;
+}
+
+/** Distractors for a list of faults: the faults present, "none", then other kinds until there are `count` choices. */
+export function defaultDiagnosisChoices(faultKinds: readonly FaultKind[], count = 5): DiagnosisChoice[] {
+  const choices: DiagnosisChoice[] = [...new Set(faultKinds)];
+  if (!choices.includes('none')) choices.push('none');
+  for (const kind of FAULT_KINDS) {
+    if (choices.length >= count) break;
+    if (!choices.includes(kind)) choices.push(kind);
+  }
+  return choices;
+}
+
+/**
+ * Normalise a raw document (an older or partial file) so it can be parsed:
+ * fills the format header, default pass rules, vehicle parameters, empty lists,
+ * and diagnosis choices. Migrations between format versions go here.
+ * Returns the input unchanged when it is not an object (the parse then says why).
+ */
+export function normaliseScenario(raw: unknown): unknown {
+  if (!isObject(raw)) return raw;
+  const doc: Json = { ...raw };
+  doc.format ??= SCENARIO_FORMAT;
+  doc.formatVersion ??= SCENARIO_FORMAT_VERSION;
+  // formatVersion 1 is the first published format; later versions migrate from here.
+  doc.faults ??= [];
+  doc.hints ??= [];
+  doc.objectives ??= [];
+  doc.difficulty ??= 'core';
+  if (doc.passRules === undefined) doc.passRules = defaultPassRules();
+  else if (isObject(doc.passRules)) {
+    // The output rule is one of two shapes: keep a given one whole rather than mixing in the default's keys.
+    const { output, ...rest } = defaultPassRules();
+    doc.passRules = fillDefaults(doc.passRules, doc.passRules.output === undefined ? { output, ...rest } : rest);
+  }
+  if (isObject(doc.vehicle)) {
+    const vehicle: Json = { ...doc.vehicle };
+    if (vehicle.params === undefined) vehicle.params = defaultVehicleParams();
+    else if (isObject(vehicle.params)) vehicle.params = fillDefaults(vehicle.params, defaultVehicleParams() as unknown as Json);
+    doc.vehicle = vehicle;
+  }
+  if (Array.isArray(doc.faults)) {
+    const faults = (doc.faults as unknown[]).map((f) => (isObject(f) ? { onsetS: 0, intermittent: null, ...f } : f));
+    doc.faults = faults;
+    if (doc.diagnosisChoices === undefined) {
+      const kinds = faults.flatMap((f: unknown) =>
+        isObject(f) && typeof f.kind === 'string' && (FAULT_KINDS as readonly string[]).includes(f.kind) ? [f.kind as FaultKind] : [],
+      );
+      doc.diagnosisChoices = defaultDiagnosisChoices(kinds);
+    }
+  }
+  if (doc.testsExpected === undefined && Array.isArray(doc.faults)) {
+    const tests = new Set<DiagnosticTest>();
+    for (const f of doc.faults as unknown[]) if (isObject(f) && typeof f.kind === 'string' && f.kind in FAULT_CATALOG) FAULT_CATALOG[f.kind as FaultKind].revealedBy.forEach((t) => tests.add(t));
+    doc.testsExpected = tests.size ? [...tests] : ['battery-ocv', 'regulated-voltage', 'output'];
+  }
+  return doc;
+}
+
+/** Normalise then parse: the result names every bad field (see `formatIssues`). */
+export function safeRestoreScenario(raw: unknown) {
+  return scenarioSchema.safeParse(normaliseScenario(raw));
+}
+
+/** Normalise then parse; throws a ZodError (the API turns it into a 400 naming each path). */
+export function restoreScenario(raw: unknown): ScenarioDefinition {
+  return scenarioSchema.parse(normaliseScenario(raw));
+}
+
+export interface FieldIssue {
+  /** Dotted path, e.g. `vehicle.params.battery.cca` or `faults.0.severity01`; `(document)` for the whole file. */
+  path: string;
+  message: string;
+}
+
+export function formatIssues(error: z.ZodError): FieldIssue[] {
+  return error.issues.map((i) => ({ path: i.path.map(String).join('.') || '(document)', message: i.message }));
+}
+
+/** A new scenario's starting document. */
+export function blankScenario(): ScenarioDefinition {
+  return {
+    format: SCENARIO_FORMAT,
+    formatVersion: SCENARIO_FORMAT_VERSION,
+    title: 'New scenario',
+    summary: 'The customer says the battery light flickers on the way to work.',
+    difficulty: 'core',
+    vehicle: { name: 'Invented midsize sedan', kind: 'midsize car', engineDescription: '2.4 L four-cylinder', params: defaultVehicleParams() },
+    faults: [],
+    testsExpected: ['battery-ocv', 'regulated-voltage', 'output'],
+    passRules: defaultPassRules(),
+    diagnosisChoices: defaultDiagnosisChoices([]),
+    hints: [],
+    objectives: [],
+  };
+}
+
+/** The fault kinds of a scenario, once each. */
+export function scenarioFaultKinds(def: Pick<ScenarioDefinition, 'faults'>): FaultKind[] {
+  return [...new Set(def.faults.map((f) => f.kind))];
+}
+
+// ---------------------------------------------------------------------------
+// What a student may see before submitting
+
+export interface StudentVehicleSpec {
+  name: string;
+  kind: VehicleKind;
+  engineDescription: string;
+  /** The car's specified (nameplate) values, as on the service information. */
+  alternatorRatedA: number;
+  pulleyRatio: number;
+  idleRpm: number;
+  maxHeldRpm: number;
+  batteryCca: number;
+  batteryCapacityAh: number;
+  batteryAgeYears: number;
+  accessories: { id: string; label: string }[];
+  ambientC: number;
+}
+
+export interface StudentScenarioView {
+  format: typeof SCENARIO_FORMAT;
+  formatVersion: typeof SCENARIO_FORMAT_VERSION;
+  title: string;
+  summary: string;
+  difficulty: Difficulty;
+  vehicle: StudentVehicleSpec;
+  passRules: PassRules;
+  diagnosisChoices: DiagnosisChoice[];
+  hints: string[];
+  objectives: string[];
+}
+
+/**
+ * The scenario as a student may see it before submitting: no faults, no tests
+ * expected (they point at the fault), and no raw model parameters (an author may
+ * have set fault-like values such as open diodes directly); only the car's spec.
+ */
+export function studentScenarioView(def: ScenarioDefinition): StudentScenarioView {
+  const v = def.vehicle;
+  const prm = v.params;
+  return {
+    format: def.format,
+    formatVersion: def.formatVersion,
+    title: def.title,
+    summary: def.summary,
+    difficulty: def.difficulty,
+    vehicle: {
+      name: v.name,
+      kind: v.kind,
+      engineDescription: v.engineDescription,
+      alternatorRatedA: prm.alternator.ratedCurrentA,
+      pulleyRatio: prm.belt.pulleyRatio,
+      idleRpm: prm.engine.idleRpm,
+      maxHeldRpm: prm.engine.maxHeldRpm,
+      batteryCca: prm.battery.cca,
+      batteryCapacityAh: prm.battery.capacityAh,
+      batteryAgeYears: prm.battery.ageYears,
+      accessories: prm.loads.accessories.map((a) => ({ id: a.id, label: a.label })),
+      ambientC: prm.ambientC,
+    },
+    passRules: structuredClone(def.passRules),
+    diagnosisChoices: [...def.diagnosisChoices],
+    hints: [...def.hints],
+    objectives: [...def.objectives],
+  };
+}
