@@ -280,3 +280,10 @@ export const rosterImports = pgTable('roster_imports', {
   enrolledCount: integer('enrolled_count').notNull(),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
 });
+
+/** Hit counters of the rate limits, shared by every server process. */
+export const rateLimits = pgTable('rate_limits', {
+  key: varchar('key', { length: 200 }).primaryKey(),
+  hits: integer('hits').notNull(),
+  resetAt: timestamp('reset_at', { withTimezone: true }).notNull(),
+});

@@ -8,6 +8,7 @@ import { SESSION_COOKIE } from '../auth/session.ts';
 import type { AppContext } from '../context.ts';
 import { users } from '../db/schema.ts';
 import { HttpError } from '../http/errors.ts';
+import { PgRateLimitStore } from '../http/rate-limit-store.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody } from '../http/validate.ts';
 import { sendPasswordLink } from '../services/invitations.ts';
@@ -15,8 +16,9 @@ import { consumeToken } from '../services/tokens.ts';
 
 export function authRoutes(ctx: AppContext) {
   const g = routeGroup('/api/auth');
-  const limiter = (limit: number, message: string) =>
+  const limiter = (name: string, limit: number, message: string) =>
     rateLimit({
+      store: new PgRateLimitStore(ctx.pool, `${name}:`),
       windowMs: 15 * 60 * 1000,
       limit,
       standardHeaders: 'draft-8',
@@ -25,8 +27,8 @@ export function authRoutes(ctx: AppContext) {
         res.status(429).json({ error: { message } });
       },
     });
-  const signInLimit = limiter(ctx.env.SIGN_IN_LIMIT, 'Too many sign-in attempts; wait a few minutes and try again');
-  const resetLimit = limiter(Math.max(3, Math.floor(ctx.env.SIGN_IN_LIMIT / 2)), 'Too many reset requests; wait a few minutes and try again');
+  const signInLimit = limiter('sign-in', ctx.env.SIGN_IN_LIMIT, 'Too many sign-in attempts; wait a few minutes and try again');
+  const resetLimit = limiter('reset', Math.max(3, Math.floor(ctx.env.SIGN_IN_LIMIT / 2)), 'Too many reset requests; wait a few minutes and try again');
 
   g.get('/me', 'public', (req, res) => {
     res.json({ user: req.user ?? null, csrfToken: csrfTokenFor(req) });

@@ -104,7 +104,8 @@ describe('sign-in', () => {
 
 describe('rate limit', () => {
   it('trips after the allowed number of sign-in attempts', async () => {
-    const limited = await startTestApp({ SIGN_IN_LIMIT: '3' }, t.databaseUrl);
+    // A database of its own: the counters live in PostgreSQL and the other tests share this address.
+    const limited = await startTestApp({ SIGN_IN_LIMIT: '3' });
     try {
       const agent = await anonymousAgent(limited.app);
       const codes: number[] = [];
@@ -116,6 +117,14 @@ describe('rate limit', () => {
       const blocked = await agent.post('/api/auth/sign-in').send({ email: student.email, password: DEMO_PASSWORD });
       expect(blocked.status).toBe(429);
       expect(blocked.body.error.message).toMatch(/Too many sign-in attempts/);
+      // A second server process on the same database counts the same client.
+      const sibling = await startTestApp({ SIGN_IN_LIMIT: '3' }, limited.databaseUrl);
+      try {
+        const other = await anonymousAgent(sibling.app);
+        expect((await other.post('/api/auth/sign-in').send({ email: student.email, password: DEMO_PASSWORD })).status).toBe(429);
+      } finally {
+        await sibling.close();
+      }
     } finally {
       await limited.close();
     }

@@ -1,0 +1,5 @@
+CREATE TABLE "rate_limits" (
+	"key" varchar(200) PRIMARY KEY NOT NULL,
+	"hits" integer NOT NULL,
+	"reset_at" timestamp with time zone NOT NULL
+);
