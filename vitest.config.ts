@@ -4,7 +4,7 @@ import { defineConfig } from 'vitest/config';
 // tests have their own configs because they need the test database and a build.
 export default defineConfig({
   test: {
-    include: ['tests/sim/**/*.test.ts', 'tests/shared/**/*.test.ts', 'tests/reference/**/*.test.ts', 'tests/client/**/*.test.{ts,tsx}'],
+    include: ['tests/sim/**/*.test.ts', 'tests/shared/**/*.test.ts', 'tests/reference/**/*.test.ts', 'tests/client/**/*.test.{ts,tsx}', 'tests/lint/**/*.test.ts'],
     environment: 'node',
     testTimeout: 60_000,
   },

@@ -1,0 +1,49 @@
+import { fileURLToPath } from 'node:url';
+import { ESLint } from 'eslint';
+import { describe, expect, it } from 'vitest';
+
+const root = fileURLToPath(new URL('../..', import.meta.url));
+const eslint = new ESLint({ cwd: root });
+
+async function rulesBroken(filePath: string, code: string): Promise<string[]> {
+  const [result] = await eslint.lintText(code, { filePath: `${root}/${filePath}` });
+  return (result?.messages ?? []).map((m) => m.ruleId ?? m.message);
+}
+
+describe('the layer boundaries', () => {
+  it('keep React, the DOM, Node, the database and zod out of sim/', async () => {
+    const broken = await rulesBroken(
+      'sim/boundary-probe.ts',
+      [
+        "import { useState } from 'react';",
+        "import { readFileSync } from 'node:fs';",
+        "import pg from 'pg';",
+        "import { z } from 'zod';",
+        'export const probe = [useState, readFileSync, pg, z, document.title, Math.random(), Date.now()];',
+      ].join('\n'),
+    );
+    expect(broken.filter((r) => r === 'no-restricted-imports')).toHaveLength(4);
+    expect(broken).toContain('no-restricted-globals');
+    expect(broken).toContain('no-restricted-properties');
+  });
+
+  it('keep the rest of the project out of sim/', async () => {
+    const broken = await rulesBroken('sim/boundary-probe.ts', "import { readEnv } from '../server/env.ts';\nexport const probe = readEnv;\n");
+    expect(broken).toContain('import-x/no-restricted-paths');
+  });
+
+  it('keep server code out of the client', async () => {
+    const broken = await rulesBroken('src/boundary-probe.ts', "import { createApp } from '../server/app.ts';\nexport const probe = createApp;\n");
+    expect(broken).toContain('import-x/no-restricted-paths');
+  });
+
+  it('keep client and server out of shared/', async () => {
+    const broken = await rulesBroken('shared/boundary-probe.ts', "import { paths } from '../src/config/paths.ts';\nexport const probe = paths;\n");
+    expect(broken).toContain('import-x/no-restricted-paths');
+  });
+
+  it('let sim/ import itself and shared/ import sim/', async () => {
+    expect(await rulesBroken('sim/boundary-probe.ts', "import type { Fault } from './faults.ts';\nexport type Probe = Fault;\n")).toEqual([]);
+    expect(await rulesBroken('shared/boundary-probe.ts', "import type { Fault } from '../sim/faults.ts';\nexport type Probe = Fault;\n")).toEqual([]);
+  });
+});
