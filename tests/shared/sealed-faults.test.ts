@@ -1,0 +1,54 @@
+import { describe, expect, it } from 'vitest';
+import type { Fault } from '../../sim/faults.ts';
+import { deriveBenchKey, fromBase64Url, SealError, sealFaults, toBase64Url, unsealFaults } from '../../shared/sealed-faults.ts';
+
+const faults: Fault[] = [
+  { id: 'f1', kind: 'diode-open', severity01: 1, onsetS: 0 },
+  { id: 'f2', kind: 'belt-slip', severity01: 0.4, onsetS: 30, intermittent: { periodS: 10, onFraction01: 0.5 } },
+];
+
+describe('sealed faults', () => {
+  it('opens with the key it was sealed under and gives back the same faults', async () => {
+    const key = await deriveBenchKey('a-secret-of-sixteen-plus', 7);
+    const sealed = await sealFaults(faults, key);
+    expect(await unsealFaults(sealed, key)).toEqual(faults);
+  });
+
+  it('reads as neither a fault kind nor a fault field', async () => {
+    const key = await deriveBenchKey('a-secret-of-sixteen-plus', 7);
+    const sealed = await sealFaults(faults, key);
+    expect(sealed).toMatch(/^[A-Za-z0-9_-]+$/);
+    for (const word of ['diode-open', 'belt-slip', 'severity01', 'onsetS', 'kind']) expect(sealed).not.toContain(word);
+  });
+
+  it('derives a 32-byte key that is the same for the same attempt and different for another', async () => {
+    const a = await deriveBenchKey('a-secret-of-sixteen-plus', 7);
+    expect(fromBase64Url(a)).toHaveLength(32);
+    expect(await deriveBenchKey('a-secret-of-sixteen-plus', 7)).toBe(a);
+    expect(await deriveBenchKey('a-secret-of-sixteen-plus', 8)).not.toBe(a);
+    expect(await deriveBenchKey('another-secret-sixteen', 7)).not.toBe(a);
+  });
+
+  it('refuses another attempt key and tampered text', async () => {
+    const key = await deriveBenchKey('a-secret-of-sixteen-plus', 7);
+    const other = await deriveBenchKey('a-secret-of-sixteen-plus', 8);
+    const sealed = await sealFaults(faults, key);
+    await expect(unsealFaults(sealed, other)).rejects.toBeInstanceOf(SealError);
+    const bytes = fromBase64Url(sealed);
+    bytes[20] = (bytes[20] ?? 0) ^ 1;
+    await expect(unsealFaults(toBase64Url(bytes), key)).rejects.toBeInstanceOf(SealError);
+    await expect(unsealFaults('not*base64', key)).rejects.toBeInstanceOf(SealError);
+    await expect(unsealFaults(sealed.slice(0, 10), key)).rejects.toBeInstanceOf(SealError);
+  });
+
+  it('refuses sealed content that is not a list of faults', async () => {
+    const key = await deriveBenchKey('a-secret-of-sixteen-plus', 7);
+    const sealed = await sealFaults([{ id: 'x', kind: 'no-such-kind', severity01: 0, onsetS: 0 } as unknown as Fault], key);
+    await expect(unsealFaults(sealed, key)).rejects.toThrow(/not a list of faults/);
+  });
+
+  it('seals the same faults differently each time (fresh IV)', async () => {
+    const key = await deriveBenchKey('a-secret-of-sixteen-plus', 7);
+    expect(await sealFaults(faults, key)).not.toBe(await sealFaults(faults, key));
+  });
+});
