@@ -201,7 +201,11 @@ describe('harness consistency with a battery and stator inductance', () => {
     expect(s.meanBplusV - s.meanBatteryV).toBeCloseTo(cableDropV, 3);
     expect(s.dominantRippleHz).toBe(6 * ELECTRICAL_HZ);
 
-    // Common practice, no source: three times the settling must not move the answer.
+    // Common practice, no source: in periodic steady state every measured cycle has the same mean,
+    // and three times the settling does not move the answer.
+    const cycles = run.cycleMeanCurrentA;
+    expect(cycles).toHaveLength(run.options.measureCycles);
+    expect((Math.max(...cycles) - Math.min(...cycles)) / s.meanOutputCurrentA).toBeLessThan(1e-3);
     const longer = await spiceRun(charging, { settleCycles: 3 * run.options.settleCycles });
     expect(Math.abs(longer.solution.meanOutputCurrentA / s.meanOutputCurrentA - 1)).toBeLessThan(1e-3);
     expect(Math.abs(longer.solution.rippleRmsV / s.rippleRmsV - 1)).toBeLessThan(1e-2);

@@ -43,6 +43,8 @@ export interface SpiceRun {
   outputCurrentA: number[];
   /** Magnitude (peak) of harmonic k of the battery-post voltage at index k; index 0 is unused. */
   harmonicPeakV: number[];
+  /** Mean output current of each measured cycle, first to last. */
+  cycleMeanCurrentA: number[];
   /** Engine warnings that did not stop the run. */
   warnings: string[];
   /** Options of the run that succeeded (the step may be finer than asked after a retry). */
@@ -421,6 +423,15 @@ export async function spiceRun(circuit: RectifierCircuit, opts: SpiceOptions = {
     }
   }
 
+  // Mean output current of each measured cycle: equal when the run has reached periodic steady state.
+  const periodS = 1 / circuit.electricalHz;
+  const cycleMeanCurrentA: number[] = [];
+  for (let c = 0; c < options.measureCycles; c++) {
+    const c0 = w.measureStartS + c * periodS;
+    const part = clip(t, [outputCurrentA], c0, c0 + periodS);
+    cycleMeanCurrentA.push(trapezoidMean(part.t, part.cols[0] ?? []));
+  }
+
   const solution: RectifierSolution = {
     meanOutputCurrentA: trapezoidMean(t, outputCurrentA),
     meanBplusV: trapezoidMean(t, bplusVsCaseV),
@@ -434,6 +445,7 @@ export async function spiceRun(circuit: RectifierCircuit, opts: SpiceOptions = {
     batteryPostV,
     outputCurrentA,
     harmonicPeakV,
+    cycleMeanCurrentA,
     warnings: trace.warnings,
     options,
     solverOptions,
