@@ -1,0 +1,157 @@
+/**
+ * Live class sessions: the instructor's board of running attempts, fault
+ * injection into a running bench, and what the bench's stream carries.
+ *
+ * An injection is a row of pending_injections whose `action` is a
+ * `PendingAction`. The bench receives it sealed with its attempt's bench key
+ * (it learns neither the kind nor the severity), applies it at its current
+ * sim time and logs it as an ordinary `fault-inject` / `fault-clear` event
+ * whose fault id is `liveFaultId(injectionId)` of the inject. Storing that
+ * event marks the injection applied.
+ */
+import { z } from 'zod';
+import { FAULT_KINDS, type FaultKind } from '../../sim/faults.ts';
+import { DIAGNOSTIC_TESTS } from './attempts.ts';
+
+export const LIVE_FAULT_PREFIX = 'live-';
+
+/** The fault id the bench logs for an injected fault. */
+export const liveFaultId = (injectionId: number): string => `${LIVE_FAULT_PREFIX}${injectionId}`;
+
+/** The injection id inside a live fault id, or null for any other fault id (a scenario's own). */
+export function injectionIdOf(faultId: string): number | null {
+  const m = /^live-([1-9][0-9]{0,9})$/.exec(faultId);
+  return m ? Number(m[1]) : null;
+}
+
+export const LIVE_BOUNDS = {
+  delayS: { min: 0, max: 3600 },
+  periodS: { min: 0.5, max: 600 },
+  onFraction01: { min: 0.05, max: 1 },
+} as const;
+
+const faultKindSchema = z.enum(FAULT_KINDS as unknown as [FaultKind, ...FaultKind[]], {
+  error: `kind must be one of: ${FAULT_KINDS.join(', ')}`,
+});
+
+export const intermittentSchema = z.strictObject({
+  periodS: z
+    .number({ error: 'intermittent.periodS must be a number of seconds' })
+    .min(LIVE_BOUNDS.periodS.min, `intermittent.periodS must be at least ${LIVE_BOUNDS.periodS.min} s`)
+    .max(LIVE_BOUNDS.periodS.max, `intermittent.periodS must be at most ${LIVE_BOUNDS.periodS.max} s`),
+  onFraction01: z
+    .number({ error: 'intermittent.onFraction01 must be a number' })
+    .min(LIVE_BOUNDS.onFraction01.min, `intermittent.onFraction01 must be at least ${LIVE_BOUNDS.onFraction01.min}`)
+    .max(LIVE_BOUNDS.onFraction01.max, 'intermittent.onFraction01 must be at most 1'),
+});
+export type LiveIntermittent = z.infer<typeof intermittentSchema>;
+
+const positiveId = (field: string) =>
+  z.number({ error: `${field} is required` }).int(`${field} must be a whole number`).positive(`${field} must be a positive whole number`);
+
+/** POST /api/live/attempts/:id/inject */
+export const injectSchema = z.strictObject({
+  kind: faultKindSchema,
+  severity01: z.number({ error: 'severity01 must be a number from 0 to 1' }).min(0, 'severity01 must be at least 0').max(1, 'severity01 must be at most 1').default(1),
+  /** Seconds of sim time after the bench receives it (0: at once). */
+  delayS: z
+    .number({ error: 'delayS must be a number of seconds' })
+    .min(LIVE_BOUNDS.delayS.min, 'delayS must not be negative')
+    .max(LIVE_BOUNDS.delayS.max, `delayS must be at most ${LIVE_BOUNDS.delayS.max} s`)
+    .default(0),
+  intermittent: intermittentSchema.nullable().default(null),
+});
+export type InjectInput = z.input<typeof injectSchema>;
+
+/** POST /api/live/attempts/:id/clear */
+export const clearSchema = z.strictObject({ injectionId: positiveId('injectionId') });
+export type ClearInput = z.infer<typeof clearSchema>;
+
+export const attemptParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
+export const classParamsSchema = z.object({ classId: z.coerce.number().int().positive('classId must be a positive whole number') });
+
+/** The `action` column of pending_injections. */
+export const pendingActionSchema = z.discriminatedUnion('type', [
+  z.object({
+    type: z.literal('inject'),
+    faultId: z.string(),
+    kind: faultKindSchema,
+    severity01: z.number(),
+    delayS: z.number(),
+    intermittent: intermittentSchema.nullable(),
+  }),
+  z.object({ type: z.literal('clear'), faultId: z.string(), targetInjectionId: z.number().int() }),
+]);
+export type PendingAction = z.infer<typeof pendingActionSchema>;
+
+/**
+ * One message on the bench's stream (SSE event `injection`). For an inject,
+ * `sealed` opens with `unsealFaults(sealed, benchKey)` to one fault whose
+ * `onsetS` is the delay after the bench's current sim time.
+ */
+export const benchInjectionSchema = z.discriminatedUnion('type', [
+  z.object({ type: z.literal('inject'), injectionId: z.number().int(), faultId: z.string(), sealed: z.string() }),
+  z.object({ type: z.literal('clear'), injectionId: z.number().int(), faultId: z.string() }),
+]);
+export type BenchInjection = z.infer<typeof benchInjectionSchema>;
+
+/** SSE event `status` on the bench's stream: the attempt was submitted elsewhere, or the stream is ready. */
+export const benchStatusSchema = z.object({ attemptId: z.number().int(), status: z.enum(['running', 'submitted']) });
+
+export const injectionViewSchema = z.object({
+  injectionId: z.number().int(),
+  type: z.enum(['inject', 'clear']),
+  faultId: z.string(),
+  kind: faultKindSchema.nullable(),
+  severity01: z.number().nullable(),
+  delayS: z.number().nullable(),
+  intermittent: intermittentSchema.nullable(),
+  createdAt: z.string(),
+  appliedAt: z.string().nullable(),
+  /** For an inject: a later clear of it exists. */
+  cleared: z.boolean(),
+});
+export type InjectionView = z.infer<typeof injectionViewSchema>;
+
+export const injectResponseSchema = z.object({ injection: injectionViewSchema });
+
+export const liveReadingsSchema = z.object({
+  voltmeterV: z.number().nullable(),
+  rippleVac: z.number().nullable(),
+  clampA: z.number().nullable(),
+  tachRpm: z.number(),
+  ammeterA: z.number().nullable(),
+  pileA: z.number(),
+  engine: z.string(),
+  batterySoc01: z.number(),
+});
+export type LiveReadings = z.infer<typeof liveReadingsSchema>;
+
+export const boardAttemptSchema = z.object({
+  attemptId: z.number().int(),
+  studentId: z.number().int(),
+  studentName: z.string(),
+  scenarioTitle: z.string(),
+  assignmentId: z.number().int().nullable(),
+  assignmentTitle: z.string().nullable(),
+  mode: z.string(),
+  status: z.enum(['running', 'submitted']),
+  startedAt: z.string(),
+  /** Sim time of the latest stored event. */
+  simTimeMs: z.number().int(),
+  lastSeq: z.number().int(),
+  /** The test the bench is set up for at that moment, as the server's re-run sees it. */
+  currentTest: z.enum(DIAGNOSTIC_TESTS).nullable(),
+  /** The meters at that moment in the server's re-run (null while the model cannot run). */
+  readings: liveReadingsSchema.nullable(),
+  injections: z.array(injectionViewSchema),
+  /** When the last batch of events arrived. */
+  lastActivityAt: z.string().nullable(),
+});
+export type BoardAttempt = z.infer<typeof boardAttemptSchema>;
+
+export const boardSnapshotSchema = z.object({ classId: z.number().int(), className: z.string(), attempts: z.array(boardAttemptSchema) });
+export type BoardSnapshot = z.infer<typeof boardSnapshotSchema>;
+
+/** SSE event `attempt` on the board: one attempt changed (it may have ended: status submitted). */
+export const boardUpdateSchema = boardAttemptSchema;
