@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import type { DiagnosticTest } from '../sim/faults.ts';
-import { DIAGNOSTIC_TESTS } from './api/attempts.ts';
+import { DIAGNOSTIC_TESTS } from './scenario.ts';
 
 export const COMPETENCIES = DIAGNOSTIC_TESTS;
 export type Competency = DiagnosticTest;

@@ -11,7 +11,7 @@
  */
 import { z } from 'zod';
 import { FAULT_KINDS, type FaultKind } from '../../sim/faults.ts';
-import { DIAGNOSTIC_TESTS } from './attempts.ts';
+import { DIAGNOSTIC_TESTS } from '../scenario.ts';
 
 export const LIVE_FAULT_PREFIX = 'live-';
 
