@@ -4,11 +4,11 @@
  * throws 404 when the thing does not exist and 403 when it is not theirs.
  * Admins pass every instructor check.
  */
-import { and, eq, inArray } from 'drizzle-orm';
+import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import type { DbOrTx } from '../db/client.ts';
-import { assignments, attempts, classInstructors, enrollments } from '../db/schema.ts';
-import { forbidden, notFound } from '../http/errors.ts';
+import { assignments, attempts, classes, classInstructors, enrollments, scenarios, scenarioVersions } from '../db/schema.ts';
+import { forbidden, HttpError, notFound } from '../http/errors.ts';
 
 /** Whether the user teaches the class (admins teach every class). */
 export async function teachesClass(db: DbOrTx, user: SessionUser, classId: number): Promise<boolean> {
@@ -115,4 +115,206 @@ export async function requireAttemptInstructor(db: DbOrTx, user: SessionUser, at
   const access = await requireAttemptReader(db, user, attemptId);
   if (!access.teaches) throw forbidden('Only an instructor of this class can do this');
   return access;
+}
+
+// ---------------------------------------------------------------------------
+// Classes, scenarios and assignments as the library and class pages use them.
+// Each answers 404 when the thing does not exist and 403 when it exists but is
+// not the user's; it returns the row it checked so the caller need not load it again.
+//
+// - an instructor sees the classes they teach; a student the classes they are enrolled in;
+// - an instructor sees shared scenarios and their own private ones (another's private
+//   scenario answers 404) and edits their own; others' shared ones are duplicated to adapt;
+// - a student reads no scenario document: they practise published shared scenarios and
+//   run the assignments of their classes that have opened.
+
+type Who = SessionUser;
+
+export interface ClassRow {
+  id: number;
+  name: string;
+  term: string;
+  archived: boolean;
+}
+
+async function loadClass(db: DbOrTx, classId: number): Promise<ClassRow> {
+  const [row] = await db.select({ id: classes.id, name: classes.name, term: classes.term, archived: classes.archived }).from(classes).where(eq(classes.id, classId));
+  if (!row) throw notFound('No such class');
+  return row;
+}
+
+export async function isEnrolled(db: DbOrTx, userId: number, classId: number): Promise<boolean> {
+  const [row] = await db
+    .select({ one: sql<number>`1` })
+    .from(enrollments)
+    .where(and(eq(enrollments.classId, classId), eq(enrollments.userId, userId)));
+  return !!row;
+}
+
+/** Admin, an instructor of the class, or a student enrolled in it. */
+export async function assertCanSeeClass(db: DbOrTx, user: Who, classId: number): Promise<ClassRow> {
+  const row = await loadClass(db, classId);
+  if (user.role === 'admin') return row;
+  if (user.role === 'instructor' && (await teachesClass(db, user, classId))) return row;
+  if (user.role === 'student' && (await isEnrolled(db, user.id, classId))) return row;
+  throw forbidden('This class is not yours to see');
+}
+
+/** Admin or an instructor of the class: roster, assignments, results. */
+export async function assertCanManageClass(db: DbOrTx, user: Who, classId: number): Promise<ClassRow> {
+  const row = await loadClass(db, classId);
+  if (user.role === 'admin') return row;
+  if (user.role === 'instructor' && (await teachesClass(db, user, classId))) return row;
+  throw forbidden('Only the class’s instructors can change it');
+}
+
+export interface ScenarioRow {
+  id: number;
+  slug: string;
+  ownerId: number | null;
+  visibility: string;
+  publishedVersionId: number | null;
+  latestVersion: number;
+  archived: boolean;
+}
+
+const scenarioColumns = {
+  id: scenarios.id,
+  slug: scenarios.slug,
+  ownerId: scenarios.ownerId,
+  visibility: scenarios.visibility,
+  publishedVersionId: scenarios.publishedVersionId,
+  latestVersion: scenarios.latestVersion,
+  archived: scenarios.archived,
+};
+
+async function loadScenario(db: DbOrTx, scenarioId: number, forUpdate = false): Promise<ScenarioRow> {
+  const q = db.select(scenarioColumns).from(scenarios).where(eq(scenarios.id, scenarioId));
+  const [row] = forUpdate ? await q.for('update') : await q;
+  if (!row) throw notFound('No such scenario');
+  return row;
+}
+
+/** Whether the user may read this scenario's document (faults included). Students never may. */
+export function canSeeScenario(user: Pick<SessionUser, 'id' | 'role'>, row: Pick<ScenarioRow, 'ownerId' | 'visibility'>): boolean {
+  if (user.role === 'admin') return true;
+  if (user.role !== 'instructor') return false;
+  return row.visibility === 'shared' || row.ownerId === user.id;
+}
+
+export function canEditScenario(user: Pick<SessionUser, 'id' | 'role'>, row: Pick<ScenarioRow, 'ownerId'>): boolean {
+  return user.role === 'admin' || (user.role === 'instructor' && row.ownerId === user.id);
+}
+
+/**
+ * Admin, the owner, or any instructor when the scenario is shared. Another
+ * instructor's private scenario answers 404, as if it did not exist.
+ */
+export async function assertCanSeeScenario(db: DbOrTx, user: Who, scenarioId: number): Promise<ScenarioRow> {
+  const row = await loadScenario(db, scenarioId);
+  if (user.role === 'student') throw forbidden('Students cannot read scenario documents');
+  if (!canSeeScenario(user, row)) throw notFound('No such scenario');
+  return row;
+}
+
+/** Admin or the owner. Pass a transaction to lock the row (versions are numbered under the lock). */
+export async function assertCanEditScenario(db: DbOrTx, user: Who, scenarioId: number, opts: { lock?: boolean } = {}): Promise<ScenarioRow> {
+  const row = await loadScenario(db, scenarioId, opts.lock);
+  if (user.role === 'student') throw forbidden('Students cannot change scenarios');
+  if (!canSeeScenario(user, row)) throw notFound('No such scenario');
+  if (!canEditScenario(user, row)) throw forbidden('Only the scenario’s owner can change it; duplicate it to adapt it');
+  return row;
+}
+
+/** A version of a scenario the user can see; 404 when the version belongs to another scenario. */
+export async function assertCanSeeScenarioVersion(
+  db: DbOrTx,
+  user: Who,
+  scenarioId: number,
+  versionId: number,
+): Promise<{ scenario: ScenarioRow; version: { id: number; version: number; definition: unknown; title: string } }> {
+  const scenario = await assertCanSeeScenario(db, user, scenarioId);
+  const [version] = await db
+    .select({ id: scenarioVersions.id, version: scenarioVersions.version, definition: scenarioVersions.definition, title: scenarioVersions.title })
+    .from(scenarioVersions)
+    .where(and(eq(scenarioVersions.id, versionId), eq(scenarioVersions.scenarioId, scenarioId)));
+  if (!version) throw notFound('No such version of this scenario');
+  return { scenario, version };
+}
+
+/**
+ * A published, shared scenario anyone signed in may practise. Returns the
+ * published version's id (what a practice attempt runs).
+ */
+export async function assertCanPractiseScenario(db: DbOrTx, user: Who, scenarioId: number): Promise<{ scenarioId: number; scenarioVersionId: number }> {
+  const row = await loadScenario(db, scenarioId);
+  const visible = row.visibility === 'shared' || user.role === 'admin' || row.ownerId === user.id;
+  if (!visible || row.archived) throw notFound('No such scenario');
+  if (row.publishedVersionId === null) throw new HttpError(409, 'This scenario has no published version yet', { field: 'scenarioId' });
+  return { scenarioId: row.id, scenarioVersionId: row.publishedVersionId };
+}
+
+export interface AssignmentRow {
+  id: number;
+  classId: number;
+  scenarioVersionId: number;
+  title: string;
+  opensAt: Date;
+  dueAt: Date;
+  attemptsAllowed: number;
+  showCurveAfter: boolean;
+  showFeedbackAfter: boolean;
+}
+
+async function loadAssignment(db: DbOrTx, assignmentId: number): Promise<AssignmentRow> {
+  const [row] = await db
+    .select({
+      id: assignments.id,
+      classId: assignments.classId,
+      scenarioVersionId: assignments.scenarioVersionId,
+      title: assignments.title,
+      opensAt: assignments.opensAt,
+      dueAt: assignments.dueAt,
+      attemptsAllowed: assignments.attemptsAllowed,
+      showCurveAfter: assignments.showCurveAfter,
+      showFeedbackAfter: assignments.showFeedbackAfter,
+    })
+    .from(assignments)
+    .where(eq(assignments.id, assignmentId));
+  if (!row) throw notFound('No such assignment');
+  return row;
+}
+
+/** Admin, an instructor of the assignment's class, or an enrolled student once it has opened. */
+export async function assertCanSeeAssignment(db: DbOrTx, user: Who, assignmentId: number, now = new Date()): Promise<AssignmentRow> {
+  const row = await loadAssignment(db, assignmentId);
+  await assertCanSeeClass(db, user, row.classId);
+  if (user.role === 'student' && row.opensAt > now) throw forbidden('This assignment has not opened yet');
+  return row;
+}
+
+/** Admin or an instructor of the assignment's class. */
+export async function assertCanManageAssignment(db: DbOrTx, user: Who, assignmentId: number): Promise<AssignmentRow> {
+  const row = await loadAssignment(db, assignmentId);
+  await assertCanManageClass(db, user, row.classId);
+  return row;
+}
+
+/**
+ * A student may start an attempt on this assignment now: enrolled, open, not
+ * past due, attempts left (`attemptsUsed` counted by the caller, who owns attempts).
+ */
+export async function assertCanStartAssignment(
+  db: DbOrTx,
+  user: Who,
+  assignmentId: number,
+  attemptsUsed: number,
+  now = new Date(),
+): Promise<AssignmentRow> {
+  const row = await loadAssignment(db, assignmentId);
+  if (user.role !== 'student' || !(await isEnrolled(db, user.id, row.classId))) throw forbidden('This assignment is not yours');
+  if (row.opensAt > now) throw new HttpError(409, 'This assignment has not opened yet', { field: 'assignmentId' });
+  if (row.dueAt < now) throw new HttpError(409, 'This assignment is past its due date', { field: 'assignmentId' });
+  if (attemptsUsed >= row.attemptsAllowed) throw new HttpError(409, `All ${row.attemptsAllowed} attempts have been used`, { field: 'assignmentId' });
+  return row;
 }
