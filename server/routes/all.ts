@@ -2,8 +2,9 @@
 import type { AppContext } from '../context.ts';
 import type { RouteGroup } from '../http/route-table.ts';
 import { authRoutes } from './auth.ts';
+import { liveRoutes } from './live.ts';
 import { outboxRoutes, userRoutes } from './users.ts';
 
 export function allRouteGroups(ctx: AppContext): RouteGroup[] {
-  return [authRoutes(ctx), userRoutes(ctx), outboxRoutes(ctx)];
+  return [authRoutes(ctx), liveRoutes(ctx), userRoutes(ctx), outboxRoutes(ctx)];
 }

@@ -1,0 +1,202 @@
+/**
+ * Live class sessions (/api/live): the instructor's board of running attempts
+ * and its stream, fault injection and clearing, and the bench's own stream of
+ * injections. Streams are Server-Sent Events fed by LISTEN/NOTIFY, so a
+ * student on one server process and the instructor on another see each other.
+ */
+import { eq } from 'drizzle-orm';
+import {
+  attemptParamsSchema,
+  classParamsSchema,
+  clearSchema,
+  injectSchema,
+  type BenchInjection,
+  type BoardSnapshot,
+} from '../../shared/api/live.ts';
+import { requireAttemptInstructor, requireAttemptOwner, requireClassInstructor } from '../auth/access.ts';
+import { currentUser } from '../auth/guard.ts';
+import type { AppContext } from '../context.ts';
+import { attempts } from '../db/schema.ts';
+import { conflict } from '../http/errors.ts';
+import { routeGroup } from '../http/route-table.ts';
+import { parseBody, parseParams } from '../http/validate.ts';
+import { boardAttempt, className, classBoard, createBoardRuns } from '../services/live-board.ts';
+import { ATTEMPT_CHANNEL, INJECTION_CHANNEL, liveBusFor } from '../services/live-bus.ts';
+import { benchKeyOf, createClear, createInjection, injectionViews, listInjections, toBenchMessage, unappliedInjections } from '../services/live-injections.ts';
+import { openSse } from '../services/live-sse.ts';
+
+/** While the notification connection is down, streams look for news this often. */
+const FALLBACK_POLL_MS = 2_000;
+/** Notifications about one attempt that arrive within this window make one board update. */
+const BOARD_COALESCE_MS = 150;
+
+const INSTRUCTORS = ['instructor', 'admin'] as const;
+
+export function liveRoutes(ctx: AppContext) {
+  const g = routeGroup('/api/live');
+  const runs = createBoardRuns((message, err) => ctx.log('warn', message, err));
+
+  async function snapshot(classId: number): Promise<BoardSnapshot> {
+    const [name, list] = await Promise.all([className(ctx.db, classId), classBoard(ctx.db, classId, runs)]);
+    return { classId, className: name, attempts: list };
+  }
+
+  g.get('/classes/:classId/board', INSTRUCTORS, async (req, res) => {
+    const { classId } = parseParams(classParamsSchema, req);
+    await requireClassInstructor(ctx.db, currentUser(req), classId);
+    res.json(await snapshot(classId));
+  });
+
+  g.get('/classes/:classId/stream', INSTRUCTORS, async (req, res) => {
+    const { classId } = parseParams(classParamsSchema, req);
+    await requireClassInstructor(ctx.db, currentUser(req), classId);
+    const first = await snapshot(classId);
+    const sse = openSse(req, res);
+    const bus = liveBusFor(ctx);
+
+    const due = new Set<number>();
+    let timer: NodeJS.Timeout | null = null;
+    let running = false;
+    const run = async () => {
+      timer = null;
+      if (running) return schedule();
+      running = true;
+      try {
+        for (const attemptId of [...due]) {
+          due.delete(attemptId);
+          const entry = await boardAttempt(ctx.db, classId, attemptId, runs);
+          if (!entry) continue;
+          if (entry.status !== 'running') runs.forget(attemptId);
+          sse.send('attempt', entry);
+        }
+      } catch (err) {
+        ctx.log('warn', 'board update failed', err);
+      } finally {
+        running = false;
+      }
+    };
+    function schedule(attemptId?: number) {
+      if (attemptId !== undefined && Number.isInteger(attemptId)) due.add(attemptId);
+      if (!timer && due.size > 0 && !sse.closed()) timer = setTimeout(() => void run(), BOARD_COALESCE_MS);
+    }
+    const resync = async () => {
+      try {
+        sse.send('snapshot', await snapshot(classId));
+      } catch (err) {
+        ctx.log('warn', 'board snapshot failed', err);
+      }
+    };
+
+    const unsubscribe = [
+      await bus.subscribe(ATTEMPT_CHANNEL, (p) => schedule(Number(p))),
+      await bus.subscribe(INJECTION_CHANNEL, (p) => schedule(Number(p.split(':')[0]))),
+      bus.onReconnect(() => void resync()),
+    ];
+    let lastPollAt = Date.now();
+    const poll = setInterval(() => {
+      if (bus.connected() && Date.now() - lastPollAt < 30_000) return;
+      lastPollAt = Date.now();
+      void resync();
+    }, FALLBACK_POLL_MS);
+    poll.unref();
+    sse.onClose(() => {
+      for (const u of unsubscribe) u();
+      clearInterval(poll);
+      if (timer) clearTimeout(timer);
+    });
+    sse.send('snapshot', first);
+  });
+
+  g.get('/attempts/:id/injections', INSTRUCTORS, async (req, res) => {
+    const { id } = parseParams(attemptParamsSchema, req);
+    await requireAttemptInstructor(ctx.db, currentUser(req), id);
+    res.json({ injections: injectionViews(await listInjections(ctx.db, id)) });
+  });
+
+  g.post('/attempts/:id/inject', INSTRUCTORS, async (req, res) => {
+    const { id } = parseParams(attemptParamsSchema, req);
+    const user = currentUser(req);
+    await requireAttemptInstructor(ctx.db, user, id);
+    const body = parseBody(injectSchema, req);
+    const row = await createInjection(ctx.db, id, user.id, body);
+    res.status(201).json({ injection: injectionViews([row])[0] });
+  });
+
+  g.post('/attempts/:id/clear', INSTRUCTORS, async (req, res) => {
+    const { id } = parseParams(attemptParamsSchema, req);
+    const user = currentUser(req);
+    await requireAttemptInstructor(ctx.db, user, id);
+    const body = parseBody(clearSchema, req);
+    const row = await createClear(ctx.db, id, user.id, body.injectionId);
+    const all = await listInjections(ctx.db, id);
+    res.status(201).json({ injection: injectionViews(all).find((v) => v.injectionId === row.id) });
+  });
+
+  /**
+   * The bench's stream: every injection not yet logged, sealed, once per
+   * connection (a reconnect gets again those still unlogged; the bench skips
+   * any it has already applied), then a `status` event when the attempt ends.
+   */
+  g.get('/attempts/:id/stream', ['student'], async (req, res) => {
+    const { id } = parseParams(attemptParamsSchema, req);
+    const access = await requireAttemptOwner(ctx.db, currentUser(req), id);
+    if (access.status !== 'running') throw conflict('The attempt is no longer running', 'id');
+    const benchKey = await benchKeyOf(ctx.env.SESSION_SECRET, id);
+    const sse = openSse(req, res);
+    const bus = liveBusFor(ctx);
+    const sent = new Set<number>();
+    let busy = false;
+    let again = false;
+
+    const flush = async (): Promise<void> => {
+      if (busy) {
+        again = true;
+        return;
+      }
+      busy = true;
+      try {
+        do {
+          again = false;
+          const rows = await unappliedInjections(ctx.db, id);
+          for (const row of rows) {
+            if (sent.has(row.id) || sse.closed()) continue;
+            sent.add(row.id);
+            const message: BenchInjection = await toBenchMessage(row, benchKey);
+            sse.send('injection', message, row.id);
+          }
+          const [a] = await ctx.db.select({ status: attempts.status }).from(attempts).where(eq(attempts.id, id));
+          if (!a || a.status !== 'running') {
+            sse.send('status', { attemptId: id, status: 'submitted' });
+            sse.end();
+          }
+        } while (again && !sse.closed());
+      } catch (err) {
+        ctx.log('warn', 'bench stream update failed', err);
+      } finally {
+        busy = false;
+      }
+    };
+
+    const unsubscribe = [
+      await bus.subscribe(INJECTION_CHANNEL, (p) => {
+        if (p.startsWith(`${id}:`)) void flush();
+      }),
+      await bus.subscribe(ATTEMPT_CHANNEL, (p) => {
+        if (p === String(id)) void flush();
+      }),
+      bus.onReconnect(() => void flush()),
+    ];
+    const poll = setInterval(() => {
+      if (!bus.connected()) void flush();
+    }, FALLBACK_POLL_MS);
+    poll.unref();
+    sse.onClose(() => {
+      for (const u of unsubscribe) u();
+      clearInterval(poll);
+    });
+    sse.send('status', { attemptId: id, status: 'running' });
+    await flush();
+  });
+
+  return g;
+}

@@ -1,0 +1,92 @@
+/**
+ * What the model needs to re-run an attempt on the server: the scenario
+ * version's vehicle, the seed, and the input events in log order, starting
+ * with the scenario's own faults at 0 ms (as the bench and the grader do).
+ */
+import { asc, eq } from 'drizzle-orm';
+import type { InputEvent } from '../../sim/inputs.ts';
+import type { VehicleParams } from '../../sim/params.ts';
+import { inputEventSchema } from '../../shared/api/attempts.ts';
+import { restoreScenario, type ScenarioDefinition } from '../../shared/scenario.ts';
+import type { DbOrTx } from '../db/client.ts';
+import { attemptEvents, attempts, scenarioVersions } from '../db/schema.ts';
+import { notFound } from '../http/errors.ts';
+
+export interface StoredInput {
+  seq: number;
+  source: string;
+  event: InputEvent;
+}
+
+export interface AttemptRunInputs {
+  attemptId: number;
+  seed: number;
+  status: string;
+  submittedAtMs: number | null;
+  definition: ScenarioDefinition;
+  params: VehicleParams;
+  /** The scenario's faults as fault-inject events at 0 ms. */
+  scenarioEvents: InputEvent[];
+  /** The stored log, by seq. */
+  stored: StoredInput[];
+  /** scenarioEvents then the stored log: what the model runs. */
+  events: InputEvent[];
+}
+
+/** A stored row as the model's event (the payload is the event; older rows may keep kind and time in columns). */
+export function rowToInput(row: { kind: string; simTimeMs: number; payload: unknown }): InputEvent | null {
+  const payload = (typeof row.payload === 'object' && row.payload !== null ? row.payload : {}) as Record<string, unknown>;
+  const candidate = 'event' in payload && typeof payload.event === 'object' ? payload.event : 'kind' in payload ? payload : { ...payload, kind: row.kind, atMs: row.simTimeMs };
+  const parsed = inputEventSchema.safeParse(candidate);
+  return parsed.success ? parsed.data : null;
+}
+
+export function scenarioFaultEvents(def: Pick<ScenarioDefinition, 'faults'>): InputEvent[] {
+  return def.faults.map((f) => ({
+    kind: 'fault-inject' as const,
+    atMs: 0,
+    fault: { id: f.id, kind: f.kind, severity01: f.severity01, onsetS: f.onsetS, intermittent: f.intermittent ?? null },
+  }));
+}
+
+export async function loadAttemptRun(db: DbOrTx, attemptId: number): Promise<AttemptRunInputs> {
+  const [a] = await db
+    .select({ seed: attempts.seed, status: attempts.status, definition: scenarioVersions.definition, diagnosis: attempts.diagnosis, result: attempts.result })
+    .from(attempts)
+    .innerJoin(scenarioVersions, eq(scenarioVersions.id, attempts.scenarioVersionId))
+    .where(eq(attempts.id, attemptId));
+  if (!a) throw notFound('No such attempt');
+  const definition = restoreScenario(a.definition);
+  const rows = await db
+    .select({ seq: attemptEvents.seq, kind: attemptEvents.kind, simTimeMs: attemptEvents.simTimeMs, payload: attemptEvents.payload, source: attemptEvents.source })
+    .from(attemptEvents)
+    .where(eq(attemptEvents.attemptId, attemptId))
+    .orderBy(asc(attemptEvents.seq));
+  const stored = rows.flatMap((r) => {
+    const event = rowToInput(r);
+    return event ? [{ seq: r.seq, source: r.source, event }] : [];
+  });
+  const scenarioEvents = scenarioFaultEvents(definition);
+  return {
+    attemptId,
+    seed: a.seed,
+    status: a.status,
+    submittedAtMs: submittedAt(a.diagnosis, a.result),
+    definition,
+    params: definition.vehicle.params,
+    scenarioEvents,
+    stored,
+    events: [...scenarioEvents, ...stored.map((s) => s.event)],
+  };
+}
+
+/** The sim time of the submission, from the stored diagnosis or result. */
+function submittedAt(diagnosis: unknown, result: unknown): number | null {
+  for (const x of [diagnosis, result]) {
+    if (typeof x !== 'object' || x === null) continue;
+    const o = x as Record<string, unknown>;
+    if (typeof o.atMs === 'number') return o.atMs;
+    if (typeof o.timeToDiagnosisMs === 'number') return o.timeToDiagnosisMs;
+  }
+  return null;
+}

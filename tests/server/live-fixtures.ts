@@ -1,0 +1,290 @@
+/**
+ * Fixtures for the live, replay and compare tests: a class with an instructor
+ * and students, a scenario version with one fault, an assignment, attempts;
+ * plus a cookie-keeping HTTP client and a Server-Sent Events reader for
+ * talking to real listening servers (one or several processes).
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import { once } from 'node:events';
+import type { AddressInfo } from 'node:net';
+import type { Server } from 'node:http';
+import { eq } from 'drizzle-orm';
+import type { Db } from '../../server/db/client.ts';
+import { DEMO_PASSWORD, DEMO_PEOPLE } from '../../server/db/demo-people.ts';
+import { assignments, attempts, classes, classInstructors, enrollments, scenarios, scenarioVersions, users } from '../../server/db/schema.ts';
+import { blankScenario, type ScenarioDefinition } from '../../shared/scenario.ts';
+import type { TestApp } from './support.ts';
+
+export const instructor = DEMO_PEOPLE.filter((p) => p.role === 'instructor')[0]!;
+/** An instructor who does not teach the fixture class. */
+export const otherInstructor = DEMO_PEOPLE.filter((p) => p.role === 'instructor')[1]!;
+export const students = DEMO_PEOPLE.filter((p) => p.role === 'student');
+
+export async function userId(db: Db, email: string): Promise<number> {
+  const [row] = await db.select({ id: users.id }).from(users).where(eq(users.email, email));
+  if (!row) throw new Error(`no user ${email}`);
+  return row.id;
+}
+
+export function scenarioWithFault(kind: ScenarioDefinition['faults'][number]['kind'] = 'diode-open'): ScenarioDefinition {
+  const def = blankScenario();
+  def.title = 'Dim lamps at idle';
+  def.faults = [{ id: 'scenario-fault', kind, severity01: 1, onsetS: 0, intermittent: null }];
+  if (!def.diagnosisChoices.includes(kind)) def.diagnosisChoices = [kind, ...def.diagnosisChoices];
+  return def;
+}
+
+export interface ClassFixture {
+  classId: number;
+  instructorId: number;
+  studentIds: number[];
+  scenarioVersionId: number;
+  assignmentId: number;
+}
+
+/** A class taught by the first demo instructor, with the given students enrolled and one assignment. */
+export async function makeClass(db: Db, opts: { students: number; definition?: ScenarioDefinition; name?: string } = { students: 2 }): Promise<ClassFixture> {
+  const instructorId = await userId(db, instructor.email);
+  const studentIds = await Promise.all(students.slice(0, opts.students).map((s) => userId(db, s.email)));
+  const definition = opts.definition ?? scenarioWithFault();
+  const [cls] = await db.insert(classes).values({ name: opts.name ?? 'Charging systems, evening section', term: 'Winter' }).returning({ id: classes.id });
+  await db.insert(classInstructors).values({ classId: cls!.id, userId: instructorId });
+  if (studentIds.length) await db.insert(enrollments).values(studentIds.map((u) => ({ classId: cls!.id, userId: u })));
+  const slug = `fixture-${cls!.id}-${Math.random().toString(36).slice(2, 8)}`;
+  const [sc] = await db.insert(scenarios).values({ slug, ownerId: instructorId, visibility: 'shared', latestVersion: 1 }).returning({ id: scenarios.id });
+  const [ver] = await db
+    .insert(scenarioVersions)
+    .values({ scenarioId: sc!.id, version: 1, title: definition.title, definition, createdBy: instructorId })
+    .returning({ id: scenarioVersions.id });
+  await db.update(scenarios).set({ publishedVersionId: ver!.id }).where(eq(scenarios.id, sc!.id));
+  const [asg] = await db
+    .insert(assignments)
+    .values({
+      classId: cls!.id,
+      scenarioVersionId: ver!.id,
+      title: 'Week 3 bench check',
+      opensAt: new Date(Date.now() - 86_400_000),
+      dueAt: new Date(Date.now() + 86_400_000),
+      createdBy: instructorId,
+    })
+    .returning({ id: assignments.id });
+  return { classId: cls!.id, instructorId, studentIds, scenarioVersionId: ver!.id, assignmentId: asg!.id };
+}
+
+/** A running assigned attempt, as the attempts route would start it. */
+export async function makeAttempt(db: Db, fx: ClassFixture, studentId: number, seed = 11): Promise<number> {
+  const [row] = await db
+    .insert(attempts)
+    .values({ userId: studentId, scenarioVersionId: fx.scenarioVersionId, assignmentId: fx.assignmentId, mode: 'assigned', seed })
+    .returning({ id: attempts.id });
+  return row!.id;
+}
+
+// ---------------------------------------------------------------------------
+// HTTP against a listening server
+
+export interface HttpClient {
+  baseUrl: string;
+  cookie: string;
+  csrf: string;
+  get(path: string): Promise<{ status: number; body: unknown; text: string; headers: Headers }>;
+  post(path: string, body: unknown): Promise<{ status: number; body: unknown; text: string }>;
+}
+
+function cookieOf(res: Response, previous: string): string {
+  const set = res.headers.getSetCookie().find((c) => c.startsWith('loadline.sid='));
+  return set ? set.split(';')[0]! : previous;
+}
+
+export async function httpSignIn(baseUrl: string, email: string, password = DEMO_PASSWORD): Promise<HttpClient> {
+  const me = await fetch(`${baseUrl}/api/auth/me`);
+  let cookie = cookieOf(me, '');
+  const first = (await me.json()) as { csrfToken: string };
+  const res = await fetch(`${baseUrl}/api/auth/sign-in`, {
+    method: 'POST',
+    headers: { 'Content-Type': 'application/json', Cookie: cookie, 'X-CSRF-Token': first.csrfToken },
+    body: JSON.stringify({ email, password }),
+  });
+  if (res.status !== 200) throw new Error(`sign-in of ${email} failed: ${res.status} ${await res.text()}`);
+  cookie = cookieOf(res, cookie);
+  const body = (await res.json()) as { csrfToken: string };
+  const client: HttpClient = {
+    baseUrl,
+    cookie,
+    csrf: body.csrfToken,
+    async get(path) {
+      const r = await fetch(`${baseUrl}${path}`, { headers: { Cookie: client.cookie } });
+      const text = await r.text();
+      return { status: r.status, text, body: text && r.headers.get('content-type')?.includes('json') ? JSON.parse(text) : undefined, headers: r.headers };
+    },
+    async post(path, payload) {
+      const r = await fetch(`${baseUrl}${path}`, {
+        method: 'POST',
+        headers: { 'Content-Type': 'application/json', Cookie: client.cookie, 'X-CSRF-Token': client.csrf },
+        body: JSON.stringify(payload),
+      });
+      const text = await r.text();
+      return { status: r.status, text, body: text ? JSON.parse(text) : undefined };
+    },
+  };
+  return client;
+}
+
+export interface SseMessage {
+  event: string;
+  id: string | null;
+  data: unknown;
+}
+
+export interface SseReader {
+  status: number;
+  messages: SseMessage[];
+  /** The next message (after those already taken) that matches, within the timeout. */
+  next(match?: (m: SseMessage) => boolean, timeoutMs?: number): Promise<SseMessage>;
+  /** Whether a matching message arrives within the time (false when none did). */
+  arrives(match: (m: SseMessage) => boolean, withinMs: number): Promise<boolean>;
+  close(): void;
+}
+
+export async function openStream(client: HttpClient, path: string, lastEventId?: string): Promise<SseReader> {
+  const abort = new AbortController();
+  const headers: Record<string, string> = { Cookie: client.cookie, Accept: 'text/event-stream' };
+  if (lastEventId) headers['Last-Event-ID'] = lastEventId;
+  const res = await fetch(`${client.baseUrl}${path}`, { headers, signal: abort.signal });
+  const messages: SseMessage[] = [];
+  let taken = 0;
+  const waiters = new Set<() => void>();
+  const wake = () => waiters.forEach((w) => w());
+  if (res.ok && res.body) {
+    const reader = res.body.getReader();
+    const decoder = new TextDecoder();
+    let buffer = '';
+    void (async () => {
+      try {
+        for (;;) {
+          const { value, done } = await reader.read();
+          if (done) break;
+          buffer += decoder.decode(value, { stream: true });
+          let cut: number;
+          while ((cut = buffer.indexOf('\n\n')) >= 0) {
+            const block = buffer.slice(0, cut);
+            buffer = buffer.slice(cut + 2);
+            let event = 'message';
+            let id: string | null = null;
+            const data: string[] = [];
+            for (const line of block.split('\n')) {
+              if (line.startsWith('event: ')) event = line.slice(7);
+              else if (line.startsWith('id: ')) id = line.slice(4);
+              else if (line.startsWith('data: ')) data.push(line.slice(6));
+            }
+            if (data.length) {
+              messages.push({ event, id, data: JSON.parse(data.join('\n')) });
+              wake();
+            }
+          }
+        }
+      } catch {
+        // aborted
+      }
+    })();
+  }
+  const findFrom = (match: (m: SseMessage) => boolean) => {
+    for (let i = taken; i < messages.length; i++) if (match(messages[i]!)) return i;
+    return -1;
+  };
+  const stream: SseReader = {
+    status: res.status,
+    messages,
+    async next(match = () => true, timeoutMs = 5_000) {
+      const until = Date.now() + timeoutMs;
+      for (;;) {
+        const i = findFrom(match);
+        if (i >= 0) {
+          taken = i + 1;
+          return messages[i]!;
+        }
+        const left = until - Date.now();
+        if (left <= 0) throw new Error(`no matching event on ${path} within ${timeoutMs} ms; got ${JSON.stringify(messages.slice(taken))}`);
+        await new Promise<void>((resolve) => {
+          const t = setTimeout(done, Math.min(left, 250));
+          function done() {
+            clearTimeout(t);
+            waiters.delete(done);
+            resolve();
+          }
+          waiters.add(done);
+        });
+      }
+    },
+    async arrives(match, withinMs) {
+      try {
+        await stream.next(match, withinMs);
+        return true;
+      } catch {
+        return false;
+      }
+    },
+    close() {
+      abort.abort();
+    },
+  };
+  return stream;
+}
+
+/** The test app on a real port (SSE needs a connection that stays open). */
+export async function listen(t: TestApp): Promise<{ url: string; close(): Promise<void> }> {
+  const server: Server = t.app.listen(0, '127.0.0.1');
+  await once(server, 'listening');
+  const port = (server.address() as AddressInfo).port;
+  return {
+    url: `http://127.0.0.1:${port}`,
+    close: () =>
+      new Promise<void>((resolve) => {
+        server.close(() => resolve());
+        server.closeAllConnections();
+      }),
+  };
+}
+
+export interface ServerProcess {
+  url: string;
+  child: ChildProcess;
+  stop(): Promise<void>;
+}
+
+/** A separate server process (the bare server entry) on the given database. */
+export async function spawnServer(databaseUrl: string, env: Record<string, string> = {}): Promise<ServerProcess> {
+  const tsx = new URL('../../node_modules/.bin/tsx', import.meta.url).pathname;
+  const entry = new URL('../../server/serve.ts', import.meta.url).pathname;
+  const child = spawn(tsx, [entry], {
+    env: { ...process.env, NODE_ENV: 'test', DATABASE_URL: databaseUrl, PORT: '0', HOST: '127.0.0.1', SIGN_IN_LIMIT: '1000', ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  let err = '';
+  child.stderr!.on('data', (d: Buffer) => (err += d.toString()));
+  const url = await new Promise<string>((resolve, reject) => {
+    let out = '';
+    const timer = setTimeout(() => reject(new Error(`server process did not start: ${err}`)), 30_000);
+    child.stdout!.on('data', (d: Buffer) => {
+      out += d.toString();
+      const line = out.split('\n').find((l) => l.includes('"listening"'));
+      if (line) {
+        clearTimeout(timer);
+        resolve((JSON.parse(line) as { listening: string }).listening);
+      }
+    });
+    child.on('exit', (code) => {
+      clearTimeout(timer);
+      reject(new Error(`server process exited (${code}): ${err}`));
+    });
+  });
+  return {
+    url,
+    child,
+    async stop() {
+      if (child.exitCode !== null) return;
+      child.kill('SIGTERM');
+      await once(child, 'exit');
+    },
+  };
+}

@@ -1,0 +1,213 @@
+import { and, eq } from 'drizzle-orm';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { attemptEvents, attempts, pendingInjections } from '../../server/db/schema.ts';
+import { benchInjectionSchema, boardSnapshotSchema, liveFaultId } from '../../shared/api/live.ts';
+import { deriveBenchKey, unsealFaults } from '../../shared/sealed-faults.ts';
+import { FAULT_CATALOG } from '../../sim/faults.ts';
+import { startTestApp, type TestApp } from './support.ts';
+import {
+  httpSignIn,
+  instructor,
+  listen,
+  makeAttempt,
+  makeClass,
+  openStream,
+  otherInstructor,
+  students,
+  type ClassFixture,
+  type HttpClient,
+} from './live-fixtures.ts';
+
+let t: TestApp;
+let server: { url: string; close(): Promise<void> };
+let fx: ClassFixture;
+let teacher: HttpClient;
+let ada: HttpClient;
+let bo: HttpClient;
+
+beforeAll(async () => {
+  t = await startTestApp();
+  server = await listen(t);
+  fx = await makeClass(t.ctx.db, { students: 2 });
+  teacher = await httpSignIn(server.url, instructor.email);
+  ada = await httpSignIn(server.url, students[0]!.email);
+  bo = await httpSignIn(server.url, students[1]!.email);
+});
+afterAll(async () => {
+  await server.close();
+  await t.close();
+});
+
+/** What the bench does with an injection: open it and log it as a fault-inject at its sim time. */
+async function benchLogs(client: HttpClient, attemptId: number, seq: number, atMs: number, sealed: string) {
+  const key = await deriveBenchKey(t.env.SESSION_SECRET, attemptId);
+  const [fault] = await unsealFaults(sealed, key);
+  const event = { kind: 'fault-inject', atMs, fault: { ...fault!, onsetS: atMs / 1000 + fault!.onsetS } };
+  return client.post(`/api/attempts/${attemptId}/events`, { events: [{ seq, event }] });
+}
+
+describe('live fault injection', () => {
+  it('reaches the running bench sealed, lands in the event log once, and is not sent again after a reconnect', async () => {
+    const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
+    const stream = await openStream(ada, `/api/live/attempts/${attemptId}/stream`);
+    expect(stream.status).toBe(200);
+    await stream.next((m) => m.event === 'status');
+
+    const res = await teacher.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'fusible-link-open', severity01: 1, delayS: 2 });
+    expect(res.status, res.text).toBe(201);
+    const injectionId = (res.body as { injection: { injectionId: number } }).injection.injectionId;
+
+    const msg = await stream.next((m) => m.event === 'injection', 2_000);
+    const injection = benchInjectionSchema.parse(msg.data);
+    expect(injection).toMatchObject({ type: 'inject', injectionId, faultId: liveFaultId(injectionId) });
+    // The student is not told what was injected: no kind or label in what the stream carries.
+    const raw = JSON.stringify(msg.data);
+    expect(raw).not.toContain('fusible');
+    expect(raw).not.toContain(FAULT_CATALOG['fusible-link-open'].label);
+    if (injection.type !== 'inject') throw new Error('expected an inject');
+
+    const key = await deriveBenchKey(t.env.SESSION_SECRET, attemptId);
+    const [fault] = await unsealFaults(injection.sealed, key);
+    expect(fault).toMatchObject({ id: liveFaultId(injectionId), kind: 'fusible-link-open', severity01: 1, onsetS: 2 });
+
+    // The bench logs it in its normal batch; a retried batch is stored once.
+    const first = await benchLogs(ada, attemptId, 1, 12_340, injection.sealed);
+    expect(first.status, first.text).toBe(200);
+    const retry = await benchLogs(ada, attemptId, 1, 12_340, injection.sealed);
+    expect(retry.status, retry.text).toBe(200);
+    const logged = await t.ctx.db
+      .select({ seq: attemptEvents.seq, kind: attemptEvents.kind, source: attemptEvents.source, simTimeMs: attemptEvents.simTimeMs })
+      .from(attemptEvents)
+      .where(eq(attemptEvents.attemptId, attemptId));
+    expect(logged).toEqual([{ seq: 1, kind: 'fault-inject', source: 'instructor', simTimeMs: 12_340 }]);
+    const [pending] = await t.ctx.db.select({ appliedAt: pendingInjections.appliedAt }).from(pendingInjections).where(eq(pendingInjections.id, injectionId));
+    expect(pending!.appliedAt).not.toBeNull();
+    stream.close();
+
+    // A reconnect does not hand the logged injection out again.
+    const again = await openStream(ada, `/api/live/attempts/${attemptId}/stream`);
+    await again.next((m) => m.event === 'status');
+    expect(await again.arrives((m) => m.event === 'injection', 1_000)).toBe(false);
+    again.close();
+  });
+
+  it('keeps an injection for a bench that was offline and delivers it when the bench comes back', async () => {
+    const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
+    const res = await teacher.post(`/api/live/attempts/${attemptId}/inject`, {
+      kind: 'belt-slip',
+      severity01: 0.4,
+      delayS: 0,
+      intermittent: { periodS: 10, onFraction01: 0.5 },
+    });
+    expect(res.status, res.text).toBe(201);
+    const stream = await openStream(ada, `/api/live/attempts/${attemptId}/stream`);
+    const msg = await stream.next((m) => m.event === 'injection', 2_000);
+    const injection = benchInjectionSchema.parse(msg.data);
+    if (injection.type !== 'inject') throw new Error('expected an inject');
+    const [fault] = await unsealFaults(injection.sealed, await deriveBenchKey(t.env.SESSION_SECRET, attemptId));
+    expect(fault).toMatchObject({ kind: 'belt-slip', severity01: 0.4, intermittent: { periodS: 10, onFraction01: 0.5 } });
+    stream.close();
+  });
+
+  it('clears an injected fault: the bench is told which fault id to clear, and logging the clear marks it applied', async () => {
+    const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
+    const made = await teacher.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'regulator-set-high', severity01: 0.5 });
+    const injectionId = (made.body as { injection: { injectionId: number } }).injection.injectionId;
+    const stream = await openStream(ada, `/api/live/attempts/${attemptId}/stream`);
+    const inj = benchInjectionSchema.parse((await stream.next((m) => m.event === 'injection')).data);
+    if (inj.type !== 'inject') throw new Error('expected an inject');
+    expect((await benchLogs(ada, attemptId, 1, 1_000, inj.sealed)).status).toBe(200);
+
+    const cleared = await teacher.post(`/api/live/attempts/${attemptId}/clear`, { injectionId });
+    expect(cleared.status, cleared.text).toBe(201);
+    const clear = benchInjectionSchema.parse((await stream.next((m) => m.event === 'injection')).data);
+    expect(clear).toMatchObject({ type: 'clear', faultId: liveFaultId(injectionId) });
+    const logged = await ada.post(`/api/attempts/${attemptId}/events`, { events: [{ seq: 2, event: { kind: 'fault-clear', atMs: 5_000, faultId: liveFaultId(injectionId) } }] });
+    expect(logged.status, logged.text).toBe(200);
+    const rows = await t.ctx.db
+      .select({ appliedAt: pendingInjections.appliedAt })
+      .from(pendingInjections)
+      .where(eq(pendingInjections.attemptId, attemptId));
+    expect(rows.every((r) => r.appliedAt !== null)).toBe(true);
+
+    const twice = await teacher.post(`/api/live/attempts/${attemptId}/clear`, { injectionId });
+    expect(twice.status).toBe(409);
+    const list = await teacher.get(`/api/live/attempts/${attemptId}/injections`);
+    expect((list.body as { injections: { injectionId: number; cleared: boolean }[] }).injections.find((i) => i.injectionId === injectionId)?.cleared).toBe(true);
+    stream.close();
+  });
+
+  it('refuses a student, an instructor of another class, bad input naming the field, and a finished attempt', async () => {
+    const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
+    const byStudent = await ada.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'diode-open' });
+    expect(byStudent.status).toBe(403);
+    const outsider = await httpSignIn(server.url, otherInstructor.email);
+    expect((await outsider.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'diode-open' })).status).toBe(403);
+    expect((await outsider.get(`/api/live/classes/${fx.classId}/board`)).status).toBe(403);
+
+    // Another student cannot listen to this bench.
+    const foreign = await openStream(bo, `/api/live/attempts/${attemptId}/stream`);
+    expect(foreign.status).toBe(403);
+    foreign.close();
+
+    const bad = await teacher.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'diode-open', severity01: 2 });
+    expect(bad.status).toBe(400);
+    expect((bad.body as { error: { field: string } }).error.field).toBe('severity01');
+    const badKind = await teacher.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'gremlins' });
+    expect((badKind.body as { error: { field: string } }).error.field).toBe('kind');
+    const badPattern = await teacher.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'diode-open', intermittent: { periodS: 0.1, onFraction01: 0.5 } });
+    expect((badPattern.body as { error: { field: string } }).error.field).toBe('intermittent.periodS');
+    expect(await t.ctx.db.select({ id: pendingInjections.id }).from(pendingInjections).where(eq(pendingInjections.attemptId, attemptId))).toEqual([]);
+
+    await t.ctx.db.update(attempts).set({ status: 'submitted', submittedAt: new Date() }).where(eq(attempts.id, attemptId));
+    const late = await teacher.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'diode-open' });
+    expect(late.status).toBe(409);
+    const closed = await openStream(ada, `/api/live/attempts/${attemptId}/stream`);
+    expect(closed.status).toBe(409);
+    closed.close();
+  });
+
+  it('a bench cannot log a fault of its own: a fault event that matches no injection is refused', async () => {
+    const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
+    const forged = await ada.post(`/api/attempts/${attemptId}/events`, {
+      events: [{ seq: 1, event: { kind: 'fault-inject', atMs: 0, fault: { id: 'live-999999', kind: 'diode-open', severity01: 1, onsetS: 0, intermittent: null } } }],
+    });
+    expect([400, 403, 409]).toContain(forged.status);
+    const rows = await t.ctx.db.select({ id: attemptEvents.id }).from(attemptEvents).where(and(eq(attemptEvents.attemptId, attemptId)));
+    expect(rows).toEqual([]);
+  });
+});
+
+describe('the class board', () => {
+  it('lists running attempts with student and scenario, and streams an update when events are stored', async () => {
+    const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[1]!);
+    const board = await teacher.get(`/api/live/classes/${fx.classId}/board`);
+    expect(board.status).toBe(200);
+    const snap = boardSnapshotSchema.parse(board.body);
+    const entry = snap.attempts.find((a) => a.attemptId === attemptId);
+    expect(entry).toMatchObject({ studentName: students[1]!.name, scenarioTitle: 'Dim lamps at idle', assignmentTitle: 'Week 3 bench check', status: 'running' });
+
+    const stream = await openStream(teacher, `/api/live/classes/${fx.classId}/stream`);
+    const first = await stream.next((m) => m.event === 'snapshot');
+    expect(boardSnapshotSchema.parse(first.data).attempts.some((a) => a.attemptId === attemptId)).toBe(true);
+
+    const posted = await bo.post(`/api/attempts/${attemptId}/events`, {
+      events: [
+        { seq: 1, event: { kind: 'lead', atMs: 500, which: 'red', point: 'battery-pos' } },
+        { seq: 2, event: { kind: 'lead', atMs: 900, which: 'black', point: 'battery-neg' } },
+      ],
+    });
+    expect(posted.status, posted.text).toBe(200);
+    const update = await stream.next((m) => m.event === 'attempt' && (m.data as { attemptId: number }).attemptId === attemptId, 5_000);
+    expect(update.data).toMatchObject({ attemptId, lastSeq: 2, simTimeMs: 900 });
+
+    // An instructor's injection shows on the board at once, with its kind (the instructor may know).
+    await teacher.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'diode-open', severity01: 1 });
+    const withInjection = await stream.next(
+      (m) => m.event === 'attempt' && (m.data as { injections: unknown[] }).injections.length === 1,
+      5_000,
+    );
+    expect((withInjection.data as { injections: { kind: string; appliedAt: string | null }[] }).injections[0]).toMatchObject({ kind: 'diode-open', appliedAt: null });
+    stream.close();
+  });
+});
