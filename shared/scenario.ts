@@ -514,14 +514,15 @@ export interface StudentScenarioView {
   vehicle: StudentVehicleSpec;
   passRules: PassRules;
   diagnosisChoices: DiagnosisChoice[];
+  /** Hints are written for the student and must not name the fault. */
   hints: string[];
-  objectives: string[];
 }
 
 /**
  * The scenario as a student may see it before submitting: no faults, no tests
- * expected (they point at the fault), and no raw model parameters (an author may
- * have set fault-like values such as open diodes directly); only the car's spec.
+ * expected and no learning objectives (both point at the fault), and no raw model
+ * parameters (an author may have set fault-like values such as open diodes
+ * directly); only the car's spec, the pass rules, the choices and the hints.
  */
 export function studentScenarioView(def: ScenarioDefinition): StudentScenarioView {
   const v = def.vehicle;
@@ -549,6 +550,5 @@ export function studentScenarioView(def: ScenarioDefinition): StudentScenarioVie
     passRules: structuredClone(def.passRules),
     diagnosisChoices: [...def.diagnosisChoices],
     hints: [...def.hints],
-    objectives: [...def.objectives],
   };
 }

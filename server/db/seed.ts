@@ -7,6 +7,7 @@ import { hashPassword } from '../auth/passwords.ts';
 import type { Db } from './client.ts';
 import { DEMO_PASSWORD, DEMO_PEOPLE } from './demo-people.ts';
 import { users } from './schema.ts';
+import { seedLibrary } from './seed-library.ts';
 
 export async function isEmpty(db: Db): Promise<boolean> {
   const [row] = await db.select({ n: sql<number>`count(*)::int` }).from(users);
@@ -19,4 +20,5 @@ export async function seedDemo(db: Db): Promise<void> {
   await db.transaction(async (tx) => {
     await tx.insert(users).values(DEMO_PEOPLE.map((p) => ({ email: p.email, name: p.name, role: p.role, passwordHash: hash })));
   });
+  await seedLibrary(db);
 }

@@ -4,7 +4,20 @@ import type { RouteGroup } from '../http/route-table.ts';
 import { authRoutes } from './auth.ts';
 import { liveRoutes } from './live.ts';
 import { outboxRoutes, userRoutes } from './users.ts';
+import { scenarioRoutes } from './scenarios.ts';
+import { classRoutes } from './classes.ts';
+import { rosterRoutes } from './roster.ts';
+import { assignmentRoutes } from './assignments.ts';
 
 export function allRouteGroups(ctx: AppContext): RouteGroup[] {
-  return [authRoutes(ctx), liveRoutes(ctx), userRoutes(ctx), outboxRoutes(ctx)];
+  return [
+    authRoutes(ctx),
+    liveRoutes(ctx),
+    userRoutes(ctx),
+    outboxRoutes(ctx),
+    scenarioRoutes(ctx),
+    classRoutes(ctx),
+    rosterRoutes(ctx),
+    assignmentRoutes(ctx),
+  ];
 }

@@ -100,13 +100,14 @@ describe('scenario document schema', () => {
     expect(def.testsExpected).toContain('output');
   });
 
-  it('gives a student view with no faults, no tests expected and no raw parameters', () => {
+  it('gives a student view with no faults, no tests expected, no objectives and no raw parameters', () => {
     const def = withFault();
     def.vehicle.params.alternator.openDiodes = [0];
     const view = studentScenarioView(def);
     const json = JSON.stringify(view);
     expect(view).not.toHaveProperty('faults');
     expect(view).not.toHaveProperty('testsExpected');
+    expect(view).not.toHaveProperty('objectives');
     expect(view.vehicle).not.toHaveProperty('params');
     expect(json).not.toContain('open-diode');
     expect(json).not.toContain('openDiodes');

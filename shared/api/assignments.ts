@@ -1,0 +1,68 @@
+/** Payloads of the assignments API (/api/assignments). */
+import { z } from 'zod';
+import { DIFFICULTIES, VEHICLE_KINDS } from '../scenario.ts';
+
+export const assignmentIdParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
+
+const isoDate = (field: string) =>
+  z.iso.datetime({ offset: true, error: `${field} must be a date and time (ISO 8601, e.g. 2026-12-01T09:00:00Z)` });
+
+export const createAssignmentSchema = z
+  .strictObject({
+    classId: z.number({ error: 'classId is required' }).int().positive('classId must be a positive whole number'),
+    scenarioId: z.number({ error: 'scenarioId is required' }).int().positive('scenarioId must be a positive whole number'),
+    /** A version of that scenario; without it, the published version. */
+    scenarioVersionId: z.number().int().positive('scenarioVersionId must be a positive whole number').optional(),
+    title: z.string().trim().min(3, 'title must be at least 3 characters').max(160, 'title must be at most 160 characters').optional(),
+    opensAt: isoDate('opensAt'),
+    dueAt: isoDate('dueAt'),
+    attemptsAllowed: z.number({ error: 'attemptsAllowed is required' }).int('attemptsAllowed must be a whole number').min(1, 'attemptsAllowed must be at least 1').max(20, 'attemptsAllowed must be at most 20'),
+    showCurveAfter: z.boolean().default(true),
+    showFeedbackAfter: z.boolean().default(true),
+  })
+  .refine((a) => Date.parse(a.dueAt) > Date.parse(a.opensAt), { error: 'dueAt must be after opensAt', path: ['dueAt'] });
+export type CreateAssignmentInput = z.input<typeof createAssignmentSchema>;
+
+export const listAssignmentsQuerySchema = z.object({
+  classId: z.coerce.number({ error: 'classId is required' }).int().positive('classId must be a positive whole number'),
+});
+
+export const assignmentSchema = z.object({
+  id: z.number().int(),
+  classId: z.number().int(),
+  className: z.string(),
+  title: z.string(),
+  scenarioId: z.number().int(),
+  scenarioVersionId: z.number().int(),
+  scenarioVersion: z.number().int(),
+  opensAt: z.string(),
+  dueAt: z.string(),
+  attemptsAllowed: z.number().int(),
+  showCurveAfter: z.boolean(),
+  showFeedbackAfter: z.boolean(),
+  createdAt: z.string(),
+});
+export type Assignment = z.infer<typeof assignmentSchema>;
+export const assignmentListResponseSchema = z.object({ assignments: z.array(assignmentSchema) });
+
+/** A student's view of an assignment: what to do and when; nothing about the fault. */
+export const myAssignmentSchema = z.object({
+  id: z.number().int(),
+  classId: z.number().int(),
+  className: z.string(),
+  title: z.string(),
+  summary: z.string(),
+  difficulty: z.enum(DIFFICULTIES),
+  vehicleName: z.string(),
+  vehicleKind: z.enum(VEHICLE_KINDS),
+  opensAt: z.string(),
+  dueAt: z.string(),
+  attemptsAllowed: z.number().int(),
+  attemptsUsed: z.number().int(),
+  /** Past the due date: shown, but no new attempt can start. */
+  closed: z.boolean(),
+  showCurveAfter: z.boolean(),
+  showFeedbackAfter: z.boolean(),
+});
+export type MyAssignment = z.infer<typeof myAssignmentSchema>;
+export const myAssignmentsResponseSchema = z.object({ assignments: z.array(myAssignmentSchema) });
