@@ -318,3 +318,23 @@ export async function assertCanStartAssignment(
   if (attemptsUsed >= row.attemptsAllowed) throw new HttpError(409, `All ${row.attemptsAllowed} attempts have been used`, { field: 'assignmentId' });
   return row;
 }
+
+/** Whether the user teaches a class the student is enrolled in (admins: always). */
+export async function teachesStudent(db: DbOrTx, user: SessionUser, studentId: number): Promise<boolean> {
+  if (user.role === 'admin') return true;
+  if (user.role !== 'instructor') return false;
+  const [row] = await db
+    .select({ classId: enrollments.classId })
+    .from(enrollments)
+    .innerJoin(classInstructors, eq(classInstructors.classId, enrollments.classId))
+    .where(and(eq(enrollments.userId, studentId), eq(classInstructors.userId, user.id)))
+    .limit(1);
+  return row !== undefined;
+}
+
+/** The student themselves, or an instructor of one of their classes. */
+export async function requireStudentReader(db: DbOrTx, user: SessionUser, studentId: number): Promise<{ self: boolean }> {
+  if (user.id === studentId) return { self: true };
+  if (await teachesStudent(db, user, studentId)) return { self: false };
+  throw forbidden('You do not teach this student');
+}
