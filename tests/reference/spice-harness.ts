@@ -21,7 +21,11 @@ export interface SpiceOptions {
   measureCycles?: number;
   /** Maximum time step is one cycle divided by this. */
   stepsPerCycle?: number;
-  /** A shorted diode becomes a resistor of this value. */
+  /**
+   * A shorted diode becomes a resistor of this value. Default: the diode's
+   * own bulk resistance (a failed junction leaves the bulk path), or 1 mOhm
+   * when the model has none.
+   */
   shortedDiodeResistanceOhm?: number;
   /** Highest harmonic of the electrical frequency searched for the dominant ripple. */
   maxHarmonic?: number;
@@ -92,7 +96,9 @@ export function resolveOptions(circuit: RectifierCircuit, opts: SpiceOptions = {
     settleCycles,
     measureCycles,
     stepsPerCycle,
-    shortedDiodeResistanceOhm: opts.shortedDiodeResistanceOhm ?? DEFAULT_SHORTED_DIODE_OHM,
+    shortedDiodeResistanceOhm:
+      opts.shortedDiodeResistanceOhm ??
+      (circuit.diode.seriesResistanceOhm > 0 ? circuit.diode.seriesResistanceOhm : DEFAULT_SHORTED_DIODE_OHM),
     maxHarmonic,
   };
   if (!Number.isInteger(settleCycles) || settleCycles < 0) throw new Error(`settleCycles must be a whole number >= 0, got ${settleCycles}`);
