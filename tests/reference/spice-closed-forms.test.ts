@@ -186,6 +186,15 @@ describe('harness consistency with a battery and stator inductance', () => {
     loadResistanceOhm: 0.5,
   };
 
+  it('with no EMF gives no output and no ripple', async () => {
+    // Common practice, no source: a stopped alternator only leaks (the harness's junction gmin is 10 nS per diode).
+    const s = (await spiceRun({ ...charging, phaseEmfPeakV: 0 })).solution;
+    expect(Math.abs(s.meanOutputCurrentA)).toBeLessThan(1e-5);
+    expect(s.meanBatteryV).toBeCloseTo(12.4, 4);
+    expect(s.rippleRmsV).toBeLessThan(1e-6);
+    expect(s.dominantRippleHz).toBe(0);
+  });
+
   it('balances current at the battery post and settles to a periodic state', async () => {
     // Kirchhoff's current law and Ohm's law (any circuits textbook): output = battery charge current + load current.
     const run = await spiceRun(charging);

@@ -65,6 +65,7 @@ const DEFAULT_MAX_HARMONIC = 36;
 const MIN_SETTLE_CYCLES = 12;
 const MAX_SETTLE_CYCLES = 400;
 const SETTLE_TIME_CONSTANTS = 8;
+const NO_RIPPLE_PEAK_V = 1e-6;
 // Keeps the star point, which only the windings and diodes reach, from
 // floating in the DC operating point; at 1 GOhm it draws nanoamps.
 const BLEED_RESISTANCE_OHM = 1e9;
@@ -443,7 +444,8 @@ export async function spiceRun(circuit: RectifierCircuit, opts: SpiceOptions = {
     meanBplusV: trapezoidMean(t, bplusVsCaseV),
     meanBatteryV,
     rippleRmsV,
-    dominantRippleHz: dominantK * circuit.electricalHz,
+    // With no ripple above the engine's numerical noise there is no dominant component.
+    dominantRippleHz: dominantPeakV > NO_RIPPLE_PEAK_V ? dominantK * circuit.electricalHz : 0,
   };
   return {
     solution,
