@@ -3,6 +3,8 @@ import type { AppContext } from '../context.ts';
 import type { RouteGroup } from '../http/route-table.ts';
 import { authRoutes } from './auth.ts';
 import { liveRoutes } from './live.ts';
+import { compareRoutes } from './compare.ts';
+import { signOffRoutes } from './sign-offs.ts';
 import { outboxRoutes, userRoutes } from './users.ts';
 import { scenarioRoutes } from './scenarios.ts';
 import { classRoutes } from './classes.ts';
@@ -13,6 +15,8 @@ export function allRouteGroups(ctx: AppContext): RouteGroup[] {
   return [
     authRoutes(ctx),
     liveRoutes(ctx),
+    compareRoutes(ctx),
+    signOffRoutes(ctx),
     userRoutes(ctx),
     outboxRoutes(ctx),
     scenarioRoutes(ctx),

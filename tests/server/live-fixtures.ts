@@ -288,3 +288,46 @@ export async function spawnServer(databaseUrl: string, env: Record<string, strin
     },
   };
 }
+
+export interface SubmittedFixture {
+  timeToDiagnosisMs: number;
+  given: string;
+  actual?: string[];
+  grade: number;
+  verdicts?: { test: string; ok: boolean }[];
+  mistakes?: string[];
+  submittedAt?: Date;
+}
+
+/** A submitted, graded attempt with a stored result in the shape the grader writes. */
+export async function makeSubmitted(db: Db, fx: ClassFixture, studentId: number, s: SubmittedFixture): Promise<number> {
+  const actual = s.actual ?? ['diode-open'];
+  const result = {
+    grade: s.grade,
+    verified: true,
+    readings: [],
+    verdicts: (s.verdicts ?? []).map((v) => ({ test: v.test, given: v.ok, correct: true, ok: v.ok })),
+    fault: { given: s.given, actual, ok: actual.includes(s.given), labels: [] },
+    timeToDiagnosisMs: s.timeToDiagnosisMs,
+    mistakes: (s.mistakes ?? []).map((kind, i) => ({ kind, atMs: 1000 * i, message: kind })),
+    feedback: [],
+  };
+  const [row] = await db
+    .insert(attempts)
+    .values({
+      userId: studentId,
+      scenarioVersionId: fx.scenarioVersionId,
+      assignmentId: fx.assignmentId,
+      mode: 'assigned',
+      seed: 5,
+      status: 'submitted',
+      submittedAt: s.submittedAt ?? new Date(),
+      grade: s.grade,
+      verified: true,
+      timeToDiagnosisMs: s.timeToDiagnosisMs,
+      diagnosis: { atMs: s.timeToDiagnosisMs, faultKind: s.given, verdicts: [], readings: [] },
+      result,
+    })
+    .returning({ id: attempts.id });
+  return row!.id;
+}

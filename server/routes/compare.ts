@@ -1,0 +1,78 @@
+/**
+ * The class comparison of an assignment (/api/compare): diagnosis times,
+ * correctness and mistakes per student, the distribution, accuracy per fault
+ * and per test, and the grades as CSV. A student gets the distribution and
+ * their own row only.
+ */
+import { GRADES_CSV_COLUMNS, assignmentParamsSchema, type CompareResponse } from '../../shared/api/compare.ts';
+import { requireAssignmentInstructor, requireAssignmentMember } from '../auth/access.ts';
+import { currentUser } from '../auth/guard.ts';
+import type { AppContext } from '../context.ts';
+import { routeGroup } from '../http/route-table.ts';
+import { parseParams } from '../http/validate.ts';
+import {
+  accuracyByFault,
+  accuracyByTest,
+  assignmentHeader,
+  countedRows,
+  distribution,
+  submittedAttempts,
+  toCsv,
+} from '../services/live-results.ts';
+
+export function compareRoutes(ctx: AppContext) {
+  const g = routeGroup('/api/compare');
+
+  g.get('/assignments/:id', ['student', 'instructor', 'admin'], async (req, res) => {
+    const { id } = parseParams(assignmentParamsSchema, req);
+    const user = currentUser(req);
+    const access = await requireAssignmentMember(ctx.db, user, id);
+    const assignment = await assignmentHeader(ctx.db, id);
+    const all = await submittedAttempts(ctx.db, id);
+    const rows = countedRows(all);
+    let body: CompareResponse;
+    if (access.teaches) {
+      const counted = all.filter((a) => rows.some((r) => r.attemptId === a.attemptId));
+      body = {
+        viewer: 'instructor',
+        assignment,
+        rows,
+        distribution: distribution(rows, null),
+        accuracyByFault: accuracyByFault(counted),
+        accuracyByTest: accuracyByTest(counted),
+      };
+    } else {
+      const mine = rows.find((r) => r.studentId === user.id) ?? null;
+      body = { viewer: 'student', assignment, mine, distribution: distribution(rows, mine) };
+    }
+    res.json(body);
+  });
+
+  g.get('/assignments/:id/grades.csv', ['instructor', 'admin'], async (req, res) => {
+    const { id } = parseParams(assignmentParamsSchema, req);
+    await requireAssignmentInstructor(ctx.db, currentUser(req), id);
+    const assignment = await assignmentHeader(ctx.db, id);
+    const all = await submittedAttempts(ctx.db, id);
+    const csv = toCsv(
+      GRADES_CSV_COLUMNS,
+      all.map((a) => [
+        a.attemptId,
+        a.studentName,
+        a.studentEmail,
+        assignment.title,
+        a.submittedAt ? a.submittedAt.toISOString() : null,
+        a.grade,
+        a.verified,
+        a.result.fault?.given ?? null,
+        a.result.fault?.ok ?? null,
+        a.timeToDiagnosisMs === null ? null : a.timeToDiagnosisMs / 1000,
+        a.result.mistakes?.length ?? 0,
+      ]),
+    );
+    res.setHeader('Content-Type', 'text/csv; charset=utf-8');
+    res.setHeader('Content-Disposition', `attachment; filename="grades-assignment-${id}.csv"`);
+    res.send(csv);
+  });
+
+  return g;
+}

@@ -1,0 +1,201 @@
+/**
+ * Competency sign-offs (/api/sign-offs): an instructor signs off one test of
+ * the family for a student, from a graded attempt whose scenario expected it;
+ * the student's progress page reads them; the class's sign-offs export as CSV.
+ */
+import { and, asc, desc, eq, inArray } from 'drizzle-orm';
+import { alias } from 'drizzle-orm/pg-core';
+import {
+  SIGN_OFFS_CSV_COLUMNS,
+  classParamsSchema,
+  createSignOffSchema,
+  signOffParamsSchema,
+  studentParamsSchema,
+  type CompetencyProgress,
+  type ProgressResponse,
+  type SignOff,
+} from '../../shared/api/compare.ts';
+import { COMPETENCIES, COMPETENCY_LABELS, type Competency } from '../../shared/competencies.ts';
+import { requireAttemptInstructor, requireClassInstructor, requireStudentReader, teachesStudent } from '../auth/access.ts';
+import { currentUser } from '../auth/guard.ts';
+import type { AppContext } from '../context.ts';
+import type { DbOrTx } from '../db/client.ts';
+import { attempts, enrollments, scenarioVersions, signOffs, users } from '../db/schema.ts';
+import { badRequest, conflict, forbidden, notFound } from '../http/errors.ts';
+import { routeGroup } from '../http/route-table.ts';
+import { parseBody, parseParams } from '../http/validate.ts';
+import { readResult, toCsv } from '../services/live-results.ts';
+
+const signer = alias(users, 'signer');
+
+const signOffColumns = {
+  id: signOffs.id,
+  userId: signOffs.userId,
+  competency: signOffs.competency,
+  attemptId: signOffs.attemptId,
+  signedById: signOffs.signedBy,
+  signedByName: signer.name,
+  note: signOffs.note,
+  createdAt: signOffs.createdAt,
+};
+
+type SignOffRow = { id: number; userId: number; competency: string; attemptId: number | null; signedById: number | null; signedByName: string | null; note: string; createdAt: Date };
+
+const isCompetency = (c: string): c is Competency => (COMPETENCIES as readonly string[]).includes(c);
+
+function toSignOff(r: SignOffRow): SignOff | null {
+  if (!isCompetency(r.competency)) return null;
+  return { ...r, competency: r.competency, createdAt: r.createdAt.toISOString() };
+}
+
+function testsExpectedOf(definition: unknown): Competency[] {
+  const list = (definition as { testsExpected?: unknown } | null)?.testsExpected;
+  return Array.isArray(list) ? list.filter((x): x is Competency => typeof x === 'string' && isCompetency(x)) : [];
+}
+
+const isUniqueViolation = (err: unknown) => (err as { code?: string }).code === '23505' || (err as { cause?: { code?: string } }).cause?.code === '23505';
+
+async function progressOf(db: DbOrTx, studentId: number): Promise<ProgressResponse> {
+  const [student] = await db.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, studentId));
+  if (!student) throw notFound('No such student');
+  const signed = await db
+    .select(signOffColumns)
+    .from(signOffs)
+    .leftJoin(signer, eq(signer.id, signOffs.signedBy))
+    .where(eq(signOffs.userId, studentId));
+  const graded = await db
+    .select({
+      attemptId: attempts.id,
+      grade: attempts.grade,
+      submittedAt: attempts.submittedAt,
+      result: attempts.result,
+      scenarioTitle: scenarioVersions.title,
+      definition: scenarioVersions.definition,
+    })
+    .from(attempts)
+    .innerJoin(scenarioVersions, eq(scenarioVersions.id, attempts.scenarioVersionId))
+    .where(and(eq(attempts.userId, studentId), eq(attempts.status, 'submitted')))
+    .orderBy(desc(attempts.submittedAt), desc(attempts.id));
+  const competencies: CompetencyProgress[] = COMPETENCIES.map((competency) => {
+    const row = signed.find((s) => s.competency === competency);
+    const expected = graded.filter((a) => a.grade !== null && testsExpectedOf(a.definition).includes(competency));
+    let verdicts = 0;
+    let verdictsRight = 0;
+    for (const a of expected) {
+      for (const v of readResult(a.result).verdicts ?? []) {
+        if (v.test !== competency) continue;
+        verdicts++;
+        if (v.ok) verdictsRight++;
+      }
+    }
+    return {
+      competency,
+      label: COMPETENCY_LABELS[competency],
+      signOff: row ? toSignOff(row) : null,
+      gradedAttempts: expected.length,
+      verdicts,
+      verdictsRight,
+      evidence: expected.map((a) => ({
+        attemptId: a.attemptId,
+        scenarioTitle: a.scenarioTitle,
+        grade: a.grade,
+        submittedAt: a.submittedAt ? a.submittedAt.toISOString() : null,
+      })),
+    };
+  });
+  return { student, competencies };
+}
+
+export function signOffRoutes(ctx: AppContext) {
+  const g = routeGroup('/api/sign-offs');
+
+  g.get('/me', ['student'], async (req, res) => {
+    res.json(await progressOf(ctx.db, currentUser(req).id));
+  });
+
+  g.get('/students/:userId', ['student', 'instructor', 'admin'], async (req, res) => {
+    const { userId } = parseParams(studentParamsSchema, req);
+    await requireStudentReader(ctx.db, currentUser(req), userId);
+    res.json(await progressOf(ctx.db, userId));
+  });
+
+  g.post('/', ['instructor', 'admin'], async (req, res) => {
+    const user = currentUser(req);
+    const input = parseBody(createSignOffSchema, req);
+    const access = await requireAttemptInstructor(ctx.db, user, input.attemptId);
+    const [attempt] = await ctx.db
+      .select({ status: attempts.status, grade: attempts.grade, definition: scenarioVersions.definition })
+      .from(attempts)
+      .innerJoin(scenarioVersions, eq(scenarioVersions.id, attempts.scenarioVersionId))
+      .where(eq(attempts.id, input.attemptId));
+    if (!attempt || attempt.status !== 'submitted' || attempt.grade === null) {
+      throw conflict('Sign off from a graded attempt: this one is not graded yet', 'attemptId');
+    }
+    if (!testsExpectedOf(attempt.definition).includes(input.competency)) {
+      throw badRequest(`competency: the attempt's scenario did not expect the ${COMPETENCY_LABELS[input.competency].toLowerCase()}`, { field: 'competency' });
+    }
+    try {
+      const [row] = await ctx.db
+        .insert(signOffs)
+        .values({ userId: access.ownerId, competency: input.competency, attemptId: input.attemptId, signedBy: user.id, note: input.note })
+        .returning({ id: signOffs.id });
+      const [full] = await ctx.db.select(signOffColumns).from(signOffs).leftJoin(signer, eq(signer.id, signOffs.signedBy)).where(eq(signOffs.id, row!.id));
+      res.status(201).json({ signOff: toSignOff(full!) });
+    } catch (err) {
+      if (isUniqueViolation(err)) throw conflict('This competency is already signed off for the student', 'competency');
+      throw err;
+    }
+  });
+
+  g.delete('/:id', ['instructor', 'admin'], async (req, res) => {
+    const { id } = parseParams(signOffParamsSchema, req);
+    const [row] = await ctx.db.select({ userId: signOffs.userId }).from(signOffs).where(eq(signOffs.id, id));
+    if (!row) throw notFound('No such sign-off');
+    if (!(await teachesStudent(ctx.db, currentUser(req), row.userId))) throw forbidden('You do not teach this student');
+    await ctx.db.delete(signOffs).where(eq(signOffs.id, id));
+    res.status(204).end();
+  });
+
+  g.get('/classes/:classId/sign-offs.csv', ['instructor', 'admin'], async (req, res) => {
+    const { classId } = parseParams(classParamsSchema, req);
+    await requireClassInstructor(ctx.db, currentUser(req), classId);
+    const enrolled = await ctx.db.select({ userId: enrollments.userId }).from(enrollments).where(eq(enrollments.classId, classId));
+    const ids = enrolled.map((e) => e.userId);
+    const student = alias(users, 'student');
+    const rows = ids.length
+      ? await ctx.db
+          .select({
+            studentName: student.name,
+            studentEmail: student.email,
+            competency: signOffs.competency,
+            attemptId: signOffs.attemptId,
+            signedBy: signer.name,
+            createdAt: signOffs.createdAt,
+            note: signOffs.note,
+          })
+          .from(signOffs)
+          .innerJoin(student, eq(student.id, signOffs.userId))
+          .leftJoin(signer, eq(signer.id, signOffs.signedBy))
+          .where(inArray(signOffs.userId, ids))
+          .orderBy(asc(student.name), asc(signOffs.competency))
+      : [];
+    const csv = toCsv(
+      SIGN_OFFS_CSV_COLUMNS,
+      rows.map((r) => [
+        r.studentName,
+        r.studentEmail,
+        r.competency,
+        isCompetency(r.competency) ? COMPETENCY_LABELS[r.competency] : r.competency,
+        r.attemptId,
+        r.signedBy,
+        r.createdAt.toISOString(),
+        r.note,
+      ]),
+    );
+    res.setHeader('Content-Type', 'text/csv; charset=utf-8');
+    res.setHeader('Content-Disposition', `attachment; filename="sign-offs-class-${classId}.csv"`);
+    res.send(csv);
+  });
+
+  return g;
+}

@@ -1,0 +1,137 @@
+/**
+ * The class comparison of an assignment (/api/compare) and competency
+ * sign-offs (/api/sign-offs). Each student counts with their latest submitted
+ * attempt. Students see the distribution of diagnosis times and their own
+ * place in it, never a classmate's name.
+ */
+import { z } from 'zod';
+import { COMPETENCIES, competencySchema } from '../competencies.ts';
+
+const id = (field: string) => z.coerce.number({ error: `${field} must be a number` }).int(`${field} must be a whole number`).positive(`${field} must be a positive whole number`);
+
+export const assignmentParamsSchema = z.object({ id: id('id') });
+export const classParamsSchema = z.object({ classId: id('classId') });
+export const studentParamsSchema = z.object({ userId: id('userId') });
+export const signOffParamsSchema = z.object({ id: id('id') });
+
+export const compareRowSchema = z.object({
+  attemptId: z.number().int(),
+  studentId: z.number().int(),
+  studentName: z.string(),
+  submittedAt: z.string().nullable(),
+  /** Submitted attempts of this student for the assignment. */
+  attemptCount: z.number().int(),
+  timeToDiagnosisMs: z.number().int().nullable(),
+  /** The fault named was the actual one. */
+  correct: z.boolean().nullable(),
+  faultGiven: z.string().nullable(),
+  grade: z.number().nullable(),
+  verified: z.boolean(),
+  mistakes: z.number().int(),
+  mistakeKinds: z.array(z.string()),
+});
+export type CompareRow = z.infer<typeof compareRowSchema>;
+
+export const accuracyByFaultSchema = z.object({ fault: z.string(), label: z.string(), attempts: z.number().int(), named: z.number().int() });
+export const accuracyByTestSchema = z.object({ test: z.enum(COMPETENCIES), label: z.string(), verdicts: z.number().int(), right: z.number().int() });
+
+export const distributionSchema = z.object({
+  /** Every counted student's time to diagnosis, ascending, without names. */
+  timesMs: z.array(z.number().int()),
+  /** The viewer's own time (students), or null. */
+  mineMs: z.number().int().nullable(),
+  /** 1 is the fastest; ties share a place. */
+  myPlace: z.number().int().nullable(),
+  medianMs: z.number().nullable(),
+});
+export type Distribution = z.infer<typeof distributionSchema>;
+
+export const compareHeaderSchema = z.object({
+  assignmentId: z.number().int(),
+  title: z.string(),
+  classId: z.number().int(),
+  className: z.string(),
+  scenarioTitle: z.string(),
+  enrolled: z.number().int(),
+  submitted: z.number().int(),
+});
+
+export const instructorCompareSchema = z.object({
+  viewer: z.literal('instructor'),
+  assignment: compareHeaderSchema,
+  rows: z.array(compareRowSchema),
+  distribution: distributionSchema,
+  accuracyByFault: z.array(accuracyByFaultSchema),
+  accuracyByTest: z.array(accuracyByTestSchema),
+});
+export type InstructorCompare = z.infer<typeof instructorCompareSchema>;
+
+export const studentCompareSchema = z.object({
+  viewer: z.literal('student'),
+  assignment: compareHeaderSchema,
+  /** The student's own counted attempt, or null before they submit. */
+  mine: compareRowSchema.nullable(),
+  distribution: distributionSchema,
+});
+export type StudentCompare = z.infer<typeof studentCompareSchema>;
+
+export const compareResponseSchema = z.discriminatedUnion('viewer', [instructorCompareSchema, studentCompareSchema]);
+export type CompareResponse = z.infer<typeof compareResponseSchema>;
+
+// ---------------------------------------------------------------------------
+// Sign-offs
+
+export const createSignOffSchema = z.strictObject({
+  attemptId: z.number({ error: 'attemptId is required' }).int('attemptId must be a whole number').positive('attemptId must be a positive whole number'),
+  competency: competencySchema,
+  note: z.string().trim().max(500, 'note must be at most 500 characters').default(''),
+});
+export type CreateSignOffInput = z.input<typeof createSignOffSchema>;
+
+export const signOffSchema = z.object({
+  id: z.number().int(),
+  userId: z.number().int(),
+  competency: z.enum(COMPETENCIES),
+  attemptId: z.number().int().nullable(),
+  signedById: z.number().int().nullable(),
+  signedByName: z.string().nullable(),
+  note: z.string(),
+  createdAt: z.string(),
+});
+export type SignOff = z.infer<typeof signOffSchema>;
+
+export const competencyProgressSchema = z.object({
+  competency: z.enum(COMPETENCIES),
+  label: z.string(),
+  signOff: signOffSchema.nullable(),
+  /** Graded attempts whose scenario expected this test. */
+  gradedAttempts: z.number().int(),
+  /** Of their verdicts on this test, how many were right. */
+  verdictsRight: z.number().int(),
+  verdicts: z.number().int(),
+  /** Graded attempts an instructor could sign this competency off from, newest first. */
+  evidence: z.array(z.object({ attemptId: z.number().int(), scenarioTitle: z.string(), grade: z.number().nullable(), submittedAt: z.string().nullable() })),
+});
+export type CompetencyProgress = z.infer<typeof competencyProgressSchema>;
+
+export const progressResponseSchema = z.object({
+  student: z.object({ id: z.number().int(), name: z.string() }),
+  competencies: z.array(competencyProgressSchema),
+});
+export type ProgressResponse = z.infer<typeof progressResponseSchema>;
+
+/** Columns of the CSV exports, in order. */
+export const GRADES_CSV_COLUMNS = [
+  'attempt_id',
+  'student_name',
+  'student_email',
+  'assignment',
+  'submitted_at',
+  'grade',
+  'verified',
+  'fault_named',
+  'correct',
+  'time_to_diagnosis_s',
+  'mistakes',
+] as const;
+export const SIGN_OFFS_CSV_COLUMNS = ['student_name', 'student_email', 'competency', 'competency_label', 'attempt_id', 'signed_by', 'signed_at', 'note'] as const;
