@@ -5,6 +5,7 @@ import { authRoutes } from './auth.ts';
 import { liveRoutes } from './live.ts';
 import { compareRoutes } from './compare.ts';
 import { signOffRoutes } from './sign-offs.ts';
+import { replayRoutes } from './replay.ts';
 import { outboxRoutes, userRoutes } from './users.ts';
 import { scenarioRoutes } from './scenarios.ts';
 import { classRoutes } from './classes.ts';
@@ -17,6 +18,7 @@ export function allRouteGroups(ctx: AppContext): RouteGroup[] {
     liveRoutes(ctx),
     compareRoutes(ctx),
     signOffRoutes(ctx),
+    replayRoutes(ctx),
     userRoutes(ctx),
     outboxRoutes(ctx),
     scenarioRoutes(ctx),
