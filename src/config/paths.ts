@@ -5,6 +5,11 @@ export const paths = {
   setPassword: { pattern: '/set-password', href: () => '/set-password' },
   home: { pattern: '/', href: () => '/' },
   bench: { pattern: '/bench', href: () => '/bench' },
+  benchNew: {
+    pattern: '/bench/new',
+    href: (start: { assignmentId: number } | { scenarioId: number }) =>
+      'assignmentId' in start ? `/bench/new?assignmentId=${start.assignmentId}` : `/bench/new?scenarioId=${start.scenarioId}`,
+  },
   benchAttempt: { pattern: '/bench/:attemptId', href: (attemptId: number) => `/bench/${attemptId}` },
   attempts: { pattern: '/attempts', href: () => '/attempts' },
   replay: { pattern: '/attempts/:attemptId/replay', href: (attemptId: number) => `/attempts/${attemptId}/replay` },

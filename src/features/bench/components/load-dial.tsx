@@ -1,0 +1,170 @@
+/**
+ * The carbon-pile load dial: a large rotary control over 270°. Drag it, turn
+ * the wheel over it, or use the keys (arrows 1 %, Page Up/Down 10 %, Home
+ * off, End full). Around it a heat band shows the pile's temperature: amber
+ * from its warning temperature, red when it has cut out.
+ */
+import { useEffect, useRef, type KeyboardEvent, type PointerEvent } from 'react';
+import { arc } from 'd3-shape';
+import { scaleLinear } from 'd3-scale';
+
+export interface LoadDialProps {
+  value01: number;
+  onChange: (value01: number) => void;
+  pileA: number;
+  pileTempC: number;
+  warnC: number;
+  tripC: number;
+  hot: boolean;
+  tripped: boolean;
+  size?: number;
+}
+
+const SWEEP = (3 * Math.PI) / 2;
+const START = -SWEEP / 2;
+const KEY_STEP = 0.01;
+const PAGE_STEP = 0.1;
+
+const clamp01 = (x: number) => (x < 0 ? 0 : x > 1 ? 1 : x);
+
+/** The value a key press leads to, or null for keys the dial does not use. */
+export function dialKeyValue(key: string, value01: number): number | null {
+  switch (key) {
+    case 'ArrowUp':
+    case 'ArrowRight':
+      return clamp01(value01 + KEY_STEP);
+    case 'ArrowDown':
+    case 'ArrowLeft':
+      return clamp01(value01 - KEY_STEP);
+    case 'PageUp':
+      return clamp01(value01 + PAGE_STEP);
+    case 'PageDown':
+      return clamp01(value01 - PAGE_STEP);
+    case 'Home':
+      return 0;
+    case 'End':
+      return 1;
+    default:
+      return null;
+  }
+}
+
+/** Dial value from a pointer position relative to the dial's centre (0 at 12 o'clock, clockwise). */
+export function dialValueAt(dx: number, dy: number): number {
+  const angle = Math.atan2(dx, -dy);
+  return clamp01((angle - START) / SWEEP);
+}
+
+export function dialValueText(value01: number, pileA: number, hot: boolean, tripped: boolean): string {
+  const pct = Math.round(value01 * 100);
+  const state = tripped ? ', pile cut out: overheated' : hot ? ', pile hot' : '';
+  return `${pct} percent, pile drawing ${Math.round(pileA)} amps${state}`;
+}
+
+const heatArc = arc<{ start: number; end: number }>()
+  .innerRadius(0.9)
+  .outerRadius(1)
+  .startAngle((d) => d.start)
+  .endAngle((d) => d.end)
+  .cornerRadius(0.02);
+
+export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, hot, tripped, size = 220 }: LoadDialProps) {
+  const ref = useRef<SVGSVGElement>(null);
+  const dragging = useRef(false);
+  const valueRef = useRef(value01);
+  valueRef.current = value01;
+  const onChangeRef = useRef(onChange);
+  onChangeRef.current = onChange;
+
+  // React's wheel listener is passive; the dial must stop the page scrolling.
+  useEffect(() => {
+    const el = ref.current;
+    if (!el) return;
+    const onWheel = (e: WheelEvent) => {
+      e.preventDefault();
+      const step = e.shiftKey ? PAGE_STEP : KEY_STEP;
+      onChangeRef.current(clamp01(valueRef.current + (e.deltaY < 0 ? step : -step)));
+    };
+    el.addEventListener('wheel', onWheel, { passive: false });
+    return () => el.removeEventListener('wheel', onWheel);
+  }, []);
+
+  const fromPointer = (e: PointerEvent<SVGSVGElement>) => {
+    const box = e.currentTarget.getBoundingClientRect();
+    onChange(dialValueAt(e.clientX - (box.left + box.width / 2), e.clientY - (box.top + box.height / 2)));
+  };
+
+  const onKeyDown = (e: KeyboardEvent<SVGSVGElement>) => {
+    const next = dialKeyValue(e.key, value01);
+    if (next === null) return;
+    e.preventDefault();
+    onChange(next);
+  };
+
+  const temp = scaleLinear().domain([0, tripC]).range([START, START + SWEEP]).clamp(true);
+  const warnAngle = temp(warnC);
+  const tempAngle = temp(Math.max(0, pileTempC));
+  const pointer = START + SWEEP * value01;
+  const ticks = Array.from({ length: 11 }, (_, i) => START + (SWEEP * i) / 10);
+  const bandColour = tripped ? 'fill-stop-600' : hot ? 'fill-warn-500' : 'fill-live-500';
+
+  return (
+    <svg
+      ref={ref}
+      role="slider"
+      tabIndex={0}
+      aria-label="Carbon pile load"
+      aria-valuemin={0}
+      aria-valuemax={100}
+      aria-valuenow={Math.round(value01 * 100)}
+      aria-valuetext={dialValueText(value01, pileA, hot, tripped)}
+      aria-orientation="vertical"
+      viewBox="-1.1 -1.1 2.2 2.2"
+      width={size}
+      height={size}
+      className="cursor-grab touch-none select-none rounded-full active:cursor-grabbing"
+      onKeyDown={onKeyDown}
+      onPointerDown={(e) => {
+        dragging.current = true;
+        e.currentTarget.setPointerCapture(e.pointerId);
+        e.currentTarget.focus();
+        fromPointer(e);
+      }}
+      onPointerMove={(e) => {
+        if (dragging.current) fromPointer(e);
+      }}
+      onPointerUp={(e) => {
+        dragging.current = false;
+        e.currentTarget.releasePointerCapture(e.pointerId);
+      }}
+      onPointerCancel={() => {
+        dragging.current = false;
+      }}
+    >
+      {/* Heat band: the track, the warning zone, and the pile's temperature now. */}
+      <path d={heatArc({ start: START, end: START + SWEEP }) ?? ''} className="fill-stone-200" />
+      <path d={heatArc({ start: warnAngle, end: START + SWEEP }) ?? ''} className="fill-warn-100" />
+      <path d={heatArc({ start: START, end: Math.max(START + 0.001, tempAngle) }) ?? ''} className={bandColour} />
+      {ticks.map((a, i) => (
+        <line
+          key={i}
+          x1={0.74 * Math.sin(a)}
+          y1={-0.74 * Math.cos(a)}
+          x2={0.82 * Math.sin(a)}
+          y2={-0.82 * Math.cos(a)}
+          className="stroke-slate-400"
+          strokeWidth={i % 5 === 0 ? 0.03 : 0.015}
+        />
+      ))}
+      <circle r={0.66} className="fill-slate-800" />
+      <circle r={0.58} className="fill-slate-700" />
+      <line x1={0} y1={0} x2={0.5 * Math.sin(pointer)} y2={-0.5 * Math.cos(pointer)} className="stroke-live-300" strokeWidth={0.07} strokeLinecap="round" />
+      <text y={0.3} textAnchor="middle" className="fill-slate-100 font-mono" fontSize={0.2}>
+        {Math.round(value01 * 100)}%
+      </text>
+      <text y={0.86} textAnchor="middle" className="fill-slate-500" fontSize={0.11}>
+        {Math.round(pileTempC)} °C
+      </text>
+    </svg>
+  );
+}

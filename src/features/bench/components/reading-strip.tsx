@@ -1,0 +1,92 @@
+/**
+ * The reading strip: every readout in one row with its unit. Digits refresh
+ * ten times a second, the way a bench meter settles; a screen reader hears a
+ * polite summary every few seconds when something has changed.
+ */
+import { useEffect, useRef, useState } from 'react';
+import type { Readings } from '../../../../sim/instruments.ts';
+import { useBench } from '../hooks/use-bench.ts';
+import { formatAmps, formatDrawMa, formatRippleMv, formatRpm, formatVolts, spokenReading, UNITS } from './reading-format.ts';
+
+const DISPLAY_INTERVAL_MS = 100;
+const ANNOUNCE_INTERVAL_MS = 3000;
+
+export interface StripValues {
+  volts: string;
+  amps: string;
+  rpm: string;
+  ripple: string;
+  draw: string;
+}
+
+export function stripValues(r: Readings): StripValues {
+  return {
+    volts: formatVolts(r.voltmeterV),
+    amps: formatAmps(r.clampA),
+    rpm: formatRpm(r.tachRpm),
+    ripple: formatRippleMv(r.rippleVac),
+    draw: formatDrawMa(r.ammeterA),
+  };
+}
+
+const sameTenth = (a: Readings, b: Readings) => Math.floor((a.simTimeS * 1000) / DISPLAY_INTERVAL_MS) === Math.floor((b.simTimeS * 1000) / DISPLAY_INTERVAL_MS);
+
+function Readout({ label, value, unit, testId }: { label: string; value: string; unit: string; testId: string }) {
+  return (
+    <div className="min-w-0 flex-1 px-4 py-3">
+      <dt className="text-xs font-medium uppercase tracking-wide text-slate-400">{label}</dt>
+      <dd className="mt-0.5 flex items-baseline gap-1.5">
+        <span data-testid={testId} className={`font-mono text-3xl font-semibold tabular-nums ${value === '—' ? 'text-slate-500' : 'text-live-300'}`}>
+          {value}
+        </span>
+        <span className="text-sm text-slate-400">{unit}</span>
+      </dd>
+    </div>
+  );
+}
+
+export function ReadingStrip() {
+  const readings = useBench((s) => s.readings, sameTenth);
+  const v = stripValues(readings);
+  const drawUnit = v.draw.endsWith(' A') ? '' : UNITS.draw;
+  return (
+    <div className="rounded-xl bg-slate-900 shadow-sm">
+      <dl className="flex flex-wrap divide-x divide-slate-800">
+        <Readout label="Volts (DC)" value={v.volts} unit={UNITS.volts} testId="reading-volts" />
+        <Readout label="Amps (clamp)" value={v.amps} unit={UNITS.amps} testId="reading-amps" />
+        <Readout label="Engine" value={v.rpm} unit={UNITS.rpm} testId="reading-rpm" />
+        <Readout label="Ripple" value={v.ripple} unit={UNITS.ripple} testId="reading-ripple" />
+        <Readout label="Draw" value={v.draw} unit={drawUnit} testId="reading-draw" />
+      </dl>
+      <StripAnnouncer values={v} />
+    </div>
+  );
+}
+
+/** Polite, throttled words for screen readers: not every frame. */
+function StripAnnouncer({ values }: { values: StripValues }) {
+  const [text, setText] = useState('');
+  const latest = useRef(values);
+  latest.current = values;
+  useEffect(() => {
+    const id = setInterval(() => {
+      const v = latest.current;
+      const next = [
+        spokenReading('volts', v.volts),
+        spokenReading('amps', v.amps),
+        spokenReading('rpm', v.rpm),
+        v.ripple !== '—' ? spokenReading('ripple', v.ripple) : '',
+        v.draw !== '—' ? spokenReading('draw', v.draw) : '',
+      ]
+        .filter(Boolean)
+        .join('. ');
+      setText((prev) => (prev === next ? prev : next));
+    }, ANNOUNCE_INTERVAL_MS);
+    return () => clearInterval(id);
+  }, []);
+  return (
+    <p aria-live="polite" className="sr-only" data-testid="reading-announcer">
+      {text}
+    </p>
+  );
+}

@@ -1,0 +1,215 @@
+/**
+ * The live bench: the model stepping in an animation-frame loop with a
+ * fixed-dt accumulator, outside React. Every student input enters through
+ * `dispatch`, which stamps it with the sim time and appends it to the event
+ * log the replay uses, so what runs here is what the server re-runs.
+ * React reads immutable snapshots, published once per displayed frame.
+ */
+import type { VehicleParams } from '../../../../sim/params.ts';
+import type { Controls, InputEvent } from '../../../../sim/inputs.ts';
+import type { Readings, RippleTrace } from '../../../../sim/instruments.ts';
+import type { ReplayPoint } from '../../../../sim/replay.ts';
+import { applyInput } from '../../../../sim/inputs.ts';
+import { rawClampReadingA, readMeters, rippleTrace } from '../../../../sim/instruments.ts';
+import { advance, stateAt } from '../../../../sim/replay.ts';
+import { DT_MS } from '../../../../sim/step.ts';
+
+type DistributiveOmit<T, K extends PropertyKey> = T extends unknown ? Omit<T, K> : never;
+
+/** An input as the student gives it; the engine adds the sim time. */
+export type BenchInput = DistributiveOmit<InputEvent, 'atMs'>;
+
+/** Frame gaps above this (a hidden tab, a debugger pause) are cut to it: the sim never leaps. */
+export const MAX_FRAME_GAP_MS = 100;
+/** The strip chart keeps one sample per interval over the last minute. */
+export const HISTORY_INTERVAL_MS = 250;
+export const HISTORY_SPAN_MS = 60_000;
+/** The scope view refreshes a few times a second, like a real sweep. */
+const TRACE_INTERVAL_MS = 200;
+const TRACE_SAMPLES = 240;
+/** The key springs back from start to on after this long, or once the engine runs. */
+export const START_HOLD_MS = 1500;
+
+export interface HistorySample {
+  tMs: number;
+  volts: number | null;
+  amps: number | null;
+}
+
+export interface BenchSnapshot {
+  timeMs: number;
+  readings: Readings;
+  controls: Controls;
+  /** Changes whenever the strip chart gains a sample. */
+  history: readonly HistorySample[];
+  trace: RippleTrace | null;
+  eventCount: number;
+}
+
+export interface BenchEngineOptions {
+  params: VehicleParams;
+  seed: number;
+  /** Events the bench did not produce itself: the scenario's faults at 0 ms. */
+  scenarioEvents: readonly InputEvent[];
+  /** The attempt's own events so far (resume). */
+  studentEvents?: readonly InputEvent[];
+  /** Sim time to resume at; at least the last event's time. */
+  resumeAtMs?: number;
+  /** Called with each new student event, in order. */
+  onEvent?: (event: InputEvent) => void;
+}
+
+export interface BenchEngine {
+  readonly params: VehicleParams;
+  getSnapshot(): BenchSnapshot;
+  subscribe(listener: () => void): () => void;
+  /** The one way an input reaches the model. */
+  dispatch(input: BenchInput): InputEvent;
+  /** Advance by a real-time frame gap (the loop calls this; tests may too). */
+  tick(frameGapMs: number): void;
+  /** Let sim time pass quickly (waiting for modules to sleep, a rest before a reading). */
+  skipAhead(ms: number): void;
+  /** The meters exactly now, with the sim time (what a recorded reading refers to). */
+  readNow(): { atMs: number; readings: Readings };
+  studentEvents(): readonly InputEvent[];
+  start(): void;
+  stop(): void;
+  running(): boolean;
+}
+
+function emptySnapshot(point: ReplayPoint, readings: Readings, eventCount: number): BenchSnapshot {
+  return { timeMs: point.state.timeMs, readings, controls: point.controls, history: [], trace: null, eventCount };
+}
+
+export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
+  const { params, seed, onEvent } = options;
+  const student: InputEvent[] = [...(options.studentEvents ?? [])];
+  const events: InputEvent[] = [...options.scenarioEvents, ...student];
+  const lastEventMs = student.length ? student[student.length - 1]!.atMs : 0;
+  const resumeMs = Math.max(lastEventMs, options.resumeAtMs ?? 0);
+  const resumeSteps = Math.ceil(resumeMs / DT_MS);
+  let point: ReplayPoint = stateAt(params, seed, events, resumeSteps * DT_MS);
+
+  const listeners = new Set<() => void>();
+  let accumulatorMs = 0;
+  let history: HistorySample[] = [];
+  let nextHistoryMs = Math.ceil(point.state.timeMs / HISTORY_INTERVAL_MS) * HISTORY_INTERVAL_MS;
+  let trace: RippleTrace | null = null;
+  let nextTraceMs = 0;
+  let keyStartedAtMs: number | null = point.controls.key === 'start' ? point.state.timeMs : null;
+  let frame: number | null = null;
+  let lastFrameAt: number | null = null;
+  /** The controls with every dispatched event applied (the next step applies them to the model). */
+  let shownControls: Controls = point.controls;
+  let snapshot = emptySnapshot(point, readMeters(params, point.state), student.length);
+
+  function sample(): void {
+    const t = point.state.timeMs;
+    if (t < nextHistoryMs) return;
+    const r = readMeters(params, point.state);
+    const next = history.length && history[0]!.tMs < t - HISTORY_SPAN_MS ? history.filter((h) => h.tMs >= t - HISTORY_SPAN_MS) : history.slice();
+    next.push({ tMs: t, volts: r.voltmeterV, amps: r.clampA });
+    history = next;
+    nextHistoryMs = (Math.floor(t / HISTORY_INTERVAL_MS) + 1) * HISTORY_INTERVAL_MS;
+  }
+
+  function refreshTrace(force = false): void {
+    const t = point.state.timeMs;
+    if (!force && t < nextTraceMs) return;
+    nextTraceMs = t + TRACE_INTERVAL_MS;
+    const leads = shownControls.leads;
+    trace = leads.red && leads.black ? rippleTrace(params, point.state, TRACE_SAMPLES) : null;
+  }
+
+  function publish(): void {
+    snapshot = {
+      timeMs: point.state.timeMs,
+      readings: readMeters(params, point.state),
+      controls: shownControls,
+      history,
+      trace,
+      eventCount: student.length,
+    };
+    for (const l of [...listeners]) l();
+  }
+
+  function stepBy(steps: number): void {
+    // Step in small slices so the chart and the spring-back key see every moment.
+    let left = steps;
+    while (left > 0) {
+      const slice = Math.min(left, HISTORY_INTERVAL_MS / DT_MS);
+      point = advance(params, point, events, slice);
+      shownControls = point.controls;
+      left -= slice;
+      sample();
+      springBackKey();
+    }
+    refreshTrace();
+  }
+
+  function springBackKey(): void {
+    if (shownControls.key !== 'start' || keyStartedAtMs === null) return;
+    const held = point.state.timeMs - keyStartedAtMs;
+    if (held >= START_HOLD_MS || (point.state.engineStatus === 'running' && held >= 200)) {
+      keyStartedAtMs = null;
+      dispatch({ kind: 'key', position: 'on' });
+    }
+  }
+
+  function dispatch(input: BenchInput): InputEvent {
+    const event = { ...input, atMs: point.state.timeMs } as InputEvent;
+    student.push(event);
+    events.push(event);
+    if (event.kind === 'key') keyStartedAtMs = event.position === 'start' ? event.atMs : null;
+    // Shown at once; the model takes it before its next step, exactly as a replay does.
+    shownControls = applyInput(shownControls, event, rawClampReadingA(point.state, shownControls));
+    onEvent?.(event);
+    if (event.kind === 'lead') refreshTrace(true);
+    publish();
+    return event;
+  }
+
+  function tick(frameGapMs: number): void {
+    const gap = Math.min(Math.max(frameGapMs, 0), MAX_FRAME_GAP_MS);
+    accumulatorMs += gap;
+    const steps = Math.floor(accumulatorMs / DT_MS);
+    if (steps <= 0) return;
+    accumulatorMs -= steps * DT_MS;
+    stepBy(steps);
+    publish();
+  }
+
+  function loop(now: number): void {
+    const gap = lastFrameAt === null ? 0 : now - lastFrameAt;
+    lastFrameAt = now;
+    tick(gap);
+    frame = requestAnimationFrame(loop);
+  }
+
+  return {
+    params,
+    getSnapshot: () => snapshot,
+    subscribe(listener) {
+      listeners.add(listener);
+      return () => listeners.delete(listener);
+    },
+    dispatch,
+    tick,
+    skipAhead(ms) {
+      stepBy(Math.max(0, Math.round(ms / DT_MS)));
+      publish();
+    },
+    readNow: () => ({ atMs: point.state.timeMs, readings: readMeters(params, point.state) }),
+    studentEvents: () => student,
+    start() {
+      if (frame !== null) return;
+      lastFrameAt = null;
+      frame = requestAnimationFrame(loop);
+    },
+    stop() {
+      if (frame !== null) cancelAnimationFrame(frame);
+      frame = null;
+    },
+    running: () => frame !== null,
+  };
+}

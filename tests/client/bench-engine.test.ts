@@ -1,0 +1,93 @@
+import { describe, expect, it } from 'vitest';
+import { defaultVehicleParams } from '../../sim/params.ts';
+import { readMeters } from '../../sim/instruments.ts';
+import { stateAt } from '../../sim/replay.ts';
+import { DT_MS } from '../../sim/step.ts';
+import type { InputEvent } from '../../sim/inputs.ts';
+import { MAX_FRAME_GAP_MS, START_HOLD_MS, createBenchEngine } from '../../src/features/bench/stores/bench-engine.ts';
+import { benchActions } from '../../src/features/bench/stores/bench-actions.ts';
+
+const params = defaultVehicleParams();
+const SEED = 42;
+
+function frames(engine: ReturnType<typeof createBenchEngine>, count: number, gapMs = 1000 / 60) {
+  for (let i = 0; i < count; i++) engine.tick(gapMs);
+}
+
+describe('the live bench engine', () => {
+  it('steps the model a whole number of fixed steps per frame and carries the remainder', () => {
+    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    engine.tick(16.7);
+    expect(engine.getSnapshot().timeMs).toBe(10);
+    engine.tick(16.7);
+    expect(engine.getSnapshot().timeMs).toBe(30);
+    frames(engine, 58, 16.7);
+    // 60 frames of 16.7 ms = 1002 ms of real time: 100 steps, 2 ms carried.
+    expect(engine.getSnapshot().timeMs).toBe(1000);
+  });
+
+  it('cuts an oversized frame gap instead of leaping ahead', () => {
+    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    engine.tick(5000);
+    expect(engine.getSnapshot().timeMs).toBe(MAX_FRAME_GAP_MS);
+  });
+
+  it('stamps each input with the sim time and shows its effect at once', () => {
+    const seen: InputEvent[] = [];
+    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [], onEvent: (e) => seen.push(e) });
+    frames(engine, 30);
+    const event = engine.dispatch(benchActions.clipLead('red', 'battery-pos'));
+    expect(event).toEqual({ kind: 'lead', which: 'red', point: 'battery-pos', atMs: engine.getSnapshot().timeMs });
+    expect(Number.isInteger(event.atMs)).toBe(true);
+    expect(engine.getSnapshot().controls.leads.red).toBe('battery-pos');
+    expect(seen).toEqual([event]);
+  });
+
+  it('springs the key back from start to on', () => {
+    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    engine.dispatch(benchActions.turnKey('start'));
+    frames(engine, Math.ceil(START_HOLD_MS / 16) + 10);
+    const keys = engine.studentEvents().filter((e) => e.kind === 'key');
+    expect(keys.map((e) => (e.kind === 'key' ? e.position : null))).toEqual(['start', 'on']);
+    expect(engine.getSnapshot().controls.key).toBe('on');
+  });
+
+  it('ends in exactly the state a replay of its own event log reaches', () => {
+    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    engine.dispatch(benchActions.clipLead('red', 'battery-pos'));
+    engine.dispatch(benchActions.clipLead('black', 'battery-neg'));
+    engine.dispatch(benchActions.placeClamp('bplus-cable', 'toward-battery'));
+    engine.dispatch(benchActions.turnKey('start'));
+    frames(engine, 150, 16.7);
+    engine.dispatch(benchActions.holdRpm(2000));
+    frames(engine, 90, 13.1);
+    engine.dispatch(benchActions.setPile(0.4));
+    frames(engine, 60, 21.9);
+    const live = engine.readNow();
+    const replayed = stateAt(params, SEED, engine.studentEvents(), live.atMs);
+    expect(replayed.state.timeMs).toBe(live.atMs);
+    expect(readMeters(params, replayed.state)).toEqual(live.readings);
+  });
+
+  it('resumes from a stored log at the saved sim time with the same readings', () => {
+    const first = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    first.dispatch(benchActions.clipLead('red', 'battery-pos'));
+    first.dispatch(benchActions.clipLead('black', 'battery-neg'));
+    first.dispatch(benchActions.turnKey('on'));
+    frames(first, 100);
+    first.dispatch(benchActions.switchAccessory('headlamps', true));
+    frames(first, 100);
+    const at = first.readNow();
+    const second = createBenchEngine({ params, seed: SEED, scenarioEvents: [], studentEvents: first.studentEvents(), resumeAtMs: at.atMs });
+    expect(second.readNow()).toEqual(at);
+    expect(second.getSnapshot().controls.accessoriesOn).toEqual(['headlamps']);
+  });
+
+  it('lets sim time pass quickly in whole steps', () => {
+    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    engine.skipAhead(60_000);
+    expect(engine.getSnapshot().timeMs).toBe(60_000);
+    expect(engine.getSnapshot().timeMs % DT_MS).toBe(0);
+    expect(engine.getSnapshot().history.length).toBeGreaterThan(200);
+  });
+});

@@ -1,0 +1,239 @@
+import { describe, expect, it } from 'vitest';
+import type { InputEvent } from '../../sim/inputs.ts';
+import {
+  backoffMs,
+  createOutbox,
+  mergeForResume,
+  outboxKey,
+  readPersisted,
+  type OutboxStorage,
+  type SequencedEvent,
+  type Timer,
+} from '../../src/features/bench/api/event-outbox.ts';
+
+class MemoryStorage implements OutboxStorage {
+  data = new Map<string, string>();
+  getItem(k: string) {
+    return this.data.get(k) ?? null;
+  }
+  setItem(k: string, v: string) {
+    this.data.set(k, v);
+  }
+  removeItem(k: string) {
+    this.data.delete(k);
+  }
+}
+
+/** A timer the test advances by hand. */
+class ManualTimer implements Timer {
+  now = 0;
+  private jobs: { at: number; fn: () => void; id: number }[] = [];
+  private nextId = 1;
+  set(fn: () => void, ms: number) {
+    const id = this.nextId++;
+    this.jobs.push({ at: this.now + ms, fn, id });
+    return id;
+  }
+  clear(h: unknown) {
+    this.jobs = this.jobs.filter((j) => j.id !== h);
+  }
+  nextDelay(): number | null {
+    if (!this.jobs.length) return null;
+    return Math.min(...this.jobs.map((j) => j.at)) - this.now;
+  }
+  async advance(ms: number) {
+    const until = this.now + ms;
+    for (;;) {
+      const due = this.jobs.filter((j) => j.at <= until).sort((a, b) => a.at - b.at)[0];
+      if (!due) break;
+      this.jobs = this.jobs.filter((j) => j !== due);
+      this.now = due.at;
+      due.fn();
+      await flushPromises();
+    }
+    this.now = until;
+  }
+}
+
+const flushPromises = async () => {
+  for (let i = 0; i < 10; i++) await Promise.resolve();
+};
+
+const pile = (atMs: number, dial01: number): InputEvent => ({ kind: 'pile', atMs, dial01 });
+
+/** A server that stores each seq once and answers with the highest contiguous seq. */
+function fakeServer() {
+  const stored = new Map<number, InputEvent>();
+  let online = true;
+  let posts = 0;
+  return {
+    stored,
+    posts: () => posts,
+    setOnline(v: boolean) {
+      online = v;
+    },
+    async send(batch: SequencedEvent[]) {
+      posts += 1;
+      if (!online) throw new Error('offline');
+      for (const e of batch) if (!stored.has(e.seq)) stored.set(e.seq, e.event);
+      let last = 0;
+      while (stored.has(last + 1)) last += 1;
+      return { lastSeq: last };
+    },
+  };
+}
+
+describe('the event outbox', () => {
+  it('numbers events from after the server’s last seq and writes each to storage at once', () => {
+    const storage = new MemoryStorage();
+    const server = fakeServer();
+    const outbox = createOutbox({ attemptId: 7, storage, send: server.send, timer: new ManualTimer(), serverSeq: 12 });
+    expect(outbox.push(pile(10, 0.1)).seq).toBe(13);
+    expect(outbox.push(pile(20, 0.2)).seq).toBe(14);
+    const saved = readPersisted(storage, 7);
+    expect(saved.pending.map((e) => e.seq)).toEqual([13, 14]);
+    expect(outbox.view()).toMatchObject({ status: 'waiting', pending: 2 });
+  });
+
+  it('posts a batch every interval and reports all saved once acknowledged', async () => {
+    const storage = new MemoryStorage();
+    const server = fakeServer();
+    const timer = new ManualTimer();
+    const outbox = createOutbox({ attemptId: 1, storage, send: server.send, timer, serverSeq: 0, intervalMs: 1000 });
+    outbox.start();
+    outbox.push(pile(0, 0.1));
+    outbox.push(pile(10, 0.2));
+    expect(server.posts()).toBe(0);
+    await timer.advance(1000);
+    expect([...server.stored.keys()]).toEqual([1, 2]);
+    expect(outbox.view()).toMatchObject({ status: 'saved', pending: 0, ackedSeq: 2 });
+    expect(readPersisted(storage, 1).pending).toEqual([]);
+  });
+
+  it('sends at once when 50 events are waiting, without waiting for the interval', async () => {
+    const server = fakeServer();
+    const timer = new ManualTimer();
+    const outbox = createOutbox({ attemptId: 1, storage: new MemoryStorage(), send: server.send, timer, serverSeq: 0, batchSize: 50 });
+    outbox.start();
+    for (let i = 0; i < 50; i++) outbox.push(pile(i * 10, i / 100));
+    await flushPromises();
+    expect(server.stored.size).toBe(50);
+    expect(server.posts()).toBe(1);
+  });
+
+  it('keeps events through failures, backs off 1 s, 2 s, 4 s, and loses none when the network returns', async () => {
+    const storage = new MemoryStorage();
+    const server = fakeServer();
+    const timer = new ManualTimer();
+    const outbox = createOutbox({ attemptId: 3, storage, send: server.send, timer, serverSeq: 0, intervalMs: 1000 });
+    outbox.start();
+    server.setOnline(false);
+    for (let i = 0; i < 5; i++) outbox.push(pile(i * 10, i / 10));
+    await timer.advance(1000);
+    expect(outbox.view()).toMatchObject({ status: 'offline', pending: 5, failures: 1 });
+    expect(timer.nextDelay()).toBe(1000);
+    await timer.advance(1000);
+    expect(outbox.view().failures).toBe(2);
+    expect(timer.nextDelay()).toBe(2000);
+    await timer.advance(2000);
+    expect(outbox.view().failures).toBe(3);
+    expect(timer.nextDelay()).toBe(4000);
+    outbox.push(pile(100, 0.9));
+    expect(readPersisted(storage, 3).pending).toHaveLength(6);
+    server.setOnline(true);
+    await timer.advance(4000);
+    expect([...server.stored.keys()]).toEqual([1, 2, 3, 4, 5, 6]);
+    expect(outbox.view()).toMatchObject({ status: 'saved', pending: 0, failures: 0 });
+  });
+
+  it('resends a batch whose answer was lost, and the server still stores each event once', async () => {
+    const server = fakeServer();
+    let dropAnswer = true;
+    const send = async (batch: SequencedEvent[]) => {
+      const res = await server.send(batch);
+      if (dropAnswer) {
+        dropAnswer = false;
+        throw new Error('connection reset after the server stored the batch');
+      }
+      return res;
+    };
+    const timer = new ManualTimer();
+    const outbox = createOutbox({ attemptId: 4, storage: new MemoryStorage(), send, timer, serverSeq: 0 });
+    outbox.start();
+    outbox.push(pile(0, 0.3));
+    outbox.push(pile(10, 0.4));
+    await timer.advance(1000);
+    expect(outbox.view().pending).toBe(2);
+    await timer.advance(1000);
+    expect(server.posts()).toBe(2);
+    expect(server.stored.size).toBe(2);
+    expect(outbox.view()).toMatchObject({ status: 'saved', ackedSeq: 2 });
+  });
+
+  it('survives a reload: a new outbox on the same storage carries on with the unsent events and the next seq', async () => {
+    const storage = new MemoryStorage();
+    const server = fakeServer();
+    server.setOnline(false);
+    const first = createOutbox({ attemptId: 9, storage, send: server.send, timer: new ManualTimer(), serverSeq: 0 });
+    first.push(pile(0, 0.1));
+    first.push(pile(10, 0.2));
+    first.noteSimTime(4321);
+    // The page reloads: only storage is left.
+    server.setOnline(true);
+    const timer = new ManualTimer();
+    const second = createOutbox({ attemptId: 9, storage, send: server.send, timer, serverSeq: 0 });
+    expect(second.view().pending).toBe(2);
+    expect(readPersisted(storage, 9).simTimeMs).toBe(4321);
+    expect(second.push(pile(20, 0.3)).seq).toBe(3);
+    second.start();
+    await timer.advance(0);
+    expect([...server.stored.keys()]).toEqual([1, 2, 3]);
+  });
+
+  it('drops events the server already holds when it reopens', () => {
+    const storage = new MemoryStorage();
+    storage.setItem(
+      outboxKey(5),
+      JSON.stringify({ pending: [{ seq: 1, event: pile(0, 0.1) }, { seq: 2, event: pile(5, 0.2) }, { seq: 3, event: pile(9, 0.3) }], ackedSeq: 0, simTimeMs: 9 }),
+    );
+    const outbox = createOutbox({ attemptId: 5, storage, send: fakeServer().send, timer: new ManualTimer(), serverSeq: 2 });
+    expect(outbox.view()).toMatchObject({ pending: 1, ackedSeq: 2 });
+    expect(outbox.push(pile(20, 0.5)).seq).toBe(4);
+  });
+
+  it('treats unreadable storage as an empty outbox', () => {
+    const storage = new MemoryStorage();
+    storage.setItem(outboxKey(6), '{not json');
+    expect(readPersisted(storage, 6)).toEqual({ pending: [], ackedSeq: 0, simTimeMs: 0 });
+  });
+
+  it('clears its storage after a submission', () => {
+    const storage = new MemoryStorage();
+    const outbox = createOutbox({ attemptId: 8, storage, send: fakeServer().send, timer: new ManualTimer(), serverSeq: 0 });
+    outbox.push(pile(0, 0.1));
+    outbox.clear();
+    expect(storage.getItem(outboxKey(8))).toBeNull();
+    expect(outbox.view()).toMatchObject({ status: 'saved', pending: 0 });
+  });
+});
+
+describe('backoff and resume helpers', () => {
+  it('doubles the delay after each failure up to the cap', () => {
+    expect([1, 2, 3, 4, 5, 6, 7].map((n) => backoffMs(n))).toEqual([1000, 2000, 4000, 8000, 16000, 30000, 30000]);
+  });
+
+  it('merges the server’s events with the local unsent ones in seq order, each once', () => {
+    const server: SequencedEvent[] = [
+      { seq: 1, event: pile(0, 0.1) },
+      { seq: 2, event: pile(10, 0.2) },
+    ];
+    const local: SequencedEvent[] = [
+      { seq: 4, event: pile(30, 0.4) },
+      { seq: 2, event: pile(10, 0.2) },
+      { seq: 3, event: pile(20, 0.3) },
+    ];
+    const { events, unsent } = mergeForResume(server, local);
+    expect(events.map((e) => e.seq)).toEqual([1, 2, 3, 4]);
+    expect(unsent.map((e) => e.seq)).toEqual([3, 4]);
+  });
+});
