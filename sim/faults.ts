@@ -92,7 +92,7 @@ export const FAULT_CATALOG: Readonly<Record<FaultKind, FaultCatalogEntry>> = {
   },
   'diode-open': {
     label: 'Open rectifier diode',
-    description: 'One positive diode no longer conducts: output down, ripple at the electrical frequency.',
+    description: 'One positive diode no longer conducts: heavy ripple at the electrical frequency; output only a little down.',
     severityMeaning: 'Not used (one diode, phase A positive).',
     revealedBy: ['output', 'ripple'],
   },
@@ -142,13 +142,13 @@ export const FAULT_CATALOG: Readonly<Record<FaultKind, FaultCatalogEntry>> = {
     label: 'High resistance on the B+ side',
     description: 'A corroded B+ terminal or damaged charging cable: a large positive-side voltage drop under load.',
     severityMeaning: 'Extra resistance: 50 milliohm times severity (0.2 is 0.01 ohm).',
-    revealedBy: ['voltage-drop-positive', 'output'],
+    revealedBy: ['voltage-drop-positive'],
   },
   'ground-high-resistance': {
     label: 'High resistance on the ground side',
-    description: 'A loose or corroded engine ground strap: a large ground-side drop, slow cranking.',
-    severityMeaning: 'Extra resistance: 50 milliohm times severity.',
-    revealedBy: ['voltage-drop-ground', 'cranking', 'output'],
+    description: 'A corroded alternator mounting or case ground: a large ground-side drop under load, an undercharged battery.',
+    severityMeaning: 'Extra resistance between case and engine: 50 milliohm times severity.',
+    revealedBy: ['voltage-drop-ground', 'regulated-voltage'],
   },
   'battery-weak': {
     label: 'Weak (sulfated) battery',
@@ -165,7 +165,7 @@ export const FAULT_CATALOG: Readonly<Record<FaultKind, FaultCatalogEntry>> = {
   'wrong-rating': {
     label: 'Wrong alternator rating fitted',
     description: 'A lower-rated unit was fitted: it works but cannot reach the car’s specified output.',
-    severityMeaning: 'Fitted unit rated 1 - 0.5 x severity of the specified rating (severity 0.33: 150 A car, 100 A unit).',
+    severityMeaning: 'Fitted unit rated 1 - 0.5 x severity of the specified rating (severity 0.67: a 100 A unit in a 150 A car).',
     revealedBy: ['output'],
   },
   'post-corroded': {

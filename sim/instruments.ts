@@ -5,13 +5,20 @@
  * lamps. `null` means "no reading" (a lead or the clamp not connected).
  * Plus the scope trace of the ripple and the output curve for the plot.
  *
+ * The instruments compute no physics of their own: they read the network the
+ * step solved (node voltages, branch currents, AC transfer resistances).
+ *
  * Units are in the names: V, Vac (rms), A, rpm, Hz, C, s.
  */
 
 import type { VehicleParams } from './params.ts';
 import type { Fault } from './faults.ts';
 import type { SimState, EngineStatus } from './step.ts';
-import type { Controls } from './inputs.ts';
+import type { Controls, Conductor, ConnectionPoint } from './inputs.ts';
+import type { NodeName, NetworkSolution } from './network.ts';
+import { COLD_ALTERNATOR_C, FIELD_DRIVER_DROP_V, HOT_ALTERNATOR_C, copperAt, effectiveModel, fieldResistanceOhm, relativeFlux } from './model.ts';
+import type { BridgePoint } from './bridge.ts';
+import { bridgeOperatingPoint, diodeDropV, periodicBridge } from './bridge.ts';
 
 export interface Readings {
   /** DC volts, red minus black; negative with the leads reversed. */
@@ -30,6 +37,7 @@ export interface Readings {
   engine: EngineStatus;
   fusibleLinkOpen: boolean;
   pileTempC: number;
+  /** The pile's thermal cut-out has opened (turn the dial to zero and let it cool). */
   pileOverheated: boolean;
   /** Heat band of the dial: amber above the pile's warning temperature. */
   pileHot: boolean;
@@ -41,7 +49,7 @@ export interface Readings {
 export interface RippleTrace {
   /** Time between samples. */
   sampleIntervalS: number;
-  /** AC-coupled volts between the leads, a few electrical cycles. */
+  /** AC-coupled volts between the leads over a few electrical cycles. */
   acV: number[];
   electricalHz: number;
 }
@@ -51,30 +59,186 @@ export interface OutputCurvePoint {
   currentA: number;
 }
 
-export function readMeters(params: VehicleParams, state: SimState): Readings {
-  void params;
-  void state;
-  throw new Error('readMeters: not implemented yet');
+export const CONNECTION_NODE: Readonly<Record<ConnectionPoint, NodeName>> = {
+  'battery-pos': 'batteryPos',
+  'battery-neg': 'batteryNeg',
+  'jump-pos': 'junction',
+  'jump-neg': 'chassis',
+  'alt-bplus': 'bplus',
+  'alt-case': 'altCase',
+  'engine-ground': 'engine',
+  chassis: 'chassis',
+};
+
+/** Ignition and injector noise on any DC reading with the engine running. */
+const RUNNING_NOISE_FLOOR_VAC = 0.004;
+
+/** Current in a conductor, positive toward the battery. */
+export function conductorCurrentTowardBatteryA(net: NetworkSolution, conductor: Conductor): number {
+  switch (conductor) {
+    case 'bplus-cable':
+      return net.branchA.bplusCable;
+    case 'battery-pos-cable':
+      return -net.branchA.posCable;
+    case 'battery-neg-cable':
+      return net.branchA.negCable;
+    case 'ground-strap':
+      return -net.branchA.strap;
+    case 'sense-line':
+      return 0;
+    default:
+      return assertNever(conductor);
+  }
 }
 
-export function rippleTrace(params: VehicleParams, state: SimState, samples: number): RippleTrace | null {
-  void params;
-  void state;
-  void samples;
-  throw new Error('rippleTrace: not implemented yet');
-}
-
-/** Net output at 13.5 V held at the B+ stud, full field, against alternator speed. */
-export function outputCurve(params: VehicleParams, faults: readonly Fault[], options: { hot: boolean }): OutputCurvePoint[] {
-  void params;
-  void faults;
-  void options;
-  throw new Error('outputCurve: not implemented yet');
+function assertNever(x: never): never {
+  throw new Error(`Unknown conductor: ${String(x)}`);
 }
 
 /** The clamp's reading before zeroing (what a clamp-zero event stores). */
 export function rawClampReadingA(state: SimState, controls: Controls): number {
-  void state;
-  void controls;
-  throw new Error('rawClampReadingA: not implemented yet');
+  const conductor = controls.clamp.conductor;
+  // The offset belongs to the clamp as it sits now; a clamp just moved gets its new offset at the next step.
+  const offset = state.clampOffsetA;
+  if (conductor === null) return offset;
+  const i = conductorCurrentTowardBatteryA(state.net, conductor);
+  return offset + (controls.clamp.arrow === 'toward-battery' ? i : -i);
+}
+
+export function readMeters(params: VehicleParams, state: SimState, controls: Controls = state.controls): Readings {
+  const net = state.net;
+  const { red, black } = controls.leads;
+  let voltmeterV: number | null = null;
+  let rippleVac: number | null = null;
+  let rippleHz: number | null = null;
+  const running = state.engineStatus === 'running';
+  if (red !== null && black !== null) {
+    const a = CONNECTION_NODE[red];
+    const b = CONNECTION_NODE[black];
+    voltmeterV = net.nodeV[a] - net.nodeV[b];
+    const transfer = Math.abs(net.rippleOhm[a] - net.rippleOhm[b]);
+    const ac = net.rippleCurrentRmsA * transfer;
+    rippleVac = ac + (running && a !== b ? RUNNING_NOISE_FLOOR_VAC : 0);
+    const electricalHz = (params.alternator.polePairs * state.altRpm) / 60;
+    rippleHz = ac > 1e-4 && electricalHz > 0 ? net.rippleHarmonic * electricalHz : null;
+  }
+  const clampA = controls.clamp.conductor === null ? null : rawClampReadingA(state, controls) - controls.clampZeroA;
+  const ammeterA = controls.ammeterInSeries ? (state.ammeterFuseBlown ? 0 : net.branchA.negCable) : null;
+  return {
+    voltmeterV,
+    rippleVac,
+    rippleHz,
+    clampA,
+    tachRpm: Math.round(state.engineRpm),
+    ammeterA,
+    pileA: net.branchA.pile,
+    engine: state.engineStatus,
+    fusibleLinkOpen: state.fusibleLinkBlown || applyTimeLinkOpen(params, state),
+    pileTempC: state.pileTempC,
+    pileOverheated: state.pileTripped,
+    pileHot: state.pileTempC >= params.pile.warnC,
+    chargeWarning: state.chargeWarning,
+    batterySoc01: state.batterySoc01,
+    simTimeS: state.timeMs / 1000,
+  };
+}
+
+function applyTimeLinkOpen(params: VehicleParams, state: SimState): boolean {
+  return effectiveModel(params, state.controls.faults, state.timeMs / 1000).p.wiring.fusibleLinkOpen;
+}
+
+/** The electrical operating point of the bridge in a state (shared with the rectifier circuit). */
+export function bridgeOperatingInputs(params: VehicleParams, state: SimState) {
+  const m = effectiveModel(params, state.controls.faults, state.timeMs / 1000);
+  const a = m.p.alternator;
+  const omegaE = (2 * Math.PI * a.polePairs * state.altRpm) / 60;
+  const emfPeakV = m.emfConstantVsPerRad * omegaE * relativeFlux(m, state.fieldCurrentA);
+  const net = state.net;
+  const dcResistanceOhm = net.rippleOhm.bplus - net.rippleOhm.altCase;
+  const portV = net.nodeV.bplus - net.nodeV.altCase;
+  return {
+    model: m,
+    omegaE,
+    electricalHz: omegaE / (2 * Math.PI),
+    emfPeakV,
+    statorResistanceOhm: copperAt(a.statorResistanceOhmAt20C, state.alternatorTempC),
+    dcResistanceOhm,
+    dcTheveninV: portV - dcResistanceOhm * net.bridgeCurrentA,
+  };
+}
+
+/**
+ * A scope-like trace: the AC part of the voltage between the leads over
+ * three electrical cycles, from one periodic solution of the bridge at the
+ * present operating point. Null when the leads are not both on or the
+ * alternator is not turning.
+ */
+export function rippleTrace(params: VehicleParams, state: SimState, samples: number): RippleTrace | null {
+  const { red, black } = state.controls.leads;
+  if (red === null || black === null) return null;
+  const op = bridgeOperatingInputs(params, state);
+  if (!(op.electricalHz > 1) || !(op.emfPeakV > 0)) return null;
+  const a = op.model.p.alternator;
+  const cycles = 3;
+  const perCycle = Math.max(24, Math.ceil(samples / cycles));
+  const transfer = state.net.rippleOhm[CONNECTION_NODE[red]] - state.net.rippleOhm[CONNECTION_NODE[black]];
+  const diode = { saturationCurrentA: a.diodeSaturationCurrentA, emissionCoefficient: a.diodeEmissionCoefficient };
+  const res = periodicBridge({
+    topology: op.model.topology,
+    emfPeakV: op.emfPeakV,
+    omegaRadS: op.omegaE,
+    inductanceH: a.synchronousInductanceH,
+    phaseResistanceOhm: op.statorResistanceOhm + a.diodeSeriesResistanceOhm,
+    diodeDropV: diodeDropV(diode, state.net.bridgeCurrentA),
+    dcTheveninV: op.dcTheveninV,
+    dcResistanceOhm: op.dcResistanceOhm,
+    stepsPerCycle: perCycle,
+  });
+  const acV: number[] = [];
+  for (let c = 0; c < cycles; c++) {
+    for (let s = 0; s < perCycle; s++) acV.push((res.waveformA[s]! - res.meanA) * transfer);
+  }
+  return { sampleIntervalS: 1 / op.electricalHz / perCycle, acV, electricalHz: op.electricalHz };
+}
+
+const CURVE_MAX_ALT_RPM = 12000;
+const CURVE_STEP_ALT_RPM = 100;
+const CURVE_TEST_V = 13.5;
+
+/**
+ * The output available at 13.5 V held at the B+ stud against alternator
+ * speed, full field, net of the field's own supply: what an output-curve
+ * test stand measures. Faults apply in full (onsets and intermittency aside).
+ */
+export function outputCurve(params: VehicleParams, faults: readonly Fault[], options: { hot: boolean }): OutputCurvePoint[] {
+  const steady = faults.map((f) => ({ ...f, onsetS: 0, intermittent: null }));
+  const m = effectiveModel(params, steady, 0);
+  const a = m.p.alternator;
+  const tempC = options.hot ? HOT_ALTERNATOR_C : COLD_ALTERNATOR_C;
+  const fieldA = Math.max(0, (CURVE_TEST_V - FIELD_DRIVER_DROP_V) / fieldResistanceOhm(m, tempC));
+  const flux = relativeFlux(m, fieldA);
+  const rPhase = copperAt(a.statorResistanceOhmAt20C, tempC) + a.diodeSeriesResistanceOhm;
+  const diode = { saturationCurrentA: a.diodeSaturationCurrentA, emissionCoefficient: a.diodeEmissionCoefficient };
+  const out: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0 };
+  const points: OutputCurvePoint[] = [];
+  let guess = 0;
+  for (let rpm = 0; rpm <= CURVE_MAX_ALT_RPM; rpm += CURVE_STEP_ALT_RPM) {
+    const omegaE = (2 * Math.PI * a.polePairs * rpm) / 60;
+    bridgeOperatingPoint(
+      {
+        table: m.table,
+        emfPeakV: m.emfConstantVsPerRad * omegaE * flux,
+        reactanceOhm: omegaE * a.synchronousInductanceH,
+        phaseResistanceOhm: rPhase,
+        diode,
+        dcTheveninV: CURVE_TEST_V,
+        dcResistanceOhm: 0,
+        guessA: guess,
+      },
+      out,
+    );
+    guess = out.meanA;
+    points.push({ altRpm: rpm, currentA: Math.max(0, out.meanA - fieldA) });
+  }
+  return points;
 }

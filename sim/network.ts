@@ -15,6 +15,9 @@
  *   starter   positive junction -> engine block (starter motor)
  */
 
+import type { BridgePoint, BridgeTable, DiodeShockley } from './bridge.ts';
+import { bridgeOperatingPoint } from './bridge.ts';
+
 export type NodeName = 'batteryPos' | 'junction' | 'bplus' | 'altCase' | 'engine' | 'chassis' | 'batteryNeg';
 
 export type BranchName =
@@ -73,4 +76,219 @@ export function kclResidualsA(net: NetworkSolution): NodeVoltages {
     r[to] += i;
   }
   return r;
+}
+
+export interface NetworkInput {
+  batteryEmfV: number;
+  batteryR: number;
+  pileG: number;
+  posG: number;
+  bplusG: number;
+  /** Inside the alternator, B+ to case: the regulator's electronics and any leakage. */
+  internalG: number;
+  mountG: number;
+  strapG: number;
+  negG: number;
+  loadG: number;
+  /** Constant-current part of the vehicle loads. */
+  loadI: number;
+  starterG: number;
+  /** Field current drawn from B+ inside the alternator. */
+  fieldSupplyA: number;
+  table: BridgeTable;
+  emfPeakV: number;
+  reactanceOhm: number;
+  phaseResistanceOhm: number;
+  diode: DiodeShockley;
+  guessA: number;
+}
+
+// Unknown nodes, in matrix order; the battery negative post is the reference.
+const N = 6;
+const BP = 0;
+const JN = 1;
+const BPL = 2;
+const AC = 3;
+const EN = 4;
+const CH = 5;
+const CONDUCTANCES = 10;
+
+/**
+ * The linear network's responses for one set of conductances: node voltages
+ * per volt of battery EMF, per ampere of constant-current load, and per
+ * ampere from the bridge (which is also the AC transfer for ripple).
+ * Conductances change only when a control or a fault does, so the step
+ * usually reuses these and solves nothing but the bridge's scalar equation.
+ */
+interface LinearResponses {
+  key: Float64Array;
+  perEmf: Float64Array;
+  perLoadA: Float64Array;
+  perBridgeA: Float64Array;
+  rippleOhm: NodeVoltages;
+}
+
+const mat = new Float64Array(N * N);
+const rhs = new Float64Array(N * 3);
+const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0 };
+const recent: LinearResponses[] = [];
+const RECENT_MAX = 4;
+const keyScratch = new Float64Array(CONDUCTANCES);
+
+function stamp(i: number, j: number, g: number): void {
+  mat[i * N + i] = mat[i * N + i]! + g;
+  mat[j * N + j] = mat[j * N + j]! + g;
+  mat[i * N + j] = mat[i * N + j]! - g;
+  mat[j * N + i] = mat[j * N + i]! - g;
+}
+
+function buildResponses(n: NetworkInput, key: Float64Array): LinearResponses {
+  mat.fill(0);
+  rhs.fill(0);
+  const gb = 1 / n.batteryR;
+  mat[BP * N + BP] = gb + n.pileG;
+  stamp(BP, JN, n.posG);
+  stamp(JN, BPL, n.bplusG);
+  stamp(BPL, AC, n.internalG);
+  stamp(AC, EN, n.mountG);
+  stamp(EN, CH, n.strapG);
+  mat[CH * N + CH] = mat[CH * N + CH]! + n.negG;
+  stamp(JN, CH, n.loadG);
+  stamp(JN, EN, n.starterG);
+  // Three right-hand sides side by side: unit EMF, unit load current, unit bridge current.
+  rhs[BP * 3] = gb;
+  rhs[JN * 3 + 1] = -1;
+  rhs[CH * 3 + 1] = 1;
+  rhs[BPL * 3 + 2] = 1;
+  rhs[AC * 3 + 2] = -1;
+  // Gaussian elimination; the conductance matrix is symmetric positive definite.
+  for (let k = 0; k < N; k++) {
+    const pivot = mat[k * N + k]!;
+    for (let i = k + 1; i < N; i++) {
+      const f = mat[i * N + k]! / pivot;
+      if (f === 0) continue;
+      for (let j = k; j < N; j++) mat[i * N + j] = mat[i * N + j]! - f * mat[k * N + j]!;
+      for (let c = 0; c < 3; c++) rhs[i * 3 + c] = rhs[i * 3 + c]! - f * rhs[k * 3 + c]!;
+    }
+  }
+  for (let k = N - 1; k >= 0; k--) {
+    const d = mat[k * N + k]!;
+    for (let c = 0; c < 3; c++) {
+      let sum = rhs[k * 3 + c]!;
+      for (let j = k + 1; j < N; j++) sum -= mat[k * N + j]! * rhs[j * 3 + c]!;
+      rhs[k * 3 + c] = sum / d;
+    }
+  }
+  const perEmf = new Float64Array(N);
+  const perLoadA = new Float64Array(N);
+  const perBridgeA = new Float64Array(N);
+  for (let k = 0; k < N; k++) {
+    perEmf[k] = rhs[k * 3]!;
+    perLoadA[k] = rhs[k * 3 + 1]!;
+    perBridgeA[k] = rhs[k * 3 + 2]!;
+  }
+  return {
+    key: Float64Array.from(key),
+    perEmf,
+    perLoadA,
+    perBridgeA,
+    rippleOhm: Object.freeze({
+      batteryPos: perBridgeA[BP]!,
+      junction: perBridgeA[JN]!,
+      bplus: perBridgeA[BPL]!,
+      altCase: perBridgeA[AC]!,
+      engine: perBridgeA[EN]!,
+      chassis: perBridgeA[CH]!,
+      batteryNeg: 0,
+    }),
+  };
+}
+
+function responsesFor(n: NetworkInput): LinearResponses {
+  const key = keyScratch;
+  key[0] = n.batteryR;
+  key[1] = n.pileG;
+  key[2] = n.posG;
+  key[3] = n.bplusG;
+  key[4] = n.internalG;
+  key[5] = n.mountG;
+  key[6] = n.strapG;
+  key[7] = n.negG;
+  key[8] = n.loadG;
+  key[9] = n.starterG;
+  for (let r = 0; r < recent.length; r++) {
+    const cand = recent[r]!;
+    let same = true;
+    for (let k = 0; k < CONDUCTANCES; k++) {
+      if (cand.key[k] !== key[k]) {
+        same = false;
+        break;
+      }
+    }
+    if (same) return cand;
+  }
+  const built = buildResponses(n, key);
+  recent.unshift(built);
+  if (recent.length > RECENT_MAX) recent.pop();
+  return built;
+}
+
+/**
+ * Nodal analysis of the car's network. By superposition the node voltages
+ * are v = E_b w_emf + I_load w_load + (I_bridge - I_field) w_bridge; the
+ * bridge sees the Thevenin source that gives, its nonlinear output is solved
+ * against it, and every branch current follows from the node voltages.
+ * Deterministic: the cached responses are exactly what a fresh solve gives.
+ */
+export function solveNetwork(n: NetworkInput): NetworkSolution {
+  const lr = responsesFor(n);
+  const we = lr.perEmf;
+  const wl = lr.perLoadA;
+  const wb = lr.perBridgeA;
+  const e = n.batteryEmfV;
+  const il = n.loadI;
+  const ifs = n.fieldSupplyA;
+  const v0Port = e * (we[BPL]! - we[AC]!) + il * (wl[BPL]! - wl[AC]!) - ifs * (wb[BPL]! - wb[AC]!);
+  bridgeOperatingPoint(
+    {
+      table: n.table,
+      emfPeakV: n.emfPeakV,
+      reactanceOhm: n.reactanceOhm,
+      phaseResistanceOhm: n.phaseResistanceOhm,
+      diode: n.diode,
+      dcTheveninV: v0Port,
+      dcResistanceOhm: wb[BPL]! - wb[AC]!,
+      guessA: n.guessA,
+    },
+    point,
+  );
+  const ib = point.meanA;
+  const src = ib - ifs;
+  const vBp = e * we[BP]! + il * wl[BP]! + src * wb[BP]!;
+  const vJn = e * we[JN]! + il * wl[JN]! + src * wb[JN]!;
+  const vBpl = e * we[BPL]! + il * wl[BPL]! + src * wb[BPL]!;
+  const vAc = e * we[AC]! + il * wl[AC]! + src * wb[AC]!;
+  const vEn = e * we[EN]! + il * wl[EN]! + src * wb[EN]!;
+  const vCh = e * we[CH]! + il * wl[CH]! + src * wb[CH]!;
+  const gb = 1 / n.batteryR;
+  return {
+    nodeV: { batteryPos: vBp, junction: vJn, bplus: vBpl, altCase: vAc, engine: vEn, chassis: vCh, batteryNeg: 0 },
+    branchA: {
+      battery: (e - vBp) * gb,
+      pile: n.pileG * vBp,
+      posCable: n.posG * (vBp - vJn),
+      bplusCable: n.bplusG * (vBpl - vJn),
+      alternator: ib - ifs - n.internalG * (vBpl - vAc),
+      mount: n.mountG * (vEn - vAc),
+      strap: n.strapG * (vCh - vEn),
+      negCable: n.negG * vCh,
+      loads: n.loadG * (vJn - vCh) + il,
+      starter: n.starterG * (vJn - vEn),
+    },
+    rippleOhm: lr.rippleOhm,
+    bridgeCurrentA: ib,
+    fieldSupplyA: ifs,
+    rippleCurrentRmsA: point.acRmsA,
+    rippleHarmonic: point.dominantHarmonic,
+  };
 }

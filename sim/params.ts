@@ -126,7 +126,7 @@ export interface WiringParams {
   connectionResistanceOhm: number;
   /** Extra resistance in the B+ circuit (corroded terminal, damaged cable). */
   bplusExtraOhm: number;
-  /** Extra resistance in the ground path from the alternator case to the battery negative. */
+  /** Extra resistance between the alternator case and the engine block (corroded mounting or case ground). */
   groundExtraOhm: number;
   /** Battery post to cable clamp, positive and negative. */
   postClampPosOhm: number;
@@ -199,13 +199,13 @@ export function defaultVehicleParams(): VehicleParams {
       ratedCurrentA: 150,
       ratedAltRpm: 6000,
       polePairs: 6,
-      cutInAltRpm: 1000,
+      cutInAltRpm: 865,
       statorResistanceOhmAt20C: 0.022,
-      synchronousInductanceH: 90e-6,
+      synchronousInductanceH: 88e-6,
       fieldResistanceOhmAt20C: 2.7,
       fieldInductanceH: 0.22,
       brushResistanceOhm: 0.1,
-      fieldKneeCurrentA: 3.2,
+      fieldKneeCurrentA: 4.0,
       diodeSaturationCurrentA: 1e-7,
       diodeEmissionCoefficient: 1.6,
       diodeSeriesResistanceOhm: 0.0015,
@@ -231,7 +231,7 @@ export function defaultVehicleParams(): VehicleParams {
       ageYears: 1,
       initialSoc01: 0.9,
       tempC: 25,
-      internalResistanceOhmAt25C: 0.0042,
+      internalResistanceOhmAt25C: 0.0035,
       initialSurfaceChargeV: 0,
       surfaceChargeTimeConstantS: 20,
     },
@@ -240,8 +240,8 @@ export function defaultVehicleParams(): VehicleParams {
       bplusCableLengthM: 1.0,
       fusibleLinkAwg: 8,
       fusibleLinkLengthM: 0.15,
-      fusibleLinkRatingA: 150,
-      fusibleLinkI2tA2s: 337_500,
+      fusibleLinkRatingA: 140,
+      fusibleLinkI2tA2s: 392_000,
       fusibleLinkOpen: false,
       batteryPosCableAwg: 2,
       batteryPosCableLengthM: 0.6,
@@ -274,7 +274,7 @@ export function defaultVehicleParams(): VehicleParams {
     },
     pile: {
       maxCurrentAAt12V: 800,
-      heatCapacityJPerC: 500,
+      heatCapacityJPerC: 800,
       coolingWPerC: 5,
       tripC: 400,
       resetC: 150,

@@ -2,20 +2,27 @@
  * Replay: an attempt is (params, seed, ordered input events). Running it from
  * the start always gives the same states; snapshots taken every few seconds
  * of sim time let any moment be reached by stepping at most one snapshot
- * interval. The client's animation loop steps through the same functions.
+ * interval. The client's animation loop uses the same `advance`: it keeps its
+ * own time accumulator and asks for a whole number of steps per frame.
  *
  * Event timing: an event applies before the first step whose start time is
  * >= its atMs; events with equal atMs apply in log order. Scenario faults
  * are `fault-inject` events at atMs 0 (their onsetS delays them).
+ *
+ * Units: ms of sim time.
  */
 
 import type { VehicleParams } from './params.ts';
 import type { Controls, InputEvent } from './inputs.ts';
+import { applyInput } from './inputs.ts';
 import type { SimState } from './step.ts';
+import { DT_MS, initialState, step } from './step.ts';
+import { rawClampReadingA } from './instruments.ts';
 
 /** Everything needed to carry on from a moment. */
 export interface ReplayPoint {
   state: SimState;
+  /** Controls after every event applied so far (may be ahead of state.controls until the next step). */
   controls: Controls;
   /** Index of the first event not yet applied. */
   nextEventIndex: number;
@@ -28,20 +35,54 @@ export interface AttemptRun {
 }
 
 export function startPoint(params: VehicleParams, seed: number): ReplayPoint {
-  void params;
-  void seed;
-  throw new Error('startPoint: not implemented yet');
+  const state = initialState(params, seed);
+  return { state, controls: state.controls, nextEventIndex: 0 };
 }
 
-/** Apply due events and step `steps` times. Pure. */
-export function advance(params: VehicleParams, point: ReplayPoint, events: readonly InputEvent[], steps: number): ReplayPoint {
-  void params;
-  void point;
-  void events;
-  void steps;
-  throw new Error('advance: not implemented yet');
+/** Events in time order; a stable sort keeps the order of equal times. */
+export function orderEvents(events: readonly InputEvent[]): readonly InputEvent[] {
+  for (let i = 1; i < events.length; i++) {
+    if (events[i]!.atMs < events[i - 1]!.atMs) {
+      return events.map((e, k) => ({ e, k })).sort((a, b) => a.e.atMs - b.e.atMs || a.k - b.k).map((x) => x.e);
+    }
+  }
+  return events;
 }
 
+/**
+ * Apply due events and step `steps` times (events must be in time order; the
+ * client appends live events with atMs = the current sim time). Pure.
+ */
+export function advance(
+  params: VehicleParams,
+  point: ReplayPoint,
+  events: readonly InputEvent[],
+  steps: number,
+): ReplayPoint {
+  if (steps <= 0) return point;
+  let state = point.state;
+  let controls = point.controls;
+  let next = point.nextEventIndex;
+  for (let i = 0; i < steps; i++) {
+    while (next < events.length && events[next]!.atMs <= state.timeMs) {
+      const ev = events[next]!;
+      controls = applyInput(controls, ev, ev.kind === 'clamp-zero' ? rawClampReadingA(state, controls) : 0);
+      next++;
+    }
+    state = step(params, state, controls, DT_MS);
+  }
+  return { state, controls, nextEventIndex: next };
+}
+
+/** Steps needed to reach `atMs` from `fromMs` (the state at a moment is the last step boundary at or before it). */
+function stepsBetween(fromMs: number, atMs: number): number {
+  return Math.max(0, Math.floor(atMs / DT_MS) - Math.floor(fromMs / DT_MS));
+}
+
+/**
+ * Run an attempt from the start to `untilMs`, keeping a snapshot every
+ * `snapshotEveryMs` (rounded to whole steps) for later seeks.
+ */
 export function runAttempt(
   params: VehicleParams,
   seed: number,
@@ -49,14 +90,25 @@ export function runAttempt(
   untilMs: number,
   options: { snapshotEveryMs: number },
 ): AttemptRun {
-  void params;
-  void seed;
-  void events;
-  void untilMs;
-  void options;
-  throw new Error('runAttempt: not implemented yet');
+  const ordered = orderEvents(events);
+  const every = Math.max(1, Math.round(options.snapshotEveryMs / DT_MS));
+  const total = stepsBetween(0, untilMs);
+  let point = startPoint(params, seed);
+  const snapshots: ReplayPoint[] = [point];
+  for (let done = 0; done < total; ) {
+    const n = Math.min(every, total - done);
+    point = advance(params, point, ordered, n);
+    done += n;
+    if (n === every && done < total) snapshots.push(point);
+  }
+  return { final: point, snapshots };
 }
 
+/**
+ * The moment at `atMs` (the step boundary at or before it), reached from the
+ * latest snapshot not after it, or from the start without snapshots. The
+ * snapshots must come from a run of the same params, seed and events.
+ */
 export function stateAt(
   params: VehicleParams,
   seed: number,
@@ -64,10 +116,39 @@ export function stateAt(
   atMs: number,
   snapshots?: readonly ReplayPoint[],
 ): ReplayPoint {
-  void params;
-  void seed;
-  void events;
-  void atMs;
-  void snapshots;
-  throw new Error('stateAt: not implemented yet');
+  const ordered = orderEvents(events);
+  let from: ReplayPoint | null = null;
+  if (snapshots) {
+    // Binary search for the last snapshot at or before atMs.
+    let lo = 0;
+    let hi = snapshots.length - 1;
+    while (lo <= hi) {
+      const mid = (lo + hi) >> 1;
+      if (snapshots[mid]!.state.timeMs <= atMs) {
+        from = snapshots[mid]!;
+        lo = mid + 1;
+      } else hi = mid - 1;
+    }
+  }
+  from ??= startPoint(params, seed);
+  return advance(params, from, ordered, stepsBetween(from.state.timeMs, atMs));
+}
+
+/**
+ * For an animation loop: step `steps` times and call `onStep` after each step
+ * (e.g. to collect readings for a chart). Returns the last point.
+ */
+export function advanceWithCallback(
+  params: VehicleParams,
+  point: ReplayPoint,
+  events: readonly InputEvent[],
+  steps: number,
+  onStep: (point: ReplayPoint) => void,
+): ReplayPoint {
+  let p = point;
+  for (let i = 0; i < steps; i++) {
+    p = advance(params, p, events, 1);
+    onStep(p);
+  }
+  return p;
 }

@@ -5,12 +5,39 @@
  * a seeded generator lives in the state, so the same params, seed and
  * controls give the same states bit for bit.
  *
+ * Order within a step: slow states (engine speed, belt, field current,
+ * temperatures, battery charge and surface charge) advance from the last
+ * solution; then the DC network is solved at the new operating point, with
+ * the alternator as a nonlinear source, so KCL holds at every node of the
+ * solution the step returns.
+ *
  * Units are in the names: ms and s, rpm, V, A, C (degrees Celsius), Nm.
  */
 
 import type { VehicleParams } from './params.ts';
 import type { Controls, Conductor, KeyPosition } from './inputs.ts';
-import type { NetworkSolution } from './network.ts';
+import { initialControls } from './inputs.ts';
+import type { NetworkInput, NetworkSolution } from './network.ts';
+import { solveNetwork } from './network.ts';
+import type { Model } from './model.ts';
+import {
+  ALTERNATOR_INERTIA_KGM2,
+  AMMETER_FUSE_A,
+  FIELD_DRIVER_DROP_V,
+  FIELD_FREEWHEEL_V,
+  effectiveModel,
+  REGULATOR_SELF_CONDUCTANCE_S,
+  copperAt,
+  fieldResistanceOhm,
+} from './model.ts';
+import {
+  CHARGE_EFFICIENCY,
+  internalResistanceOhm,
+  openCircuitVoltageV,
+  polarizationResistanceOhm,
+  polarizationTimeConstantS,
+} from './battery.ts';
+import { nextRngState, rngValue } from './rng.ts';
 
 /** The fixed step. Replays always use it; changing it changes every stored replay. */
 export const DT_MS = 10;
@@ -22,6 +49,8 @@ export interface SimState {
   timeMs: number;
   /** State of the seeded generator (uint32). */
   rngState: number;
+  /** The controls in force during the last step (the instruments read leads and clamp here). */
+  controls: Controls;
 
   engineStatus: EngineStatus;
   engineRpm: number;
@@ -40,6 +69,12 @@ export interface SimState {
 
   fieldCurrentA: number;
   fieldDuty01: number;
+  /** Integral part of the regulator's duty. */
+  regulatorIntegral01: number;
+  /** Set point the regulator aims at now (temperature compensated). */
+  regulatorSetPointV: number;
+  /** What the regulator reads at its sense point. */
+  regulatorSenseV: number;
 
   batterySoc01: number;
   /** Surface (polarisation) charge: positive after charging, negative after a heavy discharge. */
@@ -53,6 +88,7 @@ export interface SimState {
   pileTripped: boolean;
 
   /** The 10 A fuse of the series ammeter. */
+  ammeterFuseHeat01: number;
   ammeterFuseBlown: boolean;
   lastAmmeterInSeries: boolean;
 
@@ -72,16 +108,424 @@ export interface SimState {
 
 export type { Controls };
 
+/** Voltage at which loads given in amperes draw their rating. */
+const LOAD_RATING_V = 12.6;
+const ENGINE_DIES_BELOW_V = 6;
+const REGULATOR_KP_PER_V = 1;
+const REGULATOR_KI_PER_VS = 12;
+/** Sense-point sensitivity at which the gains above apply in full. */
+const REGULATOR_REFERENCE_OHM = 0.004;
+/** Below this the regulator sees no phase signal and only pre-excites. */
+const REGULATION_MIN_ALT_RPM = 300;
+const ALT_FRICTION_NM = 0.15;
+
+function clamp(x: number, lo: number, hi: number): number {
+  return x < lo ? lo : x > hi ? hi : x;
+}
+
+function underhoodC(p: VehicleParams): number {
+  return p.ambientC + 0.4 * (p.engineTempC - p.ambientC);
+}
+
+/** Regulator set point at its temperature. */
+export function regulatorSetPointV(p: VehicleParams, regulatorTempC: number): number {
+  return p.regulator.setPointVAt25C + p.regulator.tempCoeffVPerC * (regulatorTempC - 25);
+}
+
+interface NetworkInputs {
+  model: Model;
+  controls: Controls;
+  engineStatus: EngineStatus;
+  altRpm: number;
+  alternatorTempC: number;
+  fieldCurrentA: number;
+  fieldDuty01: number;
+  soc01: number;
+  polarizationV: number;
+  linkOpen: boolean;
+  pileOn: boolean;
+  ammeterFuseBlown: boolean;
+  modulesAwake: boolean;
+  guessBridgeA: number;
+}
+
+// Reused for every solve (the network copies what it keeps); never escapes this module.
+const networkInput: NetworkInput = {
+  batteryEmfV: 0,
+  batteryR: 1,
+  pileG: 0,
+  posG: 0,
+  bplusG: 0,
+  internalG: 0,
+  mountG: 0,
+  strapG: 0,
+  negG: 0,
+  loadG: 0,
+  loadI: 0,
+  starterG: 0,
+  fieldSupplyA: 0,
+  table: null as unknown as NetworkInput['table'],
+  emfPeakV: 0,
+  reactanceOhm: 1,
+  phaseResistanceOhm: 0,
+  diode: { saturationCurrentA: 1e-7, emissionCoefficient: 1.6 },
+  guessA: 0,
+};
+
+function solveAt(n: NetworkInputs): NetworkSolution {
+  const m = n.model;
+  const p = m.p;
+  const c = n.controls;
+  const keyOn = c.key !== 'off';
+  // Loads between the junction and the body, all as conductances: a load
+  // given in amperes draws that current at 12.6 V (so an open return path
+  // carries nothing, as in the car).
+  let loadG = 1e-6;
+  let ratedA = 0;
+  if (keyOn) {
+    ratedA += p.loads.baseElectronicsA;
+    for (const id of c.accessoriesOn) {
+      loadG += m.accessoryG.get(id) ?? 0;
+      ratedA += m.accessoryI.get(id) ?? 0;
+    }
+  } else {
+    ratedA += n.modulesAwake ? p.loads.keyOffAwakeA : p.loads.keyOffSleepA;
+  }
+  ratedA += p.loads.stuckDrawA;
+  loadG += ratedA / LOAD_RATING_V;
+  const loadI = 0;
+
+  // Resistance follows charge in steps of 0.1 % so the network's responses can be reused.
+  const r0 = internalResistanceOhm(p.battery, Math.round(n.soc01 * 1000) / 1000);
+  const emf = openCircuitVoltageV(n.soc01, p.battery.tempC) + n.polarizationV;
+  const negR = m.rNegOhm + (c.ammeterInSeries ? 0.02 : 0);
+  const cranking = c.key === 'start' && (n.engineStatus === 'cranking' || n.engineStatus === 'stalled');
+
+  const omegaE = (2 * Math.PI * p.alternator.polePairs * n.altRpm) / 60;
+  const flux = Math.tanh((n.fieldCurrentA > 0 ? n.fieldCurrentA : 0) / m.fieldKneeA) / m.tanhReference;
+
+  const a = p.alternator;
+  const ni = networkInput;
+  ni.batteryEmfV = emf;
+  ni.batteryR = r0;
+  ni.pileG = n.pileOn ? m.gPileMaxS * c.pileDial01 * c.pileDial01 : 0;
+  ni.posG = 1 / m.rPosOhm;
+  ni.bplusG = n.linkOpen || !c.bplusConnected ? 0 : 1 / m.rBplusOhm;
+  ni.internalG = REGULATOR_SELF_CONDUCTANCE_S + m.leakageG;
+  ni.mountG = 1 / m.rMountOhm;
+  ni.strapG = 1 / m.rStrapOhm;
+  ni.negG = c.ammeterInSeries && n.ammeterFuseBlown ? 0 : 1 / negR;
+  ni.loadG = loadG;
+  ni.loadI = loadI;
+  ni.starterG = cranking ? m.starterG : 0;
+  ni.fieldSupplyA = n.fieldDuty01 * n.fieldCurrentA;
+  ni.table = m.table;
+  ni.emfPeakV = m.emfConstantVsPerRad * omegaE * flux;
+  ni.reactanceOhm = omegaE * a.synchronousInductanceH;
+  ni.phaseResistanceOhm = copperAt(a.statorResistanceOhmAt20C, n.alternatorTempC) + a.diodeSeriesResistanceOhm;
+  ni.diode = m.diode;
+  ni.guessA = n.guessBridgeA;
+  return solveNetwork(ni);
+}
+
+/** Volts at the sense point (against the case) per ampere from the bridge. */
+function senseTransferOhm(p: VehicleParams, net: NetworkSolution): number {
+  const senseOpen = p.wiring.senseLineOhm > 1000;
+  const z = p.regulator.sense === 'battery' && !senseOpen ? net.rippleOhm.batteryPos : net.rippleOhm.bplus;
+  return z - net.rippleOhm.altCase;
+}
+
+/** The regulator's reading of its sense point (relative to its own ground, the case). */
+function senseVoltage(p: VehicleParams, net: NetworkSolution): number {
+  const senseOpen = p.wiring.senseLineOhm > 1000;
+  const point = p.regulator.sense === 'battery' && !senseOpen ? net.nodeV.batteryPos : net.nodeV.bplus;
+  return point - net.nodeV.altCase;
+}
+
 export function initialState(params: VehicleParams, seed: number): SimState {
-  void params;
-  void seed;
-  throw new Error('initialState: not implemented yet');
+  const controls = initialControls();
+  const model = effectiveModel(params, controls.faults, 0);
+  const p = model.p;
+  const rng = nextRngState(seed >>> 0);
+  const net = solveAt({
+    model,
+    controls,
+    engineStatus: 'off',
+    altRpm: 0,
+    alternatorTempC: p.alternator.initialTempC,
+    fieldCurrentA: 0,
+    fieldDuty01: 0,
+    soc01: p.battery.initialSoc01,
+    polarizationV: p.battery.initialSurfaceChargeV,
+    linkOpen: p.wiring.fusibleLinkOpen,
+    pileOn: true,
+    ammeterFuseBlown: false,
+    modulesAwake: false,
+    guessBridgeA: 0,
+  });
+  return {
+    timeMs: 0,
+    rngState: rng,
+    controls,
+    engineStatus: 'off',
+    engineRpm: 0,
+    crankProgress01: 0,
+    engineLowVoltageS: 0,
+    lastKey: 'off',
+    altRpm: 0,
+    beltSlipping: false,
+    altTorqueNm: 0,
+    alternatorTempC: p.alternator.initialTempC,
+    fieldCurrentA: 0,
+    fieldDuty01: 0,
+    regulatorIntegral01: 0,
+    regulatorSetPointV: regulatorSetPointV(p, p.alternator.initialTempC),
+    regulatorSenseV: senseVoltage(p, net),
+    batterySoc01: clamp(p.battery.initialSoc01, 0, 1),
+    batteryPolarizationV: p.battery.initialSurfaceChargeV,
+    fusibleLinkHeat01: 0,
+    fusibleLinkBlown: false,
+    pileTempC: p.ambientC,
+    pileTripped: false,
+    ammeterFuseHeat01: 0,
+    ammeterFuseBlown: false,
+    lastAmmeterInSeries: false,
+    modulesAwakeS: 0,
+    chargeWarning: false,
+    lowChargeS: 0,
+    clampOffsetA: (rngValue(rng) - 0.5) * 4,
+    clampConductorSeen: null,
+    net,
+  };
 }
 
 export function step(params: VehicleParams, state: SimState, controls: Controls, dtMs: number = DT_MS): SimState {
-  void params;
-  void state;
-  void controls;
-  void dtMs;
-  throw new Error('step: not implemented yet');
+  const dt = dtMs / 1000;
+  const timeMs = state.timeMs + dtMs;
+  const model = effectiveModel(params, controls.faults, timeMs / 1000);
+  const p = model.p;
+  const prev = state.net;
+  const key = controls.key;
+  const keyOn = key !== 'off';
+  let rng = state.rngState;
+
+  // ---- Engine ------------------------------------------------------------
+  const starterV = prev.nodeV.junction - prev.nodeV.engine;
+  const supplyV = prev.nodeV.junction - prev.nodeV.chassis;
+  let status = state.engineStatus;
+  let crank = state.crankProgress01;
+  let lowV = state.engineLowVoltageS;
+  if (key === 'off') {
+    status = 'off';
+    crank = 0;
+    lowV = 0;
+  } else if (key === 'start') {
+    if (status === 'off' || (status === 'stalled' && state.lastKey !== 'start')) {
+      status = 'cranking';
+      crank = 0;
+      lowV = 0;
+    } else if (status === 'cranking') {
+      if (starterV >= p.engine.minCrankVoltageV) {
+        crank += dt / p.engine.crankToStartS;
+        lowV = 0;
+      } else {
+        lowV += dt;
+        if (lowV > 0.5) status = 'stalled';
+      }
+      if (crank >= 1) {
+        status = 'running';
+        lowV = 0;
+      }
+    }
+  } else {
+    // Key on: a crank released before the engine fired leaves it stopped.
+    if (status === 'cranking') {
+      status = 'off';
+      crank = 0;
+    }
+  }
+  if (status === 'running') {
+    if (supplyV < ENGINE_DIES_BELOW_V) {
+      lowV += dt;
+      if (lowV > 0.5) status = 'stalled';
+    } else lowV = 0;
+  }
+  let targetRpm = 0;
+  if (status === 'running') targetRpm = clamp(Math.max(p.engine.idleRpm, controls.heldRpm), p.engine.idleRpm, p.engine.maxHeldRpm);
+  else if (status === 'cranking') targetRpm = clamp((p.engine.crankRpm * starterV) / 10, 0, 1.5 * p.engine.crankRpm);
+  const lag = 1 - Math.exp(-dt / p.engine.lagTimeConstantS);
+  let engineRpm = state.engineRpm + (targetRpm - state.engineRpm) * lag;
+  if (status === 'running') {
+    rng = nextRngState(rng);
+    // Combustion makes the speed flicker by a few rpm.
+    engineRpm += (rngValue(rng) - 0.5) * 6;
+  }
+  if (engineRpm < 0.5 && targetRpm === 0) engineRpm = 0;
+
+  // ---- Belt and alternator speed -------------------------------------------
+  const syncRpm = engineRpm * p.belt.pulleyRatio;
+  let altRpm: number;
+  let slipping = state.beltSlipping;
+  const torque = state.altTorqueNm;
+  if (!slipping && torque > p.belt.gripNm) slipping = true;
+  if (slipping) {
+    const toRadS = (2 * Math.PI) / 60;
+    const drive = syncRpm >= state.altRpm ? p.belt.gripNm : -p.belt.gripNm;
+    const accel = (drive - torque) / ALTERNATOR_INERTIA_KGM2;
+    altRpm = state.altRpm + (accel * dt) / toRadS;
+    if (altRpm < 0) altRpm = 0;
+    const crossed = (state.altRpm - syncRpm) * (altRpm - syncRpm) <= 0;
+    if (crossed && torque <= p.belt.gripNm) {
+      altRpm = syncRpm;
+      slipping = false;
+    }
+  } else altRpm = syncRpm;
+
+  // ---- Regulator and field ---------------------------------------------------
+  const regTempC = state.alternatorTempC;
+  const setPointV = regulatorSetPointV(p, regTempC);
+  const senseV = state.regulatorSenseV;
+  let integral = state.regulatorIntegral01;
+  let duty: number;
+  if (!keyOn) {
+    duty = 0;
+    integral = 0;
+  } else if (altRpm < REGULATION_MIN_ALT_RPM) {
+    duty = p.regulator.preExcitationDuty01;
+    integral = duty;
+  } else {
+    // The averaged switching regulator as a PI controller. Its loop gain grows
+    // with how hard the sense point moves per ampere of output, so the gains
+    // are scaled by that (known from the last solution) to keep it stable with
+    // a stiff battery, a resistive cable or an open B+ alike.
+    const err = setPointV - senseV;
+    const sensitivityOhm = Math.max(1e-3, senseTransferOhm(p, prev));
+    const scale = Math.min(1, REGULATOR_REFERENCE_OHM / sensitivityOhm);
+    integral = clamp(integral + REGULATOR_KI_PER_VS * scale * err * dt, 0, 1);
+    duty = clamp(integral + REGULATOR_KP_PER_V * scale * err, 0, 1);
+  }
+  if (keyOn) duty = Math.max(duty, p.regulator.dutyFloor01);
+  const bplusV = prev.nodeV.bplus - prev.nodeV.altCase;
+  const rField = fieldResistanceOhm(model, state.alternatorTempC);
+  const drive = duty * Math.max(0, bplusV - FIELD_DRIVER_DROP_V) - (1 - duty) * (state.fieldCurrentA > 0.01 ? FIELD_FREEWHEEL_V : 0);
+  const fieldTarget = Math.max(0, drive / rField);
+  const fieldDecay = Math.exp((-dt * rField) / p.alternator.fieldInductanceH);
+  const fieldCurrentA = fieldTarget + (state.fieldCurrentA - fieldTarget) * fieldDecay;
+
+  // ---- Temperatures, battery charge, fuses ---------------------------------
+  const bridgeA = prev.bridgeCurrentA;
+  const altHotC = underhoodC(p) + p.alternator.fullLoadTempRiseC * (bridgeA / p.alternator.ratedCurrentA) ** 2;
+  const altTempC = altHotC + (state.alternatorTempC - altHotC) * Math.exp(-dt / p.alternator.thermalTimeConstantS);
+
+  const dischargeA = prev.branchA.battery;
+  const r0 = internalResistanceOhm(p.battery, state.batterySoc01);
+  const rp = polarizationResistanceOhm(p.battery, state.batterySoc01, dischargeA, r0);
+  const tauP = polarizationTimeConstantS(p.battery, dischargeA);
+  const polTarget = -dischargeA * rp;
+  const polarizationV = polTarget + (state.batteryPolarizationV - polTarget) * Math.exp(-dt / tauP);
+  const chargeAs = dischargeA >= 0 ? -dischargeA * dt : -dischargeA * CHARGE_EFFICIENCY * dt;
+  const soc01 = clamp(state.batterySoc01 + chargeAs / model.capacityAs, 0, 1);
+
+  const linkA = prev.branchA.bplusCable;
+  const linkTarget = (linkA / p.wiring.fusibleLinkRatingA) ** 2;
+  const linkHeat = linkTarget + (state.fusibleLinkHeat01 - linkTarget) * Math.exp(-dt / model.linkTimeConstantS);
+  const linkBlown = state.fusibleLinkBlown || linkHeat >= 1;
+
+  const ammeterA = controls.ammeterInSeries ? prev.branchA.negCable : 0;
+  const fuseTarget = (ammeterA / AMMETER_FUSE_A) ** 2;
+  const fuseHeat = fuseTarget + (state.ammeterFuseHeat01 - fuseTarget) * Math.exp(-dt / 2);
+  const fuseBlown = state.ammeterFuseBlown || (controls.ammeterInSeries && fuseHeat >= 1);
+
+  const pileW = prev.nodeV.batteryPos * prev.branchA.pile;
+  const pileTempC =
+    state.pileTempC + (dt * (pileW - p.pile.coolingWPerC * (state.pileTempC - p.ambientC))) / p.pile.heatCapacityJPerC;
+  let pileTripped = state.pileTripped;
+  if (!pileTripped && pileTempC > p.pile.tripC) pileTripped = true;
+  else if (pileTripped && controls.pileDial01 === 0 && pileTempC < p.pile.resetC) pileTripped = false;
+
+  // Modules wake with the key on, or when the battery circuit is broken and remade.
+  let awakeS = state.modulesAwakeS;
+  if (keyOn || controls.ammeterInSeries !== state.lastAmmeterInSeries) awakeS = p.loads.moduleSleepDelayS;
+  else awakeS = Math.max(0, awakeS - dt);
+
+  // ---- The network at the new operating point -------------------------------
+  const net = solveAt({
+    model,
+    controls,
+    engineStatus: status,
+    altRpm,
+    alternatorTempC: altTempC,
+    fieldCurrentA,
+    fieldDuty01: duty,
+    soc01,
+    polarizationV,
+    linkOpen: linkBlown || p.wiring.fusibleLinkOpen,
+    pileOn: !pileTripped,
+    ammeterFuseBlown: fuseBlown,
+    modulesAwake: awakeS > 0,
+    guessBridgeA: prev.bridgeCurrentA,
+  });
+
+  // Torque the alternator asks of the belt.
+  const omegaAlt = (2 * Math.PI * altRpm) / 60;
+  const portV = net.nodeV.bplus - net.nodeV.altCase;
+  const altTorqueNm =
+    omegaAlt > 1 ? (Math.max(0, portV * net.bridgeCurrentA) / p.alternator.efficiency01) / omegaAlt + ALT_FRICTION_NM : 0;
+
+  // ---- Warning lamp ---------------------------------------------------------
+  const newSenseV = senseVoltage(p, net);
+  let lowChargeS = state.lowChargeS;
+  let lamp = false;
+  if (keyOn) {
+    if (status !== 'running') {
+      lamp = true;
+      lowChargeS = 0;
+    } else {
+      const cannotHold = (newSenseV < setPointV - 0.5 && duty >= 0.99) || newSenseV > 16 || portV < newSenseV - 1.5;
+      lowChargeS = cannotHold ? Math.min(5, lowChargeS + dt) : Math.max(0, lowChargeS - 4 * dt);
+      lamp = lowChargeS > 2;
+    }
+  } else lowChargeS = 0;
+
+  // ---- Clamp offset: moving the clamp disturbs its hall sensor ---------------
+  let clampOffsetA = state.clampOffsetA;
+  if (controls.clamp.conductor !== state.clampConductorSeen) {
+    rng = nextRngState(rng);
+    clampOffsetA = (rngValue(rng) - 0.5) * 4;
+  }
+
+  return {
+    timeMs,
+    rngState: rng,
+    controls,
+    engineStatus: status,
+    engineRpm,
+    crankProgress01: crank,
+    engineLowVoltageS: lowV,
+    lastKey: key,
+    altRpm,
+    beltSlipping: slipping,
+    altTorqueNm,
+    alternatorTempC: altTempC,
+    fieldCurrentA,
+    fieldDuty01: duty,
+    regulatorIntegral01: integral,
+    regulatorSetPointV: setPointV,
+    regulatorSenseV: newSenseV,
+    batterySoc01: soc01,
+    batteryPolarizationV: polarizationV,
+    fusibleLinkHeat01: linkBlown ? Math.max(1, linkHeat) : linkHeat,
+    fusibleLinkBlown: linkBlown,
+    pileTempC,
+    pileTripped,
+    ammeterFuseHeat01: fuseHeat,
+    ammeterFuseBlown: fuseBlown,
+    lastAmmeterInSeries: controls.ammeterInSeries,
+    modulesAwakeS: awakeS,
+    chargeWarning: lamp,
+    lowChargeS,
+    clampOffsetA,
+    clampConductorSeen: controls.clamp.conductor,
+    net,
+  };
 }

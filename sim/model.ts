@@ -1,0 +1,149 @@
+/**
+ * Derived constants of one set of effective parameters: cable resistances,
+ * the alternator's EMF constant and field saturation, the bridge
+ * characteristic of its diode topology. Compiled once per parameter set and
+ * per combination of active faults, and cached, so the step does arithmetic
+ * only.
+ *
+ * Units in names: V, A, Ohm, S (siemens), H, s, C, rad/s.
+ */
+
+import type { VehicleParams } from './params.ts';
+import { copperResistanceOhm } from './params.ts';
+import type { Fault } from './faults.ts';
+import { activeFaultMask, applyFaults } from './faults.ts';
+import type { BridgeTable, BridgeTopology } from './bridge.ts';
+import { bridgeTable, diodeDropV } from './bridge.ts';
+import { capacityAs } from './battery.ts';
+
+/** Copper's temperature coefficient of resistance near 20 C. */
+export const COPPER_ALPHA_PER_C = 0.0039;
+/** Voltage lost across the regulator's field driver when on. */
+export const FIELD_DRIVER_DROP_V = 0.3;
+/** Freewheel diode across the field while the driver is off. */
+export const FIELD_FREEWHEEL_V = 0.7;
+/** The regulator's own electronics, B+ to case (about 1 mA). */
+export const REGULATOR_SELF_CONDUCTANCE_S = 1e-4;
+/** Burden of the series ammeter on its 10 A range, with leads. */
+export const AMMETER_RESISTANCE_OHM = 0.02;
+export const AMMETER_FUSE_A = 11;
+/** Alternator rotor and pulley inertia. */
+export const ALTERNATOR_INERTIA_KGM2 = 0.004;
+/** "Hot" and "cold" alternator for the output curve. */
+export const HOT_ALTERNATOR_C = 100;
+export const COLD_ALTERNATOR_C = 25;
+/** Reference field voltage for the EMF constant (see cut-in). */
+const REFERENCE_FIELD_V = 13.5;
+
+export interface Model {
+  p: VehicleParams;
+  topology: BridgeTopology;
+  table: BridgeTable;
+  /** Phase EMF peak per electrical rad/s at reference flux. */
+  emfConstantVsPerRad: number;
+  fieldKneeA: number;
+  tanhReference: number;
+  rPosOhm: number;
+  rBplusOhm: number;
+  rNegOhm: number;
+  rStrapOhm: number;
+  rMountOhm: number;
+  gPileMaxS: number;
+  /** Accessories by id: conductance (S) and constant current (A). */
+  accessoryG: Map<string, number>;
+  accessoryI: Map<string, number>;
+  linkTimeConstantS: number;
+  starterG: number;
+  capacityAs: number;
+  leakageG: number;
+  diode: { saturationCurrentA: number; emissionCoefficient: number };
+}
+
+/** Resistance of a copper winding at a temperature, given its value at 20 C. */
+export function copperAt(rAt20: number, tempC: number): number {
+  return rAt20 * (1 + COPPER_ALPHA_PER_C * (tempC - 20));
+}
+
+export function compile(p: VehicleParams): Model {
+  const a = p.alternator;
+  const w = p.wiring;
+  const topology: BridgeTopology = { openDiodes: a.openDiodes, shortedDiodes: a.shortedDiodes, openPhases: a.openPhases };
+  // Cut-in: the full-field unit (field at 13.5 V, 20 C) just reaches 13.5 V
+  // at B+ with a 1 A load: sqrt(3) E_peak = 13.5 + two diode drops.
+  const cutInOmega = (2 * Math.PI * a.polePairs * a.cutInAltRpm) / 60;
+  const dropAt1A = diodeDropV({ saturationCurrentA: a.diodeSaturationCurrentA, emissionCoefficient: a.diodeEmissionCoefficient }, 1);
+  const emfConstant = (REFERENCE_FIELD_V + 2 * dropAt1A) / (Math.sqrt(3) * cutInOmega);
+  const referenceFieldA = (REFERENCE_FIELD_V - FIELD_DRIVER_DROP_V) / a.fieldResistanceOhmAt20C;
+  const accessoryG = new Map<string, number>();
+  const accessoryI = new Map<string, number>();
+  for (const acc of p.loads.accessories) {
+    if ('resistanceOhm' in acc) accessoryG.set(acc.id, acc.resistanceOhm > 0 ? 1 / acc.resistanceOhm : 0);
+    else accessoryI.set(acc.id, Math.max(0, acc.currentA));
+  }
+  const joint = 2 * w.connectionResistanceOhm;
+  return {
+    p,
+    topology,
+    table: bridgeTable(topology),
+    emfConstantVsPerRad: emfConstant,
+    fieldKneeA: a.fieldKneeCurrentA,
+    tanhReference: Math.tanh(referenceFieldA / a.fieldKneeCurrentA),
+    rPosOhm: w.postClampPosOhm + copperResistanceOhm(w.batteryPosCableAwg, w.batteryPosCableLengthM) + joint,
+    rBplusOhm:
+      copperResistanceOhm(w.bplusCableAwg, w.bplusCableLengthM) +
+      copperResistanceOhm(w.fusibleLinkAwg, w.fusibleLinkLengthM) +
+      w.bplusExtraOhm +
+      joint,
+    rNegOhm: w.postClampNegOhm + copperResistanceOhm(w.batteryNegCableAwg, w.batteryNegCableLengthM) + joint,
+    rStrapOhm: copperResistanceOhm(w.groundStrapAwg, w.groundStrapLengthM) + joint,
+    rMountOhm: joint + w.groundExtraOhm,
+    gPileMaxS: p.pile.maxCurrentAAt12V / 12,
+    accessoryG,
+    accessoryI,
+    linkTimeConstantS: w.fusibleLinkI2tA2s / (w.fusibleLinkRatingA * w.fusibleLinkRatingA),
+    starterG: p.engine.crankCurrentA / 10,
+    capacityAs: capacityAs(p.battery),
+    leakageG: a.keyOffLeakageA / 12.6,
+    diode: { saturationCurrentA: a.diodeSaturationCurrentA, emissionCoefficient: a.diodeEmissionCoefficient },
+  };
+}
+
+/** Flux of the claw-pole rotor relative to reference: saturates above the knee. */
+export function relativeFlux(m: Model, fieldA: number): number {
+  return Math.tanh((fieldA > 0 ? fieldA : 0) / m.fieldKneeA) / m.tanhReference;
+}
+
+/** Field winding plus brushes at a temperature. */
+export function fieldResistanceOhm(m: Model, tempC: number): number {
+  return copperAt(m.p.alternator.fieldResistanceOhmAt20C, tempC) + m.p.alternator.brushResistanceOhm;
+}
+
+interface CacheEntry {
+  faults: readonly Fault[];
+  mask: number;
+  model: Model;
+}
+
+const cache = new WeakMap<VehicleParams, CacheEntry[]>();
+const CACHE_PER_PARAMS = 8;
+
+/**
+ * The compiled model of `params` with the faults active at `timeS`. Reuses
+ * the compiled model while the same fault list has the same active set.
+ */
+export function effectiveModel(params: VehicleParams, faults: readonly Fault[], timeS: number): Model {
+  if (faults.length > 30) return compile(applyFaults(params, faults, timeS));
+  const mask = activeFaultMask(faults, timeS);
+  let entries = cache.get(params);
+  if (!entries) {
+    entries = [];
+    cache.set(params, entries);
+  }
+  for (const e of entries) {
+    if (e.faults === faults && e.mask === mask) return e.model;
+  }
+  const model = compile(mask === 0 ? params : applyFaults(params, faults, timeS));
+  entries.unshift({ faults, mask, model });
+  if (entries.length > CACHE_PER_PARAMS) entries.pop();
+  return model;
+}
