@@ -14,6 +14,7 @@ import { ErrorState, PageHeader, Panel, Spinner } from '../../../components/ui/s
 import { useSubmitAttempt } from '../api/submit-attempt.ts';
 import { BenchEngineContext } from '../hooks/use-bench.ts';
 import { useBenchSession, useOutboxView, type BenchSession } from '../hooks/use-bench-session.ts';
+import { useLiveInjections } from '../hooks/use-live-injections.ts';
 import { useLocalReadings } from '../hooks/use-local-readings.ts';
 import { AttemptResultView } from './attempt-result.tsx';
 import { BenchSchematic } from './bench-schematic.tsx';
@@ -192,6 +193,7 @@ export function BenchScreen({ boot }: { boot: AttemptBootstrap }) {
   const [result, setResult] = useState<AttemptResult | null>(boot.result);
   const submitted = boot.attempt.status === 'submitted' || result !== null;
   const { session, error } = useBenchSession(boot, !submitted);
+  useLiveInjections(boot.attempt.id, session?.engine ?? null, boot.benchKey);
   if (submitted && result) return <SubmittedView boot={boot} result={result} />;
   if (submitted) return <PageHeader title={boot.scenario.title} description="This attempt was submitted." />;
   if (error) return <ErrorState error={error} />;
