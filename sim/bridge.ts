@@ -609,3 +609,20 @@ export function bridgeOperatingPoint(inp: BridgePointInput, out: BridgePoint): B
   out.dcV = vth + rth * i;
   return out;
 }
+
+/** The topologies the fault catalog produces (diode 0 open or shorted, phase A open) and the healthy one. */
+export const CATALOG_TOPOLOGIES: readonly BridgeTopology[] = [
+  { openDiodes: [], shortedDiodes: [], openPhases: [] },
+  { openDiodes: [0], shortedDiodes: [], openPhases: [] },
+  { openDiodes: [], shortedDiodes: [0], openPhases: [] },
+  { openDiodes: [], shortedDiodes: [], openPhases: [0] },
+];
+
+/**
+ * Build the cached characteristics ahead of need (each takes a few hundred
+ * milliseconds once per process): call it while the bench loads or the server
+ * boots so that a live fault injection does not stall a frame.
+ */
+export function prepareBridgeTables(topologies: readonly BridgeTopology[] = CATALOG_TOPOLOGIES): void {
+  for (const t of topologies) bridgeTable(t);
+}
