@@ -7,11 +7,16 @@
  * student, which is why grading re-runs the model on the server
  * (docs/decisions/001-sealed-faults.md).
  *
+ * A scenario whose parameters themselves carry a fault (an author may set
+ * open diodes directly) also sends those parameters sealed; the bench then
+ * runs on `unsealVehicle` instead of the healthy set.
+ *
  * Sealed text: base64url of a 12-byte IV followed by the ciphertext and tag.
  */
 import { z } from 'zod';
 import type { Fault } from '../sim/faults.ts';
-import { faultSchema } from './api/attempts.ts';
+import type { VehicleParams } from '../sim/params.ts';
+import { faultSchema, vehicleParamsSchema } from './scenario.ts';
 
 const IV_BYTES = 12;
 const KEY_BYTES = 32;
@@ -58,10 +63,10 @@ async function aesKey(benchKey: string, usage: 'encrypt' | 'decrypt'): Promise<C
   return subtle().importKey('raw', raw, { name: 'AES-GCM' }, false, [usage]);
 }
 
-export async function sealFaults(faults: readonly Fault[], benchKey: string): Promise<string> {
+async function sealJson(value: unknown, benchKey: string): Promise<string> {
   const key = await aesKey(benchKey, 'encrypt');
   const iv = globalThis.crypto.getRandomValues(new Uint8Array(IV_BYTES));
-  const plain = new TextEncoder().encode(JSON.stringify(faults));
+  const plain = new TextEncoder().encode(JSON.stringify(value));
   const sealed = new Uint8Array(await subtle().encrypt({ name: 'AES-GCM', iv }, key, plain));
   const out = new Uint8Array(IV_BYTES + sealed.length);
   out.set(iv, 0);
@@ -69,24 +74,72 @@ export async function sealFaults(faults: readonly Fault[], benchKey: string): Pr
   return toBase64Url(out);
 }
 
-/** Opens sealed faults; throws SealError on a wrong key, tampered text or content that is not a fault list. */
-export async function unsealFaults(sealed: string, benchKey: string): Promise<Fault[]> {
+async function unsealJson(sealed: string, benchKey: string): Promise<unknown> {
   const bytes = fromBase64Url(sealed);
-  if (bytes.length < IV_BYTES + 16) throw new SealError('sealed faults are too short');
+  if (bytes.length < IV_BYTES + 16) throw new SealError('the sealed text is too short');
   const key = await aesKey(benchKey, 'decrypt');
   let plain: ArrayBuffer;
   try {
     plain = await subtle().decrypt({ name: 'AES-GCM', iv: bytes.slice(0, IV_BYTES) }, key, bytes.slice(IV_BYTES));
   } catch {
-    throw new SealError('the sealed faults do not open with this key');
+    throw new SealError('the sealed text does not open with this key');
   }
-  let json: unknown;
   try {
-    json = JSON.parse(new TextDecoder().decode(plain));
+    return JSON.parse(new TextDecoder().decode(plain));
   } catch {
-    throw new SealError('the sealed faults are not JSON');
+    throw new SealError('the sealed text is not JSON');
   }
-  const parsed = z.array(faultSchema).safeParse(json);
+}
+
+export function sealFaults(faults: readonly Fault[], benchKey: string): Promise<string> {
+  return sealJson(faults, benchKey);
+}
+
+/** Opens sealed faults; throws SealError on a wrong key, tampered text or content that is not a fault list. */
+export async function unsealFaults(sealed: string, benchKey: string): Promise<Fault[]> {
+  const parsed = z.array(faultSchema).safeParse(await unsealJson(sealed, benchKey));
   if (!parsed.success) throw new SealError('the sealed content is not a list of faults');
   return parsed.data;
+}
+
+export function sealVehicle(params: VehicleParams, benchKey: string): Promise<string> {
+  return sealJson(params, benchKey);
+}
+
+/** Opens a sealed parameter set (sent when a scenario sets fault-like parameters directly). */
+export async function unsealVehicle(sealed: string, benchKey: string): Promise<VehicleParams> {
+  const parsed = vehicleParamsSchema.safeParse(await unsealJson(sealed, benchKey));
+  if (!parsed.success) throw new SealError('the sealed content is not a vehicle parameter set');
+  return parsed.data;
+}
+
+/**
+ * The parameters a healthy car of this spec has: the fields a fault works
+ * through (failed diodes and phases, leakage, a burnt link, extra
+ * resistances, a stuck draw, a stuck field driver) at their healthy values,
+ * and the author's label replaced. `differs` says whether anything changed,
+ * i.e. whether the real parameters must travel sealed.
+ */
+export function healthyVehicle(params: VehicleParams, label: string): { healthy: VehicleParams; differs: boolean } {
+  const a = params.alternator;
+  const w = params.wiring;
+  const healthy: VehicleParams = {
+    ...params,
+    label,
+    alternator: { ...a, openDiodes: [], shortedDiodes: [], openPhases: [], keyOffLeakageA: 0 },
+    regulator: { ...params.regulator, dutyFloor01: 0 },
+    wiring: { ...w, fusibleLinkOpen: false, bplusExtraOhm: 0, groundExtraOhm: 0 },
+    loads: { ...params.loads, stuckDrawA: 0 },
+  };
+  const differs =
+    a.openDiodes.length > 0 ||
+    a.shortedDiodes.length > 0 ||
+    a.openPhases.length > 0 ||
+    a.keyOffLeakageA !== 0 ||
+    params.regulator.dutyFloor01 !== 0 ||
+    w.fusibleLinkOpen ||
+    w.bplusExtraOhm !== 0 ||
+    w.groundExtraOhm !== 0 ||
+    params.loads.stuckDrawA !== 0;
+  return { healthy, differs };
 }

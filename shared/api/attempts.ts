@@ -4,12 +4,16 @@
  * scenario's faults in readable form (see docs/decisions/001-sealed-faults.md).
  */
 import { z } from 'zod';
-import type { DiagnosticTest, Fault, FaultKind } from '../../sim/faults.ts';
-import { FAULT_KINDS } from '../../sim/faults.ts';
+import type { DiagnosticTest } from '../../sim/faults.ts';
 import type { ClampArrow, Conductor, ConnectionPoint, InputEvent, KeyPosition, LeadColour } from '../../sim/inputs.ts';
 import { CONDUCTORS, CONNECTION_POINTS } from '../../sim/inputs.ts';
 import type { OutputCurvePoint } from '../../sim/instruments.ts';
 import type { VehicleParams } from '../../sim/params.ts';
+import type { DiagnosisChoice, StudentScenarioView } from '../scenario.ts';
+import { DIAGNOSTIC_TESTS, diagnosisChoiceSchema, diagnosticTestSchema, faultSchema } from '../scenario.ts';
+
+// Imported from here by the live-session contract; the list itself lives with the scenario document.
+export { DIAGNOSTIC_TESTS };
 
 /** Longest attempt the server replays: four hours of sim time. */
 export const MAX_ATTEMPT_MS = 4 * 60 * 60 * 1000;
@@ -17,28 +21,6 @@ export const MAX_ATTEMPT_MS = 4 * 60 * 60 * 1000;
 export const MAX_EVENT_RPM = 8000;
 export const MAX_EVENTS_PER_BATCH = 500;
 export const MAX_READINGS = 100;
-
-export const DIAGNOSTIC_TESTS = [
-  'battery-ocv',
-  'battery-load',
-  'regulated-voltage',
-  'output',
-  'voltage-drop-positive',
-  'voltage-drop-ground',
-  'ripple',
-  'key-off-draw',
-  'cranking',
-] as const satisfies readonly DiagnosticTest[];
-// Fails to compile when sim/ adds a test that is missing above.
-const _allTestsListed: Exclude<DiagnosticTest, (typeof DIAGNOSTIC_TESTS)[number]> extends never ? true : never = true;
-void _allTestsListed;
-
-export const diagnosticTestSchema = z.enum(DIAGNOSTIC_TESTS);
-export const faultKindSchema = z.enum(FAULT_KINDS as unknown as [FaultKind, ...FaultKind[]]);
-/** A diagnosis names one fault kind, or says the system is healthy. */
-export const diagnosisKindSchema = z.union([faultKindSchema, z.literal('none')]);
-export type DiagnosisKind = z.infer<typeof diagnosisKindSchema>;
-export const NO_FAULT_LABEL = 'No fault: the system is healthy';
 
 const simTimeMsSchema = z
   .number()
@@ -51,17 +33,6 @@ const idSchema = z
   .min(1, 'must not be empty')
   .max(64, 'must be at most 64 characters')
   .regex(/^[A-Za-z0-9_.:-]+$/, 'may contain letters, digits and _ . : - only');
-
-export const faultSchema = z.object({
-  id: idSchema,
-  kind: faultKindSchema,
-  severity01: z.number().min(0).max(1),
-  onsetS: z.number().min(0).max(MAX_ATTEMPT_MS / 1000),
-  intermittent: z
-    .object({ periodS: z.number().positive().max(3600), onFraction01: z.number().min(0).max(1) })
-    .nullable()
-    .optional(),
-}) satisfies z.ZodType<Fault>;
 
 const keyPositionSchema = z.enum(['off', 'on', 'start'] as const satisfies readonly KeyPosition[]);
 const leadColourSchema = z.enum(['red', 'black'] as const satisfies readonly LeadColour[]);
@@ -159,7 +130,7 @@ export const submitSchema = z
     readings: z.array(recordedReadingSchema).max(MAX_READINGS, `record at most ${MAX_READINGS} readings`),
     diagnosis: z.object({
       verdicts: z.array(verdictSchema).max(DIAGNOSTIC_TESTS.length),
-      faultKind: diagnosisKindSchema,
+      faultKind: diagnosisChoiceSchema,
       notes: z.string().max(2000, 'notes must be at most 2000 characters').default(''),
     }),
   })
@@ -223,8 +194,8 @@ export const attemptResultSchema = z.object({
     z.object({ test: diagnosticTestSchema, given: z.boolean().nullable(), correct: z.boolean(), ok: z.boolean() }),
   ),
   fault: z.object({
-    given: diagnosisKindSchema,
-    actual: z.array(diagnosisKindSchema),
+    given: diagnosisChoiceSchema,
+    actual: z.array(diagnosisChoiceSchema),
     ok: z.boolean(),
     /** Labels of the actual faults (or the healthy label). */
     labels: z.array(z.string()),
@@ -241,29 +212,16 @@ export const attemptResultSchema = z.object({
 });
 export type AttemptResult = z.infer<typeof attemptResultSchema>;
 
-export const passRuleViewSchema = z.object({
-  test: diagnosticTestSchema,
-  /** The rule in words, e.g. "Drop on the positive side at most 0.20 V". */
-  text: z.string(),
-  min: z.number().nullable(),
-  max: z.number().nullable(),
-  unit: z.string(),
-});
-export type PassRuleView = z.infer<typeof passRuleViewSchema>;
-
-/** What a student may see of a scenario before submitting: nothing of its faults. */
-export const studentScenarioViewSchema = z.object({
-  title: z.string(),
-  summary: z.string(),
-  difficulty: z.string(),
-  vehicle: z.object({ name: z.string(), kind: z.string(), engineDescription: z.string() }),
-  testsExpected: z.array(diagnosticTestSchema),
-  passRules: z.array(passRuleViewSchema),
-  diagnosisChoices: z.array(z.object({ value: diagnosisKindSchema, label: z.string() })),
-  hints: z.array(z.string()),
-  objectives: z.array(z.string()),
-});
-export type StudentScenarioView = z.infer<typeof studentScenarioViewSchema>;
+/**
+ * The scenario as the bench shows it before submission: the scenario's
+ * student view (no faults, no tests expected, no raw parameters), with the
+ * diagnosis choices labelled and the whole family of tests to choose from.
+ */
+export interface BenchScenarioView extends Omit<StudentScenarioView, 'diagnosisChoices'> {
+  diagnosisChoices: { value: DiagnosisChoice; label: string }[];
+  tests: { test: DiagnosticTest; label: string }[];
+}
+export const benchScenarioViewSchema = z.custom<BenchScenarioView>((v) => typeof v === 'object' && v !== null);
 
 export const attemptModeSchema = z.enum(['assigned', 'practice']);
 export const attemptStatusSchema = z.enum(['running', 'submitted']);
@@ -281,11 +239,16 @@ export const attemptBootstrapSchema = z.object({
     showCurveAfter: z.boolean(),
     showFeedbackAfter: z.boolean(),
   }),
-  scenario: studentScenarioViewSchema,
+  scenario: benchScenarioViewSchema,
   /** The healthy car; the scenario's faults come sealed. */
   vehicle: z.custom<VehicleParams>((v) => typeof v === 'object' && v !== null),
   /** The faults, AES-256-GCM sealed; open with `unsealFaults(sealedFaults, benchKey)` from shared/sealed-faults.ts. */
   sealedFaults: z.string(),
+  /**
+   * Null unless the scenario sets fault-like parameters directly; then the
+   * car to run is `unsealVehicle(sealedVehicle, benchKey)` rather than `vehicle`.
+   */
+  sealedVehicle: z.string().nullable(),
   benchKey: z.string(),
   /** Everything stored so far, ordered by seq (for resuming after a reload). */
   events: z.array(storedEventSchema),

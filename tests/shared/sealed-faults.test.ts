@@ -1,6 +1,17 @@
 import { describe, expect, it } from 'vitest';
 import type { Fault } from '../../sim/faults.ts';
-import { deriveBenchKey, fromBase64Url, SealError, sealFaults, toBase64Url, unsealFaults } from '../../shared/sealed-faults.ts';
+import { defaultVehicleParams } from '../../sim/params.ts';
+import {
+  deriveBenchKey,
+  fromBase64Url,
+  healthyVehicle,
+  SealError,
+  sealFaults,
+  sealVehicle,
+  toBase64Url,
+  unsealFaults,
+  unsealVehicle,
+} from '../../shared/sealed-faults.ts';
 
 const faults: Fault[] = [
   { id: 'f1', kind: 'diode-open', severity01: 1, onsetS: 0 },
@@ -50,5 +61,30 @@ describe('sealed faults', () => {
   it('seals the same faults differently each time (fresh IV)', async () => {
     const key = await deriveBenchKey('a-secret-of-sixteen-plus', 7);
     expect(await sealFaults(faults, key)).not.toBe(await sealFaults(faults, key));
+  });
+
+  it('gives a healthy parameter set and says when the real one carries a fault', async () => {
+    const clean = defaultVehicleParams();
+    expect(healthyVehicle(clean, 'Car').differs).toBe(false);
+    expect(healthyVehicle(clean, 'Car').healthy).toEqual({ ...clean, label: 'Car' });
+
+    const faulted = defaultVehicleParams();
+    faulted.label = 'Open diode car';
+    faulted.alternator.openDiodes = [2];
+    faulted.wiring.bplusExtraOhm = 0.01;
+    faulted.loads.stuckDrawA = 0.4;
+    const { healthy, differs } = healthyVehicle(faulted, 'Car');
+    expect(differs).toBe(true);
+    expect(healthy.label).toBe('Car');
+    expect(healthy.alternator.openDiodes).toEqual([]);
+    expect(healthy.wiring.bplusExtraOhm).toBe(0);
+    expect(healthy.loads.stuckDrawA).toBe(0);
+    expect(faulted.alternator.openDiodes).toEqual([2]);
+
+    const key = await deriveBenchKey('a-secret-of-sixteen-plus', 3);
+    const sealed = await sealVehicle(faulted, key);
+    expect(sealed).not.toContain('openDiodes');
+    expect(await unsealVehicle(sealed, key)).toEqual(faulted);
+    await expect(unsealFaults(sealed, key)).rejects.toBeInstanceOf(SealError);
   });
 });
