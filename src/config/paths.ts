@@ -14,6 +14,7 @@ export const paths = {
   attempts: { pattern: '/attempts', href: () => '/attempts' },
   replay: { pattern: '/attempts/:attemptId/replay', href: (attemptId: number) => `/attempts/${attemptId}/replay` },
   progress: { pattern: '/progress', href: () => '/progress' },
+  studentProgress: { pattern: '/students/:userId/progress', href: (userId: number) => `/students/${userId}/progress` },
   scenarios: { pattern: '/scenarios', href: () => '/scenarios' },
   scenarioNew: { pattern: '/scenarios/new', href: () => '/scenarios/new' },
   scenario: { pattern: '/scenarios/:scenarioId', href: (scenarioId: number) => `/scenarios/${scenarioId}` },
