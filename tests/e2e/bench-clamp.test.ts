@@ -1,0 +1,66 @@
+import type { Browser } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { demoFirst } from '../../server/db/demo-people.ts';
+import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
+import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { holdRpm, openBench, reading, scenarioIdOf, startEngine } from './bench-helpers.ts';
+
+let browser: Browser;
+let app: E2eServer;
+
+beforeAll(async () => {
+  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
+});
+afterAll(async () => {
+  await browser?.close();
+  await app?.close();
+});
+
+describe('the inductive clamp and the drawing', () => {
+  it('hooks up by drag and by click in the drawing, and a reversed clamp reads negative', async () => {
+    const scenarioId = await scenarioIdOf(app, 'healthy-control-corvane-sable');
+    const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
+    const problems = watchConsole(page);
+    await signInAs(page, app.url, demoFirst('student').email);
+    await openBench(page, app.url, `scenarioId=${scenarioId}`);
+
+    const drawing = page.getByRole('img', { name: /Engine bay schematic/ });
+    const box = (await drawing.boundingBox())!;
+    const at = (x: number, y: number): [number, number] => [box.x + (x / 1000) * box.width, box.y + (y / 540) * box.height];
+    const drag = async (from: [number, number], to: [number, number]) => {
+      await page.mouse.move(...at(...from));
+      await page.mouse.down();
+      for (let i = 1; i <= 12; i++) await page.mouse.move(...at(from[0] + ((to[0] - from[0]) * i) / 12, from[1] + ((to[1] - from[1]) * i) / 12));
+      await page.mouse.up();
+    };
+    // Drag the red clip from where it hangs onto the battery positive post.
+    await drag([868, 176], [130, 330]);
+    await expect.poll(() => drawing.getAttribute('aria-label')).toMatch(/red lead on the battery positive post/);
+    // Click the black clip, then click the battery negative post.
+    await page.mouse.click(...at(942, 176));
+    await page.mouse.click(...at(230, 330));
+    await expect.poll(() => drawing.getAttribute('aria-label')).toMatch(/black lead on the battery negative post/);
+    // Drag the clamp onto the B+ cable.
+    await drag([905, 236], [600, 140]);
+    await expect.poll(() => drawing.getAttribute('aria-label')).toMatch(/clamp on the b\+ charging cable, arrow toward the battery/);
+    expect(await page.getByLabel('Inductive clamp', { exact: true }).inputValue()).toBe('bplus-cable');
+
+    await startEngine(page);
+    await holdRpm(page, '2,000');
+    await page.getByRole('button', { name: 'Headlamps (low beam)' }).click();
+    await page.waitForTimeout(3000);
+    await expect.poll(() => reading(page, 'amps')).toBeGreaterThan(5);
+    const forward = await reading(page, 'amps');
+
+    await page.getByRole('button', { name: 'Reverse clamp' }).click();
+    expect(await page.getByTestId('clamp-arrow').textContent()).toMatch(/toward the alternator/);
+    await expect.poll(() => reading(page, 'amps')).toBeLessThan(-5);
+    const reversed = await reading(page, 'amps');
+    expect(Math.abs(reversed + forward)).toBeLessThan(Math.max(3, 0.15 * forward));
+    expect((await page.getByTestId('reading-amps').textContent())!.startsWith('\u2212')).toBe(true);
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-clamp-reversed.png`, fullPage: true });
+    await drawing.screenshot({ path: `${SCREENSHOT_DIR}/bench-schematic.png` });
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+});

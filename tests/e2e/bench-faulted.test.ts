@@ -1,0 +1,57 @@
+import type { Browser } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { demoFirst } from '../../server/db/demo-people.ts';
+import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
+import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { diagnose, holdRpm, hookUp, openBench, reading, recordReading, scenarioIdOf, startEngine } from './bench-helpers.ts';
+
+let browser: Browser;
+let app: E2eServer;
+
+beforeAll(async () => {
+  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
+});
+afterAll(async () => {
+  await browser?.close();
+  await app?.close();
+});
+
+describe('a faulted scenario, diagnosed in practice mode', () => {
+  it('shows no charge with the engine running, and reveals the open fusible link after submission', async () => {
+    const scenarioId = await scenarioIdOf(app, 'fusible-link-open-westmark-drover');
+    const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
+    const problems = watchConsole(page);
+    await signInAs(page, app.url, demoFirst('student').email);
+    await openBench(page, app.url, `scenarioId=${scenarioId}`);
+    // The bench itself must not name the fault before submission.
+    expect(await page.locator('main').textContent()).not.toMatch(/fusible link open|link open/i);
+
+    await hookUp(page, { red: 'battery-pos', black: 'battery-neg' });
+    const resting = await reading(page, 'volts');
+    await startEngine(page);
+    await holdRpm(page, '2,000');
+    await page.waitForTimeout(4000);
+    const running = await reading(page, 'volts');
+    // No charge reaches the battery: the running voltage stays near the resting voltage, far below regulation.
+    expect(running).toBeLessThan(13.2);
+    expect(running).toBeLessThan(resting + 0.5);
+    await recordReading(page, 'regulated-voltage', 'voltage');
+
+    // Positive-side drop: B+ stud to battery positive reads the whole charging voltage across the open link.
+    await hookUp(page, { red: 'alt-bplus', black: 'battery-pos' });
+    await page.waitForTimeout(1500);
+    await recordReading(page, 'voltage-drop-positive', 'voltage');
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-faulted-running.png`, fullPage: true });
+
+    await diagnose(
+      page,
+      { 'Regulated (no-load) charging voltage': 'Fail', 'Voltage drop, positive side': 'Fail' },
+      'Fusible link open',
+    );
+    expect(await page.getByTestId('result-grade').textContent()).toBe('Practice');
+    expect(await page.getByTestId('result-fault').textContent()).toMatch(/OK.*Fusible link open/);
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-faulted-result.png`, fullPage: true });
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+});

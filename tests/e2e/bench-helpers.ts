@@ -1,0 +1,94 @@
+/** Driving the bench in a browser the way a student does: by role and accessible name. */
+import { eq } from 'drizzle-orm';
+import type { Page } from 'playwright-core';
+import { expect } from 'vitest';
+import { assignments, classes, enrollments, scenarios, users } from '../../server/db/schema.ts';
+import type { E2eServer } from './support.ts';
+
+/** Assigns a library scenario (by its slug) to the class of the given student, open now. */
+export async function assignToStudent(app: E2eServer, slug: string, studentEmail: string, title: string): Promise<number> {
+  const db = app.server.ctx.db;
+  const [scenario] = await db.select({ versionId: scenarios.publishedVersionId }).from(scenarios).where(eq(scenarios.slug, slug));
+  if (!scenario?.versionId) throw new Error(`no published scenario ${slug}`);
+  const [student] = await db.select({ id: users.id }).from(users).where(eq(users.email, studentEmail));
+  if (!student) throw new Error(`no student ${studentEmail}`);
+  const [enrolled] = await db.select({ classId: enrollments.classId }).from(enrollments).innerJoin(classes, eq(classes.id, enrollments.classId)).where(eq(enrollments.userId, student.id));
+  if (!enrolled) throw new Error(`${studentEmail} is in no class`);
+  const now = Date.now();
+  const [row] = await db
+    .insert(assignments)
+    .values({ classId: enrolled.classId, scenarioVersionId: scenario.versionId, title, opensAt: new Date(now - 3600_000), dueAt: new Date(now + 7 * 86400_000), attemptsAllowed: 5 })
+    .returning({ id: assignments.id });
+  return row!.id;
+}
+
+export async function scenarioIdOf(app: E2eServer, slug: string): Promise<number> {
+  const [row] = await app.server.ctx.db.select({ id: scenarios.id }).from(scenarios).where(eq(scenarios.slug, slug));
+  if (!row) throw new Error(`no scenario ${slug}`);
+  return row.id;
+}
+
+/** Opens a start link and waits for the live bench; returns the attempt id from the address. */
+export async function openBench(page: Page, baseUrl: string, query: string): Promise<number> {
+  await page.goto(`${baseUrl}/bench/new?${query}`);
+  await page.waitForURL(/\/bench\/\d+$/);
+  await page.getByRole('slider', { name: 'Carbon pile load' }).waitFor();
+  return Number(new URL(page.url()).pathname.split('/').pop());
+}
+
+export const reading = async (page: Page, id: 'volts' | 'amps' | 'rpm' | 'ripple' | 'draw'): Promise<number> => {
+  const text = (await page.getByTestId(`reading-${id}`).textContent()) ?? '';
+  return Number(text.replace('\u2212', '-').replace(/,/g, ''));
+};
+
+export async function hookUp(page: Page, opts: { red?: string; black?: string; clamp?: string }): Promise<void> {
+  if (opts.red) await page.getByLabel('Red lead', { exact: true }).selectOption(opts.red);
+  if (opts.black) await page.getByLabel('Black lead', { exact: true }).selectOption(opts.black);
+  if (opts.clamp) await page.getByLabel('Inductive clamp', { exact: true }).selectOption(opts.clamp);
+}
+
+export async function startEngine(page: Page): Promise<void> {
+  await page.getByRole('button', { name: 'Start', exact: true }).click();
+  await expect.poll(() => reading(page, 'rpm'), { timeout: 15_000 }).toBeGreaterThan(500);
+  await expect.poll(async () => page.getByRole('button', { name: 'Key on' }).getAttribute('aria-pressed'), { timeout: 10_000 }).toBe('true');
+}
+
+export async function holdRpm(page: Page, label: '1,500' | '2,000' | '2,500' | 'Idle'): Promise<void> {
+  await page.getByRole('button', { name: label, exact: true }).click();
+}
+
+/** Turns the pile up from the keyboard until the voltmeter reads at or below `volts`. */
+export async function loadDownTo(page: Page, volts: number): Promise<void> {
+  const dial = page.getByRole('slider', { name: 'Carbon pile load' });
+  await dial.focus();
+  for (let i = 0; i < 100; i++) {
+    if ((await reading(page, 'volts')) <= volts) return;
+    await page.keyboard.press((await reading(page, 'volts')) > volts + 0.6 ? 'PageUp' : 'ArrowUp');
+    await page.waitForTimeout(250);
+  }
+  throw new Error(`could not load the system down to ${volts} V`);
+}
+
+export async function recordReading(page: Page, test: string, quantity: string): Promise<void> {
+  const form = page.getByRole('form', { name: 'Record a reading' });
+  await form.getByLabel('Test').selectOption(test);
+  await form.getByLabel('What was measured').selectOption(quantity);
+  const before = await page.getByTestId('recorded-reading').count();
+  await form.getByRole('button', { name: 'Record this reading' }).click();
+  await expect.poll(() => page.getByTestId('recorded-reading').count()).toBe(before + 1);
+}
+
+export async function diagnose(page: Page, verdicts: Record<string, 'Pass' | 'Fail'>, fault: string): Promise<void> {
+  const form = page.getByRole('form', { name: 'Diagnosis' });
+  for (const [test, verdict] of Object.entries(verdicts)) {
+    await form.getByRole('radiogroup', { name: test }).getByLabel(verdict, { exact: true }).check();
+  }
+  await form.getByLabel('Fault found').selectOption({ label: fault });
+  await form.getByRole('button', { name: 'Submit diagnosis' }).click();
+  await page.getByTestId('attempt-result').waitFor({ timeout: 60_000 });
+}
+
+/** The attempt as the server holds it (its stored events), through the student's own session. */
+export async function serverAttempt(page: Page, attemptId: number): Promise<{ events: { seq: number; event: { kind: string; atMs: number } }[]; attempt: { lastSeq: number; status: string } }> {
+  return page.evaluate(async (id) => (await (await fetch(`/api/attempts/${id}`)).json()) as never, attemptId);
+}
