@@ -1,6 +1,6 @@
 /** Payloads of the scenario library API (/api/scenarios). */
 import { z } from 'zod';
-import { DIFFICULTIES, diagnosticTestSchema, faultKindSchema, VEHICLE_KINDS, type ScenarioDefinition } from '../scenario.ts';
+import { DIFFICULTIES, diagnosticTestSchema, faultKindSchema, scenarioSchema, VEHICLE_KINDS } from '../scenario.ts';
 
 export const VISIBILITIES = ['private', 'shared'] as const;
 export const visibilitySchema = z.enum(VISIBILITIES, { error: 'Visibility must be "private" or "shared"' });
@@ -62,24 +62,23 @@ export const scenarioVersionSummarySchema = z.object({
 export type ScenarioVersionSummary = z.infer<typeof scenarioVersionSummarySchema>;
 
 /** A scenario with its version history and the definition of its latest version. */
-export interface ScenarioDetail {
-  id: number;
-  slug: string;
-  visibility: Visibility;
-  owner: { id: number; name: string } | null;
-  archived: boolean;
-  canEdit: boolean;
-  latestVersion: number;
-  latestVersionId: number;
-  publishedVersionId: number | null;
-  versions: ScenarioVersionSummary[];
-  definition: ScenarioDefinition;
-}
+export const scenarioDetailSchema = z.object({
+  id: z.number().int(),
+  slug: z.string(),
+  visibility: visibilitySchema,
+  owner: ownerSchema,
+  archived: z.boolean(),
+  canEdit: z.boolean(),
+  latestVersion: z.number().int(),
+  latestVersionId: z.number().int(),
+  publishedVersionId: z.number().int().nullable(),
+  versions: z.array(scenarioVersionSummarySchema),
+  definition: scenarioSchema,
+});
+export type ScenarioDetail = z.infer<typeof scenarioDetailSchema>;
 
-export interface ScenarioVersionDetail extends ScenarioVersionSummary {
-  scenarioId: number;
-  definition: ScenarioDefinition;
-}
+export const scenarioVersionDetailSchema = scenarioVersionSummarySchema.extend({ scenarioId: z.number().int(), definition: scenarioSchema });
+export type ScenarioVersionDetail = z.infer<typeof scenarioVersionDetailSchema>;
 
 const noteSchema = z.string().trim().max(500, 'note must be at most 500 characters').default('');
 

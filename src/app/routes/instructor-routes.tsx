@@ -1,27 +1,15 @@
 /** The instructor's routes (admins see them too). */
 import type { RouteObject } from 'react-router-dom';
 import { paths } from '../../config/paths.ts';
-import { EmptyState, PageHeader } from '../../components/ui/states.tsx';
-
-function ScenariosHome() {
-  return (
-    <>
-      <PageHeader title="Scenarios" description="The fault scenario library." />
-      <EmptyState title="The library is empty" />
-    </>
-  );
-}
-
-function ClassesHome() {
-  return (
-    <>
-      <PageHeader title="Classes" description="Your sections, their students and assignments." />
-      <EmptyState title="No classes yet" />
-    </>
-  );
-}
+import { ClassPage, classLoader } from './instructor-class.tsx';
+import { ClassesPage, classesLoader } from './instructor-classes.tsx';
+import { EditScenarioPage, NewScenarioPage, scenarioLoader } from './instructor-scenario-editor.tsx';
+import { ScenariosPage, scenariosLoader } from './instructor-scenarios.tsx';
 
 export const instructorRoutes: RouteObject[] = [
-  { path: paths.scenarios.pattern, element: <ScenariosHome /> },
-  { path: paths.classes.pattern, element: <ClassesHome /> },
+  { path: paths.scenarios.pattern, loader: scenariosLoader, element: <ScenariosPage /> },
+  { path: paths.scenarioNew.pattern, element: <NewScenarioPage /> },
+  { path: paths.scenario.pattern, loader: scenarioLoader, element: <EditScenarioPage /> },
+  { path: paths.classes.pattern, loader: classesLoader, element: <ClassesPage /> },
+  { path: paths.class.pattern, loader: classLoader, element: <ClassPage /> },
 ];

@@ -1,0 +1,67 @@
+import type { Assignment } from '../../../../shared/api/assignments.ts';
+import { Button } from '../../../components/ui/button.tsx';
+import { EmptyState } from '../../../components/ui/states.tsx';
+import { useDeleteAssignment } from '../api/create-assignment.ts';
+
+const when = (iso: string) => new Date(iso).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
+
+function state(a: Assignment, now: number): { label: string; tone: string } {
+  if (Date.parse(a.opensAt) > now) return { label: 'Not open yet', tone: 'text-slate-500' };
+  if (Date.parse(a.dueAt) < now) return { label: 'Closed', tone: 'text-slate-500' };
+  return { label: 'Open', tone: 'text-live-700' };
+}
+
+export function AssignmentsTable({ assignments, scenarioTitle }: { assignments: Assignment[]; scenarioTitle: (scenarioId: number) => string | undefined }) {
+  const remove = useDeleteAssignment();
+  const now = Date.now();
+  if (assignments.length === 0) return <EmptyState title="Nothing assigned yet">Assign a published scenario below.</EmptyState>;
+  return (
+    <div className="space-y-2">
+      <div className="overflow-x-auto rounded-lg ring-1 ring-slate-200">
+        <table className="min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Assignments">
+          <thead className="bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-500">
+            <tr>
+              <th scope="col" className="px-3 py-2">Assignment</th>
+              <th scope="col" className="px-3 py-2">Opens</th>
+              <th scope="col" className="px-3 py-2">Due</th>
+              <th scope="col" className="px-3 py-2">Attempts</th>
+              <th scope="col" className="px-3 py-2">State</th>
+              <th scope="col" className="px-3 py-2 text-right">
+                <span className="sr-only">Actions</span>
+              </th>
+            </tr>
+          </thead>
+          <tbody className="divide-y divide-slate-100">
+            {assignments.map((a) => {
+              const s = state(a, now);
+              return (
+                <tr key={a.id}>
+                  <td className="px-3 py-2">
+                    <span className="font-medium">{a.title}</span>
+                    <span className="block text-xs text-slate-500">
+                      {scenarioTitle(a.scenarioId) ?? 'Scenario'} · version {a.scenarioVersion}
+                    </span>
+                  </td>
+                  <td className="px-3 py-2 text-slate-600">{when(a.opensAt)}</td>
+                  <td className="px-3 py-2 text-slate-600">{when(a.dueAt)}</td>
+                  <td className="px-3 py-2">{a.attemptsAllowed}</td>
+                  <td className={`px-3 py-2 font-medium ${s.tone}`}>{s.label}</td>
+                  <td className="px-3 py-2 text-right">
+                    <Button size="sm" variant="ghost" disabled={remove.isPending} onClick={() => remove.mutate({ id: a.id, classId: a.classId })}>
+                      Delete<span className="sr-only"> {a.title}</span>
+                    </Button>
+                  </td>
+                </tr>
+              );
+            })}
+          </tbody>
+        </table>
+      </div>
+      {remove.error && (
+        <p role="alert" className="text-sm text-stop-700">
+          {remove.error.message}
+        </p>
+      )}
+    </div>
+  );
+}
