@@ -352,12 +352,10 @@ export function periodicBridge(inp: BridgeCycleInput, guess?: [number, number]):
 /** u = (V_dc + 2 V_f) / E from 0 to U_MAX (conduction ends at sqrt(3)). */
 const U_MAX = 1.8;
 const U_POINTS = 37;
-const U_POINTS_CONST = 37;
 /** s = sqrt(r), r = R_phase / X. */
 const S_MIN = 0.2;
 const S_MAX = 1.8;
 const S_POINTS = 17;
-const S_POINTS_CONST = 17;
 const TABLE_STEPS_PER_CYCLE = 360;
 
 export interface BridgeTable {
@@ -376,7 +374,8 @@ export interface BridgeTable {
 }
 
 const SHORTED_DROP_LEVELS = [0, 0.06, 0.12] as const;
-const LAYER = S_POINTS_CONST * U_POINTS_CONST;
+/** Values in one drop layer of a table. */
+const LAYER = S_POINTS * U_POINTS;
 
 const tables = new Map<string, BridgeTable>();
 

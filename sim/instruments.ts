@@ -133,7 +133,7 @@ export function readMeters(params: VehicleParams, state: SimState, controls: Con
     ammeterA,
     pileA: net.branchA.pile,
     engine: state.engineStatus,
-    fusibleLinkOpen: state.fusibleLinkBlown || applyTimeLinkOpen(params, state),
+    fusibleLinkOpen: state.fusibleLinkBlown || linkOpenByFault(params, state),
     pileTempC: state.pileTempC,
     pileOverheated: state.pileTripped,
     pileHot: state.pileTempC >= params.pile.warnC,
@@ -143,7 +143,8 @@ export function readMeters(params: VehicleParams, state: SimState, controls: Con
   };
 }
 
-function applyTimeLinkOpen(params: VehicleParams, state: SimState): boolean {
+/** A link that a fault (or the scenario) has open at this moment. */
+function linkOpenByFault(params: VehicleParams, state: SimState): boolean {
   return effectiveModel(params, state.controls.faults, state.timeMs / 1000).p.wiring.fusibleLinkOpen;
 }
 

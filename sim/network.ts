@@ -90,8 +90,6 @@ export interface NetworkInput {
   strapG: number;
   negG: number;
   loadG: number;
-  /** Constant-current part of the vehicle loads. */
-  loadI: number;
   starterG: number;
   /** Field current drawn from B+ inside the alternator. */
   fieldSupplyA: number;
@@ -115,21 +113,20 @@ const CONDUCTANCES = 10;
 
 /**
  * The linear network's responses for one set of conductances: node voltages
- * per volt of battery EMF, per ampere of constant-current load, and per
- * ampere from the bridge (which is also the AC transfer for ripple).
+ * per volt of battery EMF and per ampere from the bridge (which is also the
+ * AC transfer for ripple).
  * Conductances change only when a control or a fault does, so the step
  * usually reuses these and solves nothing but the bridge's scalar equation.
  */
 interface LinearResponses {
   key: Float64Array;
   perEmf: Float64Array;
-  perLoadA: Float64Array;
   perBridgeA: Float64Array;
   rippleOhm: NodeVoltages;
 }
 
 const mat = new Float64Array(N * N);
-const rhs = new Float64Array(N * 3);
+const rhs = new Float64Array(N * 2);
 const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0 };
 const recent: LinearResponses[] = [];
 const RECENT_MAX = 4;
@@ -155,12 +152,10 @@ function buildResponses(n: NetworkInput, key: Float64Array): LinearResponses {
   mat[CH * N + CH] = mat[CH * N + CH]! + n.negG;
   stamp(JN, CH, n.loadG);
   stamp(JN, EN, n.starterG);
-  // Three right-hand sides side by side: unit EMF, unit load current, unit bridge current.
-  rhs[BP * 3] = gb;
-  rhs[JN * 3 + 1] = -1;
-  rhs[CH * 3 + 1] = 1;
-  rhs[BPL * 3 + 2] = 1;
-  rhs[AC * 3 + 2] = -1;
+  // Two right-hand sides side by side: unit battery EMF, unit bridge current.
+  rhs[BP * 2] = gb;
+  rhs[BPL * 2 + 1] = 1;
+  rhs[AC * 2 + 1] = -1;
   // Gaussian elimination; the conductance matrix is symmetric positive definite.
   for (let k = 0; k < N; k++) {
     const pivot = mat[k * N + k]!;
@@ -168,29 +163,26 @@ function buildResponses(n: NetworkInput, key: Float64Array): LinearResponses {
       const f = mat[i * N + k]! / pivot;
       if (f === 0) continue;
       for (let j = k; j < N; j++) mat[i * N + j] = mat[i * N + j]! - f * mat[k * N + j]!;
-      for (let c = 0; c < 3; c++) rhs[i * 3 + c] = rhs[i * 3 + c]! - f * rhs[k * 3 + c]!;
+      for (let c = 0; c < 2; c++) rhs[i * 2 + c] = rhs[i * 2 + c]! - f * rhs[k * 2 + c]!;
     }
   }
   for (let k = N - 1; k >= 0; k--) {
     const d = mat[k * N + k]!;
-    for (let c = 0; c < 3; c++) {
-      let sum = rhs[k * 3 + c]!;
-      for (let j = k + 1; j < N; j++) sum -= mat[k * N + j]! * rhs[j * 3 + c]!;
-      rhs[k * 3 + c] = sum / d;
+    for (let c = 0; c < 2; c++) {
+      let sum = rhs[k * 2 + c]!;
+      for (let j = k + 1; j < N; j++) sum -= mat[k * N + j]! * rhs[j * 2 + c]!;
+      rhs[k * 2 + c] = sum / d;
     }
   }
   const perEmf = new Float64Array(N);
-  const perLoadA = new Float64Array(N);
   const perBridgeA = new Float64Array(N);
   for (let k = 0; k < N; k++) {
-    perEmf[k] = rhs[k * 3]!;
-    perLoadA[k] = rhs[k * 3 + 1]!;
-    perBridgeA[k] = rhs[k * 3 + 2]!;
+    perEmf[k] = rhs[k * 2]!;
+    perBridgeA[k] = rhs[k * 2 + 1]!;
   }
   return {
     key: Float64Array.from(key),
     perEmf,
-    perLoadA,
     perBridgeA,
     rippleOhm: Object.freeze({
       batteryPos: perBridgeA[BP]!,
@@ -235,7 +227,7 @@ function responsesFor(n: NetworkInput): LinearResponses {
 
 /**
  * Nodal analysis of the car's network. By superposition the node voltages
- * are v = E_b w_emf + I_load w_load + (I_bridge - I_field) w_bridge; the
+ * are v = E_b w_emf + (I_bridge - I_field) w_bridge; the
  * bridge sees the Thevenin source that gives, its nonlinear output is solved
  * against it, and every branch current follows from the node voltages.
  * Deterministic: the cached responses are exactly what a fresh solve gives.
@@ -243,12 +235,10 @@ function responsesFor(n: NetworkInput): LinearResponses {
 export function solveNetwork(n: NetworkInput): NetworkSolution {
   const lr = responsesFor(n);
   const we = lr.perEmf;
-  const wl = lr.perLoadA;
   const wb = lr.perBridgeA;
   const e = n.batteryEmfV;
-  const il = n.loadI;
   const ifs = n.fieldSupplyA;
-  const v0Port = e * (we[BPL]! - we[AC]!) + il * (wl[BPL]! - wl[AC]!) - ifs * (wb[BPL]! - wb[AC]!);
+  const v0Port = e * (we[BPL]! - we[AC]!) - ifs * (wb[BPL]! - wb[AC]!);
   bridgeOperatingPoint(
     {
       table: n.table,
@@ -264,12 +254,12 @@ export function solveNetwork(n: NetworkInput): NetworkSolution {
   );
   const ib = point.meanA;
   const src = ib - ifs;
-  const vBp = e * we[BP]! + il * wl[BP]! + src * wb[BP]!;
-  const vJn = e * we[JN]! + il * wl[JN]! + src * wb[JN]!;
-  const vBpl = e * we[BPL]! + il * wl[BPL]! + src * wb[BPL]!;
-  const vAc = e * we[AC]! + il * wl[AC]! + src * wb[AC]!;
-  const vEn = e * we[EN]! + il * wl[EN]! + src * wb[EN]!;
-  const vCh = e * we[CH]! + il * wl[CH]! + src * wb[CH]!;
+  const vBp = e * we[BP]! + src * wb[BP]!;
+  const vJn = e * we[JN]! + src * wb[JN]!;
+  const vBpl = e * we[BPL]! + src * wb[BPL]!;
+  const vAc = e * we[AC]! + src * wb[AC]!;
+  const vEn = e * we[EN]! + src * wb[EN]!;
+  const vCh = e * we[CH]! + src * wb[CH]!;
   const gb = 1 / n.batteryR;
   return {
     nodeV: { batteryPos: vBp, junction: vJn, bplus: vBpl, altCase: vAc, engine: vEn, chassis: vCh, batteryNeg: 0 },
@@ -282,7 +272,7 @@ export function solveNetwork(n: NetworkInput): NetworkSolution {
       mount: n.mountG * (vEn - vAc),
       strap: n.strapG * (vCh - vEn),
       negCable: n.negG * vCh,
-      loads: n.loadG * (vJn - vCh) + il,
+      loads: n.loadG * (vJn - vCh),
       starter: n.starterG * (vJn - vEn),
     },
     rippleOhm: lr.rippleOhm,

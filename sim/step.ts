@@ -161,7 +161,6 @@ const networkInput: NetworkInput = {
   strapG: 0,
   negG: 0,
   loadG: 0,
-  loadI: 0,
   starterG: 0,
   fieldSupplyA: 0,
   table: null as unknown as NetworkInput['table'],
@@ -193,7 +192,6 @@ function solveAt(n: NetworkInputs): NetworkSolution {
   }
   ratedA += p.loads.stuckDrawA;
   loadG += ratedA / LOAD_RATING_V;
-  const loadI = 0;
 
   // Resistance follows charge in steps of 0.1 % so the network's responses can be reused.
   const r0 = internalResistanceOhm(p.battery, Math.round(n.soc01 * 1000) / 1000);
@@ -216,7 +214,6 @@ function solveAt(n: NetworkInputs): NetworkSolution {
   ni.strapG = 1 / m.rStrapOhm;
   ni.negG = c.ammeterInSeries && n.ammeterFuseBlown ? 0 : 1 / negR;
   ni.loadG = loadG;
-  ni.loadI = loadI;
   ni.starterG = cranking ? m.starterG : 0;
   ni.fieldSupplyA = n.fieldDuty01 * n.fieldCurrentA;
   ni.table = m.table;

@@ -3,7 +3,7 @@
  * every node at every step, monotone responses to load and speed, and
  * determinism of replay.
  */
-import { describe, expect, it } from 'vitest';
+import { describe, it } from 'vitest';
 import fc from 'fast-check';
 import { VEHICLE_PARAM_BOUNDS, defaultVehicleParams } from '../../sim/params';
 import type { VehicleParams } from '../../sim/params';
