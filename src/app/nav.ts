@@ -11,6 +11,7 @@ export const NAV: Record<Role, NavItem[]> = {
   student: [
     { label: 'Bench', to: paths.bench.href() },
     { label: 'My attempts', to: paths.attempts.href() },
+    { label: 'Progress', to: paths.progress.href() },
   ],
   instructor: [
     { label: 'Scenarios', to: paths.scenarios.href() },

@@ -10,6 +10,7 @@ import { roleLoader } from './routes/role-guard.tsx';
 import { SignInPage, signInLoader } from './routes/sign-in.tsx';
 import { instructorRoutes } from './routes/instructor-routes.tsx';
 import { studentRoutes } from './routes/student-routes.tsx';
+import { liveRoutes } from './routes/live-routes.tsx';
 
 export const router = createBrowserRouter([
   { path: paths.signIn.pattern, loader: signInLoader, element: <SignInPage />, errorElement: <RouteErrorPage /> },
@@ -24,6 +25,7 @@ export const router = createBrowserRouter([
       { index: true, loader: homeLoader },
       { loader: roleLoader('student'), children: studentRoutes },
       { loader: roleLoader('instructor', 'admin'), children: instructorRoutes },
+      ...liveRoutes,
       {
         loader: roleLoader('admin'),
         children: [

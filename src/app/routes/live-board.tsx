@@ -1,0 +1,29 @@
+/** /classes/:classId/live — the instructor watches a class at the bench and injects faults. */
+import { useParams } from 'react-router-dom';
+import { ErrorState, PageHeader, Spinner } from '../../components/ui/states.tsx';
+import { useBoard } from '../../features/live/api/get-board.ts';
+import { LiveBoard, StreamBadge } from '../../features/live/components/live-board.tsx';
+import { useBoardStream } from '../../features/live/hooks/use-board-stream.ts';
+
+export function LiveBoardPage() {
+  const classId = Number(useParams().classId);
+  // The first load tells access apart from a dropped stream; the stream then keeps it live.
+  const first = useBoard(classId);
+  const board = useBoardStream(classId);
+  if (first.isError) return <ErrorState error={first.error} retry={() => void first.refetch()} />;
+  if (first.isPending) return <Spinner label="Opening the class board" />;
+  const attempts = board.updatedAt ? board.attempts : first.data.attempts;
+  const name = board.className ?? first.data.className;
+  return (
+    <>
+      <PageHeader
+        title={`${name}: live`}
+        description="Running benches, updated as students work. An injected fault is applied at the bench’s current time; the student is not told what changed."
+        actions={<StreamBadge state={board.stream} />}
+      />
+      <LiveBoard attempts={attempts} />
+    </>
+  );
+}
+
+export const Component = LiveBoardPage;

@@ -1,0 +1,65 @@
+/** /attempts/:attemptId/replay — a submitted attempt replayed read-only, with markers and comments. `?at=` opens at a moment (ms). */
+import { useParams, useSearchParams } from 'react-router-dom';
+import type { ReplayResponse } from '../../../shared/api/replay.ts';
+import { ErrorState, PageHeader, Panel, Spinner } from '../../components/ui/states.tsx';
+import { useReplay } from '../../features/replay/api/get-replay.ts';
+import { ReplayBenchView } from '../../features/replay/components/replay-bench-view.tsx';
+import { ReplayComments } from '../../features/replay/components/replay-comments.tsx';
+import { ReplayControls } from '../../features/replay/components/replay-controls.tsx';
+import { useReplayPlayer } from '../../features/replay/hooks/use-replay-player.ts';
+
+function Player({ replay, initialMs }: { replay: ReplayResponse; initialMs: number }) {
+  const a = replay.attempt;
+  const player = useReplayPlayer(replay.vehicle, a.seed, replay.events, a.durationMs, initialMs);
+  return (
+    <>
+      <PageHeader
+        title={`Replay: ${a.scenarioTitle}`}
+        description={`${a.studentName}${a.assignmentTitle ? ` · ${a.assignmentTitle}` : ' · practice'}${a.grade !== null ? ` · grade ${Math.round(a.grade)}` : ''}. The bench re-run from the stored events; nothing here changes the attempt.`}
+      />
+      <div className="grid gap-6 lg:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
+        <div className="space-y-4">
+          <Panel>
+            <ReplayBenchView frame={player.frame} />
+          </Panel>
+          <Panel>
+            <ReplayControls player={player} markers={replay.markers} comments={replay.comments} />
+          </Panel>
+        </div>
+        <div className="space-y-4">
+          <Panel title="Comments">
+            <ReplayComments attemptId={a.id} comments={replay.comments} canComment={replay.canComment} timeMs={player.timeMs} onJump={player.seek} />
+          </Panel>
+          {replay.readings.length > 0 && (
+            <Panel title="Readings recorded">
+              <ul className="space-y-1 text-sm">
+                {replay.readings.map((r) => (
+                  <li key={r.id}>
+                    <button type="button" onClick={() => player.seek(r.atMs)} className="text-left hover:underline">
+                      <span className="font-mono text-live-700">
+                        {r.value} {r.unit}
+                      </span>{' '}
+                      <span className="text-slate-600">{r.where || r.test}</span>
+                    </button>
+                  </li>
+                ))}
+              </ul>
+            </Panel>
+          )}
+        </div>
+      </div>
+    </>
+  );
+}
+
+export function ReplayPage() {
+  const attemptId = Number(useParams().attemptId);
+  const [search] = useSearchParams();
+  const at = Number(search.get('at') ?? 0);
+  const q = useReplay(attemptId);
+  if (q.isPending) return <Spinner label="Loading the replay" />;
+  if (q.isError) return <ErrorState error={q.error} retry={() => void q.refetch()} />;
+  return <Player replay={q.data} initialMs={Number.isFinite(at) ? at : 0} />;
+}
+
+export const Component = ReplayPage;

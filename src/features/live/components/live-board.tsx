@@ -1,0 +1,128 @@
+/** The running attempts of a class, one card each, kept live by the board's stream. */
+import { useState } from 'react';
+import { FAULT_CATALOG } from '../../../../sim/faults.ts';
+import type { BoardAttempt, InjectionView } from '../../../../shared/api/live.ts';
+import { DIAGNOSTIC_TEST_LABELS } from '../../../../shared/scenario.ts';
+import { Button } from '../../../components/ui/button.tsx';
+import { EmptyState } from '../../../components/ui/states.tsx';
+import { useClearFault } from '../api/inject-fault.ts';
+import type { StreamState } from '../hooks/use-board-stream.ts';
+import { InjectForm } from './inject-form.tsx';
+
+export function formatSimTime(ms: number): string {
+  const s = Math.floor(ms / 1000);
+  const h = Math.floor(s / 3600);
+  const m = Math.floor((s % 3600) / 60);
+  const sec = String(s % 60).padStart(2, '0');
+  return h > 0 ? `${h}:${String(m).padStart(2, '0')}:${sec}` : `${m}:${sec}`;
+}
+
+const fmt = (v: number | null | undefined, digits: number, unit: string) => (v === null || v === undefined ? '—' : `${v.toFixed(digits)} ${unit}`);
+
+function Reading({ label, value }: { label: string; value: string }) {
+  return (
+    <div className="min-w-0">
+      <dt className="text-[11px] uppercase tracking-wide text-slate-500">{label}</dt>
+      <dd className="font-mono text-sm font-semibold text-live-700">{value}</dd>
+    </div>
+  );
+}
+
+function injectionText(i: InjectionView): string {
+  const label = i.kind ? FAULT_CATALOG[i.kind].label : 'Fault';
+  const parts = [label];
+  if (i.severity01 !== null && i.severity01 < 1) parts.push(`${Math.round(i.severity01 * 100)} %`);
+  if (i.delayS) parts.push(`after ${i.delayS} s`);
+  if (i.intermittent) parts.push(`intermittent, ${i.intermittent.periodS} s period`);
+  return parts.join(', ');
+}
+
+function Injections({ attempt }: { attempt: BoardAttempt }) {
+  const clear = useClearFault();
+  const injects = attempt.injections.filter((i) => i.type === 'inject');
+  if (injects.length === 0) return null;
+  return (
+    <ul className="mt-3 space-y-1.5" aria-label={`Faults injected for ${attempt.studentName}`}>
+      {injects.map((i) => {
+        const clearRow = attempt.injections.find((c) => c.type === 'clear' && c.faultId === i.faultId);
+        const status = clearRow ? (clearRow.appliedAt ? 'cleared' : 'clearing…') : i.appliedAt ? 'on the bench' : 'waiting for the bench';
+        return (
+          <li key={i.injectionId} className="flex items-center justify-between gap-2 rounded-md bg-stone-50 px-2 py-1 text-sm ring-1 ring-slate-200">
+            <span className="min-w-0">
+              <span className="font-medium text-slate-800">{injectionText(i)}</span>{' '}
+              <span className={status === 'waiting for the bench' ? 'text-warn-700' : 'text-slate-500'}>· {status}</span>
+            </span>
+            {!clearRow && (
+              <Button size="sm" variant="secondary" disabled={clear.isPending} onClick={() => clear.mutate({ attemptId: attempt.attemptId, injectionId: i.injectionId })} aria-label={`Clear ${injectionText(i)} for ${attempt.studentName}`}>
+                Clear
+              </Button>
+            )}
+          </li>
+        );
+      })}
+    </ul>
+  );
+}
+
+function AttemptCard({ attempt }: { attempt: BoardAttempt }) {
+  const [injecting, setInjecting] = useState(false);
+  const r = attempt.readings;
+  return (
+    <li className="rounded-xl bg-white p-4 shadow-sm ring-1 ring-slate-200" aria-label={`${attempt.studentName}, ${attempt.scenarioTitle}`}>
+      <div className="flex items-start justify-between gap-3">
+        <div className="min-w-0">
+          <p className="font-semibold text-slate-900">{attempt.studentName}</p>
+          <p className="truncate text-sm text-slate-600">
+            {attempt.scenarioTitle}
+            {attempt.assignmentTitle ? ` · ${attempt.assignmentTitle}` : ' · practice'}
+          </p>
+        </div>
+        <div className="text-right">
+          <p className="font-mono text-lg font-semibold text-live-700" aria-label="Elapsed bench time">
+            {formatSimTime(attempt.simTimeMs)}
+          </p>
+          <p className="text-xs text-slate-500">{attempt.currentTest ? DIAGNOSTIC_TEST_LABELS[attempt.currentTest] : 'Setting up'}</p>
+        </div>
+      </div>
+      <dl className="mt-3 grid grid-cols-3 gap-2 sm:grid-cols-5">
+        <Reading label="Volts" value={fmt(r?.voltmeterV, 2, 'V')} />
+        <Reading label="Ripple" value={fmt(r?.rippleVac, 2, 'V AC')} />
+        <Reading label="Clamp" value={fmt(r?.clampA, 1, 'A')} />
+        <Reading label="Engine" value={r ? `${Math.round(r.tachRpm)} rpm` : '—'} />
+        <Reading label="Charge" value={r ? `${Math.round(r.batterySoc01 * 100)} %` : '—'} />
+      </dl>
+      <Injections attempt={attempt} />
+      {injecting ? (
+        <InjectForm attemptId={attempt.attemptId} studentName={attempt.studentName} onDone={() => setInjecting(false)} />
+      ) : (
+        <div className="mt-3">
+          <Button size="sm" onClick={() => setInjecting(true)} aria-label={`Inject a fault for ${attempt.studentName}`}>
+            Inject a fault
+          </Button>
+        </div>
+      )}
+    </li>
+  );
+}
+
+const STREAM_TEXT: Record<StreamState, string> = { connecting: 'Connecting…', live: 'Live', reconnecting: 'Reconnecting…' };
+
+export function StreamBadge({ state }: { state: StreamState }) {
+  return (
+    <span role="status" className={`inline-flex items-center gap-1.5 rounded-full px-2.5 py-1 text-xs font-medium ${state === 'live' ? 'bg-live-50 text-live-700' : 'bg-warn-100 text-warn-700'}`}>
+      <span aria-hidden="true" className={`h-2 w-2 rounded-full ${state === 'live' ? 'bg-live-500' : 'bg-warn-500'}`} />
+      {STREAM_TEXT[state]}
+    </span>
+  );
+}
+
+export function LiveBoard({ attempts }: { attempts: readonly BoardAttempt[] }) {
+  if (attempts.length === 0) return <EmptyState title="Nobody is at a bench right now">Running attempts appear here as students start them.</EmptyState>;
+  return (
+    <ul className="grid gap-4 lg:grid-cols-2" aria-label="Running attempts">
+      {attempts.map((a) => (
+        <AttemptCard key={a.attemptId} attempt={a} />
+      ))}
+    </ul>
+  );
+}
