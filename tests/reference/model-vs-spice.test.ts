@@ -9,15 +9,16 @@
  * and loads set at 2 s, pile at 5 s, circuit taken at 10 s; the regulator
  * sets the field):
  *
- * | id           | engine rpm | alt rpm | loads on            | pile | fault           | what it is                                |
- * |--------------|------------|---------|---------------------|------|-----------------|-------------------------------------------|
- * | idle-light   | 643 (idle) | 1,800   | base electronics    | 0    | none            | idle-ish, light load, regulating ~14 V    |
- * | rated-loaded | 2,000      | 5,600   | + headlamps, blower | 0.5  | none            | output test: full field, 12-13 V at posts |
- * | rated-light  | 2,000      | 5,600   | base electronics    | 0    | none            | cruise, light load, regulating ~14 V      |
- * | high-loaded  | 3,214      | 9,000   | + headlamps, blower | 0.5  | none            | high speed, full field, 12-13 V at posts  |
- * | idle-pile    | 750 (idle) | 2,100   | base electronics    | 0.5  | none            | idle, heavy overlap at low speed          |
- * | shorted      | 2,000      | 5,600   | base electronics    | 0.5  | shorted diode 0 | output far down                           |
- * | phase-open   | 2,000      | 5,600   | base electronics    | 0.6  | open phase A    | output down, ripple at 2f                 |
+ * | id           | engine rpm | alt rpm | loads on            | pile | fault           | what it is                                        |
+ * |--------------|------------|---------|---------------------|------|-----------------|---------------------------------------------------|
+ * | idle-light   | 643 (idle) | 1,800   | base electronics    | 0    | none            | idle-ish, light vehicle load, battery recharging  |
+ * |              |            |         |                     |      |                 | after the start, regulating ~14 V                 |
+ * | rated-loaded | 2,000      | 5,600   | + headlamps, blower | 0.5  | none            | output test: full field, 12-13 V at the posts     |
+ * | rated-light  | 2,000      | 5,600   | base electronics    | 0    | none            | cruise, light vehicle load, regulating ~14 V      |
+ * | high-loaded  | 3,214      | 9,000   | + headlamps, blower | 0.5  | none            | high speed, full field, 12-13 V at the posts      |
+ * | idle-pile    | 750 (idle) | 2,100   | base electronics    | 0.5  | none            | idle, heavy commutation overlap at low speed      |
+ * | shorted      | 2,000      | 5,600   | base electronics    | 0.5  | shorted diode 0 | output far down, ripple at f                      |
+ * | phase-open   | 2,000      | 5,600   | base electronics    | 0.6  | open phase A    | output down, ripple at 2f                         |
  *
  * At the four healthy points of the brief (the first four rows) the same
  * circuit is also solved with positive diode A (index 0) open. Checked: mean
