@@ -264,7 +264,7 @@ export async function spawnServer(databaseUrl: string, env: Record<string, strin
   child.stderr!.on('data', (d: Buffer) => (err += d.toString()));
   const url = await new Promise<string>((resolve, reject) => {
     let out = '';
-    const timer = setTimeout(() => reject(new Error(`server process did not start: ${err}`)), 30_000);
+    const timer = setTimeout(() => reject(new Error(`server process did not start: ${err} ${out}`)), 90_000);
     child.stdout!.on('data', (d: Buffer) => {
       out += d.toString();
       const line = out.split('\n').find((l) => l.includes('"listening"'));
