@@ -11,6 +11,7 @@ import { unsealFaults } from '../../../../shared/sealed-faults.ts';
 import { createOutbox, mergeForResume, readPersisted, type Outbox, type OutboxView } from '../api/event-outbox.ts';
 import { postEvents } from '../api/post-events.ts';
 import { createBenchEngine, type BenchEngine } from '../stores/bench-engine.ts';
+import { connectLiveInjections } from '../live/live-injections.ts';
 
 export interface BenchSession {
   engine: BenchEngine;
@@ -34,6 +35,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
     if (!enabled) return;
     let cancelled = false;
     let built: BenchSession | null = null;
+    let stopLive: (() => void) | null = null;
     let saveTimer: number | undefined;
     const saveTime = () => built?.outbox.noteSimTime(built.engine.getSnapshot().timeMs);
 
@@ -60,6 +62,8 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
         });
         built = { engine, outbox, faults };
         engine.start();
+        // Instructors' live faults arrive on the attempt's stream and go through the dispatcher.
+        stopLive = connectLiveInjections({ attemptId, benchKey: boot.benchKey, engine });
         outbox.start();
         saveTimer = window.setInterval(saveTime, 1000);
         window.addEventListener('pagehide', saveTime);
@@ -76,6 +80,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
       if (built) {
         saveTime();
         built.engine.stop();
+        stopLive?.();
         built.outbox.stop();
       }
       setSession(null);
