@@ -94,7 +94,7 @@ export function RosterUpload({ classId }: { classId: number }) {
           </div>
           <div className="flex flex-wrap items-center gap-3">
             <Button disabled={!file || data.errorCount > 0 || commit.isPending || commit.isSuccess || data.newCount + data.existingCount === 0} onClick={() => file && commit.mutate({ classId, file })}>
-              {commit.isPending ? 'Importing…' : `Import ${data.newCount + data.existingCount} students`}
+              {commit.isPending ? 'Importing…' : `Import ${data.newCount + data.existingCount} ${data.newCount + data.existingCount === 1 ? 'student' : 'students'}`}
             </Button>
             {data.errorCount > 0 && <p className="text-sm text-stop-700">Fix the lines with errors and choose the file again: an import is all or nothing.</p>}
             {commit.data && (

@@ -83,11 +83,11 @@ function Chart({
           </g>
         ))}
         <line x1={M.left} x2={W - M.right} y1={y(ratedA)} y2={y(ratedA)} className="stroke-slate-500" strokeDasharray="6 3" />
-        <text x={W - M.right - 2} y={y(ratedA) - 4} textAnchor="end" className="fill-slate-600 text-[9px]">
+        <text x={M.left + 4} y={y(ratedA) - 4} className="fill-slate-600 text-[9px]">
           rating {ratedA} A
         </text>
         <line x1={M.left} x2={W - M.right} y1={y(passMarkA)} y2={y(passMarkA)} className="stroke-slate-400" strokeDasharray="2 2" />
-        <text x={W - M.right - 2} y={y(passMarkA) + 10} textAnchor="end" className="fill-slate-500 text-[9px]">
+        <text x={M.left + 4} y={y(passMarkA) + 10} className="fill-slate-500 text-[9px]">
           pass mark {passMarkA.toFixed(0)} A
         </text>
         {path && <path d={path} fill="none" strokeWidth={2.5} className={stroke} />}

@@ -19,7 +19,7 @@ import { Panel } from '../../../components/ui/states.tsx';
 import { FaultsSection } from './editor-faults.tsx';
 import { AccessoriesField, DiagnosisChoicesSection, LinesField, TestsAndRulesSection } from './editor-rules.tsx';
 import { OutputCurvePreview } from './output-curve-preview.tsx';
-import { Advanced, FieldGrid, ParamField, type ScenarioFormValues } from './param-field.tsx';
+import { Advanced, FieldGrid, ParamField, SizeStatorButton, type ScenarioFormValues } from './param-field.tsx';
 
 export interface ScenarioSaveRequest {
   definition: ScenarioDefinition;
@@ -205,6 +205,7 @@ export function ScenarioEditor({
                 <ParamField path="alternator.cutInAltRpm" />
                 <ParamField path="alternator.polePairs" />
                 <ParamField path="alternator.initialTempC" />
+                <SizeStatorButton />
                 <ParamField path="regulator.setPointVAt25C" />
                 <ParamField path="regulator.tempCoeffVPerC" />
                 <SelectField label="Regulator senses at" {...register('vehicle.params.regulator.sense')} error={msg('vehicle.params.regulator.sense')}>

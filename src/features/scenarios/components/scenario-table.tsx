@@ -109,7 +109,7 @@ export function ScenarioTable({ scenarios }: { scenarios: ScenarioListItem[] }) 
         header: 'Tests expected',
         enableSorting: false,
         filterFn: includesValue,
-        cell: (c) => <span className="text-xs text-slate-600">{c.getValue().length} tests</span>,
+        cell: (c) => <span className="text-xs text-slate-600">{c.getValue().length === 1 ? '1 test' : `${c.getValue().length} tests`}</span>,
       }),
       col.accessor((s) => s.publishedVersion ?? 0, {
         id: 'versions',
