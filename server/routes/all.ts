@@ -11,6 +11,7 @@ import { scenarioRoutes } from './scenarios.ts';
 import { classRoutes } from './classes.ts';
 import { rosterRoutes } from './roster.ts';
 import { assignmentRoutes } from './assignments.ts';
+import { attemptRoutes } from './attempts.ts';
 
 export function allRouteGroups(ctx: AppContext): RouteGroup[] {
   return [
@@ -25,5 +26,6 @@ export function allRouteGroups(ctx: AppContext): RouteGroup[] {
     classRoutes(ctx),
     rosterRoutes(ctx),
     assignmentRoutes(ctx),
+    attemptRoutes(ctx),
   ];
 }

@@ -151,11 +151,30 @@ export const submitSchema = z
   });
 export type SubmitInput = z.infer<typeof submitSchema>;
 
-export const startAttemptSchema = z.union([
-  z.object({ assignmentId: z.number().int().positive() }).strict(),
-  z.object({ scenarioId: z.number().int().positive(), mode: z.literal('practice') }).strict(),
-]);
-export type StartAttemptInput = z.infer<typeof startAttemptSchema>;
+const positiveIdField = (field: string) =>
+  z.number({ error: `${field} must be a number` }).int(`${field} must be a whole number`).positive(`${field} must be a positive whole number`);
+
+/** POST /api/attempts: `{ assignmentId }` for an assignment, or `{ scenarioId, mode: 'practice' }`. */
+export const startAttemptSchema = z
+  .strictObject({
+    assignmentId: positiveIdField('assignmentId').optional(),
+    scenarioId: positiveIdField('scenarioId').optional(),
+    mode: z.literal('practice', { error: 'mode must be "practice" (assigned attempts are started with assignmentId)' }).optional(),
+  })
+  .superRefine((v, ctx) => {
+    if (v.assignmentId !== undefined) {
+      if (v.scenarioId !== undefined || v.mode !== undefined) {
+        ctx.addIssue({ code: 'custom', path: ['assignmentId'], message: 'send either assignmentId, or scenarioId with mode "practice", not both' });
+      }
+      return;
+    }
+    if (v.scenarioId === undefined) ctx.addIssue({ code: 'custom', path: ['scenarioId'], message: 'send assignmentId, or scenarioId with mode "practice"' });
+    if (v.mode === undefined) ctx.addIssue({ code: 'custom', path: ['mode'], message: 'mode must be "practice" for a practice run' });
+  })
+  .transform((v): { assignmentId: number } | { scenarioId: number; mode: 'practice' } =>
+    v.assignmentId !== undefined ? { assignmentId: v.assignmentId } : { scenarioId: v.scenarioId!, mode: 'practice' },
+  );
+export type StartAttemptInput = z.output<typeof startAttemptSchema>;
 
 export const attemptIdParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
 

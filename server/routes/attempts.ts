@@ -1,0 +1,49 @@
+/**
+ * /api/attempts: start an attempt, read its bootstrap, post its events,
+ * submit it, and a student's own list.
+ */
+import { attemptIdParamsSchema, postEventsSchema, startAttemptSchema, submitSchema } from '../../shared/api/attempts.ts';
+import { requireAttemptOwner, requireAttemptReader } from '../auth/access.ts';
+import { currentUser } from '../auth/guard.ts';
+import type { AppContext } from '../context.ts';
+import { routeGroup } from '../http/route-table.ts';
+import { parseBody, parseParams } from '../http/validate.ts';
+import { postEvents } from '../services/attempt-events.ts';
+import { attemptBootstrap, myAttempts, startAttempt } from '../services/attempt-store.ts';
+import { submitAttempt } from '../services/attempt-submit.ts';
+
+export function attemptRoutes(ctx: AppContext) {
+  const g = routeGroup('/api/attempts');
+
+  g.post('/', ['student'], async (req, res) => {
+    const input = parseBody(startAttemptSchema, req);
+    const id = await startAttempt(ctx.db, currentUser(req), input);
+    res.status(201).json(await attemptBootstrap(ctx.db, ctx.env.SESSION_SECRET, id));
+  });
+
+  g.get('/mine', ['student'], async (req, res) => {
+    res.json({ attempts: await myAttempts(ctx.db, currentUser(req).id) });
+  });
+
+  g.get('/:id', 'signed-in', async (req, res) => {
+    const { id } = parseParams(attemptIdParamsSchema, req);
+    await requireAttemptReader(ctx.db, currentUser(req), id);
+    res.json(await attemptBootstrap(ctx.db, ctx.env.SESSION_SECRET, id));
+  });
+
+  g.post('/:id/events', ['student'], async (req, res) => {
+    const { id } = parseParams(attemptIdParamsSchema, req);
+    await requireAttemptOwner(ctx.db, currentUser(req), id);
+    const input = parseBody(postEventsSchema, req);
+    res.json(await postEvents(ctx.db, id, input));
+  });
+
+  g.post('/:id/submit', ['student'], async (req, res) => {
+    const { id } = parseParams(attemptIdParamsSchema, req);
+    await requireAttemptOwner(ctx.db, currentUser(req), id);
+    const input = parseBody(submitSchema, req);
+    res.json(await submitAttempt(ctx.db, id, input));
+  });
+
+  return g;
+}

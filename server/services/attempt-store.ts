@@ -1,0 +1,187 @@
+/**
+ * Attempts in the database: starting one, the bootstrap the bench runs from,
+ * and a student's list. The bootstrap sends the healthy car and the faults
+ * sealed (docs/decisions/001-sealed-faults.md).
+ */
+import { randomInt } from 'node:crypto';
+import { and, asc, desc, eq, sql } from 'drizzle-orm';
+import type { SessionUser } from '../../shared/api/auth.ts';
+import type { AttemptBootstrap, AttemptResult, BenchScenarioView, MyAttemptRow, StartAttemptInput, StoredEvent } from '../../shared/api/attempts.ts';
+import { attemptResultSchema } from '../../shared/api/attempts.ts';
+import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, restoreScenario, studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
+import { deriveBenchKey, healthyVehicle, sealFaults, sealVehicle } from '../../shared/sealed-faults.ts';
+import { assertCanPractiseScenario, assertCanStartAssignment } from '../auth/access.ts';
+import type { Db, DbOrTx } from '../db/client.ts';
+import { assignments, attemptEvents, attempts, scenarioVersions } from '../db/schema.ts';
+import { notFound } from '../http/errors.ts';
+import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
+
+export interface AttemptRow {
+  id: number;
+  userId: number;
+  scenarioVersionId: number;
+  assignmentId: number | null;
+  mode: 'assigned' | 'practice';
+  seed: number;
+  status: 'running' | 'submitted';
+  lastSeq: number;
+  simTimeMs: number;
+  result: unknown;
+  startedAt: Date;
+}
+
+const attemptColumns = {
+  id: attempts.id,
+  userId: attempts.userId,
+  scenarioVersionId: attempts.scenarioVersionId,
+  assignmentId: attempts.assignmentId,
+  mode: attempts.mode,
+  seed: attempts.seed,
+  status: attempts.status,
+  lastSeq: attempts.lastSeq,
+  simTimeMs: attempts.simTimeMs,
+  result: attempts.result,
+  startedAt: attempts.startedAt,
+};
+
+export async function loadAttempt(db: DbOrTx, attemptId: number, opts: { lock?: boolean } = {}): Promise<AttemptRow> {
+  const q = db.select(attemptColumns).from(attempts).where(eq(attempts.id, attemptId));
+  const [row] = opts.lock ? await q.for('update') : await q;
+  if (!row) throw notFound('No such attempt');
+  return { ...row, mode: row.mode === 'practice' ? 'practice' : 'assigned', status: row.status === 'submitted' ? 'submitted' : 'running' };
+}
+
+export async function loadDefinition(db: DbOrTx, scenarioVersionId: number): Promise<ScenarioDefinition> {
+  const [row] = await db.select({ definition: scenarioVersions.definition }).from(scenarioVersions).where(eq(scenarioVersions.id, scenarioVersionId));
+  if (!row) throw notFound('No such scenario version');
+  return restoreScenario(row.definition);
+}
+
+/** What the assignment shows after submission (practice shows everything). */
+export async function showAfter(db: DbOrTx, assignmentId: number | null): Promise<{ showCurveAfter: boolean; showFeedbackAfter: boolean }> {
+  if (assignmentId === null) return { showCurveAfter: true, showFeedbackAfter: true };
+  const [row] = await db
+    .select({ showCurveAfter: assignments.showCurveAfter, showFeedbackAfter: assignments.showFeedbackAfter })
+    .from(assignments)
+    .where(eq(assignments.id, assignmentId));
+  return row ?? { showCurveAfter: true, showFeedbackAfter: true };
+}
+
+/** A random 31-bit seed for the model's generator. */
+export const newSeed = (): number => randomInt(0, 2 ** 31);
+
+/**
+ * Starts an attempt: of an assignment (enrolled, open, not past due, attempts
+ * left) or a practice run of a published scenario. The assignment's row is
+ * locked while counting, so two starts at once cannot pass the limit.
+ */
+export async function startAttempt(db: Db, user: SessionUser, input: StartAttemptInput): Promise<number> {
+  return db.transaction(async (tx) => {
+    if ('assignmentId' in input) {
+      await tx.select({ id: assignments.id }).from(assignments).where(eq(assignments.id, input.assignmentId)).for('update');
+      const [used] = await tx
+        .select({ n: sql<number>`count(*)::int` })
+        .from(attempts)
+        .where(and(eq(attempts.assignmentId, input.assignmentId), eq(attempts.userId, user.id)));
+      const assignment = await assertCanStartAssignment(tx, user, input.assignmentId, used?.n ?? 0);
+      const [row] = await tx
+        .insert(attempts)
+        .values({ userId: user.id, scenarioVersionId: assignment.scenarioVersionId, assignmentId: assignment.id, mode: 'assigned', seed: newSeed() })
+        .returning({ id: attempts.id });
+      return row!.id;
+    }
+    const { scenarioVersionId } = await assertCanPractiseScenario(tx, user, input.scenarioId);
+    const [row] = await tx
+      .insert(attempts)
+      .values({ userId: user.id, scenarioVersionId, assignmentId: null, mode: 'practice', seed: newSeed() })
+      .returning({ id: attempts.id });
+    return row!.id;
+  });
+}
+
+export async function storedEvents(db: DbOrTx, attemptId: number): Promise<StoredEvent[]> {
+  const rows = await db
+    .select({ seq: attemptEvents.seq, kind: attemptEvents.kind, simTimeMs: attemptEvents.simTimeMs, payload: attemptEvents.payload })
+    .from(attemptEvents)
+    .where(eq(attemptEvents.attemptId, attemptId))
+    .orderBy(asc(attemptEvents.seq));
+  return rows.flatMap((r) => {
+    const event = rowToInput(r);
+    return event ? [{ seq: r.seq, event }] : [];
+  });
+}
+
+export function benchScenarioView(def: ScenarioDefinition): BenchScenarioView {
+  const view = studentScenarioView(def);
+  return {
+    ...view,
+    diagnosisChoices: view.diagnosisChoices.map((value) => ({ value, label: diagnosisLabel(value) })),
+    tests: DIAGNOSTIC_TESTS.map((test) => ({ test, label: DIAGNOSTIC_TEST_LABELS[test] })),
+  };
+}
+
+export function storedResult(raw: unknown): AttemptResult | null {
+  if (raw === null || raw === undefined) return null;
+  const parsed = attemptResultSchema.safeParse(raw);
+  return parsed.success ? parsed.data : null;
+}
+
+export async function attemptBootstrap(db: DbOrTx, secret: string, attemptId: number): Promise<AttemptBootstrap> {
+  const a = await loadAttempt(db, attemptId);
+  const def = await loadDefinition(db, a.scenarioVersionId);
+  const show = await showAfter(db, a.assignmentId);
+  const benchKey = await deriveBenchKey(secret, a.id);
+  const { healthy, differs } = healthyVehicle(def.vehicle.params, def.vehicle.name);
+  // Exactly the faults the server's re-run injects at 0 ms.
+  const faults = scenarioFaultEvents(def).flatMap((e) => (e.kind === 'fault-inject' ? [e.fault] : []));
+  return {
+    attempt: {
+      id: a.id,
+      mode: a.mode,
+      status: a.status,
+      seed: a.seed,
+      startedAt: a.startedAt.toISOString(),
+      assignmentId: a.assignmentId,
+      lastSeq: a.lastSeq,
+      ...show,
+    },
+    scenario: benchScenarioView(def),
+    vehicle: healthy,
+    sealedFaults: await sealFaults(faults, benchKey),
+    sealedVehicle: differs ? await sealVehicle(def.vehicle.params, benchKey) : null,
+    benchKey,
+    events: await storedEvents(db, a.id),
+    result: a.status === 'submitted' ? storedResult(a.result) : null,
+  };
+}
+
+export async function myAttempts(db: DbOrTx, userId: number): Promise<MyAttemptRow[]> {
+  const rows = await db
+    .select({
+      id: attempts.id,
+      scenarioTitle: scenarioVersions.title,
+      mode: attempts.mode,
+      status: attempts.status,
+      startedAt: attempts.startedAt,
+      submittedAt: attempts.submittedAt,
+      timeToDiagnosisMs: attempts.timeToDiagnosisMs,
+      grade: attempts.grade,
+      assignmentTitle: assignments.title,
+    })
+    .from(attempts)
+    .innerJoin(scenarioVersions, eq(scenarioVersions.id, attempts.scenarioVersionId))
+    .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
+    .where(eq(attempts.userId, userId))
+    .orderBy(desc(attempts.startedAt), desc(attempts.id));
+  return rows.map((r) => ({
+    id: r.id,
+    scenarioTitle: r.scenarioTitle,
+    mode: r.mode === 'practice' ? 'practice' : 'assigned',
+    status: r.status === 'submitted' ? 'submitted' : 'running',
+    startedAt: r.startedAt.toISOString(),
+    submittedAt: r.submittedAt ? r.submittedAt.toISOString() : null,
+    timeToDiagnosisMs: r.timeToDiagnosisMs,
+    grade: r.grade,
+    assignmentTitle: r.assignmentTitle,
+  }));
+}

@@ -1,0 +1,72 @@
+/**
+ * Submission: in one transaction with the attempt locked, re-run the model
+ * over the stored log up to the submission's sim time, grade, and store the
+ * readings, diagnosis and result. Time to diagnosis is the sim time of the
+ * submission (what the student spent at the bench, pauses and reloads aside).
+ */
+import { eq } from 'drizzle-orm';
+import { outputCurve } from '../../sim/instruments.ts';
+import type { AttemptResult, SubmitInput } from '../../shared/api/attempts.ts';
+import { healthyVehicle } from '../../shared/sealed-faults.ts';
+import type { Db } from '../db/client.ts';
+import { attempts } from '../db/schema.ts';
+import { badRequest, conflict } from '../http/errors.ts';
+import { rerunAttempt } from './attempt-replay.ts';
+import { loadAttempt, showAfter } from './attempt-store.ts';
+import { gradeAttempt } from './grading.ts';
+import { loadAttemptRun } from './live-attempt-run.ts';
+
+export async function submitAttempt(db: Db, attemptId: number, input: SubmitInput): Promise<AttemptResult> {
+  return db.transaction(async (tx) => {
+    const attempt = await loadAttempt(tx, attemptId, { lock: true });
+    if (attempt.status === 'submitted') throw conflict('This attempt has already been submitted');
+
+    const run = await loadAttemptRun(tx, attemptId);
+    const seqs = run.stored.map((s) => s.seq);
+    const missing = seqs.findIndex((seq, i) => seq !== i + 1);
+    if (missing !== -1) {
+      throw conflict(`Events ${missing + 1} to ${seqs[missing]! - 1} have not arrived yet; send them before submitting`, 'events');
+    }
+    const lastAtMs = run.stored.reduce((m, s) => Math.max(m, s.event.atMs), 0);
+    if (input.atMs < lastAtMs) {
+      throw badRequest(`atMs: the submission (${input.atMs} ms) is earlier than the last stored event (${lastAtMs} ms)`, { field: 'atMs' });
+    }
+
+    const params = run.params;
+    const rerun = rerunAttempt(params, run.seed, run.events, input.atMs);
+    const faults = rerun.final.controls.faults;
+    const show = await showAfter(tx, attempt.assignmentId);
+    const curve = show.showCurveAfter
+      ? {
+          healthy: outputCurve(healthyVehicle(params, run.definition.vehicle.name).healthy, [], { hot: false }),
+          fitted: outputCurve(params, faults, { hot: false }),
+        }
+      : null;
+    const result = gradeAttempt({
+      mode: attempt.mode,
+      submission: input,
+      testsExpected: run.definition.testsExpected,
+      faults,
+      samples: rerun.samples,
+      showFeedback: show.showFeedbackAfter,
+      curve,
+      pulleyRatio: params.belt.pulleyRatio,
+    });
+
+    await tx
+      .update(attempts)
+      .set({
+        status: 'submitted',
+        readings: input.readings,
+        diagnosis: { atMs: input.atMs, ...input.diagnosis },
+        result,
+        grade: result.grade,
+        verified: result.verified,
+        timeToDiagnosisMs: result.timeToDiagnosisMs,
+        simTimeMs: Math.max(attempt.simTimeMs, input.atMs),
+        submittedAt: new Date(),
+      })
+      .where(eq(attempts.id, attemptId));
+    return result;
+  });
+}
