@@ -11,6 +11,7 @@
  * Units in names: V, A, Ohm, C, s, 01 = fraction.
  */
 
+import { detExp } from './det-math.ts';
 import type { BatteryParams } from './params.ts';
 
 /** BCI open-circuit voltages (flooded, 26.7 C) at 0, 25, 50, 75, 100 % charge. */
@@ -29,9 +30,21 @@ export function openCircuitVoltageV(soc01: number, tempC: number): number {
   return v + OCV_TEMP_COEFF_V_PER_C * (tempC - BCI_TEMP_C);
 }
 
+/** e^(k (25 - T)), remembered for the last temperature asked (the battery's is fixed). */
+function expAbove25(k: number, tempC: number, memo: { k: number; tempC: number; value: number }): number {
+  if (memo.tempC !== tempC || memo.k !== k) {
+    memo.k = k;
+    memo.tempC = tempC;
+    memo.value = detExp(k * (25 - tempC));
+  }
+  return memo.value;
+}
+const resistanceMemo = { k: NaN, tempC: NaN, value: 1 };
+const acceptanceMemo = { k: NaN, tempC: NaN, value: 1 };
+
 /** Resistance grows about 1.7x from 25 C to -18 C. */
 function temperatureFactor(tempC: number): number {
-  return Math.exp(0.0125 * (25 - tempC));
+  return expAbove25(0.0125, tempC, resistanceMemo);
 }
 
 function ageFactor(ageYears: number): number {
@@ -55,7 +68,7 @@ export function capacityAs(b: BatteryParams): number {
 export function polarizationResistanceOhm(b: BatteryParams, soc01: number, dischargeA: number, r0Ohm: number): number {
   if (dischargeA >= 0) return 0.35 * r0Ohm;
   const s = soc01 < 0 ? 0 : soc01 > 1 ? 1 : soc01;
-  return (0.0278 / (1 - s + 0.0556)) * Math.exp(0.02 * (25 - b.tempC)) * ageFactor(b.ageYears);
+  return (0.0278 / (1 - s + 0.0556)) * expAbove25(0.02, b.tempC, acceptanceMemo) * ageFactor(b.ageYears);
 }
 
 /** Surface charge lingers at rest (tens of minutes) and collapses under load. */
@@ -65,7 +78,7 @@ const REST_TIME_CONSTANT_S = 1800;
 const CHARGE_TIME_FACTOR = 6;
 
 export function polarizationTimeConstantS(b: BatteryParams, dischargeA: number): number {
-  const w = Math.exp(-Math.abs(dischargeA) / 2);
+  const w = detExp(-Math.abs(dischargeA) / 2);
   const underLoad = dischargeA >= 0 ? b.surfaceChargeTimeConstantS : CHARGE_TIME_FACTOR * b.surfaceChargeTimeConstantS;
   return underLoad + (REST_TIME_CONSTANT_S - underLoad) * w;
 }

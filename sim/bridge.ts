@@ -20,6 +20,8 @@
  * Units in names: V, A, Ohm, H, rad/s; "n" prefixes dimensionless values.
  */
 
+import { detCos, detLog1p, detSin } from './det-math.ts';
+
 /** Which diodes and phases work. Diodes 0-2 positive (A-C), 3-5 negative (A-C). */
 export interface BridgeTopology {
   openDiodes: readonly number[];
@@ -230,7 +232,7 @@ function sineTable(n: number): Float64Array {
   if (!t) {
     t = new Float64Array(3 * (n + 1));
     for (let k = 0; k < 3; k++) {
-      for (let s = 0; s <= n; s++) t[k * (n + 1) + s] = Math.sin((2 * Math.PI * s) / n - (2 * Math.PI * k) / 3);
+      for (let s = 0; s <= n; s++) t[k * (n + 1) + s] = detSin((2 * Math.PI * s) / n - (2 * Math.PI * k) / 3);
     }
     sineTables.set(n, t);
   }
@@ -247,8 +249,8 @@ function harmonicTable(n: number): { cos: Float64Array; sin: Float64Array } {
     for (let k = 1; k <= MAX_HARMONIC; k++) {
       for (let s = 0; s < n; s++) {
         const x = (2 * Math.PI * k * (s + 1)) / n;
-        cos[(k - 1) * n + s] = Math.cos(x);
-        sin[(k - 1) * n + s] = Math.sin(x);
+        cos[(k - 1) * n + s] = detCos(x);
+        sin[(k - 1) * n + s] = detSin(x);
       }
     }
     t = { cos, sin };
@@ -535,7 +537,7 @@ export const THERMAL_VOLTAGE_V = 0.025852;
 /** Forward drop of a diode carrying `currentA` (without its bulk resistance). */
 export function diodeDropV(d: DiodeShockley, currentA: number): number {
   const i = currentA > 0 ? currentA : 0;
-  return d.emissionCoefficient * THERMAL_VOLTAGE_V * Math.log1p(i / d.saturationCurrentA);
+  return d.emissionCoefficient * THERMAL_VOLTAGE_V * detLog1p(i / d.saturationCurrentA);
 }
 
 export interface BridgePointInput {
@@ -588,7 +590,7 @@ export function bridgeOperatingPoint(inp: BridgePointInput, out: BridgePoint): B
   let hi = base * f0;
   let i = inp.guessA > lo && inp.guessA < hi ? inp.guessA : 0.5 * hi;
   for (let iter = 0; iter < 30; iter++) {
-    const vf = nvt * Math.log1p(i / is);
+    const vf = nvt * detLog1p(i / is);
     const lk = lookupTable(table, (vth + rth * i + 2 * vf) / e, r, scratch, vf / e);
     const f = i - base * lk.mean;
     if (f > 0) hi = i;
@@ -600,7 +602,7 @@ export function bridgeOperatingPoint(inp: BridgePointInput, out: BridgePoint): B
     if (!(nextI > lo && nextI < hi)) nextI = 0.5 * (lo + hi);
     i = nextI;
   }
-  const vfEnd = nvt * Math.log1p(i / is);
+  const vfEnd = nvt * detLog1p(i / is);
   const lk = lookupTable(table, (vth + rth * i + 2 * vfEnd) / e, r, scratch, vfEnd / e);
   out.meanA = i;
   out.acRmsA = base * lk.acRms;

@@ -8,6 +8,7 @@
  * Units in names: V, A, Ohm, S (siemens), H, s, C, rad/s.
  */
 
+import { detExp, detTanh } from './det-math.ts';
 import type { VehicleParams } from './params.ts';
 import { copperResistanceOhm } from './params.ts';
 import type { Fault } from './faults.ts';
@@ -57,6 +58,33 @@ export interface Model {
   capacityAs: number;
   leakageG: number;
   diode: { saturationCurrentA: number; emissionCoefficient: number };
+  /** e^(-dt/tau) of the fixed time constants, for the last dt asked (see decaysFor). */
+  decays: Decays | null;
+}
+
+export interface Decays {
+  dtS: number;
+  engine: number;
+  alternatorThermal: number;
+  link: number;
+  ammeterFuse: number;
+}
+
+/** Time constant of the series ammeter's fuse. */
+export const AMMETER_FUSE_TIME_CONSTANT_S = 2;
+
+/** Per-step decay factors of the model's fixed time constants (computed once per dt). */
+export function decaysFor(m: Model, dtS: number): Decays {
+  if (m.decays && m.decays.dtS === dtS) return m.decays;
+  const d: Decays = {
+    dtS,
+    engine: detExp(-dtS / m.p.engine.lagTimeConstantS),
+    alternatorThermal: detExp(-dtS / m.p.alternator.thermalTimeConstantS),
+    link: detExp(-dtS / m.linkTimeConstantS),
+    ammeterFuse: detExp(-dtS / AMMETER_FUSE_TIME_CONSTANT_S),
+  };
+  m.decays = d;
+  return d;
 }
 
 /** Resistance of a copper winding at a temperature, given its value at 20 C. */
@@ -87,7 +115,7 @@ export function compile(p: VehicleParams): Model {
     table: bridgeTable(topology),
     emfConstantVsPerRad: emfConstant,
     fieldKneeA: a.fieldKneeCurrentA,
-    tanhReference: Math.tanh(referenceFieldA / a.fieldKneeCurrentA),
+    tanhReference: detTanh(referenceFieldA / a.fieldKneeCurrentA),
     rPosOhm: w.postClampPosOhm + copperResistanceOhm(w.batteryPosCableAwg, w.batteryPosCableLengthM) + joint,
     rBplusOhm:
       copperResistanceOhm(w.bplusCableAwg, w.bplusCableLengthM) +
@@ -105,12 +133,13 @@ export function compile(p: VehicleParams): Model {
     capacityAs: capacityAs(p.battery),
     leakageG: a.keyOffLeakageA / 12.6,
     diode: { saturationCurrentA: a.diodeSaturationCurrentA, emissionCoefficient: a.diodeEmissionCoefficient },
+    decays: null,
   };
 }
 
 /** Flux of the claw-pole rotor relative to reference: saturates above the knee. */
 export function relativeFlux(m: Model, fieldA: number): number {
-  return Math.tanh((fieldA > 0 ? fieldA : 0) / m.fieldKneeA) / m.tanhReference;
+  return detTanh((fieldA > 0 ? fieldA : 0) / m.fieldKneeA) / m.tanhReference;
 }
 
 /** Field winding plus brushes at a temperature. */

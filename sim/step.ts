@@ -28,7 +28,9 @@ import {
   effectiveModel,
   REGULATOR_SELF_CONDUCTANCE_S,
   copperAt,
+  decaysFor,
   fieldResistanceOhm,
+  relativeFlux,
 } from './model.ts';
 import {
   CHARGE_EFFICIENCY,
@@ -38,6 +40,7 @@ import {
   polarizationTimeConstantS,
 } from './battery.ts';
 import { nextRngState, rngValue } from './rng.ts';
+import { detExp } from './det-math.ts';
 
 /** The fixed step. Replays always use it; changing it changes every stored replay. */
 export const DT_MS = 10;
@@ -200,7 +203,7 @@ function solveAt(n: NetworkInputs): NetworkSolution {
   const cranking = c.key === 'start' && (n.engineStatus === 'cranking' || n.engineStatus === 'stalled');
 
   const omegaE = (2 * Math.PI * p.alternator.polePairs * n.altRpm) / 60;
-  const flux = Math.tanh((n.fieldCurrentA > 0 ? n.fieldCurrentA : 0) / m.fieldKneeA) / m.tanhReference;
+  const flux = relativeFlux(m, n.fieldCurrentA);
 
   const a = p.alternator;
   const ni = networkInput;
@@ -350,7 +353,8 @@ export function step(params: VehicleParams, state: SimState, controls: Controls,
   let targetRpm = 0;
   if (status === 'running') targetRpm = clamp(Math.max(p.engine.idleRpm, controls.heldRpm), p.engine.idleRpm, p.engine.maxHeldRpm);
   else if (status === 'cranking') targetRpm = clamp((p.engine.crankRpm * starterV) / 10, 0, 1.5 * p.engine.crankRpm);
-  const lag = 1 - Math.exp(-dt / p.engine.lagTimeConstantS);
+  const decay = decaysFor(model, dt);
+  const lag = 1 - decay.engine;
   let engineRpm = state.engineRpm + (targetRpm - state.engineRpm) * lag;
   if (status === 'running') {
     rng = nextRngState(rng);
@@ -406,31 +410,34 @@ export function step(params: VehicleParams, state: SimState, controls: Controls,
   const rField = fieldResistanceOhm(model, state.alternatorTempC);
   const drive = duty * Math.max(0, bplusV - FIELD_DRIVER_DROP_V) - (1 - duty) * (state.fieldCurrentA > 0.01 ? FIELD_FREEWHEEL_V : 0);
   const fieldTarget = Math.max(0, drive / rField);
-  const fieldDecay = Math.exp((-dt * rField) / p.alternator.fieldInductanceH);
+  const fieldDecay = detExp((-dt * rField) / p.alternator.fieldInductanceH);
   const fieldCurrentA = fieldTarget + (state.fieldCurrentA - fieldTarget) * fieldDecay;
 
   // ---- Temperatures, battery charge, fuses ---------------------------------
   const bridgeA = prev.bridgeCurrentA;
-  const altHotC = underhoodC(p) + p.alternator.fullLoadTempRiseC * (bridgeA / p.alternator.ratedCurrentA) ** 2;
-  const altTempC = altHotC + (state.alternatorTempC - altHotC) * Math.exp(-dt / p.alternator.thermalTimeConstantS);
+  const loadFraction = bridgeA / p.alternator.ratedCurrentA;
+  const altHotC = underhoodC(p) + p.alternator.fullLoadTempRiseC * loadFraction * loadFraction;
+  const altTempC = altHotC + (state.alternatorTempC - altHotC) * decay.alternatorThermal;
 
   const dischargeA = prev.branchA.battery;
   const r0 = internalResistanceOhm(p.battery, state.batterySoc01);
   const rp = polarizationResistanceOhm(p.battery, state.batterySoc01, dischargeA, r0);
   const tauP = polarizationTimeConstantS(p.battery, dischargeA);
   const polTarget = -dischargeA * rp;
-  const polarizationV = polTarget + (state.batteryPolarizationV - polTarget) * Math.exp(-dt / tauP);
+  const polarizationV = polTarget + (state.batteryPolarizationV - polTarget) * detExp(-dt / tauP);
   const chargeAs = dischargeA >= 0 ? -dischargeA * dt : -dischargeA * CHARGE_EFFICIENCY * dt;
   const soc01 = clamp(state.batterySoc01 + chargeAs / model.capacityAs, 0, 1);
 
   const linkA = prev.branchA.bplusCable;
-  const linkTarget = (linkA / p.wiring.fusibleLinkRatingA) ** 2;
-  const linkHeat = linkTarget + (state.fusibleLinkHeat01 - linkTarget) * Math.exp(-dt / model.linkTimeConstantS);
+  const linkRatio = linkA / p.wiring.fusibleLinkRatingA;
+  const linkTarget = linkRatio * linkRatio;
+  const linkHeat = linkTarget + (state.fusibleLinkHeat01 - linkTarget) * decay.link;
   const linkBlown = state.fusibleLinkBlown || linkHeat >= 1;
 
   const ammeterA = controls.ammeterInSeries ? prev.branchA.negCable : 0;
-  const fuseTarget = (ammeterA / AMMETER_FUSE_A) ** 2;
-  const fuseHeat = fuseTarget + (state.ammeterFuseHeat01 - fuseTarget) * Math.exp(-dt / 2);
+  const fuseRatio = ammeterA / AMMETER_FUSE_A;
+  const fuseTarget = fuseRatio * fuseRatio;
+  const fuseHeat = fuseTarget + (state.ammeterFuseHeat01 - fuseTarget) * decay.ammeterFuse;
   const fuseBlown = state.ammeterFuseBlown || (controls.ammeterInSeries && fuseHeat >= 1);
 
   const pileW = prev.nodeV.batteryPos * prev.branchA.pile;
