@@ -27,6 +27,16 @@ export function StudentBenchHome() {
             <MyAssignmentsList assignments={mine.data} onStart={(assignmentId) => void navigate(paths.benchNew.href({ assignmentId }))} />
           )}
         </section>
+        <Panel title="On a real vehicle">
+          <ul className="list-disc space-y-1 pl-5 text-sm text-slate-700">
+            <li>Keep hands, hair, sleeves, jewellery and test leads clear of the fan and belts; an electric fan can start with the engine off.</li>
+            <li>Run engines only with the exhaust extracted or the shop well ventilated.</li>
+            <li>Batteries can give off explosive gas: eye protection, no sparks or flames, and connect or remove clamps with the load off.</li>
+            <li>A carbon pile gets hot: load in short bursts of about 15 seconds and let it cool between tests.</li>
+            <li>A fusible link that has opened protects against a fault: find the cause before replacing it with the specified link.</li>
+          </ul>
+          <p className="mt-2 text-xs text-slate-500">The simulator teaches the method. On a vehicle, follow the maker’s service information, local codes and your shop’s safe practice.</p>
+        </Panel>
         <Panel title="Practice">
           <p className="mb-3 text-sm text-slate-600">Practice runs do not use up an assignment’s attempts: try the tests as often as you like.</p>
           {practice.isPending ? (
