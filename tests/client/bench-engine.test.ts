@@ -83,6 +83,17 @@ describe('the live bench engine', () => {
     expect(second.getSnapshot().controls.accessoriesOn).toEqual(['headlamps']);
   });
 
+  it('does not show a link that was open before the student arrived, only one burnt open on the bench', () => {
+    const engine = createBenchEngine({
+      params,
+      seed: SEED,
+      scenarioEvents: [{ kind: 'fault-inject', atMs: 0, fault: { id: 'f', kind: 'fusible-link-open', severity01: 1, onsetS: 0 } }],
+    });
+    frames(engine, 10);
+    expect(engine.getSnapshot().readings.fusibleLinkOpen).toBe(true);
+    expect(engine.getSnapshot().linkBlownHere).toBe(false);
+  });
+
   it('lets sim time pass quickly in whole steps', () => {
     const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
     engine.skipAhead(60_000);

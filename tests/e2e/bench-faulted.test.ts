@@ -23,8 +23,11 @@ describe('a faulted scenario, diagnosed in practice mode', () => {
     const problems = watchConsole(page);
     await signInAs(page, app.url, demoFirst('student').email);
     await openBench(page, app.url, `scenarioId=${scenarioId}`);
-    // The bench itself must not name the fault before submission.
-    expect(await page.locator('main').textContent()).not.toMatch(/fusible link open|link open/i);
+    // The bench must not give the fault away before submission: the drawing shows the link intact, nothing warns of it.
+    const drawing = page.getByRole('img', { name: /Engine bay schematic/ });
+    expect(await drawing.getAttribute('aria-label')).not.toMatch(/link/i);
+    expect(await drawing.textContent()).not.toMatch(/link open/i);
+    expect(await page.getByRole('alert').count()).toBe(0);
 
     await hookUp(page, { red: 'battery-pos', black: 'battery-neg' });
     const resting = await reading(page, 'volts');

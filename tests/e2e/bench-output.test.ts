@@ -61,10 +61,12 @@ describe('a healthy output test, end to end', () => {
     // The attempt is in the student's table with its grade.
     await page.getByRole('link', { name: 'My attempts' }).first().click();
     await page.waitForURL(/\/attempts$/);
+    await page.getByRole('heading', { name: 'My attempts' }).waitFor();
+    await page.waitForTimeout(1000);
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-my-attempts.png`, fullPage: true });
     const row = page.getByRole('row').filter({ hasText: 'Pre-purchase check' });
     await expect.poll(() => row.count()).toBe(1);
     expect(await row.textContent()).toMatch(/Submitted/);
-    await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-my-attempts.png`, fullPage: true });
     expect(problems).toEqual([]);
     await page.close();
   });

@@ -51,10 +51,17 @@ export function AttemptsTable({ attempts }: { attempts: MyAttemptRow[] }) {
                 </span>
               </td>
               <td className="px-4 py-2 text-right">
-                <Link to={paths.benchAttempt.href(a.id)} className="font-medium text-slate-900 underline underline-offset-2">
-                  {a.status === 'submitted' ? 'Open result' : 'Continue'}
-                  <span className="sr-only"> {a.scenarioTitle}</span>
-                </Link>
+                <span className="flex justify-end gap-3">
+                  <Link to={paths.benchAttempt.href(a.id)} className="font-medium text-slate-900 underline underline-offset-2">
+                    {a.status === 'submitted' ? 'Open result' : 'Continue'}
+                    <span className="sr-only"> {a.scenarioTitle}</span>
+                  </Link>
+                  {a.status === 'submitted' && (
+                    <Link to={paths.replay.href(a.id)} className="font-medium text-slate-600 underline underline-offset-2">
+                      Replay<span className="sr-only"> {a.scenarioTitle}</span>
+                    </Link>
+                  )}
+                </span>
               </td>
             </tr>
           ))}

@@ -244,7 +244,7 @@ interface Drag {
   moved: boolean;
 }
 
-const selectHookup = (s: { controls: Controls; readings: { fusibleLinkOpen: boolean; chargeWarning: boolean; pileHot: boolean; pileOverheated: boolean } }) => ({
+const selectHookup = (s: { controls: Controls; linkBlownHere: boolean; readings: { chargeWarning: boolean; pileHot: boolean; pileOverheated: boolean } }) => ({
   red: s.controls.leads.red,
   black: s.controls.leads.black,
   conductor: s.controls.clamp.conductor,
@@ -252,7 +252,7 @@ const selectHookup = (s: { controls: Controls; readings: { fusibleLinkOpen: bool
   ammeter: s.controls.ammeterInSeries,
   bplus: s.controls.bplusConnected,
   accessoriesOn: s.controls.accessoriesOn.join(','),
-  linkOpen: s.readings.fusibleLinkOpen,
+  linkOpen: s.linkBlownHere,
   lamp: s.readings.chargeWarning,
   pileHot: s.readings.pileHot,
   pileOver: s.readings.pileOverheated,

@@ -4,10 +4,10 @@
  */
 import { shallowEqual, useBench } from '../hooks/use-bench.ts';
 
-const selectStatus = (s: { readings: { engine: string; chargeWarning: boolean; fusibleLinkOpen: boolean; pileOverheated: boolean; pileHot: boolean; voltmeterV: number | null; batterySoc01: number }; controls: { key: string } ; timeMs: number }) => ({
+const selectStatus = (s: { linkBlownHere: boolean; readings: { engine: string; chargeWarning: boolean; pileOverheated: boolean; pileHot: boolean; voltmeterV: number | null; batterySoc01: number }; controls: { key: string } ; timeMs: number }) => ({
   engine: s.readings.engine,
   lamp: s.readings.chargeWarning,
-  link: s.readings.fusibleLinkOpen,
+  link: s.linkBlownHere,
   over: s.readings.pileOverheated,
   hot: s.readings.pileHot,
   key: s.controls.key,
@@ -33,7 +33,7 @@ export function BenchStatus() {
       </span>
       {s.link && (
         <span role="alert" className="rounded-full bg-warn-100 px-2.5 py-1 text-warn-700 ring-1 ring-warn-500/40">
-          Fusible link open — the alternator no longer reaches the battery
+          The fusible link has burnt open: the load was held over its rating too long. The alternator no longer reaches the battery.
         </span>
       )}
       {s.engine === 'stalled' && (

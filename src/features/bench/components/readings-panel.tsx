@@ -112,7 +112,7 @@ export function ReadingsPanel({
               <th className="py-1 font-medium">Time</th>
               <th className="py-1 font-medium">Test</th>
               <th className="py-1 text-right font-medium">Value</th>
-              <th className="py-1 font-medium">Where</th>
+              <th className="py-1 pl-3 font-medium">Where</th>
               <th className="py-1">
                 <span className="sr-only">Remove</span>
               </th>
@@ -123,10 +123,10 @@ export function ReadingsPanel({
               <tr key={r.id} data-testid="recorded-reading">
                 <td className="py-1.5 font-mono text-xs text-slate-500">{formatTime(r.atMs)}</td>
                 <td className="py-1.5 text-slate-700">{tests.find((t) => t.test === r.test)?.label ?? r.test}</td>
-                <td className="py-1.5 text-right font-mono font-semibold text-slate-900">
+                <td className="whitespace-nowrap py-1.5 text-right font-mono font-semibold text-slate-900">
                   {r.value} {r.unit}
                 </td>
-                <td className="max-w-64 truncate py-1.5 text-xs text-slate-500" title={r.where}>
+                <td className="max-w-56 truncate py-1.5 pl-3 text-xs text-slate-500" title={r.where}>
                   {r.where}
                 </td>
                 <td className="py-1.5 text-right">

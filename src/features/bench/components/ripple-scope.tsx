@@ -14,7 +14,7 @@ export function scopeScaleV(peakV: number): number {
   return steps.find((s) => s * 4 >= peakV) ?? 5;
 }
 
-export const RippleScopeView = memo(function RippleScopeView({ trace }: { trace: RippleTrace | null }) {
+export const RippleScopeView = memo(function RippleScopeView({ trace, leadsOn }: { trace: RippleTrace | null; leadsOn: boolean }) {
   const samples = trace?.acV ?? [];
   const peak = samples.reduce((m, v) => Math.max(m, Math.abs(v)), 0);
   const perDiv = scopeScaleV(peak);
@@ -31,7 +31,7 @@ export const RippleScopeView = memo(function RippleScopeView({ trace }: { trace:
   const spanMs = trace ? trace.sampleIntervalS * samples.length * 1000 : 0;
   return (
     <figure>
-      <svg viewBox={`0 0 ${W} ${H}`} className="h-auto w-full rounded-md bg-slate-900" role="img" aria-label={trace ? `Ripple trace, ${perDiv * 1000} millivolts per division` : 'Ripple trace: connect both leads'}>
+      <svg viewBox={`0 0 ${W} ${H}`} className="h-auto w-full rounded-md bg-slate-900" role="img" aria-label={trace ? `Ripple trace, ${Math.round(perDiv * 1000)} millivolts per division` : leadsOn ? 'Ripple trace: no AC between the leads' : 'Ripple trace: connect both leads'}>
         {Array.from({ length: 9 }, (_, i) => (
           <line key={`h${i}`} x1={0} x2={W} y1={(H * i) / 8} y2={(H * i) / 8} className={i === 4 ? 'stroke-slate-600' : 'stroke-slate-800'} />
         ))}
@@ -41,7 +41,7 @@ export const RippleScopeView = memo(function RippleScopeView({ trace }: { trace:
         {trace ? <path d={path} fill="none" className="stroke-live-300" strokeWidth={1.5} /> : null}
       </svg>
       <figcaption className="mt-1 flex justify-between text-xs text-slate-500">
-        <span>{trace ? `${perDiv >= 1 ? `${perDiv} V` : `${Math.round(perDiv * 1000)} mV`}/div` : 'connect both leads'}</span>
+        <span>{trace ? `${perDiv >= 1 ? `${perDiv} V` : `${Math.round(perDiv * 1000)} mV`}/div` : leadsOn ? 'no AC between the leads' : 'connect both leads'}</span>
         <span>{trace ? `${spanMs.toFixed(1)} ms across · ${Math.round(trace.electricalHz)} Hz electrical` : ''}</span>
       </figcaption>
     </figure>
@@ -50,5 +50,6 @@ export const RippleScopeView = memo(function RippleScopeView({ trace }: { trace:
 
 export function RippleScope() {
   const trace = useBench((s) => s.trace);
-  return <RippleScopeView trace={trace} />;
+  const leadsOn = useBench((s) => s.controls.leads.red !== null && s.controls.leads.black !== null);
+  return <RippleScopeView trace={trace} leadsOn={leadsOn} />;
 }

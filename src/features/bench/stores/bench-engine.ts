@@ -44,6 +44,11 @@ export interface BenchSnapshot {
   history: readonly HistorySample[];
   trace: RippleTrace | null;
   eventCount: number;
+  /**
+   * The fusible link burnt open on this bench (held over its rating). A link
+   * that was open before the student arrived is not shown: finding it is the job.
+   */
+  linkBlownHere: boolean;
 }
 
 export interface BenchEngineOptions {
@@ -78,7 +83,7 @@ export interface BenchEngine {
 }
 
 function emptySnapshot(point: ReplayPoint, readings: Readings, eventCount: number): BenchSnapshot {
-  return { timeMs: point.state.timeMs, readings, controls: point.controls, history: [], trace: null, eventCount };
+  return { timeMs: point.state.timeMs, readings, controls: point.controls, history: [], trace: null, eventCount, linkBlownHere: point.state.fusibleLinkBlown };
 }
 
 export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
@@ -129,6 +134,7 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
       history,
       trace,
       eventCount: student.length,
+      linkBlownHere: point.state.fusibleLinkBlown,
     };
     for (const l of [...listeners]) l();
   }
