@@ -1,4 +1,5 @@
-import { writeFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Browser, Page } from 'playwright-core';
@@ -6,6 +7,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
 import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
 import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+
+/** The machine may be busy: give the page time to answer. */
+const POLL = { timeout: 15_000 };
 
 let browser: Browser;
 let app: E2eServer;
@@ -22,6 +26,20 @@ afterAll(async () => {
   await app?.close();
 });
 
+const axeSource = readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8');
+
+/** Serious and critical accessibility problems on the page, by axe-core's rules (WCAG 2 A/AA). */
+async function accessibilityProblems(page: Page): Promise<string[]> {
+  await page.evaluate(axeSource);
+  return page.evaluate(async () => {
+    const axe = (window as unknown as { axe: { run: (ctx: Document, opts: object) => Promise<{ violations: { id: string; impact: string | null; nodes: { target: string[] }[] }[] }> } }).axe;
+    const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa'] } });
+    return result.violations
+      .filter((v) => v.impact === 'serious' || v.impact === 'critical')
+      .map((v) => `${v.id}: ${v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join(', ')}`);
+  });
+}
+
 async function newPage(): Promise<{ page: Page; problems: string[] }> {
   const page = await browser.newPage({ viewport: { width: 1400, height: 900 } });
   return { page, problems: watchConsole(page) };
@@ -34,23 +52,24 @@ describe('the instructor builds, publishes and assigns a scenario that a student
     const { page, problems } = await newPage();
     await signInAs(page, app.url, rune.email);
     await page.goto(`${app.url}/scenarios`);
-    await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toBe('Scenario library');
+    await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), POLL).toBe('Scenario library');
     const rows = page.locator('tbody tr');
-    await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(14);
+    await expect.poll(() => rows.count(), POLL).toBeGreaterThanOrEqual(14);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/scenario-library.png`, fullPage: true });
+    expect(await accessibilityProblems(page)).toEqual([]);
     await page.getByLabel('Fault').selectOption('belt-slip');
-    await expect.poll(() => rows.count()).toBe(1);
-    await expect.poll(() => rows.first().textContent()).toContain('Harlan Ridge compact pickup');
+    await expect.poll(() => rows.count(), POLL).toBe(1);
+    await expect.poll(() => rows.first().textContent(), POLL).toContain('Harlan Ridge compact pickup');
     await page.getByLabel('Fault').selectOption('');
     await page.getByLabel('Difficulty').selectOption('intro');
     await page.getByLabel('Test expected').selectOption('battery-load');
-    await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(1);
+    await expect.poll(() => rows.count(), POLL).toBeGreaterThanOrEqual(1);
     const texts = await rows.allTextContents();
     expect(texts.every((t) => t.includes('Intro'))).toBe(true);
     await page.getByLabel('Difficulty').selectOption('');
     await page.getByLabel('Test expected').selectOption('');
     await page.getByRole('searchbox', { name: 'Search' }).fill('quillon');
-    await expect.poll(() => rows.count()).toBe(1);
+    await expect.poll(() => rows.count(), POLL).toBe(1);
     expect(problems).toEqual([]);
     await page.close();
   });
@@ -64,29 +83,30 @@ describe('the instructor builds, publishes and assigns a scenario that a student
     await page.getByLabel('Vehicle name').fill('Lowmarsh Tally compact sedan');
     await page.getByLabel('Rated output (A)').fill('9999');
     await page.getByLabel('Rated output (A)').blur();
-    await expect.poll(() => page.getByText('Rated output must be at most 250 A').count()).toBe(1);
+    await expect.poll(() => page.getByText('Rated output must be at most 250 A').count(), POLL).toBe(1);
     await page.getByLabel('Rated output (A)').fill('120');
     await page.getByRole('button', { name: 'Size the stator for 120 A' }).click();
     await page.getByRole('button', { name: 'Add a fault' }).click();
     await page.getByLabel('Fault 1', { exact: true }).selectOption('diode-open');
     await page.getByLabel('Severity').fill('1');
     await page.getByRole('group', { name: 'Tests the student is expected to run' }).getByLabel('AC ripple (diode) check').check();
-    await expect.poll(() => page.getByTestId('output-curve-preview').count()).toBe(1);
-    await expect.poll(() => page.getByTestId('output-curve-preview').locator('path').count()).toBe(2);
+    await expect.poll(() => page.getByTestId('output-curve-preview').count(), POLL).toBe(1);
+    await expect.poll(() => page.getByTestId('output-curve-preview').locator('path').count(), POLL).toBe(2);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/scenario-editor-new.png`, fullPage: true });
     await page.getByTestId('output-curve-preview').screenshot({ path: `${SCREENSHOT_DIR}/scenario-editor-preview.png` });
+    expect(await accessibilityProblems(page)).toEqual([]);
     await page.getByRole('button', { name: 'Create scenario' }).click();
     await page.waitForURL(/\/scenarios\/\d+$/);
-    await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toBe(title);
+    await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), POLL).toBe(title);
 
     // Edit: a new version.
     await page.getByLabel('Severity').fill('0.8');
     await page.getByLabel('What changed (optional)').fill('Milder');
     await page.getByRole('button', { name: 'Save as a new version' }).click();
     const versions = page.getByRole('list', { name: 'Versions' });
-    await expect.poll(() => versions.getByRole('listitem').count()).toBe(2);
+    await expect.poll(() => versions.getByRole('listitem').count(), POLL).toBe(2);
     await versions.getByRole('button', { name: 'Publish version 1' }).click();
-    await expect.poll(() => versions.getByRole('listitem').nth(1).textContent()).toContain('Published');
+    await expect.poll(() => versions.getByRole('listitem').nth(1).textContent(), POLL).toContain('Published');
     await versions.screenshot({ path: `${SCREENSHOT_DIR}/scenario-editor-versions.png` });
 
     await page.goto(`${app.url}/classes`);
@@ -96,8 +116,9 @@ describe('the instructor builds, publishes and assigns a scenario that a student
     await page.getByLabel('Title shown to students (optional)').fill('Week 4: radio whine');
     await page.getByLabel('Attempts allowed').fill('2');
     await page.getByRole('button', { name: 'Assign to the class' }).click();
-    await expect.poll(() => page.getByRole('table', { name: 'Assignments' }).textContent()).toContain('Week 4: radio whine');
+    await expect.poll(() => page.getByRole('table', { name: 'Assignments' }).textContent(), POLL).toContain('Week 4: radio whine');
     await page.screenshot({ path: `${SCREENSHOT_DIR}/class-page.png`, fullPage: true });
+    expect(await accessibilityProblems(page)).toEqual([]);
     expect(problems).toEqual([]);
     await page.close();
   });
@@ -107,12 +128,13 @@ describe('the instructor builds, publishes and assigns a scenario that a student
     await signInAs(page, app.url, ada.email);
     await page.goto(`${app.url}/bench`);
     const list = page.getByRole('list', { name: 'Your assignments' });
-    await expect.poll(() => list.textContent()).toContain('Week 4: radio whine');
+    await expect.poll(() => list.textContent(), POLL).toContain('Week 4: radio whine');
     const card = list.getByRole('listitem').filter({ hasText: 'Week 4: radio whine' });
     expect(await card.textContent()).toContain('0 of 2 used');
     expect(await card.textContent()).not.toMatch(/diode/i);
-    await expect.poll(() => page.getByRole('list', { name: 'Practice scenarios' }).getByRole('listitem').count()).toBeGreaterThanOrEqual(14);
+    await expect.poll(() => page.getByRole('list', { name: 'Practice scenarios' }).getByRole('listitem').count(), POLL).toBeGreaterThanOrEqual(14);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/student-bench-home.png`, fullPage: true });
+    expect(await accessibilityProblems(page)).toEqual([]);
     await card.getByRole('button', { name: /Start/ }).click();
     await page.waitForURL(/\/bench\/(new\?assignmentId=\d+|\d+)/);
     expect(problems.filter((p) => !/Failed to load resource/.test(p))).toEqual([]);
@@ -126,13 +148,13 @@ describe('imports', () => {
     await signInAs(page, app.url, rune.email);
     await page.goto(`${app.url}/scenarios`);
     const rows = page.locator('tbody tr');
-    await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(14);
+    await expect.poll(() => rows.count(), POLL).toBeGreaterThanOrEqual(14);
     const before = await rows.count();
     const file = join(tmpdir(), `bad-scenario-${process.pid}.json`);
     writeFileSync(file, JSON.stringify({ format: 'loadline.scenario', formatVersion: 1, title: 'Bad', summary: 'short', difficulty: 'legendary', vehicle: { name: 'X', kind: 'van', engineDescription: 'none', params: { battery: { cca: 5 } } } }));
     await page.getByTestId('import-scenario-file').setInputFiles(file);
     const alert = page.getByRole('alert').filter({ hasText: 'Nothing was imported' });
-    await expect.poll(() => alert.textContent()).toContain('vehicle.params.battery.cca');
+    await expect.poll(() => alert.textContent(), POLL).toContain('vehicle.params.battery.cca');
     expect(await alert.textContent()).toContain('difficulty');
     await page.screenshot({ path: `${SCREENSHOT_DIR}/scenario-import-errors.png` });
     expect(await rows.count()).toBe(before);
@@ -149,16 +171,16 @@ describe('imports', () => {
     writeFileSync(bad, 'name,email\nPia Rendle,pia.rendle@cindervalley.example\nNo Mail,not-an-address\n');
     await page.getByLabel('Roster file (CSV)').setInputFiles(bad);
     const preview = page.getByRole('table', { name: 'Roster preview' });
-    await expect.poll(() => preview.textContent()).toContain('is not a valid e-mail address');
+    await expect.poll(() => preview.textContent(), POLL).toContain('is not a valid e-mail address');
     expect(await page.getByRole('button', { name: /^Import \d+ students?$/ }).isDisabled()).toBe(true);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/roster-preview-errors.png`, fullPage: true });
     const good = join(tmpdir(), `roster-good-${process.pid}.csv`);
     writeFileSync(good, 'name,email\nPia Rendle,pia.rendle@cindervalley.example\nTobin Asquell,tobin.asquell@cindervalley.example\n');
     await page.getByLabel('Roster file (CSV)').setInputFiles(good);
-    await expect.poll(() => preview.textContent()).toContain('tobin.asquell@cindervalley.example');
+    await expect.poll(() => preview.textContent(), POLL).toContain('tobin.asquell@cindervalley.example');
     await page.getByRole('button', { name: 'Import 2 students' }).click();
-    await expect.poll(() => page.getByText('Imported: 2 new accounts').count()).toBe(1);
-    await expect.poll(() => page.getByRole('table', { name: 'Students' }).textContent()).toContain('Tobin Asquell');
+    await expect.poll(() => page.getByText('Imported: 2 new accounts').count(), POLL).toBe(1);
+    await expect.poll(() => page.getByRole('table', { name: 'Students' }).textContent(), POLL).toContain('Tobin Asquell');
     expect(problems).toEqual([]);
     await page.close();
   });

@@ -214,7 +214,7 @@ export function ScenarioTable({ scenarios }: { scenarios: ScenarioListItem[] }) 
             ))}
           </select>
         </div>
-        <p className="ml-auto text-sm text-slate-500" role="status" aria-live="polite">
+        <p className="ml-auto text-sm text-slate-600" role="status" aria-live="polite">
           {rows.length} of {scenarios.length} scenarios
         </p>
       </div>
