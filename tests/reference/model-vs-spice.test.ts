@@ -39,6 +39,9 @@ import { runAttempt } from '../../sim/replay';
 import type { SimState } from '../../sim/step';
 import { spiceSolve, warmUpSpice } from './spice-harness';
 
+// About 10 s of CPU; the margin is for a machine shared with other work.
+const SETUP_TIMEOUT_MS = 120_000;
+
 interface OperatingPoint {
   id: string;
   idleRpm: number;
@@ -121,7 +124,7 @@ beforeAll(async () => {
       open: point.compareOpenDiode ? { model: solveRectifier(openCircuit), spice: await spiceSolve(openCircuit) } : null,
     });
   }
-}, 60_000);
+}, SETUP_TIMEOUT_MS);
 
 function compared(id: string): Compared {
   const r = results.get(id);
