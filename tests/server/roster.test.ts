@@ -63,6 +63,16 @@ describe('roster preview', () => {
     expect(res.body).toMatchObject({ errorCount: 4, newCount: 2, existingCount: 1, alreadyEnrolledCount: 1, fileName: 'section-a.csv' });
   });
 
+  it('counts file lines, not records, when a quoted field spans lines', async () => {
+    const file = csv(['name,email', '"Nell', 'Quarry",nell.quarry@cindervalley.example', 'Broken Line,broken@', 'Otto Vance,otto.vance@cindervalley.example']);
+    const res = await asRune.post(`/api/classes/${classId}/roster/preview`).attach('file', file, 'multiline.csv').expect(200);
+    expect((res.body.rows as { line: number; status: string }[]).map((r) => [r.line, r.status])).toEqual([
+      [2, 'new'],
+      [4, 'error'],
+      [5, 'new'],
+    ]);
+  });
+
   it('accepts first and last name columns', async () => {
     const res = await asRune
       .post(`/api/classes/${classId}/roster/preview`)
