@@ -145,7 +145,7 @@ export function LinesField({ name, label, hint }: { name: 'hints' | 'objectives'
               rows={4}
               className="block w-full rounded-md border-0 bg-white px-3 py-2 text-sm ring-1 ring-slate-300 focus:ring-2 focus:ring-live-500"
               value={(field.value ?? []).join('\n')}
-              onChange={(e) => field.onChange(e.target.value.split('\n').filter((l, i, all) => l.trim() !== '' || i === all.length - 1))}
+              onChange={(e) => field.onChange(e.target.value.split('\n'))}
               onBlur={() => {
                 field.onChange((field.value ?? []).map((l) => l.trim()).filter(Boolean));
                 field.onBlur();

@@ -89,6 +89,7 @@ export function ScenarioEditor({
 
   useEffect(() => {
     reset(initial);
+    setNote('');
   }, [initial, reset]);
 
   // Server-side issues name paths like definition.vehicle.params.battery.cca: show them on their fields.
