@@ -55,7 +55,19 @@ const METERS: Readonly<Record<RecordedReading['quantity'], readonly Meter[]>> = 
   rpm: [{ name: 'tachometer', read: (r) => r.tachRpm }],
 };
 
-/** Smallest tolerance by quantity, in the base unit (the relative part is 2 % of the meter). */
+/**
+ * Tolerance of a written-down reading: the larger of a share of the meter's
+ * value and an absolute floor, in the base unit. Voltage takes 1 %, not 2 %:
+ * a tenth of a volt at the battery is a quarter of its state of charge.
+ */
+const RELATIVE_TOLERANCE: Readonly<Record<RecordedReading['quantity'], number>> = {
+  voltage: 0.01,
+  current: 0.02,
+  ripple: 0.02,
+  draw: 0.02,
+  rpm: 0.02,
+};
+
 const ABSOLUTE_TOLERANCE: Readonly<Record<RecordedReading['quantity'], number>> = {
   voltage: 0.05,
   current: 1,
@@ -63,12 +75,11 @@ const ABSOLUTE_TOLERANCE: Readonly<Record<RecordedReading['quantity'], number>> 
   draw: 0.01,
   rpm: 50,
 };
-const RELATIVE_TOLERANCE = 0.02;
 
 const UNIT_SCALE: Readonly<Record<RecordedReading['unit'], number>> = { V: 1, A: 1, mV: 0.001, mA: 0.001, rpm: 1 };
 
 export function toleranceFor(quantity: RecordedReading['quantity'], meterValue: number): number {
-  return Math.max(RELATIVE_TOLERANCE * Math.abs(meterValue), ABSOLUTE_TOLERANCE[quantity]);
+  return Math.max(RELATIVE_TOLERANCE[quantity] * Math.abs(meterValue), ABSOLUTE_TOLERANCE[quantity]);
 }
 
 /** The sample at or just before `atMs` (samples are in time order). */
