@@ -39,6 +39,7 @@ async function main() {
   if (build.status !== 0) throw new Error('vite build failed');
   const initial = initialJsGzipBytes();
 
+  const baseline: number[] = [];
   const frames = await withTestCluster(async (env) => {
     Object.assign(process.env, { LOADLINE_TEST_PG: env.LOADLINE_TEST_PG, LOADLINE_TEST_TEMPLATE: env.LOADLINE_TEST_TEMPLATE });
     const { startE2eServer, signInAs } = await import('../tests/e2e/support.ts');
@@ -77,18 +78,21 @@ async function main() {
       const cx = box.x + box.width / 2;
       const cy = box.y + box.height / 2;
       const r = box.width * 0.35;
-      await page.evaluate(() => {
-        const w = window as unknown as { __frames: number[]; __stop: boolean };
-        w.__frames = [];
-        w.__stop = false;
+      // A plain script (not a bundled closure): it runs in the page as written.
+      await page.evaluate(`(() => {
+        window.__frames = [];
+        window.__stop = false;
         let last = performance.now();
-        const loop = (now: number) => {
-          w.__frames.push(now - last);
+        const loop = (now) => {
+          window.__frames.push(now - last);
           last = now;
-          if (!w.__stop) requestAnimationFrame(loop);
+          if (!window.__stop) requestAnimationFrame(loop);
         };
         requestAnimationFrame(loop);
-      });
+      })()`);
+      // Baseline: the same bench running, nobody touching it.
+      await page.waitForTimeout(DRAG_SECONDS * 1000);
+      baseline.push(...((await page.evaluate('(() => { const f = window.__frames.slice(1); window.__frames = []; return f; })()')) as number[]));
       await page.mouse.move(cx - r * 0.7, cy + r * 0.7);
       await page.mouse.down();
       const until = Date.now() + DRAG_SECONDS * 1000;
@@ -100,11 +104,7 @@ async function main() {
         await page.mouse.move(cx + r * Math.sin(a), cy - r * Math.cos(a));
       }
       await page.mouse.up();
-      const samples = await page.evaluate(() => {
-        const w = window as unknown as { __frames: number[]; __stop: boolean };
-        w.__stop = true;
-        return w.__frames.slice(1);
-      });
+      const samples = (await page.evaluate('(() => { window.__stop = true; return window.__frames.slice(1); })()')) as number[];
       const pileEvents = await page.evaluate(async (id) => {
         const boot = (await (await fetch(`/api/attempts/${id}`)).json()) as { events: { event: { kind: string } }[] };
         return boot.events.filter((e) => e.event.kind === 'pile').length;
@@ -117,6 +117,7 @@ async function main() {
     }
   });
 
+  const idle = [...baseline].sort((x, y) => x - y);
   const sorted = [...frames].sort((x, y) => x - y);
   const p50 = percentile(sorted, 50);
   const p95 = percentile(sorted, 95);
@@ -124,8 +125,9 @@ async function main() {
   console.log('\nBench screen, dial dragged with the engine running (headless Chromium, software rendering):');
   console.log(`  frames measured     ${sorted.length} over ${DRAG_SECONDS} s`);
   console.log(`  frame time p50      ${p50.toFixed(1)} ms   (goal ≤ ${GOAL_P95_MS.toFixed(1)} ms: 60 fps)`);
-  console.log(`  frame time p95      ${p95.toFixed(1)} ms   (goal ≤ ${GOAL_P95_MS.toFixed(1)} ms: 60 fps) ${p95 <= GOAL_P95_MS + 0.5 ? 'met' : 'NOT met'}`);
+  console.log(`  frame time p95      ${p95.toFixed(1)} ms   (goal ≤ ${GOAL_P95_MS.toFixed(1)} ms: 60 fps, 0.5 ms allowed for vsync timer jitter) ${p95 <= GOAL_P95_MS + 0.5 ? 'met' : 'NOT met'}`);
   console.log(`  initial JS (gzip)   ${kb.toFixed(1)} KB   (goal < ${GOAL_INITIAL_KB} KB) ${kb < GOAL_INITIAL_KB ? 'met' : 'NOT met'}  [${initial.files.join(', ')}]`);
+  console.log(`  baseline, no input  p50 ${percentile(idle, 50).toFixed(1)} ms, p95 ${percentile(idle, 95).toFixed(1)} ms over ${idle.length} frames (the machine's own noise floor)`);
   console.log('  Frame times include the machine’s own jitter; run twice to see the spread.');
 }
 

@@ -13,13 +13,13 @@ import { paths } from '../../../config/paths.ts';
 import { ErrorState, PageHeader, Panel, Spinner } from '../../../components/ui/states.tsx';
 import { useSubmitAttempt } from '../api/submit-attempt.ts';
 import { BenchEngineContext } from '../hooks/use-bench.ts';
-import { useBenchSession, useOutboxView, type BenchSession } from '../hooks/use-bench-session.ts';
+import { useBenchSession, type BenchSession } from '../hooks/use-bench-session.ts';
 import { useLiveInjections } from '../hooks/use-live-injections.ts';
 import { useLocalReadings } from '../hooks/use-local-readings.ts';
 import { AttemptResultView } from './attempt-result.tsx';
 import { BenchSchematic } from './bench-schematic.tsx';
 import { BenchStatus } from './bench-status.tsx';
-import { ConnectionStatus } from './connection-status.tsx';
+import { LiveConnectionStatus } from './connection-status.tsx';
 import { DiagnosisForm, type DiagnosisValues } from './diagnosis-form.tsx';
 import { AccessorySwitches, KeySwitch, RpmControl } from './engine-controls.tsx';
 import { HookupPanel } from './hookup-panel.tsx';
@@ -66,7 +66,6 @@ function SubmittedView({ boot, result }: { boot: AttemptBootstrap; result: Attem
 
 function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; session: BenchSession; onResult: (r: AttemptResult) => void }) {
   const { engine, outbox, faults } = session;
-  const view = useOutboxView(outbox);
   const { readings, add, remove, clear } = useLocalReadings(boot.attempt.id);
   const submit = useSubmitAttempt(boot.attempt.id);
   const [submitError, setSubmitError] = useState<string | null>(null);
@@ -120,7 +119,7 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
             </span>
           </>
         }
-        actions={<ConnectionStatus view={view} />}
+        actions={<LiveConnectionStatus outbox={outbox} />}
       />
       <div className="space-y-4">
         <ReadingStrip />

@@ -1,5 +1,6 @@
 /** "All saved" or how many events wait for the network. */
-import type { OutboxView } from '../api/event-outbox.ts';
+import type { Outbox, OutboxView } from '../api/event-outbox.ts';
+import { useOutboxView } from '../hooks/use-bench-session.ts';
 
 export function connectionText(v: OutboxView): string {
   if (v.status === 'saved') return 'All saved';
@@ -17,4 +18,9 @@ export function ConnectionStatus({ view }: { view: OutboxView }) {
       {connectionText(view)}
     </p>
   );
+}
+
+/** Subscribes on its own, so a new event re-renders the indicator and nothing else. */
+export function LiveConnectionStatus({ outbox }: { outbox: Outbox }) {
+  return <ConnectionStatus view={useOutboxView(outbox)} />;
 }

@@ -71,6 +71,8 @@ const heatArc = arc<{ start: number; end: number }>()
 export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, hot, tripped, size = 220 }: LoadDialProps) {
   const ref = useRef<SVGSVGElement>(null);
   const dragging = useRef(false);
+  /** The dial's centre on screen, measured once per drag (no layout work per pointer move). */
+  const centre = useRef<{ x: number; y: number }>({ x: 0, y: 0 });
   const valueRef = useRef(value01);
   valueRef.current = value01;
   const onChangeRef = useRef(onChange);
@@ -90,8 +92,7 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
   }, []);
 
   const fromPointer = (e: PointerEvent<SVGSVGElement>) => {
-    const box = e.currentTarget.getBoundingClientRect();
-    onChange(dialValueAt(e.clientX - (box.left + box.width / 2), e.clientY - (box.top + box.height / 2)));
+    onChange(dialValueAt(e.clientX - centre.current.x, e.clientY - centre.current.y));
   };
 
   const onKeyDown = (e: KeyboardEvent<SVGSVGElement>) => {
@@ -126,6 +127,8 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
       onKeyDown={onKeyDown}
       onPointerDown={(e) => {
         dragging.current = true;
+        const box = e.currentTarget.getBoundingClientRect();
+        centre.current = { x: box.left + box.width / 2, y: box.top + box.height / 2 };
         e.currentTarget.setPointerCapture(e.pointerId);
         e.currentTarget.focus();
         fromPointer(e);
