@@ -33,6 +33,8 @@ export const ALTERNATOR_INERTIA_KGM2 = 0.004;
 /** "Hot" and "cold" alternator for the output curve. */
 export const HOT_ALTERNATOR_C = 100;
 export const COLD_ALTERNATOR_C = 25;
+/** Smallest resistance of any wiring path (a bolted joint is never a perfect short). */
+const MIN_PATH_OHM = 2e-5;
 /** Reference field voltage for the EMF constant (see cut-in). */
 const REFERENCE_FIELD_V = 13.5;
 
@@ -109,6 +111,8 @@ export function compile(p: VehicleParams): Model {
     else accessoryI.set(acc.id, Math.max(0, acc.currentA));
   }
   const joint = 2 * w.connectionResistanceOhm;
+  // A path of exactly zero resistance would make the network singular.
+  const floor = (r: number) => (r > MIN_PATH_OHM ? r : MIN_PATH_OHM);
   return {
     p,
     topology,
@@ -116,15 +120,16 @@ export function compile(p: VehicleParams): Model {
     emfConstantVsPerRad: emfConstant,
     fieldKneeA: a.fieldKneeCurrentA,
     tanhReference: detTanh(referenceFieldA / a.fieldKneeCurrentA),
-    rPosOhm: w.postClampPosOhm + copperResistanceOhm(w.batteryPosCableAwg, w.batteryPosCableLengthM) + joint,
-    rBplusOhm:
+    rPosOhm: floor(w.postClampPosOhm + copperResistanceOhm(w.batteryPosCableAwg, w.batteryPosCableLengthM) + joint),
+    rBplusOhm: floor(
       copperResistanceOhm(w.bplusCableAwg, w.bplusCableLengthM) +
-      copperResistanceOhm(w.fusibleLinkAwg, w.fusibleLinkLengthM) +
-      w.bplusExtraOhm +
-      joint,
-    rNegOhm: w.postClampNegOhm + copperResistanceOhm(w.batteryNegCableAwg, w.batteryNegCableLengthM) + joint,
-    rStrapOhm: copperResistanceOhm(w.groundStrapAwg, w.groundStrapLengthM) + joint,
-    rMountOhm: joint + w.groundExtraOhm,
+        copperResistanceOhm(w.fusibleLinkAwg, w.fusibleLinkLengthM) +
+        w.bplusExtraOhm +
+        joint,
+    ),
+    rNegOhm: floor(w.postClampNegOhm + copperResistanceOhm(w.batteryNegCableAwg, w.batteryNegCableLengthM) + joint),
+    rStrapOhm: floor(copperResistanceOhm(w.groundStrapAwg, w.groundStrapLengthM) + joint),
+    rMountOhm: floor(joint + w.groundExtraOhm),
     gPileMaxS: p.pile.maxCurrentAAt12V / 12,
     accessoryG,
     accessoryI,

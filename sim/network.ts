@@ -225,6 +225,31 @@ function responsesFor(n: NetworkInput): LinearResponses {
   return built;
 }
 
+function portVolts(n: NetworkInput, lr: LinearResponses, ifs: number, ib: number): number {
+  const we = lr.perEmf;
+  const wb = lr.perBridgeA;
+  return n.batteryEmfV * (we[BPL]! - we[AC]!) + (ib - ifs) * (wb[BPL]! - wb[AC]!);
+}
+
+/** The bridge's operating point against the network's Thevenin source, into `point`. */
+function solveBridge(n: NetworkInput, lr: LinearResponses, ifs: number): void {
+  const we = lr.perEmf;
+  const wb = lr.perBridgeA;
+  bridgeOperatingPoint(
+    {
+      table: n.table,
+      emfPeakV: n.emfPeakV,
+      reactanceOhm: n.reactanceOhm,
+      phaseResistanceOhm: n.phaseResistanceOhm,
+      diode: n.diode,
+      dcTheveninV: n.batteryEmfV * (we[BPL]! - we[AC]!) - ifs * (wb[BPL]! - wb[AC]!),
+      dcResistanceOhm: wb[BPL]! - wb[AC]!,
+      guessA: n.guessA,
+    },
+    point,
+  );
+}
+
 /**
  * Nodal analysis of the car's network. By superposition the node voltages
  * are v = E_b w_emf + (I_bridge - I_field) w_bridge; the
@@ -237,21 +262,15 @@ export function solveNetwork(n: NetworkInput): NetworkSolution {
   const we = lr.perEmf;
   const wb = lr.perBridgeA;
   const e = n.batteryEmfV;
-  const ifs = n.fieldSupplyA;
-  const v0Port = e * (we[BPL]! - we[AC]!) - ifs * (wb[BPL]! - wb[AC]!);
-  bridgeOperatingPoint(
-    {
-      table: n.table,
-      emfPeakV: n.emfPeakV,
-      reactanceOhm: n.reactanceOhm,
-      phaseResistanceOhm: n.phaseResistanceOhm,
-      diode: n.diode,
-      dcTheveninV: v0Port,
-      dcResistanceOhm: wb[BPL]! - wb[AC]!,
-      guessA: n.guessA,
-    },
-    point,
-  );
+  let ifs = n.fieldSupplyA;
+  solveBridge(n, lr, ifs);
+  // The field is fed from B+; with B+ isolated and the bridge unable to feed
+  // it, B+ would be dragged below the case, which the bridge's own diodes
+  // forbid: the field then freewheels and draws nothing from B+.
+  if (ifs > 0 && portVolts(n, lr, ifs, point.meanA) < 0) {
+    ifs = 0;
+    solveBridge(n, lr, ifs);
+  }
   const ib = point.meanA;
   const src = ib - ifs;
   const vBp = e * we[BP]! + src * wb[BP]!;

@@ -118,6 +118,8 @@ const REGULATOR_KP_PER_V = 1;
 const REGULATOR_KI_PER_VS = 12;
 /** Sense-point sensitivity at which the gains above apply in full. */
 const REGULATOR_REFERENCE_OHM = 0.004;
+/** B+ voltage at which the regulator's overvoltage protection drops the field. */
+const REGULATOR_CUTOFF_V = 20;
 /** Below this the regulator sees no phase signal and only pre-excites. */
 const REGULATION_MIN_ALT_RPM = 300;
 const ALT_FRICTION_NM = 0.15;
@@ -405,8 +407,13 @@ export function step(params: VehicleParams, state: SimState, controls: Controls,
     integral = clamp(integral + REGULATOR_KI_PER_VS * scale * err * dt, 0, 1);
     duty = clamp(integral + REGULATOR_KP_PER_V * scale * err, 0, 1);
   }
-  if (keyOn) duty = Math.max(duty, p.regulator.dutyFloor01);
   const bplusV = prev.nodeV.bplus - prev.nodeV.altCase;
+  // Overvoltage protection: the regulator drops the field above 20 V at B+ (a load dump).
+  if (bplusV > REGULATOR_CUTOFF_V) {
+    duty = 0;
+    integral = 0;
+  }
+  if (keyOn) duty = Math.max(duty, p.regulator.dutyFloor01);
   const rField = fieldResistanceOhm(model, state.alternatorTempC);
   const drive = duty * Math.max(0, bplusV - FIELD_DRIVER_DROP_V) - (1 - duty) * (state.fieldCurrentA > 0.01 ? FIELD_FREEWHEEL_V : 0);
   const fieldTarget = Math.max(0, drive / rField);
@@ -485,7 +492,8 @@ export function step(params: VehicleParams, state: SimState, controls: Controls,
       lamp = true;
       lowChargeS = 0;
     } else {
-      const cannotHold = (newSenseV < setPointV - 0.5 && duty >= 0.99) || newSenseV > 16 || portV < newSenseV - 1.5;
+      const cannotHold =
+        newSenseV < setPointV - 0.5 || newSenseV > 16 || portV > REGULATOR_CUTOFF_V || portV < newSenseV - 1.5;
       lowChargeS = cannotHold ? Math.min(5, lowChargeS + dt) : Math.max(0, lowChargeS - 4 * dt);
       lamp = lowChargeS > 2;
     }

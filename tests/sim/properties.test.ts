@@ -126,6 +126,44 @@ describe('properties of the model', () => {
     );
   });
 
+  it('stays finite and physically sane for any vehicle inside the editor’s bounds', () => {
+    // The bounds table promises a stable model inside it (no source; the editor relies on it).
+    const paths = Object.keys(VEHICLE_PARAM_BOUNDS) as (keyof typeof VEHICLE_PARAM_BOUNDS)[];
+    fc.assert(
+      fc.property(
+        fc.array(fc.double({ min: 0, max: 1, noNaN: true }), { minLength: paths.length, maxLength: paths.length }),
+        fc.integer({ min: 0, max: 3500 }),
+        fc.double({ min: 0, max: 1, noNaN: true }),
+        (u, rpm, dial) => {
+          const q = defaultVehicleParams() as unknown as Record<string, Record<string, number> | number>;
+          paths.forEach((path, i) => {
+            const b = VEHICLE_PARAM_BOUNDS[path];
+            const v = b.integer ? Math.round(b.min + (b.max - b.min) * u[i]!) : b.min + (b.max - b.min) * u[i]!;
+            const [group, key] = path.split('.') as [string, string | undefined];
+            if (key === undefined) q[group] = v;
+            else (q[group] as Record<string, number>)[key] = v;
+          });
+          const vehicle = q as unknown as VehicleParams;
+          const events: InputEvent[] = [
+            { kind: 'key', atMs: 0, position: 'start' },
+            { kind: 'key', atMs: 3000, position: 'on' },
+            { kind: 'rpm', atMs: 4000, rpm },
+            { kind: 'pile', atMs: 6000, dial01: dial },
+            { kind: 'pile', atMs: 12000, dial01: 0 },
+          ];
+          const run = runAttempt(vehicle, 1, events, 16000, { snapshotEveryMs: 1000 });
+          return [...run.snapshots, run.final].every(({ state }) => {
+            const numbers = [...Object.values(state.net.nodeV), ...Object.values(state.net.branchA), state.fieldCurrentA, state.altRpm, state.engineRpm, state.batterySoc01];
+            const anyBad = numbers.some((v) => !Number.isFinite(v));
+            // B+ never below the case (the bridge's diodes), the battery never beyond 20 V.
+            return !anyBad && state.net.nodeV.bplus - state.net.nodeV.altCase > -0.01 && Math.abs(state.net.nodeV.batteryPos) < 20;
+          });
+        },
+      ),
+      { numRuns: 40 },
+    );
+  });
+
   it('gives identical states for identical inputs', () => {
     fc.assert(
       fc.property(attemptArb, fc.integer({ min: 0, max: 2 ** 31 }), (events, seed) => {
