@@ -4,7 +4,7 @@
  * grades; a student sees where they stand, without anyone's name.
  */
 import { useState } from 'react';
-import { useParams } from 'react-router-dom';
+import { Link, useParams } from 'react-router-dom';
 import type { InstructorCompare, StudentCompare } from '../../../shared/api/compare.ts';
 import { Button } from '../../components/ui/button.tsx';
 import { ErrorState, PageHeader, Panel, Spinner } from '../../components/ui/states.tsx';
@@ -13,6 +13,8 @@ import { AccuracyTables } from '../../features/compare/components/accuracy-table
 import { CompareTable, formatMinutes } from '../../features/compare/components/compare-table.tsx';
 import { DiagnosisDistribution } from '../../features/compare/components/diagnosis-distribution.tsx';
 import { SignOffForm } from '../../features/compare/components/sign-off-form.tsx';
+import { signOffsCsvUrl } from '../../features/progress/api/get-progress.ts';
+import { paths } from '../../config/paths.ts';
 
 function SignOffAction({ attemptId, studentName, graded }: { attemptId: number; studentName: string; graded: boolean }) {
   const [open, setOpen] = useState(false);
@@ -26,6 +28,8 @@ function SignOffAction({ attemptId, studentName, graded }: { attemptId: number; 
   );
 }
 
+const exportClass = 'inline-flex items-center rounded-md bg-white px-3.5 py-2 text-sm font-medium text-slate-900 ring-1 ring-slate-300 hover:bg-slate-50';
+
 function InstructorView({ data }: { data: InstructorCompare }) {
   const a = data.assignment;
   return (
@@ -34,9 +38,14 @@ function InstructorView({ data }: { data: InstructorCompare }) {
         title={`${a.title}: class comparison`}
         description={`${a.className} · ${a.scenarioTitle} · ${a.submitted} of ${a.enrolled} students submitted. Each student counts with their latest submitted attempt.`}
         actions={
-          <a href={gradesCsvUrl(a.assignmentId)} download className="inline-flex items-center rounded-md bg-white px-3.5 py-2 text-sm font-medium text-slate-900 ring-1 ring-slate-300 hover:bg-slate-50">
-            Export grades (CSV)
-          </a>
+          <>
+            <a href={gradesCsvUrl(a.assignmentId)} download className={exportClass}>
+              Export grades (CSV)
+            </a>
+            <a href={signOffsCsvUrl(a.classId)} download className={exportClass}>
+              Export class sign-offs (CSV)
+            </a>
+          </>
         }
       />
       <div className="space-y-6">
@@ -46,7 +55,17 @@ function InstructorView({ data }: { data: InstructorCompare }) {
         <Panel title="Accuracy">
           <AccuracyTables byFault={data.accuracyByFault} byTest={data.accuracyByTest} />
         </Panel>
-        <CompareTable rows={data.rows} action={(r) => <SignOffAction attemptId={r.attemptId} studentName={r.studentName} graded={r.grade !== null} />} />
+        <CompareTable
+          rows={data.rows}
+          action={(r) => (
+            <>
+              <Link to={paths.studentProgress.href(r.studentId)} className="ml-3 font-medium text-slate-700 underline underline-offset-2">
+                Progress<span className="sr-only"> of {r.studentName}</span>
+              </Link>
+              <SignOffAction attemptId={r.attemptId} studentName={r.studentName} graded={r.grade !== null} />
+            </>
+          )}
+        />
       </div>
     </>
   );

@@ -8,7 +8,7 @@ import { line } from 'd3-shape';
 import type { Distribution } from '../../../../shared/api/compare.ts';
 
 const W = 640;
-const H = 200;
+const H = 150;
 const M = { left: 40, right: 20, top: 16, bottom: 40 };
 const R = 6;
 
@@ -44,7 +44,7 @@ export function DiagnosisDistribution({ distribution }: { distribution: Distribu
     (mineMs !== null && myPlace !== null ? `. Yours: ${minutes(mineMs).toFixed(1)} minutes, place ${myPlace} of ${timesMs.length}.` : '.');
   return (
     <figure>
-      <svg viewBox={`0 0 ${W} ${H}`} className="w-full" role="img" aria-label={summary}>
+      <svg viewBox={`0 0 ${W} ${H}`} className="w-full max-w-3xl" role="img" aria-label={summary}>
         <path d={axis ?? ''} className="stroke-slate-400" strokeWidth={1} />
         {x.ticks(6).map((t) => (
           <g key={t} transform={`translate(${x(t)},${base})`}>

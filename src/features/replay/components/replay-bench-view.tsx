@@ -15,8 +15,8 @@ const POINTS: Record<ConnectionPoint, { at: Pt; label: string }> = {
   'jump-pos': { at: [250, 40], label: 'Jump +' },
   'jump-neg': { at: [300, 40], label: 'Jump −' },
   'alt-bplus': { at: [470, 64], label: 'B+' },
-  'alt-case': { at: [540, 128], label: 'Case' },
-  'engine-ground': { at: [420, 186], label: 'Engine' },
+  'alt-case': { at: [548, 128], label: 'Case' },
+  'engine-ground': { at: [340, 186], label: 'Block' },
   chassis: { at: [110, 190], label: 'Body' },
 };
 
@@ -24,7 +24,7 @@ const CONDUCTORS: Record<Conductor, { from: Pt; to: Pt; label: string }> = {
   'bplus-cable': { from: [470, 64], to: [86, 62], label: 'B+ cable' },
   'battery-pos-cable': { from: [86, 62], to: [60, 120], label: 'Battery + cable' },
   'battery-neg-cable': { from: [154, 62], to: [110, 190], label: 'Battery − cable' },
-  'ground-strap': { from: [110, 190], to: [420, 186], label: 'Ground strap' },
+  'ground-strap': { from: [110, 190], to: [340, 186], label: 'Ground strap' },
   'sense-line': { from: [86, 62], to: [500, 40], label: 'Sense line' },
 };
 
@@ -59,8 +59,8 @@ export function ReplayBenchView({ frame }: { frame: ReplayFrame }) {
         <text x={500} y={114} textAnchor="middle" className="fill-slate-600 text-[13px]">
           Alternator
         </text>
-        <rect x={340} y={160} width={150} height={40} rx={6} className="fill-white stroke-slate-400" strokeWidth={1.5} />
-        <text x={415} y={184} textAnchor="middle" className="fill-slate-500 text-[12px]">
+        <rect x={370} y={160} width={150} height={40} rx={6} className="fill-white stroke-slate-400" strokeWidth={1.5} />
+        <text x={445} y={184} textAnchor="middle" className="fill-slate-500 text-[12px]">
           Engine {Math.round(r.tachRpm)} rpm
         </text>
         {(Object.keys(CONDUCTORS) as Conductor[]).map((c) => {
