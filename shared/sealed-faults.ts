@@ -9,13 +9,15 @@
  *
  * A scenario whose parameters themselves carry a fault (an author may set
  * open diodes directly) also sends those parameters sealed; the bench then
- * runs on `unsealVehicle` instead of the healthy set.
+ * runs on `unsealVehicle` instead of the healthy set. Fault events already in
+ * the log (an instructor's injections) come back sealed too (`unsealEvents`).
  *
  * Sealed text: base64url of a 12-byte IV followed by the ciphertext and tag.
  */
 import { z } from 'zod';
 import type { Fault } from '../sim/faults.ts';
 import type { VehicleParams } from '../sim/params.ts';
+import { storedEventSchema, type StoredEvent } from './api/attempts.ts';
 import { faultSchema, vehicleParamsSchema } from './scenario.ts';
 
 const IV_BYTES = 12;
@@ -110,6 +112,17 @@ export function sealVehicle(params: VehicleParams, benchKey: string): Promise<st
 export async function unsealVehicle(sealed: string, benchKey: string): Promise<VehicleParams> {
   const parsed = vehicleParamsSchema.safeParse(await unsealJson(sealed, benchKey));
   if (!parsed.success) throw new SealError('the sealed content is not a vehicle parameter set');
+  return parsed.data;
+}
+
+export function sealEvents(events: readonly StoredEvent[], benchKey: string): Promise<string> {
+  return sealJson(events, benchKey);
+}
+
+/** Opens the logged fault events of an attempt (an instructor's injections), to merge by seq with the open ones. */
+export async function unsealEvents(sealed: string, benchKey: string): Promise<StoredEvent[]> {
+  const parsed = z.array(storedEventSchema).safeParse(await unsealJson(sealed, benchKey));
+  if (!parsed.success) throw new SealError('the sealed content is not a list of events');
   return parsed.data;
 }
 

@@ -9,7 +9,7 @@ import type { SessionUser } from '../../shared/api/auth.ts';
 import type { AttemptBootstrap, AttemptResult, BenchScenarioView, MyAttemptRow, StartAttemptInput, StoredEvent } from '../../shared/api/attempts.ts';
 import { attemptResultSchema } from '../../shared/api/attempts.ts';
 import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, restoreScenario, studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
-import { deriveBenchKey, healthyVehicle, sealFaults, sealVehicle } from '../../shared/sealed-faults.ts';
+import { deriveBenchKey, healthyVehicle, sealEvents, sealFaults, sealVehicle } from '../../shared/sealed-faults.ts';
 import { assertCanPractiseScenario, assertCanStartAssignment } from '../auth/access.ts';
 import type { Db, DbOrTx } from '../db/client.ts';
 import { assignments, attemptEvents, attempts, scenarioVersions } from '../db/schema.ts';
@@ -134,6 +134,9 @@ export async function attemptBootstrap(db: DbOrTx, secret: string, attemptId: nu
   const { healthy, differs } = healthyVehicle(def.vehicle.params, def.vehicle.name);
   // Exactly the faults the server's re-run injects at 0 ms.
   const faults = scenarioFaultEvents(def).flatMap((e) => (e.kind === 'fault-inject' ? [e.fault] : []));
+  const events = await storedEvents(db, a.id);
+  const isFault = (e: StoredEvent) => e.event.kind === 'fault-inject' || e.event.kind === 'fault-clear';
+  const faultEvents = events.filter(isFault);
   return {
     attempt: {
       id: a.id,
@@ -150,7 +153,8 @@ export async function attemptBootstrap(db: DbOrTx, secret: string, attemptId: nu
     sealedFaults: await sealFaults(faults, benchKey),
     sealedVehicle: differs ? await sealVehicle(def.vehicle.params, benchKey) : null,
     benchKey,
-    events: await storedEvents(db, a.id),
+    events: events.filter((e) => !isFault(e)),
+    sealedEvents: faultEvents.length ? await sealEvents(faultEvents, benchKey) : null,
     result: a.status === 'submitted' ? storedResult(a.result) : null,
   };
 }

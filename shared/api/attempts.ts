@@ -269,8 +269,14 @@ export const attemptBootstrapSchema = z.object({
    */
   sealedVehicle: z.string().nullable(),
   benchKey: z.string(),
-  /** Everything stored so far, ordered by seq (for resuming after a reload). */
+  /**
+   * Everything stored so far, ordered by seq (for resuming after a reload),
+   * except fault events: those (an instructor's injections) are in
+   * `sealedEvents`, to open with `unsealEvents(sealedEvents, benchKey)` and
+   * merge by seq. Null when there are none.
+   */
   events: z.array(storedEventSchema),
+  sealedEvents: z.string().nullable(),
   result: attemptResultSchema.nullable(),
 });
 export type AttemptBootstrap = z.infer<typeof attemptBootstrapSchema>;

@@ -2,6 +2,7 @@ import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AttemptBootstrap } from '../../shared/api/attempts.ts';
 import { DIAGNOSTIC_TESTS } from '../../shared/scenario.ts';
+import { unsealEvents } from '../../shared/sealed-faults.ts';
 import { assignments, attemptEvents, attempts, pendingInjections } from '../../server/db/schema.ts';
 import { answerKeyFound, assignmentId, benchModel, leads, numbered, pileRamp, scenarioId, startEngine } from './attempts-bench.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
@@ -42,6 +43,7 @@ describe('starting an attempt', () => {
     expect(boot.events).toEqual([]);
     expect(boot.result).toBeNull();
     expect(boot.sealedVehicle).toBeNull();
+    expect(boot.sealedEvents).toBeNull();
     expect(boot.scenario.title).toBeTruthy();
     expect(boot.scenario.tests.map((x) => x.test)).toEqual([...DIAGNOSTIC_TESTS]);
     expect(boot.scenario.diagnosisChoices.length).toBeGreaterThanOrEqual(3);
@@ -237,6 +239,13 @@ describe('the event log', () => {
     expect(stored?.source).toBe('instructor');
     const [applied] = await t.ctx.db.select({ appliedAt: pendingInjections.appliedAt }).from(pendingInjections).where(eq(pendingInjections.id, inj!.id));
     expect(applied?.appliedAt).not.toBeNull();
+
+    // Reloaded, the bench gets the injected fault only sealed.
+    const reload = await ada.get(`/api/attempts/${id}`).expect(200);
+    expect(answerKeyFound(reload.body)).toEqual([]);
+    expect(reload.body.events.map((e: { seq: number }) => e.seq)).not.toContain(12);
+    const logged = await unsealEvents(reload.body.sealedEvents, reload.body.benchKey);
+    expect(logged).toEqual([{ seq: 12, event: { kind: 'fault-inject', atMs: 12_000, fault: { id: faultId, kind: 'belt-slip', severity01: 0.5, onsetS: 12 } } }]);
   });
 
   it('answers 409 to events for a submitted attempt', async () => {

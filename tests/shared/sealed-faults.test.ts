@@ -7,9 +7,11 @@ import {
   healthyVehicle,
   SealError,
   sealFaults,
+  sealEvents,
   sealVehicle,
   toBase64Url,
   unsealFaults,
+  unsealEvents,
   unsealVehicle,
 } from '../../shared/sealed-faults.ts';
 
@@ -86,5 +88,14 @@ describe('sealed faults', () => {
     expect(sealed).not.toContain('openDiodes');
     expect(await unsealVehicle(sealed, key)).toEqual(faulted);
     await expect(unsealFaults(sealed, key)).rejects.toBeInstanceOf(SealError);
+  });
+
+  it('seals logged fault events and opens them for the merge by seq', async () => {
+    const key = await deriveBenchKey('a-secret-of-sixteen-plus', 4);
+    const events = [{ seq: 9, event: { kind: 'fault-inject' as const, atMs: 9000, fault: { id: 'live-3', kind: 'belt-slip' as const, severity01: 0.5, onsetS: 9 } } }];
+    const sealed = await sealEvents(events, key);
+    expect(sealed).not.toContain('belt-slip');
+    expect(await unsealEvents(sealed, key)).toEqual(events);
+    await expect(unsealEvents(await sealFaults(faults, key), key)).rejects.toBeInstanceOf(SealError);
   });
 });
