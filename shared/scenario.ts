@@ -548,7 +548,9 @@ export function studentScenarioView(def: ScenarioDefinition): StudentScenarioVie
       ambientC: prm.ambientC,
     },
     passRules: structuredClone(def.passRules),
-    diagnosisChoices: [...def.diagnosisChoices],
+    // In the catalog's order, never the author's: authors (and the editor's
+    // defaults) list the answer first, which would give it away.
+    diagnosisChoices: [...FAULT_KINDS, 'none' as const].filter((c) => def.diagnosisChoices.includes(c)),
     hints: [...def.hints],
   };
 }
