@@ -12,6 +12,7 @@
  * Each timing is repeated five times; the spread (min–max) is the machine's noise.
  */
 import { existsSync } from 'node:fs';
+import { availableParallelism, loadavg } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import { defaultVehicleParams } from '../sim/params.ts';
 import type { InputEvent } from '../sim/inputs.ts';
@@ -82,8 +83,13 @@ function seededTargets(count: number, maxMs: number): number[] {
   return out;
 }
 
+function load(): string {
+  return `load average ${loadavg()[0]!.toFixed(1)} on ${availableParallelism()} cores`;
+}
+
 async function main(): Promise<void> {
-  console.log(`Loadline model benchmark (DT_MS = ${DT_MS}, snapshots every ${SNAPSHOT_EVERY_MS / 1000} s, Node ${process.version})\n`);
+  console.log(`Loadline model benchmark (DT_MS = ${DT_MS}, snapshots every ${SNAPSHOT_EVERY_MS / 1000} s, Node ${process.version})`);
+  console.log(`Machine: ${load()} (a load above the core count slows every figure below)\n`);
 
   // First use: the healthy bridge characteristic is built once per process.
   const tableMs = time(() => bridgeTable({ openDiodes: [], shortedDiodes: [], openPhases: [] }));
@@ -108,8 +114,15 @@ async function main(): Promise<void> {
   line('steps per second', `${spread(rates.map((x) => x / 1e6), 2)} million`, `at least ${((600_000 / DT_MS / GOAL_RERUN_10_MIN_MS) * 1000 / 1e6).toFixed(2)} million for the re-run goal`);
 
   const reruns: number[] = [];
-  for (let r = 0; r < REPEATS; r++) reruns.push(time(() => runAttempt(params, 1, tenMinutes, 10 * 60000, { snapshotEveryMs: SNAPSHOT_EVERY_MS })));
+  const rerunCpu: number[] = [];
+  for (let r = 0; r < REPEATS; r++) {
+    const cpu0 = process.cpuUsage();
+    reruns.push(time(() => runAttempt(params, 1, tenMinutes, 10 * 60000, { snapshotEveryMs: SNAPSHOT_EVERY_MS })));
+    const cpu = process.cpuUsage(cpu0);
+    rerunCpu.push((cpu.user + cpu.system) / 1000);
+  }
   line('10-minute attempt re-run (warm)', `${spread(reruns)} ms`, `< ${GOAL_RERUN_10_MIN_MS} ms`);
+  line('  the same, CPU time of this process', `${spread(rerunCpu)} ms`);
 
   const thirty = realisticEvents(30);
   const run = runAttempt(params, 1, thirty, 30 * 60000, { snapshotEveryMs: SNAPSHOT_EVERY_MS });
@@ -180,7 +193,9 @@ async function main(): Promise<void> {
   line('  mean battery voltage, model vs SPICE', `${model.meanBatteryV.toFixed(3)} vs ${spice!.meanBatteryV.toFixed(3)} V (${pct(model.meanBatteryV, spice!.meanBatteryV)})`, 'within 5 %');
 }
 
-main().catch((error: unknown) => {
-  console.error(error);
-  process.exitCode = 1;
-});
+main()
+  .then(() => console.log(`\nMachine at the end: ${load()}`))
+  .catch((error: unknown) => {
+    console.error(error);
+    process.exitCode = 1;
+  });
