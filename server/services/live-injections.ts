@@ -5,7 +5,6 @@
  * row applied (a trigger of the `live_notify` migration).
  */
 import { and, asc, eq, isNull, sql } from 'drizzle-orm';
-import type { InputEvent } from '../../sim/inputs.ts';
 import type { Fault } from '../../sim/faults.ts';
 import {
   liveFaultId,
@@ -128,27 +127,4 @@ export async function toBenchMessage(row: InjectionRow, benchKey: string): Promi
     intermittent: row.action.intermittent,
   };
   return { type: 'inject', injectionId: row.id, faultId: row.action.faultId, sealed: await sealFaults([fault], benchKey) };
-}
-
-/**
- * The pending injection a bench's fault event logs, or null when it logs none
- * (the attempts route refuses such events). Matches kind and fault id.
- */
-export async function injectionForEvent(db: DbOrTx, attemptId: number, event: InputEvent): Promise<InjectionRow | null> {
-  if (event.kind !== 'fault-inject' && event.kind !== 'fault-clear') return null;
-  const type = event.kind === 'fault-inject' ? 'inject' : 'clear';
-  const faultId = event.kind === 'fault-inject' ? event.fault.id : event.faultId;
-  const rows = await listInjections(db, attemptId);
-  const row = rows.find((r) => r.action.type === type && r.action.faultId === faultId) ?? null;
-  if (!row || event.kind !== 'fault-inject' || row.action.type !== 'inject') return row;
-  // The logged fault must be the injected one: same kind, severity and pattern.
-  const a = row.action;
-  const f = event.fault;
-  const samePattern =
-    (a.intermittent ?? null) === null
-      ? (f.intermittent ?? null) === null
-      : f.intermittent != null && f.intermittent.periodS === a.intermittent!.periodS && f.intermittent.onFraction01 === a.intermittent!.onFraction01;
-  // The bench starts the delay at the sim time it applied the injection.
-  const onsetOk = Math.abs(f.onsetS * 1000 - (event.atMs + a.delayS * 1000)) <= 1;
-  return f.kind === a.kind && f.severity01 === a.severity01 && samePattern && onsetOk ? row : null;
 }
