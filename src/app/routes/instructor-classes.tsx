@@ -33,7 +33,7 @@ export function ClassesPage() {
                     {c.term || 'No term'} · {c.instructors.map((i) => i.name).join(', ') || 'No instructor'}
                   </p>
                   <p className="mt-3 text-sm text-slate-700">
-                    {c.studentCount} students · {c.assignmentCount} assignments
+                    {c.studentCount} {c.studentCount === 1 ? 'student' : 'students'} · {c.assignmentCount} {c.assignmentCount === 1 ? 'assignment' : 'assignments'}
                   </p>
                 </Link>
               </li>

@@ -24,7 +24,7 @@ function FaultRow({ index, remove }: { index: number; remove: () => void }) {
   const caution = CAUTIONS[kind];
   return (
     <li className="rounded-lg p-4 ring-1 ring-slate-200" aria-label={`Fault ${index + 1}: ${entry.label}`}>
-      <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-4">
+      <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-[minmax(14rem,2fr)_1fr_1fr_auto]">
         <SelectField label={`Fault ${index + 1}`} error={kindError} {...register(`faults.${index}.kind`)}>
           {FAULT_KINDS.map((k) => (
             <option key={k} value={k}>

@@ -203,7 +203,7 @@ export function AccessoriesField() {
                     }}
                   >
                     <option value="resistance">Resistance (Ω)</option>
-                    <option value="current">Constant current (A)</option>
+                    <option value="current">Current (A)</option>
                   </select>
                 </td>
                 <td className="py-1 pr-2">

@@ -112,19 +112,23 @@ export function OutputCurvePreview({ params, faults, passMarkA }: { params: Vehi
     );
   }
   const ratedA = params.alternator.ratedCurrentA;
-  const maxRpm = Math.max(...result.healthy.map((p) => p.altRpm), ...result.faulted.map((p) => p.altRpm), 1000);
-  const maxA = Math.max(ratedA * 1.15, ...result.healthy.map((p) => p.currentA), ...result.faulted.map((p) => p.currentA));
   const ratio = params.belt.pulleyRatio;
+  // Up to the speed the bench can hold (or the rating speed, whichever is higher).
+  const maxRpm = Math.max(params.engine.maxHeldRpm * ratio, params.alternator.ratedAltRpm) * 1.05;
+  const within = (c: OutputCurvePoint[]) => c.filter((p) => p.altRpm <= maxRpm);
+  const healthy = within(result.healthy);
+  const faulted = within(result.faulted);
+  const maxA = Math.max(ratedA * 1.15, ...healthy.map((p) => p.currentA), ...faulted.map((p) => p.currentA));
   const markers = [
     { rpm: params.engine.idleRpm * ratio, label: 'idle' },
     { rpm: 2000 * ratio, label: '2,000 engine rpm' },
   ].filter((m) => m.rpm <= maxRpm);
   return (
     <div className="flex flex-col gap-4 md:flex-row" data-testid="output-curve-preview">
-      <Chart title="Healthy" points={result.healthy} ratedA={ratedA} passMarkA={passMarkA} maxA={maxA} maxRpm={maxRpm} markers={markers} tone="live" />
+      <Chart title="Healthy" points={healthy} ratedA={ratedA} passMarkA={passMarkA} maxA={maxA} maxRpm={maxRpm} markers={markers} tone="live" />
       <Chart
         title={faults.length ? 'With the faults' : 'With the faults (none set)'}
-        points={result.faulted}
+        points={faulted}
         ratedA={ratedA}
         passMarkA={passMarkA}
         maxA={maxA}

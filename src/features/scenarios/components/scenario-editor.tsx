@@ -158,7 +158,7 @@ export function ScenarioEditor({
                 <SelectField label="Kind" {...register('vehicle.kind')} error={msg('vehicle.kind')}>
                   {VEHICLE_KINDS.map((k) => (
                     <option key={k} value={k}>
-                      {k}
+                      {k === 'suv' ? 'SUV' : `${k.charAt(0).toUpperCase()}${k.slice(1)}`}
                     </option>
                   ))}
                 </SelectField>
