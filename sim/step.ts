@@ -23,6 +23,7 @@ import type { Model } from './model.ts';
 import {
   ALTERNATOR_INERTIA_KGM2,
   AMMETER_FUSE_A,
+  AMMETER_RESISTANCE_OHM,
   FIELD_DRIVER_DROP_V,
   FIELD_FREEWHEEL_V,
   effectiveModel,
@@ -201,7 +202,7 @@ function solveAt(n: NetworkInputs): NetworkSolution {
   // Resistance follows charge in steps of 0.1 % so the network's responses can be reused.
   const r0 = internalResistanceOhm(p.battery, Math.round(n.soc01 * 1000) / 1000);
   const emf = openCircuitVoltageV(n.soc01, p.battery.tempC) + n.polarizationV;
-  const negR = m.rNegOhm + (c.ammeterInSeries ? 0.02 : 0);
+  const negR = m.rNegOhm + (c.ammeterInSeries ? AMMETER_RESISTANCE_OHM : 0);
   const cranking = c.key === 'start' && (n.engineStatus === 'cranking' || n.engineStatus === 'stalled');
 
   const omegaE = (2 * Math.PI * p.alternator.polePairs * n.altRpm) / 60;
