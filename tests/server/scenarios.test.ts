@@ -166,6 +166,27 @@ describe('versions', () => {
   });
 });
 
+describe('archive', () => {
+  it('hides an archived scenario from the library and from practice until it is brought back', async () => {
+    const s = await create(asRune, 'shared', 'Archive me');
+    await asRune.post(`/api/scenarios/${s.id}/publish`).send({ versionId: s.latestVersionId }).expect(200);
+    const practiceIds = async () => ((await asStudent.get('/api/scenarios/practice').expect(200)).body.scenarios as { id: number }[]).map((x) => x.id);
+    expect(await practiceIds()).toContain(s.id);
+    await asTamsin.patch(`/api/scenarios/${s.id}`).send({ archived: true }).expect(403);
+    const archived = await asRune.patch(`/api/scenarios/${s.id}`).send({ archived: true }).expect(200);
+    expect(archived.body.archived).toBe(true);
+    const listed = (await asRune.get('/api/scenarios').expect(200)).body.scenarios as { id: number }[];
+    expect(listed.some((x) => x.id === s.id)).toBe(false);
+    const withArchived = (await asRune.get('/api/scenarios').query({ includeArchived: 'true' }).expect(200)).body.scenarios as { id: number; archived: boolean }[];
+    expect(withArchived.find((x) => x.id === s.id)?.archived).toBe(true);
+    expect(await practiceIds()).not.toContain(s.id);
+    await asRune.patch(`/api/scenarios/${s.id}`).send({ archived: false }).expect(200);
+    expect(await practiceIds()).toContain(s.id);
+    const bad = await asRune.patch(`/api/scenarios/${s.id}`).send({ visibility: 'public' }).expect(400);
+    expect(bad.body.error.field).toBe('visibility');
+  });
+});
+
 describe('duplicate, import and export', () => {
   it('duplicates a shared scenario into a private copy the caller owns', async () => {
     const shared = (await asTamsin.get('/api/scenarios').query({ q: 'Harlan Ridge' }).expect(200)).body.scenarios[0] as { id: number; title: string };

@@ -101,6 +101,17 @@ export function EditScenarioPage() {
               <Button className="mt-2" size="sm" variant="secondary" disabled={patch.isPending} onClick={() => patch.mutate({ id: s.id, visibility: s.visibility === 'private' ? 'shared' : 'private' })}>
                 {s.visibility === 'private' ? 'Share with instructors' : 'Make private'}
               </Button>
+              <p className="mt-4 text-sm text-slate-600">
+                {s.archived ? 'Archived: hidden from the library and from practice.' : 'Archiving hides it from the library and from practice; assignments keep their version.'}
+              </p>
+              <Button className="mt-2" size="sm" variant="ghost" disabled={patch.isPending} onClick={() => patch.mutate({ id: s.id, archived: !s.archived })}>
+                {s.archived ? 'Bring back from the archive' : 'Archive'}
+              </Button>
+              {patch.error && (
+                <p role="alert" className="mt-2 text-sm text-stop-700">
+                  {patch.error.message}
+                </p>
+              )}
             </Panel>
           )}
         </aside>

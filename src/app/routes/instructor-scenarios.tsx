@@ -1,3 +1,4 @@
+import { useState } from 'react';
 import { Link } from 'react-router-dom';
 import { paths } from '../../config/paths.ts';
 import { EmptyState, ErrorState, PageHeader, Spinner } from '../../components/ui/states.tsx';
@@ -7,12 +8,13 @@ import { ScenarioTable } from '../../features/scenarios/components/scenario-tabl
 import { queryClient } from '../../lib/query-client.ts';
 
 export async function scenariosLoader() {
-  await queryClient.ensureQueryData(scenariosQueryOptions());
+  await queryClient.ensureQueryData(scenariosQueryOptions(false));
   return null;
 }
 
 export function ScenariosPage() {
-  const list = useScenarios();
+  const [showArchived, setShowArchived] = useState(false);
+  const list = useScenarios(showArchived);
   return (
     <>
       <PageHeader
@@ -27,6 +29,10 @@ export function ScenariosPage() {
           </>
         }
       />
+      <label className="mb-3 inline-flex items-center gap-2 text-sm text-slate-700">
+        <input type="checkbox" checked={showArchived} onChange={(e) => setShowArchived(e.target.checked)} />
+        Show archived scenarios
+      </label>
       {list.isPending ? (
         <Spinner label="Loading the library" />
       ) : list.isError ? (

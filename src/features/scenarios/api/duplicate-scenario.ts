@@ -11,7 +11,7 @@ export function useDuplicateScenario() {
     mutationFn: duplicateScenario,
     onSuccess: (detail) => {
       qc.setQueryData(scenarioKeys.detail(detail.id), detail);
-      void qc.invalidateQueries({ queryKey: scenarioKeys.list() });
+      void qc.invalidateQueries({ queryKey: scenarioKeys.lists() });
     },
   });
 }

@@ -4,14 +4,17 @@ import { api } from '../../../lib/api-client.ts';
 
 export const scenarioKeys = {
   all: ['scenarios'] as const,
-  list: () => ['scenarios', 'list'] as const,
+  list: (includeArchived = false) => ['scenarios', 'list', { includeArchived }] as const,
+  lists: () => ['scenarios', 'list'] as const,
   detail: (id: number) => ['scenarios', 'detail', id] as const,
   practice: () => ['scenarios', 'practice'] as const,
 };
 
 /** The whole visible library; the table searches, filters and sorts it on the client. */
-export const getScenarios = () => api.get('/api/scenarios', { schema: scenarioListResponseSchema }).then((r) => r.scenarios);
+export const getScenarios = (includeArchived = false) =>
+  api.get('/api/scenarios', { query: { includeArchived: includeArchived ? 'true' : undefined }, schema: scenarioListResponseSchema }).then((r) => r.scenarios);
 
-export const scenariosQueryOptions = () => queryOptions({ queryKey: scenarioKeys.list(), queryFn: getScenarios });
+export const scenariosQueryOptions = (includeArchived = false) =>
+  queryOptions({ queryKey: scenarioKeys.list(includeArchived), queryFn: () => getScenarios(includeArchived) });
 
-export const useScenarios = () => useQuery(scenariosQueryOptions());
+export const useScenarios = (includeArchived = false) => useQuery(scenariosQueryOptions(includeArchived));

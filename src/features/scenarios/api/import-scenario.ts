@@ -16,7 +16,7 @@ export function useImportScenario() {
     mutationFn: importScenario,
     onSuccess: (detail) => {
       qc.setQueryData(scenarioKeys.detail(detail.id), detail);
-      void qc.invalidateQueries({ queryKey: scenarioKeys.list() });
+      void qc.invalidateQueries({ queryKey: scenarioKeys.lists() });
     },
   });
 }

@@ -14,7 +14,7 @@ export function useCreateScenario() {
     mutationFn: createScenario,
     onSuccess: (detail) => {
       qc.setQueryData(scenarioKeys.detail(detail.id), detail);
-      void qc.invalidateQueries({ queryKey: scenarioKeys.list() });
+      void qc.invalidateQueries({ queryKey: scenarioKeys.lists() });
     },
   });
 }
@@ -25,7 +25,7 @@ export function useUpdateScenario() {
     mutationFn: updateScenario,
     onSuccess: (detail) => {
       qc.setQueryData(scenarioKeys.detail(detail.id), detail);
-      void qc.invalidateQueries({ queryKey: scenarioKeys.list() });
+      void qc.invalidateQueries({ queryKey: scenarioKeys.lists() });
     },
   });
 }

@@ -21,7 +21,7 @@ function useDetailMutation<I>(fn: (input: I) => ReturnType<typeof publishScenari
     mutationFn: fn,
     onSuccess: (detail) => {
       qc.setQueryData(scenarioKeys.detail(detail.id), detail);
-      void qc.invalidateQueries({ queryKey: scenarioKeys.list() });
+      void qc.invalidateQueries({ queryKey: scenarioKeys.lists() });
       void qc.invalidateQueries({ queryKey: scenarioKeys.practice() });
     },
   });

@@ -69,6 +69,11 @@ export function ScenarioTable({ scenarios }: { scenarios: ScenarioListItem[] }) 
             <Link to={`/scenarios/${c.row.original.id}`} className="font-medium text-slate-900 underline-offset-2 hover:underline">
               {c.getValue()}
             </Link>
+            {c.row.original.archived && (
+              <span className="ml-2">
+                <Badge tone="warn">Archived</Badge>
+              </span>
+            )}
             <p className="mt-0.5 line-clamp-1 max-w-md text-xs text-slate-500">{c.row.original.summary}</p>
           </div>
         ),
