@@ -4,7 +4,7 @@ import { readMeters } from '../../sim/instruments.ts';
 import { stateAt } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
-import { MAX_FRAME_GAP_MS, START_HOLD_MS, createBenchEngine } from '../../src/features/bench/stores/bench-engine.ts';
+import { DISPLAY_INTERVAL_MS, MAX_FRAME_GAP_MS, START_HOLD_MS, createBenchEngine } from '../../src/features/bench/stores/bench-engine.ts';
 import { benchActions } from '../../src/features/bench/stores/bench-actions.ts';
 
 const params = defaultVehicleParams();
@@ -64,6 +64,10 @@ describe('the live bench engine', () => {
     engine.dispatch(benchActions.setPile(0.4));
     frames(engine, 60, 21.9);
     const live = engine.readNow();
+    // A reading is the display: on the 100 ms grid the server samples, never ahead of the model.
+    expect(live.atMs % DISPLAY_INTERVAL_MS).toBe(0);
+    expect(live.atMs).toBeLessThanOrEqual(engine.getSnapshot().timeMs);
+    expect(engine.getSnapshot().timeMs - live.atMs).toBeLessThan(DISPLAY_INTERVAL_MS);
     const replayed = stateAt(params, SEED, engine.studentEvents(), live.atMs);
     expect(replayed.state.timeMs).toBe(live.atMs);
     expect(readMeters(params, replayed.state)).toEqual(live.readings);

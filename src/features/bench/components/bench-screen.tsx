@@ -71,7 +71,7 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
   const [submitError, setSubmitError] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
   const scenario = boot.scenario;
-  const vehicle = boot.vehicle;
+  const vehicle = session.vehicle;
   const tests = scenario.tests;
   const testIds = tests.map((t) => t.test);
   const practice = boot.attempt.mode === 'practice';

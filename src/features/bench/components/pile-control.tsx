@@ -22,7 +22,9 @@ export function PileControl({ pile }: { pile: PileParams }) {
     <div className="flex flex-col items-center gap-2">
       <LoadDial value01={p.dial} onChange={change} pileA={p.pileA} pileTempC={p.tempC} warnC={pile.warnC} tripC={pile.tripC} hot={p.hot} tripped={p.over} />
       <div className="text-center text-sm">
-        <span className="font-mono text-lg text-live-700">{p.pileA}</span> <span className="text-slate-500">A at the pile</span>
+        <span className="font-mono text-lg text-live-700" data-testid="pile-amps">
+          {p.pileA}
+        </span> <span className="text-slate-500">A at the pile</span>
       </div>
       {p.over ? (
         <p role="alert" className="rounded-md bg-stop-600 px-3 py-1.5 text-center text-sm font-semibold text-white">

@@ -1,14 +1,14 @@
 /**
  * The reading strip: every readout in one row with its unit. Digits refresh
- * ten times a second, the way a bench meter settles; a screen reader hears a
- * polite summary every few seconds when something has changed.
+ * on the engine's display ticks (ten times a second), the way a bench meter
+ * settles; a recorded reading is exactly what is shown. A screen reader hears
+ * a polite summary every few seconds when something has changed.
  */
 import { useEffect, useRef, useState } from 'react';
 import type { Readings } from '../../../../sim/instruments.ts';
 import { useBench } from '../hooks/use-bench.ts';
 import { formatAmps, formatDrawMa, formatRippleMv, formatRpm, formatVolts, spokenReading, UNITS } from './reading-format.ts';
 
-const DISPLAY_INTERVAL_MS = 100;
 const ANNOUNCE_INTERVAL_MS = 3000;
 
 export interface StripValues {
@@ -29,8 +29,6 @@ export function stripValues(r: Readings): StripValues {
   };
 }
 
-const sameTenth = (a: Readings, b: Readings) => Math.floor((a.simTimeS * 1000) / DISPLAY_INTERVAL_MS) === Math.floor((b.simTimeS * 1000) / DISPLAY_INTERVAL_MS);
-
 function Readout({ label, value, unit, testId }: { label: string; value: string; unit: string; testId: string }) {
   return (
     <div className="min-w-0 flex-1 px-4 py-3">
@@ -46,7 +44,7 @@ function Readout({ label, value, unit, testId }: { label: string; value: string;
 }
 
 export function ReadingStrip() {
-  const readings = useBench((s) => s.readings, sameTenth);
+  const readings = useBench((s) => s.display.readings);
   const v = stripValues(readings);
   const drawUnit = v.draw.endsWith(' A') ? '' : UNITS.draw;
   return (

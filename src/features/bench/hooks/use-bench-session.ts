@@ -6,8 +6,9 @@
 import { useEffect, useState, useSyncExternalStore } from 'react';
 import type { Fault } from '../../../../sim/faults.ts';
 import type { InputEvent } from '../../../../sim/inputs.ts';
+import type { VehicleParams } from '../../../../sim/params.ts';
 import type { AttemptBootstrap } from '../../../../shared/api/attempts.ts';
-import { unsealFaults } from '../../../../shared/sealed-faults.ts';
+import { unsealEvents, unsealFaults, unsealVehicle } from '../../../../shared/sealed-faults.ts';
 import { createOutbox, mergeForResume, readPersisted, type Outbox, type OutboxView } from '../api/event-outbox.ts';
 import { postEvents } from '../api/post-events.ts';
 import { createBenchEngine, type BenchEngine } from '../stores/bench-engine.ts';
@@ -17,6 +18,8 @@ export interface BenchSession {
   engine: BenchEngine;
   outbox: Outbox;
   faults: Fault[];
+  /** The car the model runs: the bootstrap's, or the sealed one when the scenario sets fault-like values directly. */
+  vehicle: VehicleParams;
 }
 
 const browserTimer = {
@@ -41,10 +44,14 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
 
     void (async () => {
       try {
-        const faults = await unsealFaults(boot.sealedFaults, boot.benchKey);
+        const [faults, vehicle, loggedFaultEvents] = await Promise.all([
+          unsealFaults(boot.sealedFaults, boot.benchKey),
+          boot.sealedVehicle ? unsealVehicle(boot.sealedVehicle, boot.benchKey) : Promise.resolve(boot.vehicle),
+          boot.sealedEvents ? unsealEvents(boot.sealedEvents, boot.benchKey) : Promise.resolve([]),
+        ]);
         if (cancelled) return;
         const local = readPersisted(window.localStorage, attemptId);
-        const { events } = mergeForResume(boot.events, local.pending);
+        const { events } = mergeForResume([...boot.events, ...loggedFaultEvents], local.pending);
         const outbox = createOutbox({
           attemptId,
           storage: window.localStorage,
@@ -53,14 +60,14 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
           send: (batch) => postEvents(attemptId, batch),
         });
         const engine = createBenchEngine({
-          params: boot.vehicle,
+          params: vehicle,
           seed: boot.attempt.seed,
           scenarioEvents: faultEvents(faults),
           studentEvents: events.map((e) => e.event),
           resumeAtMs: local.simTimeMs,
           onEvent: (event) => outbox.push(event),
         });
-        built = { engine, outbox, faults };
+        built = { engine, outbox, faults, vehicle };
         engine.start();
         // Instructors' live faults arrive on the attempt's stream and go through the dispatcher.
         stopLive = connectLiveInjections({ attemptId, benchKey: boot.benchKey, engine });

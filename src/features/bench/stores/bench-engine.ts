@@ -22,11 +22,17 @@ export type BenchInput = DistributiveOmit<InputEvent, 'atMs'>;
 /** Frame gaps above this (a hidden tab, a debugger pause) are cut to it: the sim never leaps. */
 export const MAX_FRAME_GAP_MS = 100;
 /** The strip chart keeps one sample per interval over the last minute. */
-export const HISTORY_INTERVAL_MS = 250;
+export const HISTORY_INTERVAL_MS = 200;
 export const HISTORY_SPAN_MS = 60_000;
 /** The scope view refreshes a few times a second, like a real sweep. */
 const TRACE_INTERVAL_MS = 200;
 const TRACE_SAMPLES = 240;
+/**
+ * The meters' display refreshes on this grid of sim time, like a bench meter
+ * settling ten times a second; a recorded reading is the value on display,
+ * at that moment (the server samples its re-run on the same grid).
+ */
+export const DISPLAY_INTERVAL_MS = 100;
 /** The key springs back from start to on after this long, or once the engine runs. */
 export const START_HOLD_MS = 1500;
 
@@ -36,9 +42,17 @@ export interface HistorySample {
   amps: number | null;
 }
 
+export interface MeterDisplay {
+  atMs: number;
+  readings: Readings;
+}
+
 export interface BenchSnapshot {
   timeMs: number;
+  /** The meters at this moment (status, dial, drawing). */
   readings: Readings;
+  /** What the readouts show: the meters at the last display tick. */
+  display: MeterDisplay;
   controls: Controls;
   /** Changes whenever the strip chart gains a sample. */
   history: readonly HistorySample[];
@@ -74,16 +88,16 @@ export interface BenchEngine {
   tick(frameGapMs: number): void;
   /** Let sim time pass quickly (waiting for modules to sleep, a rest before a reading). */
   skipAhead(ms: number): void;
-  /** The meters exactly now, with the sim time (what a recorded reading refers to). */
-  readNow(): { atMs: number; readings: Readings };
+  /** The readouts as displayed now, with their sim time (what a recorded reading refers to). */
+  readNow(): MeterDisplay;
   studentEvents(): readonly InputEvent[];
   start(): void;
   stop(): void;
   running(): boolean;
 }
 
-function emptySnapshot(point: ReplayPoint, readings: Readings, eventCount: number): BenchSnapshot {
-  return { timeMs: point.state.timeMs, readings, controls: point.controls, history: [], trace: null, eventCount, linkBlownHere: point.state.fusibleLinkBlown };
+function emptySnapshot(point: ReplayPoint, display: MeterDisplay, eventCount: number): BenchSnapshot {
+  return { timeMs: point.state.timeMs, readings: display.readings, display, controls: point.controls, history: [], trace: null, eventCount, linkBlownHere: point.state.fusibleLinkBlown };
 }
 
 export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
@@ -92,8 +106,9 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
   const events: InputEvent[] = [...options.scenarioEvents, ...student];
   const lastEventMs = student.length ? student[student.length - 1]!.atMs : 0;
   const resumeMs = Math.max(lastEventMs, options.resumeAtMs ?? 0);
-  const resumeSteps = Math.ceil(resumeMs / DT_MS);
-  let point: ReplayPoint = stateAt(params, seed, events, resumeSteps * DT_MS);
+  // Resume on a display tick, so the readouts are on the grid from the first frame.
+  const resumeAt = Math.ceil(resumeMs / DISPLAY_INTERVAL_MS) * DISPLAY_INTERVAL_MS;
+  let point: ReplayPoint = stateAt(params, seed, events, resumeAt);
 
   const listeners = new Set<() => void>();
   let accumulatorMs = 0;
@@ -106,12 +121,13 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
   let lastFrameAt: number | null = null;
   /** The controls with every dispatched event applied (the next step applies them to the model). */
   let shownControls: Controls = point.controls;
-  let snapshot = emptySnapshot(point, readMeters(params, point.state), student.length);
+  let display: MeterDisplay = { atMs: point.state.timeMs, readings: readMeters(params, point.state) };
+  let snapshot = emptySnapshot(point, display, student.length);
 
   function sample(): void {
     const t = point.state.timeMs;
     if (t < nextHistoryMs) return;
-    const r = readMeters(params, point.state);
+    const r = display.readings;
     const next = history.length && history[0]!.tMs < t - HISTORY_SPAN_MS ? history.filter((h) => h.tMs >= t - HISTORY_SPAN_MS) : history.slice();
     next.push({ tMs: t, volts: r.voltmeterV, amps: r.clampA });
     history = next;
@@ -130,6 +146,7 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
     snapshot = {
       timeMs: point.state.timeMs,
       readings: readMeters(params, point.state),
+      display,
       controls: shownControls,
       history,
       trace,
@@ -140,14 +157,18 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
   }
 
   function stepBy(steps: number): void {
-    // Step in small slices so the chart and the spring-back key see every moment.
+    // Step in slices that end on display ticks, so the readouts, the chart and the spring-back key see each one.
     let left = steps;
     while (left > 0) {
-      const slice = Math.min(left, HISTORY_INTERVAL_MS / DT_MS);
+      const toTick = (DISPLAY_INTERVAL_MS - (point.state.timeMs % DISPLAY_INTERVAL_MS)) / DT_MS;
+      const slice = Math.min(left, toTick);
       point = advance(params, point, events, slice);
       shownControls = point.controls;
       left -= slice;
-      sample();
+      if (point.state.timeMs % DISPLAY_INTERVAL_MS === 0) {
+        display = { atMs: point.state.timeMs, readings: readMeters(params, point.state) };
+        sample();
+      }
       springBackKey();
     }
     refreshTrace();
@@ -205,7 +226,7 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
       stepBy(Math.max(0, Math.round(ms / DT_MS)));
       publish();
     },
-    readNow: () => ({ atMs: point.state.timeMs, readings: readMeters(params, point.state) }),
+    readNow: () => display,
     studentEvents: () => student,
     start() {
       if (frame !== null) return;

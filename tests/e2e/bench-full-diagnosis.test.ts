@@ -1,0 +1,117 @@
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { demoFirst } from '../../server/db/demo-people.ts';
+import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
+import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { assignToStudent, diagnose, holdRpm, hookUp, loadDownTo, reading, recordReading, startEngine } from './bench-helpers.ts';
+
+let browser: Browser;
+let app: E2eServer;
+
+beforeAll(async () => {
+  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
+});
+afterAll(async () => {
+  await browser?.close();
+  await app?.close();
+});
+
+const pileAmps = async (page: Page) => Number(await page.getByTestId('pile-amps').textContent());
+
+describe('a whole diagnosis of an assigned scenario', () => {
+  it('starts from the bench list, runs every test of the family, submits and gets a verified grade', async () => {
+    const student = demoFirst('student');
+    const title = 'Full check before sale';
+    await assignToStudent(app, 'healthy-control-corvane-sable', student.email, title);
+    const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
+    const problems = watchConsole(page);
+    await signInAs(page, app.url, student.email);
+    await page.goto(`${app.url}/bench`);
+    await page.getByRole('button', { name: `Start ${title}` }).click();
+    await page.waitForURL(/\/bench\/\d+$/);
+    const dial = page.getByRole('slider', { name: 'Carbon pile load' });
+    await dial.waitFor();
+    const values: Record<string, number> = {};
+
+    // 1. State of charge: key off, leads on the posts.
+    await hookUp(page, { red: 'battery-pos', black: 'battery-neg', clamp: 'bplus-cable' });
+    await page.getByRole('button', { name: 'Zero clamp' }).click();
+    await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
+    values.ocv = await reading(page, 'volts');
+    await recordReading(page, 'battery-ocv', 'voltage');
+
+    // 2. Load test: half the CCA for 15 s, engine off.
+    await dial.focus();
+    for (let i = 0; i < 100 && (await pileAmps(page)) < 300; i++) await page.keyboard.press((await pileAmps(page)) < 240 ? 'PageUp' : 'ArrowUp');
+    expect(await pileAmps(page)).toBeGreaterThanOrEqual(300);
+    await page.getByRole('button', { name: 'Let 10 s pass on the bench' }).click();
+    await page.waitForTimeout(5200);
+    values.loaded = await reading(page, 'volts');
+    await recordReading(page, 'battery-load', 'voltage');
+    await page.getByRole('button', { name: 'Load off' }).click();
+    await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
+
+    // 3. Regulated voltage at 2,000 rpm, no load.
+    await startEngine(page);
+    await holdRpm(page, '2,000');
+    await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
+    await page.waitForTimeout(1000);
+    values.regulated = await reading(page, 'volts');
+    await recordReading(page, 'regulated-voltage', 'voltage');
+
+    // 4. Output: load to about 12 V, read the clamp, load off quickly.
+    await loadDownTo(page, 12.05);
+    await page.waitForTimeout(600);
+    values.output = await reading(page, 'amps');
+    await recordReading(page, 'output', 'current');
+    await page.getByRole('button', { name: 'Load off' }).click();
+
+    // 5 and 6. Voltage drops with the headlamps and blower on.
+    await page.getByRole('button', { name: 'Headlamps (low beam)' }).click();
+    await page.getByRole('button', { name: 'Heater blower (high)' }).click();
+    await hookUp(page, { red: 'alt-bplus', black: 'battery-pos' });
+    await page.waitForTimeout(1500);
+    values.dropPositive = await reading(page, 'volts');
+    await recordReading(page, 'voltage-drop-positive', 'voltage');
+    await hookUp(page, { red: 'alt-case', black: 'battery-neg' });
+    await page.waitForTimeout(1500);
+    values.dropGround = await reading(page, 'volts');
+    await recordReading(page, 'voltage-drop-ground', 'voltage');
+
+    // 7. Ripple at the B+ stud against the case.
+    await hookUp(page, { red: 'alt-bplus', black: 'alt-case' });
+    await page.waitForTimeout(1500);
+    values.rippleMv = await reading(page, 'ripple');
+    await recordReading(page, 'ripple', 'ripple');
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-full-diagnosis.png`, fullPage: true });
+
+    // A healthy car reads like one.
+    expect(values.ocv).toBeGreaterThanOrEqual(12.4);
+    expect(values.loaded).toBeGreaterThanOrEqual(9.6);
+    expect(values.regulated).toBeGreaterThanOrEqual(13.5);
+    expect(values.regulated).toBeLessThanOrEqual(14.5);
+    expect(values.output).toBeGreaterThanOrEqual(135);
+    expect(Math.abs(values.dropPositive)).toBeLessThanOrEqual(0.2);
+    expect(Math.abs(values.dropGround)).toBeLessThanOrEqual(0.2);
+    expect(values.rippleMv).toBeLessThanOrEqual(500);
+
+    const tests = [
+      'Battery state of charge (open-circuit voltage)',
+      'Battery load test',
+      'Regulated (no-load) charging voltage',
+      'Output test under carbon-pile load',
+      'Voltage drop, positive side',
+      'Voltage drop, ground side',
+      'AC ripple (diode) check',
+    ];
+    await diagnose(page, Object.fromEntries(tests.map((t) => [t, 'Pass' as const])), 'No fault: the charging system is healthy');
+    expect(await page.getByTestId('result-verified').textContent()).toMatch(/verified/);
+    const grade = Number(((await page.getByTestId('result-grade').textContent()) ?? '').split(' / ')[0]);
+    expect(grade).toBeGreaterThanOrEqual(90);
+    const result = page.getByTestId('attempt-result');
+    for (const t of tests) expect(await result.getByRole('listitem').filter({ hasText: t }).textContent()).toMatch(/^OK/);
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-full-diagnosis-result.png`, fullPage: true });
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+});
