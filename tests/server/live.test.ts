@@ -145,10 +145,15 @@ describe('live fault injection', () => {
     expect((await outsider.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'diode-open' })).status).toBe(403);
     expect((await outsider.get(`/api/live/classes/${fx.classId}/board`)).status).toBe(403);
 
-    // Another student cannot listen to this bench.
+    // Another student cannot listen to this bench, nor read the attempt.
     const foreign = await openStream(bo, `/api/live/attempts/${attemptId}/stream`);
     expect(foreign.status).toBe(403);
     foreign.close();
+    expect((await bo.get(`/api/attempts/${attemptId}`)).status).toBe(403);
+    // The instructor has no bench to listen to.
+    const teacherStream = await openStream(teacher, `/api/live/attempts/${attemptId}/stream`);
+    expect(teacherStream.status).toBe(403);
+    teacherStream.close();
 
     const bad = await teacher.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'diode-open', severity01: 2 });
     expect(bad.status).toBe(400);
