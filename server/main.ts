@@ -4,6 +4,7 @@
  */
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
+import { prepareBridgeTables } from '../sim/bridge.ts';
 import { createApp } from './app.ts';
 import type { AppContext } from './context.ts';
 import { connect } from './db/client.ts';
@@ -33,6 +34,9 @@ export function buildContext(env: Env, logLevel: 'info' | 'warn' | 'error' | 'si
 
 export async function startServer(opts: { env?: Env; staticDir?: string; logLevel?: 'info' | 'warn' | 'error' | 'silent' } = {}): Promise<RunningServer> {
   const env = opts.env ?? readEnv();
+  // Build the rectifier characteristics of every fault topology now, so the first
+  // grading or live injection of a diode or phase fault does not stall a request.
+  prepareBridgeTables();
   const ctx = buildContext(env, opts.logLevel);
   const { app } = createApp(ctx, { staticDir: opts.staticDir });
   const server = await new Promise<Server>((resolve, reject) => {
