@@ -62,7 +62,7 @@ async function submittedAttempt(db: Db, email: string, assignmentId: number, tim
   return row!.id;
 }
 
-describe('replay with comments, and the class comparison', () => {
+describe('replay with comments, the class comparison and sign-offs', () => {
   it('an instructor comments on a moment; the student’s replay scrubbed to that comment shows the bench as it was then', async () => {
     const student = demoFirst('student');
     const classmate = DEMO_PEOPLE.filter((p) => p.role === 'student')[1]!;
@@ -96,6 +96,13 @@ describe('replay with comments, and the class comparison', () => {
     await table.getByRole('button', { name: /Grade/ }).click();
     await expect.poll(() => table.getByRole('columnheader', { name: /Grade/ }).getAttribute('aria-sort')).toBe('ascending');
     await expect.poll(async () => (await table.getByRole('row').nth(1).textContent()) ?? '').toContain(classmate.name);
+    // Sign off a competency from the graded attempt.
+    await table.getByRole('button', { name: `Sign off a competency for ${student.name}` }).click();
+    const signOff = teacher.getByRole('form', { name: `Sign off a competency for ${student.name}` });
+    await signOff.getByLabel('Competency').selectOption('output');
+    await signOff.getByLabel('Note').fill('Steady pile work');
+    await signOff.getByRole('button', { name: 'Sign off' }).click();
+    await signOff.getByRole('status').filter({ hasText: `Output test under carbon-pile load signed off for ${student.name}` }).waitFor();
     await teacher.screenshot({ path: `${SCREENSHOT_DIR}/compare-instructor.png`, fullPage: true });
     expect(teacherProblems).toEqual([]);
 
@@ -123,6 +130,14 @@ describe('replay with comments, and the class comparison', () => {
     await page.getByRole('img', { name: /Yours: 0\.6 minutes, place 1 of 2/ }).waitFor();
     expect(await page.getByText(classmate.name).count()).toBe(0);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/compare-student.png`, fullPage: true });
+
+    // The sign-off shows on the student's progress page.
+    await page.getByRole('link', { name: 'Progress' }).click();
+    const output = page.getByRole('list', { name: 'Competencies' }).getByRole('listitem').filter({ hasText: 'Output test under carbon-pile load' });
+    await output.getByText('Signed off').waitFor();
+    expect(await output.textContent()).toContain('Steady pile work');
+    await page.getByRole('status').filter({ hasText: '1 of 9 competencies signed off.' }).waitFor();
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/progress-student.png`, fullPage: true });
     expect(problems).toEqual([]);
     await studentCtx.close();
     await teacherCtx.close();
