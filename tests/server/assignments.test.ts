@@ -51,7 +51,7 @@ describe('assignments', () => {
   });
 
   it('assigns the published version by default, or a named version, and shows it on the students’ list once open', async () => {
-    const s = await libraryScenario(asRune, 'Corvane Sable');
+    const s = await libraryScenario(asRune, 'Corvane Linden');
     const res = await asRune
       .post('/api/assignments')
       .send({ classId: runeClass, scenarioId: s.id, opensAt: iso(-0.01), dueAt: iso(5), attemptsAllowed: 2, showCurveAfter: false, showFeedbackAfter: true, title: 'Pre-purchase check' })
@@ -60,7 +60,7 @@ describe('assignments', () => {
 
     const mine = (await asAda.get('/api/assignments/mine').expect(200)).body.assignments as Record<string, unknown>[];
     const listed = mine.find((a) => a.id === res.body.assignment.id)!;
-    expect(listed).toMatchObject({ title: 'Pre-purchase check', attemptsUsed: 0, attemptsAllowed: 2, closed: false, vehicleName: 'Corvane Sable midsize sedan' });
+    expect(listed).toMatchObject({ title: 'Pre-purchase check', attemptsUsed: 0, attemptsAllowed: 2, closed: false, vehicleName: 'Corvane Linden midsize sedan' });
     const raw = JSON.stringify(mine);
     for (const word of ['faults', 'severity01', 'testsExpected', 'params', 'scenarioVersionId']) expect(raw).not.toContain(word);
     // A student of another class does not see it.
@@ -98,7 +98,7 @@ describe('assignments', () => {
     expect(zero.body.error.field).toBe('attemptsAllowed');
     const date = await asRune.post('/api/assignments').send({ classId: runeClass, scenarioId: s.id, opensAt: 'next tuesday', dueAt: iso(1), attemptsAllowed: 1 }).expect(400);
     expect(date.body.error.field).toBe('opensAt');
-    const other = await libraryScenario(asRune, 'Corvane Sable');
+    const other = await libraryScenario(asRune, 'Corvane Linden');
     const detail = (await asRune.get(`/api/scenarios/${other.id}`).expect(200)).body as { latestVersionId: number };
     const foreign = await asRune.post('/api/assignments').send({ classId: runeClass, scenarioId: s.id, scenarioVersionId: detail.latestVersionId, opensAt: iso(0), dueAt: iso(1), attemptsAllowed: 1 }).expect(400);
     expect(foreign.body.error.field).toBe('scenarioVersionId');
