@@ -94,7 +94,7 @@ export async function seedLibrary(db: Db, now = new Date()): Promise<void> {
     await tx.insert(assignments).values([
       { classId: day.id, scenarioVersionId: version('field-open-orland-fen'), title: 'Week 1: no-charge complaint', opensAt: at(-2), dueAt: at(12), attemptsAllowed: 3, createdBy: idOf(firstInstructor) },
       { classId: day.id, scenarioVersionId: version('diode-open-tarrow-flats'), title: 'Week 2: dim lights and radio whine', opensAt: at(-1), dueAt: at(19), attemptsAllowed: 2, showCurveAfter: true, showFeedbackAfter: false, createdBy: idOf(firstInstructor) },
-      { classId: day.id, scenarioVersionId: version('regulator-set-high-redcourt-lancer'), title: 'Week 3: failing bulbs', opensAt: at(7), dueAt: at(26), attemptsAllowed: 3, createdBy: idOf(firstInstructor) },
+      { classId: day.id, scenarioVersionId: version('regulator-set-high-redcourt-alder'), title: 'Week 3: failing bulbs', opensAt: at(7), dueAt: at(26), attemptsAllowed: 3, createdBy: idOf(firstInstructor) },
       { classId: evening.id, scenarioVersionId: version('belt-slip-harlan-ridge'), title: 'Evening week 1: squeal at start-up', opensAt: at(-1), dueAt: at(13), attemptsAllowed: 3, createdBy: idOf(secondInstructor) },
     ]);
   });
