@@ -30,6 +30,7 @@ describe('a faulted scenario, diagnosed in practice mode', () => {
     expect(await page.getByRole('alert').count()).toBe(0);
 
     await hookUp(page, { red: 'battery-pos', black: 'battery-neg' });
+    await expect.poll(() => reading(page, 'volts')).toBeGreaterThan(11);
     const resting = await reading(page, 'volts');
     await startEngine(page);
     await holdRpm(page, '2,000');
