@@ -18,7 +18,7 @@ export function LiveBoardPage() {
     <>
       <PageHeader
         title={`${name}: live`}
-        description="Running benches, updated as students work. An injected fault is applied at the bench’s current time; the student is not told what changed."
+        description="Running benches, updated as students work; the meters show each bench as of its last input. An injected fault is applied at the bench’s current time; the student is not told what changed."
         actions={<StreamBadge state={board.stream} />}
       />
       <LiveBoard attempts={attempts} />

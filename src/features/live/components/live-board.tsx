@@ -1,5 +1,5 @@
 /** The running attempts of a class, one card each, kept live by the board's stream. */
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 import { FAULT_CATALOG } from '../../../../sim/faults.ts';
 import type { BoardAttempt, InjectionView } from '../../../../shared/api/live.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../../../shared/scenario.ts';
@@ -64,8 +64,25 @@ function Injections({ attempt }: { attempt: BoardAttempt }) {
   );
 }
 
+/** The wall clock, ticking once a second (for "last input … ago"). */
+function useNow(): number {
+  const [now, setNow] = useState(() => Date.now());
+  useEffect(() => {
+    const t = window.setInterval(() => setNow(Date.now()), 1000);
+    return () => window.clearInterval(t);
+  }, []);
+  return now;
+}
+
+export function sinceText(iso: string | null, now: number): string {
+  if (!iso) return 'no input yet';
+  const s = Math.max(0, Math.round((now - Date.parse(iso)) / 1000));
+  return s < 60 ? `last input ${s} s ago` : `last input ${Math.floor(s / 60)} min ago`;
+}
+
 function AttemptCard({ attempt }: { attempt: BoardAttempt }) {
   const [injecting, setInjecting] = useState(false);
+  const now = useNow();
   const r = attempt.readings;
   return (
     <li className="rounded-xl bg-white p-4 shadow-sm ring-1 ring-slate-200" aria-label={`${attempt.studentName}, ${attempt.scenarioTitle}`}>
@@ -82,6 +99,7 @@ function AttemptCard({ attempt }: { attempt: BoardAttempt }) {
             {formatSimTime(attempt.simTimeMs)}
           </p>
           <p className="text-xs text-slate-500">{attempt.currentTest ? DIAGNOSTIC_TEST_LABELS[attempt.currentTest] : 'Setting up'}</p>
+          <p className="text-xs text-slate-400">{sinceText(attempt.lastActivityAt, now)}</p>
         </div>
       </div>
       <dl className="mt-3 grid grid-cols-3 gap-2 sm:grid-cols-5">
