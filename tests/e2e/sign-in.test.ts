@@ -16,10 +16,12 @@ afterAll(async () => {
 });
 
 const expectedNav = {
-  student: ['Bench', 'My attempts'],
+  student: ['Bench', 'My attempts', 'Progress'],
   instructor: ['Scenarios', 'Classes'],
   admin: ['Users', 'Outbox'],
 } as const;
+
+const startPageTitle = { student: 'Bench', instructor: 'Scenario library', admin: 'Users' } as const;
 
 describe('signing in as each role', () => {
   for (const role of ['student', 'instructor', 'admin'] as const) {
@@ -29,9 +31,8 @@ describe('signing in as each role', () => {
       const problems = watchConsole(page);
       await signInAs(page, app.url, person.email);
       const nav = page.getByRole('navigation', { name: 'Main' });
-      const links = await nav.getByRole('link').allTextContents();
-      expect(links).toEqual([...expectedNav[role]]);
-      await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toBe(expectedNav[role][0]);
+      await expect.poll(() => nav.getByRole('link').allTextContents(), { timeout: 20_000 }).toEqual([...expectedNav[role]]);
+      await expect.poll(() => page.getByRole('heading', { level: 1 }).first().textContent(), { timeout: 20_000 }).toBe(startPageTitle[role]);
       await page.screenshot({ path: `${SCREENSHOT_DIR}/sign-in-${role}.png`, fullPage: true });
       expect(problems).toEqual([]);
       await page.getByRole('button', { name: 'Sign out' }).click();
