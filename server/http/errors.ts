@@ -41,6 +41,18 @@ function isDatabaseDown(err: unknown): boolean {
   );
 }
 
+/**
+ * PostgreSQL's data exceptions (class 22: a NUL character in text, a number
+ * out of a column's range, text too long for its column): input the
+ * validation let through that the database cannot store. The transaction is
+ * rolled back, so nothing was written; the caller gets a 400, not a 500.
+ */
+function isUnstorableInput(err: unknown): boolean {
+  const codeOf = (e: unknown) => (e as { code?: unknown } | null)?.code;
+  const code = codeOf(err) ?? codeOf((err as { cause?: unknown } | null)?.cause);
+  return typeof code === 'string' && code.startsWith('22');
+}
+
 export function errorHandler(opts: { production: boolean; log: (err: unknown) => void }): ErrorRequestHandler {
   return (err, _req, res, _next) => {
     let status = 500;
@@ -61,6 +73,9 @@ export function errorHandler(opts: { production: boolean; log: (err: unknown) =>
     } else if (typeof (err as { status?: unknown }).status === 'number' && (err as { status: number }).status < 500) {
       status = (err as { status: number }).status;
       body = { error: { message: (err as Error).message || 'Bad request' } };
+    } else if (isUnstorableInput(err)) {
+      status = 400;
+      body = { error: { message: 'The request holds a value that cannot be stored (a NUL character, or a number or text out of range)', field: 'body' } };
     } else if (isDatabaseDown(err)) {
       status = 503;
       res.setHeader('Retry-After', '1');
