@@ -97,6 +97,10 @@ export async function checkRoster(db: DbOrTx, classId: number, fileName: string,
     const row: CheckedRow = { line: r.line, name, email: rawEmail.toLowerCase(), status: 'new' };
     if (!name) return { ...row, status: 'error', message: 'The name is missing' };
     if (name.length > 120) return { ...row, status: 'error', message: 'The name is longer than 120 characters' };
+    // eslint-disable-next-line no-control-regex -- control characters are what this refuses
+    if (/[\u0000-\u001f\u007f]/.test(name)) return { ...row, status: 'error', message: 'The name holds control characters' };
+    // A cell starting with one of these is a formula to a spreadsheet (CSV injection).
+    if (/^[=+\-@]/.test(name)) return { ...row, status: 'error', message: 'The name starts with = + - or @, which a spreadsheet would run as a formula' };
     if (!rawEmail) return { ...row, status: 'error', message: 'The e-mail is missing' };
     const email = emailSchema.safeParse(rawEmail);
     if (!email.success) return { ...row, status: 'error', message: `“${rawEmail}” is not a valid e-mail address` };
