@@ -1,3 +1,4 @@
+import { createRequire } from 'node:module';
 import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
@@ -19,7 +20,8 @@ afterAll(async () => {
 describe('the inductive clamp and the drawing', () => {
   it('hooks up by drag and by click in the drawing, and a reversed clamp reads negative', async () => {
     const scenarioId = await scenarioIdOf(app, 'healthy-control-corvane-sable');
-    const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
+    // bypassCSP only so the accessibility checker can be injected; the app itself runs under its CSP.
+    const page = await browser.newPage({ viewport: { width: 1360, height: 900 }, bypassCSP: true });
     const problems = watchConsole(page);
     await signInAs(page, app.url, demoFirst('student').email);
     await openBench(page, app.url, `scenarioId=${scenarioId}`);
@@ -60,6 +62,13 @@ describe('the inductive clamp and the drawing', () => {
     expect((await page.getByTestId('reading-amps').textContent())!.startsWith('\u2212')).toBe(true);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-clamp-reversed.png`, fullPage: true });
     await drawing.screenshot({ path: `${SCREENSHOT_DIR}/bench-schematic.png` });
+
+    // The live bench passes the WCAG 2 A/AA rules the checker knows.
+    await page.addScriptTag({ path: createRequire(import.meta.url).resolve('axe-core/axe.min.js') });
+    const violations = (await page.evaluate(
+      'axe.run(document, { runOnly: ["wcag2a", "wcag2aa"] }).then((r) => r.violations.map((v) => v.id + ": " + v.nodes.map((n) => n.target.join(" ")).join(", ")))',
+    )) as string[];
+    expect(violations).toEqual([]);
     expect(problems).toEqual([]);
     await page.close();
   });

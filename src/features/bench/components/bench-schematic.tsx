@@ -221,7 +221,7 @@ function Cables({ linkOpen, bplusConnected, ammeterInSeries, hoverConductor }: {
   );
 }
 
-function Clamp({ at, towardBattery, reversed, label }: { at: Pt; towardBattery: Pt; reversed: boolean; label: string }) {
+function Clamp({ at, towardBattery, reversed }: { at: Pt; towardBattery: Pt; reversed: boolean }) {
   const [dx, dy] = reversed ? [-towardBattery[0], -towardBattery[1]] : towardBattery;
   const [x, y] = at;
   const tip: Pt = [x + dx * 30, y + dy * 30];
@@ -229,7 +229,7 @@ function Clamp({ at, towardBattery, reversed, label }: { at: Pt; towardBattery: 
   const px = -dy;
   const py = dx;
   return (
-    <g aria-label={label} data-testid="clamp-jaw">
+    <g data-testid="clamp-jaw">
       <circle cx={x} cy={y} r={15} className="fill-live-100/70 stroke-live-600" strokeWidth={3} />
       <path d={`M ${tail[0]} ${tail[1]} L ${tip[0]} ${tip[1]}`} className="stroke-live-700" strokeWidth={3} />
       <path d={`M ${tip[0]} ${tip[1]} L ${tip[0] - dx * 9 + px * 6} ${tip[1] - dy * 9 + py * 6} L ${tip[0] - dx * 9 - px * 6} ${tip[1] - dy * 9 - py * 6} Z`} className="fill-live-700" />
@@ -401,7 +401,7 @@ export function BenchSchematic({ accessories }: { accessories: AccessoryParams[]
         <path d={leadPath(JACKS.red, endOf('red'))} className="stroke-stop-600" strokeWidth={3} />
       </g>
       {clampSpot ? (
-        <Clamp at={clampSpot.at} towardBattery={clampSpot.towardBattery} reversed={h.arrow !== 'toward-battery'} label="Clamp" />
+        <Clamp at={clampSpot.at} towardBattery={clampSpot.towardBattery} reversed={h.arrow !== 'toward-battery'} />
       ) : (
         <circle cx={clampEnd[0]} cy={clampEnd[1]} r={13} className="fill-live-100 stroke-live-600" strokeWidth={3} />
       )}

@@ -113,7 +113,7 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
         description={
           <>
             <span className="block">{scenario.summary}</span>
-            <span className="mt-1 block text-xs text-slate-500">
+            <span className="mt-1 block text-xs text-slate-600">
               {scenario.vehicle.name} · {scenario.vehicle.engineDescription} · alternator rated {scenario.vehicle.alternatorRatedA} A · battery {scenario.vehicle.batteryCca} CCA,{' '}
               {scenario.vehicle.batteryCapacityAh} Ah · pulley {scenario.vehicle.pulleyRatio}:1 · {practice ? 'practice run (ungraded)' : 'assigned'}
             </span>
