@@ -28,11 +28,20 @@ afterAll(async () => {
   await t?.close();
 });
 
-async function counts(): Promise<Record<string, number>> {
+interface Counts {
+  users: number;
+  enrollments: number;
+  imports: number;
+  scenarios: number;
+  versions: number;
+  mail: number;
+}
+
+async function counts(): Promise<Counts> {
   const { rows } = await t.ctx.pool.query(`select
     (select count(*)::int from users) users, (select count(*)::int from enrollments) enrollments, (select count(*)::int from roster_imports) imports,
     (select count(*)::int from scenarios) scenarios, (select count(*)::int from scenario_versions) versions, (select count(*)::int from outbox) mail`);
-  return rows[0] as Record<string, number>;
+  return rows[0] as Counts;
 }
 
 const roster = (path: 'roster' | 'roster/preview') => `/api/classes/${fx.classId}/${path}`;
