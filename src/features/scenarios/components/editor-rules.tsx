@@ -92,7 +92,7 @@ export function TestsAndRulesSection() {
         <BoundedNumberField name="passRules.regulatedMaxV" bound={b.regulatedMaxV} />
         <BoundedNumberField name="passRules.maxDropPositiveV" bound={b.maxDropPositiveV} hint="Under load; 0.2 V is a common limit" />
         <BoundedNumberField name="passRules.maxDropGroundV" bound={b.maxDropGroundV} hint="Under load; 0.2 V is a common limit" />
-        <BoundedNumberField name="passRules.maxRippleVac" bound={b.maxRippleVac} hint="AC at B+ to case, loaded" />
+        <BoundedNumberField name="passRules.maxRippleVac" bound={b.maxRippleVac} hint="AC under load; where it is read matters: about 0.1 V at the battery posts, 0.5 V at B+ to case" />
         <BoundedNumberField name="passRules.maxKeyOffDrawA" bound={b.maxKeyOffDrawA} hint="After the modules sleep; 0.025–0.05 A is typical" />
         <BoundedNumberField name="passRules.batteryLoadMinV" bound={b.batteryLoadMinV} hint="At the end of 15 s at half CCA; 9.6 V at 21 °C" />
         <BoundedNumberField name="passRules.socChargedMinV" bound={b.socChargedMinV} hint="Resting voltage before a load test; 12.4 V" />
