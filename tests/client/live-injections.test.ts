@@ -25,7 +25,7 @@ describe('the bench side of live injection', () => {
     const { engine, logged } = benchAt(12_000);
     const key = await deriveBenchKey(SECRET, 9);
     const msg = await injectionMessage(9, 31, 2.5);
-    const now = engine.readNow().atMs;
+    const now = engine.getSnapshot().timeMs;
     const event = await applyInjection(engine, key, msg);
     expect(event).toEqual({ kind: 'fault-inject', atMs: now, fault: { id: 'live-31', kind: 'fusible-link-open', severity01: 1, onsetS: now / 1000 + 2.5, intermittent: null } });
     // A reconnect hands out what the server has not stored yet: the bench skips what it already logged.

@@ -187,7 +187,7 @@ describe('the class board', () => {
   it('lists running attempts with student and scenario, and streams an update when events are stored', async () => {
     const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[1]!);
     const board = await teacher.get(`/api/live/classes/${fx.classId}/board`);
-    expect(board.status).toBe(200);
+    expect(board.status, board.text).toBe(200);
     const snap = boardSnapshotSchema.parse(board.body);
     const entry = snap.attempts.find((a) => a.attemptId === attemptId);
     expect(entry).toMatchObject({ studentName: students[1]!.name, scenarioTitle: 'Dim lamps at idle', assignmentTitle: 'Week 3 bench check', status: 'running' });

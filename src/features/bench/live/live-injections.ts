@@ -13,7 +13,7 @@ import type { BenchEngine } from '../stores/bench-engine.ts';
 
 export const liveStreamUrl = (attemptId: number) => `/api/live/attempts/${attemptId}/stream`;
 
-type EngineLike = Pick<BenchEngine, 'dispatch' | 'readNow' | 'studentEvents'>;
+type EngineLike = Pick<BenchEngine, 'dispatch' | 'getSnapshot' | 'studentEvents'>;
 
 interface SourceLike {
   addEventListener(type: string, listener: (e: MessageEvent<string>) => void): void;
@@ -41,7 +41,8 @@ export async function applyInjection(engine: EngineLike, benchKey: string, msg: 
   if (!fault || fault.id !== msg.faultId) throw new Error('the injection did not open to its fault');
   // Re-check: another copy may have been applied while this one was opening.
   if (alreadyLogged(engine.studentEvents(), msg)) return null;
-  const nowMs = engine.readNow().atMs;
+  // The model's own time, which the dispatcher stamps on the event.
+  const nowMs = engine.getSnapshot().timeMs;
   // The sealed onset is a delay from now.
   return engine.dispatch({ kind: 'fault-inject', fault: { ...fault, onsetS: nowMs / 1000 + fault.onsetS } });
 }
