@@ -1,5 +1,5 @@
 /**
- * `npm run validate`: typecheck, lint, unit, integration and browser tests, in
+ * `npm run validate`: typecheck, lint, unit, integration, resilience and browser tests, in
  * that order, counting what passed and failed. `npm test` runs this inside its
  * own throwaway PostgreSQL cluster; run alone, it makes one too.
  */
@@ -67,6 +67,8 @@ export function validate(env: NodeJS.ProcessEnv): Tally {
   check('lint', bin('eslint'), ['.', '--max-warnings=0']);
   runVitest(tally, 'unit', 'vitest.config.ts', env);
   runVitest(tally, 'integration', 'vitest.integration.config.ts', env);
+  // Alone, after the integration tests: these kill server processes and restart the test database.
+  runVitest(tally, 'resilience', 'vitest.resilience.config.ts', env);
   check('client build', bin('vite'), ['build', '--logLevel', 'warn']);
   runVitest(tally, 'browser', 'vitest.e2e.config.ts', env);
   return tally;
