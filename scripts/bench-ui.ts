@@ -93,23 +93,34 @@ async function main() {
       // Baseline: the same bench running, nobody touching it.
       await page.waitForTimeout(DRAG_SECONDS * 1000);
       baseline.push(...((await page.evaluate('(() => { const f = window.__frames.slice(1); window.__frames = []; return f; })()')) as number[]));
+      // Grab the dial with the real mouse, then move it once per frame from inside the page, the way a
+      // hand drags (the driver's own moves arrive only a dozen times a second).
       await page.mouse.move(cx - r * 0.7, cy + r * 0.7);
       await page.mouse.down();
-      const until = Date.now() + DRAG_SECONDS * 1000;
-      let a = -0.75 * Math.PI;
-      let dir = 1;
-      while (Date.now() < until) {
-        a += dir * 0.05;
-        if (a > 0.75 * Math.PI || a < -0.75 * Math.PI) dir = -dir;
-        await page.mouse.move(cx + r * Math.sin(a), cy - r * Math.cos(a));
-      }
+      const moves = (await page.evaluate(`new Promise((resolve) => {
+        const dial = document.querySelector('[role="slider"][aria-label="Carbon pile load"]');
+        const until = performance.now() + ${DRAG_SECONDS * 1000};
+        let a = -0.75 * Math.PI, dir = 1, moves = 0;
+        const step = (now) => {
+          if (now >= until) return resolve(moves);
+          a += dir * 0.035;
+          if (a > 0.75 * Math.PI || a < -0.75 * Math.PI) dir = -dir;
+          dial.dispatchEvent(new PointerEvent('pointermove', { bubbles: true, pointerId: 1, pointerType: 'mouse', isPrimary: true, buttons: 1,
+            clientX: ${cx} + ${r} * Math.sin(a), clientY: ${cy} - ${r} * Math.cos(a) }));
+          moves += 1;
+          requestAnimationFrame(step);
+        };
+        requestAnimationFrame(step);
+      })`)) as number;
       await page.mouse.up();
       const samples = (await page.evaluate('(() => { window.__stop = true; return window.__frames.slice(1); })()')) as number[];
+      // Let the outbox post its last batch before counting what the server stored.
+      await page.getByText('All saved').waitFor({ timeout: 15_000 });
       const pileEvents = await page.evaluate(async (id) => {
         const boot = (await (await fetch(`/api/attempts/${id}`)).json()) as { events: { event: { kind: string } }[] };
         return boot.events.filter((e) => e.event.kind === 'pile').length;
       }, attemptId);
-      console.log(`Dial drag sent ${pileEvents} pile events through the dispatcher (stored by the server so far).`);
+      console.log(`Dial drag: ${moves} pointer moves (${(moves / DRAG_SECONDS).toFixed(0)} per second), ${pileEvents} pile events dispatched and stored by the server.`);
       return samples;
     } finally {
       await browser.close();

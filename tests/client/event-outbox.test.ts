@@ -84,15 +84,25 @@ function fakeServer() {
 }
 
 describe('the event outbox', () => {
-  it('numbers events from after the server’s last seq and writes each to storage at once', () => {
+  it('numbers events from after the server’s last seq and writes them to storage within 250 ms', async () => {
     const storage = new MemoryStorage();
     const server = fakeServer();
-    const outbox = createOutbox({ attemptId: 7, storage, send: server.send, timer: new ManualTimer(), serverSeq: 12 });
+    const timer = new ManualTimer();
+    const outbox = createOutbox({ attemptId: 7, storage, send: server.send, timer, serverSeq: 12 });
     expect(outbox.push(pile(10, 0.1)).seq).toBe(13);
     expect(outbox.push(pile(20, 0.2)).seq).toBe(14);
-    const saved = readPersisted(storage, 7);
-    expect(saved.pending.map((e) => e.seq)).toEqual([13, 14]);
+    await timer.advance(250);
+    expect(readPersisted(storage, 7).pending.map((e) => e.seq)).toEqual([13, 14]);
     expect(outbox.view()).toMatchObject({ status: 'waiting', pending: 2 });
+  });
+
+  it('writes to storage at once when the page is hidden or unloads', () => {
+    const storage = new MemoryStorage();
+    const outbox = createOutbox({ attemptId: 2, storage, send: fakeServer().send, timer: new ManualTimer(), serverSeq: 0 });
+    outbox.push(pile(0, 0.4));
+    expect(readPersisted(storage, 2).pending).toEqual([]);
+    outbox.persistNow();
+    expect(readPersisted(storage, 2).pending.map((e) => e.seq)).toEqual([1]);
   });
 
   it('posts a batch every interval and reports all saved once acknowledged', async () => {
@@ -139,6 +149,7 @@ describe('the event outbox', () => {
     expect(outbox.view().failures).toBe(3);
     expect(timer.nextDelay()).toBe(4000);
     outbox.push(pile(100, 0.9));
+    outbox.persistNow();
     expect(readPersisted(storage, 3).pending).toHaveLength(6);
     server.setOnline(true);
     await timer.advance(4000);

@@ -1,6 +1,8 @@
 /**
  * The attempt's outbox: every bench event gets the next sequence number, is
- * written to storage at once (so a reload loses nothing), and is posted in
+ * written to storage within `persistEveryMs` and at once on `persistNow` (the
+ * bench calls it when the page is hidden or unloaded, so a reload loses
+ * nothing; a fast dial drag does not write storage every frame), and is posted in
  * batches: every `intervalMs`, or as soon as `batchSize` are waiting. A failed
  * post keeps the batch and retries with a growing delay; the server stores
  * each sequence number once, so sending a batch twice is harmless.
@@ -55,6 +57,8 @@ export interface OutboxOptions {
   batchSize?: number;
   intervalMs?: number;
   maxBackoffMs?: number;
+  /** Longest an event waits in memory before it is written to storage. */
+  persistEveryMs?: number;
   onChange?: (view: OutboxView) => void;
 }
 
@@ -105,6 +109,8 @@ export interface Outbox {
   /** Called whenever the view may have changed; returns an unsubscribe. */
   subscribe(listener: () => void): () => void;
   noteSimTime(ms: number): void;
+  /** Write everything to storage now (page hidden or unloading). */
+  persistNow(): void;
   start(): void;
   stop(): void;
   /** Forget the attempt's outbox (after a submission). */
@@ -116,6 +122,8 @@ export function createOutbox(options: OutboxOptions): Outbox {
   const batchSize = options.batchSize ?? 50;
   const intervalMs = options.intervalMs ?? 1000;
   const maxBackoffMs = options.maxBackoffMs ?? 30_000;
+  const persistEveryMs = options.persistEveryMs ?? 250;
+  let persistHandle: unknown = null;
 
   const saved = readPersisted(storage, attemptId);
   let ackedSeq = Math.max(saved.ackedSeq, options.serverSeq);
@@ -127,7 +135,19 @@ export function createOutbox(options: OutboxOptions): Outbox {
   let handle: unknown = null;
   let started = false;
 
+  function persistSoon(): void {
+    if (persistHandle !== null) return;
+    persistHandle = timer.set(() => {
+      persistHandle = null;
+      persist();
+    }, persistEveryMs);
+  }
+
   function persist(): void {
+    if (persistHandle !== null) {
+      timer.clear(persistHandle);
+      persistHandle = null;
+    }
     try {
       storage.setItem(outboxKey(attemptId), JSON.stringify({ pending, ackedSeq, simTimeMs } satisfies PersistedOutbox));
     } catch {
@@ -202,7 +222,7 @@ export function createOutbox(options: OutboxOptions): Outbox {
     push(event) {
       const item = { seq: nextSeq++, event };
       pending.push(item);
-      persist();
+      persistSoon();
       if (pending.length >= batchSize && failures === 0) void flush();
       else changed();
       return item;
@@ -217,6 +237,7 @@ export function createOutbox(options: OutboxOptions): Outbox {
       simTimeMs = ms;
       persist();
     },
+    persistNow: persist,
     start() {
       if (started) return;
       started = true;
@@ -231,7 +252,9 @@ export function createOutbox(options: OutboxOptions): Outbox {
     clear() {
       started = false;
       if (handle !== null) timer.clear(handle);
+      if (persistHandle !== null) timer.clear(persistHandle);
       handle = null;
+      persistHandle = null;
       pending = [];
       storage.removeItem(outboxKey(attemptId));
       changed();

@@ -92,7 +92,7 @@ export function procedureFor(test: DiagnosticTest, rules: PassRules, ratedA: num
         title: 'Voltage drop, positive side',
         steps: [
           'Red lead on the alternator B+ stud, black lead on the battery positive post.',
-          'Start the engine, hold about 2,000 rpm and load the system: headlamps and blower on, or the pile until the clamp on the B+ cable reads 20–30 A or more.',
+          'Start the engine, hold about 2,000 rpm and switch the headlamps and blower on: 30 A or more should show on the clamp on the B+ cable.',
           'Record the voltage: it is the loss in the B+ cable, fusible link and joints.',
         ],
         criterion: `Positive-side drop ${v(rules.maxDropPositiveV, 2)} or less under load.`,
@@ -102,8 +102,8 @@ export function procedureFor(test: DiagnosticTest, rules: PassRules, ratedA: num
       return {
         title: 'Voltage drop, ground side',
         steps: [
-          'Red lead on the alternator case, black lead on the battery negative post.',
-          'Start the engine, hold about 2,000 rpm and load the system as for the positive side.',
+          'Red lead on the battery negative post, black lead on the alternator case (charging current flows back from the battery negative to the case, so the meter reads positive this way round).',
+          'Start the engine, hold about 2,000 rpm, headlamps and blower on as for the positive side.',
           'Record the voltage: it is the loss in the mounting, ground strap and negative cable.',
         ],
         criterion: `Ground-side drop ${v(rules.maxDropGroundV, 2)} or less under load.`,
@@ -113,11 +113,11 @@ export function procedureFor(test: DiagnosticTest, rules: PassRules, ratedA: num
       return {
         title: 'AC ripple (diode) check',
         steps: [
-          'Red lead on the B+ stud (or the battery positive), black on the alternator case (or the battery negative).',
-          'Start the engine, hold about 2,000 rpm, headlamps on for a moderate load.',
+          'Red lead on the battery positive post, black on the battery negative post.',
+          'Start the engine, hold about 2,000 rpm, headlamps and blower on.',
           'Read the AC ripple and look at the trace: a healthy bridge gives a small, even six-pulse ripple.',
         ],
-        criterion: `Ripple ${Math.round(rules.maxRippleVac * 1000)} mV AC or less.`,
+        criterion: `Ripple ${Math.round(rules.maxRippleVac * 1000)} mV AC or less at the battery posts.`,
         cautions: [CAUTION.exhaust, CAUTION.fan],
       };
     case 'key-off-draw':

@@ -41,6 +41,9 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
     let stopLive: (() => void) | null = null;
     let saveTimer: number | undefined;
     const saveTime = () => built?.outbox.noteSimTime(built.engine.getSnapshot().timeMs);
+    const onHidden = () => {
+      if (document.visibilityState === 'hidden') saveTime();
+    };
 
     void (async () => {
       try {
@@ -74,6 +77,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
         outbox.start();
         saveTimer = window.setInterval(saveTime, 1000);
         window.addEventListener('pagehide', saveTime);
+        document.addEventListener('visibilitychange', onHidden);
         setSession(built);
       } catch (err) {
         if (!cancelled) setError(err instanceof Error ? err : new Error(String(err)));
@@ -84,6 +88,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
       cancelled = true;
       window.clearInterval(saveTimer);
       window.removeEventListener('pagehide', saveTime);
+      document.removeEventListener('visibilitychange', onHidden);
       if (built) {
         saveTime();
         built.engine.stop();
