@@ -1,15 +1,26 @@
-/** The instructor's routes (admins see them too). */
+/** The instructor's routes (admins see them too), each split off with `lazy` so students never load them. */
 import type { RouteObject } from 'react-router-dom';
 import { paths } from '../../config/paths.ts';
-import { ClassPage, classLoader } from './instructor-class.tsx';
-import { ClassesPage, classesLoader } from './instructor-classes.tsx';
-import { EditScenarioPage, NewScenarioPage, scenarioLoader } from './instructor-scenario-editor.tsx';
-import { ScenariosPage, scenariosLoader } from './instructor-scenarios.tsx';
 
 export const instructorRoutes: RouteObject[] = [
-  { path: paths.scenarios.pattern, loader: scenariosLoader, element: <ScenariosPage /> },
-  { path: paths.scenarioNew.pattern, element: <NewScenarioPage /> },
-  { path: paths.scenario.pattern, loader: scenarioLoader, element: <EditScenarioPage /> },
-  { path: paths.classes.pattern, loader: classesLoader, element: <ClassesPage /> },
-  { path: paths.class.pattern, loader: classLoader, element: <ClassPage /> },
+  {
+    path: paths.scenarios.pattern,
+    lazy: () => import('./instructor-scenarios.tsx').then((m) => ({ loader: m.scenariosLoader, Component: m.ScenariosPage })),
+  },
+  {
+    path: paths.scenarioNew.pattern,
+    lazy: () => import('./instructor-scenario-editor.tsx').then((m) => ({ Component: m.NewScenarioPage })),
+  },
+  {
+    path: paths.scenario.pattern,
+    lazy: () => import('./instructor-scenario-editor.tsx').then((m) => ({ loader: m.scenarioLoader, Component: m.EditScenarioPage })),
+  },
+  {
+    path: paths.classes.pattern,
+    lazy: () => import('./instructor-classes.tsx').then((m) => ({ loader: m.classesLoader, Component: m.ClassesPage })),
+  },
+  {
+    path: paths.class.pattern,
+    lazy: () => import('./instructor-class.tsx').then((m) => ({ loader: m.classLoader, Component: m.ClassPage })),
+  },
 ];
