@@ -31,9 +31,14 @@ export function ClassPage() {
         title={c.name}
         description={`${c.term || 'No term'} · taught by ${c.instructors.map((i) => i.name).join(', ') || 'nobody yet'} · ${c.studentCount} students`}
         actions={
-          <Link to={paths.classes.href()} className="rounded-md px-3.5 py-2 text-sm font-medium text-slate-700 hover:bg-slate-200/70">
-            All classes
-          </Link>
+          <>
+            <Link to={paths.live.href(c.id)} className="rounded-md bg-slate-900 px-3.5 py-2 text-sm font-medium text-white hover:bg-slate-700">
+              Live board
+            </Link>
+            <Link to={paths.classes.href()} className="rounded-md px-3.5 py-2 text-sm font-medium text-slate-700 hover:bg-slate-200/70">
+              All classes
+            </Link>
+          </>
         }
       />
       <div className="grid gap-6 xl:grid-cols-2">
@@ -44,7 +49,15 @@ export function ClassPage() {
             ) : assignments.isError ? (
               <ErrorState error={assignments.error} retry={() => void assignments.refetch()} />
             ) : (
-              <AssignmentsTable assignments={assignments.data} scenarioTitle={titleOf} />
+              <AssignmentsTable
+                assignments={assignments.data}
+                scenarioTitle={titleOf}
+                rowActions={(a) => (
+                  <Link to={paths.compare.href(a.id)} className="rounded-md px-2.5 py-1 text-sm font-medium text-slate-700 hover:bg-slate-200/70">
+                    Compare<span className="sr-only"> {a.title}</span>
+                  </Link>
+                )}
+              />
             )}
           </Panel>
           <Panel title="Assign a scenario">

@@ -11,7 +11,16 @@ function state(a: Assignment, now: number): { label: string; tone: string } {
   return { label: 'Open', tone: 'text-live-700' };
 }
 
-export function AssignmentsTable({ assignments, scenarioTitle }: { assignments: Assignment[]; scenarioTitle: (scenarioId: number) => string | undefined }) {
+export function AssignmentsTable({
+  assignments,
+  scenarioTitle,
+  rowActions,
+}: {
+  assignments: Assignment[];
+  scenarioTitle: (scenarioId: number) => string | undefined;
+  /** Links the page adds to each row (the class comparison, for one). */
+  rowActions?: (a: Assignment) => React.ReactNode;
+}) {
   const remove = useDeleteAssignment();
   const now = Date.now();
   if (assignments.length === 0) return <EmptyState title="Nothing assigned yet">Assign a published scenario below.</EmptyState>;
@@ -46,7 +55,8 @@ export function AssignmentsTable({ assignments, scenarioTitle }: { assignments: 
                   <td className="px-3 py-2 text-slate-600">{when(a.dueAt)}</td>
                   <td className="px-3 py-2">{a.attemptsAllowed}</td>
                   <td className={`px-3 py-2 font-medium ${s.tone}`}>{s.label}</td>
-                  <td className="px-3 py-2 text-right">
+                  <td className="space-x-1 whitespace-nowrap px-3 py-2 text-right">
+                    {rowActions?.(a)}
                     <Button size="sm" variant="ghost" disabled={remove.isPending} onClick={() => remove.mutate({ id: a.id, classId: a.classId })}>
                       Delete<span className="sr-only"> {a.title}</span>
                     </Button>
