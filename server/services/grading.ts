@@ -1,7 +1,7 @@
 /**
  * Grading a submitted attempt from the server's own re-run of the model:
  * each recorded reading against what the meters showed then, the verdicts
- * against the faults the car really had, the fault named, and the mistakes
+ * against what the reference procedures show on the car with its faults, the fault named, and the mistakes
  * the re-run shows (a reversed clamp, a blown link, an overheated pile ...).
  * Pure: the re-run's samples come in, an AttemptResult goes out.
  */
@@ -11,7 +11,8 @@ import type { Controls } from '../../sim/inputs.ts';
 import type { OutputCurvePoint, Readings } from '../../sim/instruments.ts';
 import type { AttemptResult, MistakeKind, RecordedReading, SubmitInput } from '../../shared/api/attempts.ts';
 import type { DiagnosisChoice } from '../../shared/scenario.ts';
-import { DIAGNOSTIC_TEST_LABELS, diagnosisLabel, NO_FAULT_LABEL } from '../../shared/scenario.ts';
+import type { ReferenceMeasurements } from '../../shared/reference-procedures.ts';
+import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, NO_FAULT_LABEL } from '../../shared/scenario.ts';
 
 /** One moment of the re-run. */
 export interface RunSample {
@@ -223,11 +224,14 @@ export function findMistakes(samples: readonly RunSample[], readings: readonly R
 }
 
 /**
- * The right verdict of a test for a car: fail when one of the faults it had
- * is revealed by that test (the fault catalogue's `revealedBy`), pass otherwise.
+ * The right verdict of each test for a car: the pass or fail of the test's
+ * reference procedure run on the model with the car's faults
+ * (shared/reference-procedures.ts), so the key is what the car shows.
  */
-export function correctVerdict(test: DiagnosticTest, actual: readonly FaultKind[]): boolean {
-  return !actual.some((kind) => FAULT_CATALOG[kind].revealedBy.includes(test));
+export function correctVerdicts(measurements: ReferenceMeasurements): Record<DiagnosticTest, boolean> {
+  const out = {} as Record<DiagnosticTest, boolean>;
+  for (const test of DIAGNOSTIC_TESTS) out[test] = measurements[test].pass;
+  return out;
 }
 
 /** The fault kinds the car had by the submission: scenario and injected faults still in place whose onset has passed. */
@@ -239,6 +243,8 @@ export interface GradeInput {
   mode: 'assigned' | 'practice';
   submission: SubmitInput;
   testsExpected: readonly DiagnosticTest[];
+  /** The right verdict of each test (`correctVerdicts` of the reference measurements). */
+  correctVerdicts: Readonly<Record<DiagnosticTest, boolean>>;
   /** The faults in place at the submission (scenario and live), as the re-run saw them. */
   faults: readonly Fault[];
   samples: readonly RunSample[];
@@ -258,7 +264,7 @@ export function gradeAttempt(input: GradeInput): AttemptResult {
 
   const given = new Map(submission.diagnosis.verdicts.map((v) => [v.test, v.pass]));
   const verdicts = input.testsExpected.map((test) => {
-    const correct = correctVerdict(test, actual);
+    const correct = input.correctVerdicts[test];
     const g = given.get(test);
     return { test, given: g ?? null, correct, ok: g === correct };
   });

@@ -4,11 +4,12 @@ import type { Fault } from '../../sim/faults.ts';
 import { initialControls, type Controls } from '../../sim/inputs.ts';
 import type { Readings } from '../../sim/instruments.ts';
 import type { RecordedReading, SubmitInput } from '../../shared/api/attempts.ts';
+import type { ReferenceMeasurements } from '../../shared/reference-procedures.ts';
 import { DIAGNOSTIC_TESTS } from '../../shared/scenario.ts';
 import {
   actualFaultKinds,
   checkReading,
-  correctVerdict,
+  correctVerdicts,
   findMistakes,
   gradeAttempt,
   toleranceFor,
@@ -137,11 +138,15 @@ describe('mistakes found in the re-run', () => {
 });
 
 describe('verdicts and the fault', () => {
-  it('takes the right verdict from the tests that reveal the car’s faults', () => {
-    expect(correctVerdict('output', ['diode-open'])).toBe(false);
-    expect(correctVerdict('ripple', ['diode-open'])).toBe(false);
-    expect(correctVerdict('battery-load', ['diode-open'])).toBe(true);
-    expect(DIAGNOSTIC_TESTS.every((t) => correctVerdict(t, []))).toBe(true);
+  it('takes the right verdict of each test from its reference measurement, not from the fault catalogue', () => {
+    // An open diode at 2,000 rpm: output passes, ripple fails (the reference procedure's readings).
+    const m = Object.fromEntries(
+      DIAGNOSTIC_TESTS.map((t) => [t, { value: 0, unit: 'V' as const, pass: t !== 'ripple', marginToLimit: t === 'ripple' ? -0.1 : 1, conditions: '' }]),
+    ) as ReferenceMeasurements;
+    const verdicts = correctVerdicts(m);
+    expect(verdicts.output).toBe(true);
+    expect(verdicts.ripple).toBe(false);
+    expect(DIAGNOSTIC_TESTS.filter((t) => !verdicts[t])).toEqual(['ripple']);
   });
 
   it('counts a fault only once its onset has passed', () => {
@@ -164,6 +169,7 @@ describe('the grade', () => {
       diagnosis: { verdicts: [{ test: 'battery-ocv', pass: false }, { test: 'battery-load', pass: false }], faultKind: 'battery-weak', notes: '', ...diagnosis },
     },
     testsExpected: ['battery-ocv', 'battery-load'],
+    correctVerdicts: { ...Object.fromEntries(DIAGNOSTIC_TESTS.map((t) => [t, true])), 'battery-ocv': false, 'battery-load': false } as Record<(typeof DIAGNOSTIC_TESTS)[number], boolean>,
     faults: [{ id: 'w', kind: 'battery-weak', severity01: 0.8, onsetS: 0 }],
     samples,
     showFeedback: true,
