@@ -19,7 +19,7 @@ afterAll(async () => {
 
 describe('the inductive clamp and the drawing', () => {
   it('hooks up by drag and by click in the drawing, and a reversed clamp reads negative', async () => {
-    const scenarioId = await scenarioIdOf(app, 'healthy-control-corvane-sable');
+    const scenarioId = await scenarioIdOf(app, 'healthy-control-corvane-linden');
     // bypassCSP only so the accessibility checker can be injected; the app itself runs under its CSP.
     const page = await browser.newPage({ viewport: { width: 1360, height: 900 }, bypassCSP: true });
     const problems = watchConsole(page);

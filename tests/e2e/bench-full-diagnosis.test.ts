@@ -22,7 +22,7 @@ describe('a whole diagnosis of an assigned scenario', () => {
   it('starts from the bench list, runs every test of the family, submits and gets a verified grade', async () => {
     const student = demoFirst('student');
     const title = 'Full check before sale';
-    await assignToStudent(app, 'healthy-control-corvane-sable', student.email, title);
+    await assignToStudent(app, 'healthy-control-corvane-linden', student.email, title);
     const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
     const problems = watchConsole(page);
     await signInAs(page, app.url, student.email);

@@ -18,7 +18,7 @@ afterAll(async () => {
 
 describe('the network cut mid-attempt', () => {
   it('keeps running, keeps every event through a reload, and sends them all once the network is back', async () => {
-    const scenarioId = await scenarioIdOf(app, 'healthy-control-corvane-sable');
+    const scenarioId = await scenarioIdOf(app, 'healthy-control-corvane-linden');
     const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
     const problems = watchConsole(page);
     await signInAs(page, app.url, demoFirst('student').email);

@@ -19,7 +19,7 @@ afterAll(async () => {
 describe('a healthy output test, end to end', () => {
   it('hooks up, starts, holds 2,000 rpm, loads to about 12 V, records, submits and is graded pass on the output test', async () => {
     const student = demoFirst('student');
-    const assignmentId = await assignToStudent(app, 'healthy-control-corvane-sable', student.email, 'Output test practice round');
+    const assignmentId = await assignToStudent(app, 'healthy-control-corvane-linden', student.email, 'Output test practice round');
     const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
     const problems = watchConsole(page);
     await signInAs(page, app.url, student.email);

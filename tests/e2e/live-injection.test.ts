@@ -21,7 +21,7 @@ afterAll(async () => {
 describe('live fault injection in the browser', () => {
   it('an instructor injects an open fusible link into a running demo attempt and the student’s meters show it', async () => {
     const student = demoFirst('student');
-    const assignmentId = await assignToStudent(app, 'healthy-control-corvane-sable', student.email, 'Live session: charging check');
+    const assignmentId = await assignToStudent(app, 'healthy-control-corvane-linden', student.email, 'Live session: charging check');
     const [assignment] = await app.server.ctx.db.select({ classId: assignments.classId }).from(assignments).where(eq(assignments.id, assignmentId));
 
     const studentCtx = await browser.newContext({ viewport: { width: 1360, height: 900 } });

@@ -67,7 +67,7 @@ describe('replay with comments, the class comparison and sign-offs', () => {
     const student = demoFirst('student');
     const classmate = DEMO_PEOPLE.filter((p) => p.role === 'student')[1]!;
     const db = app.server.ctx.db;
-    const assignmentId = await assignToStudent(app, 'healthy-control-corvane-sable', student.email, 'Replay review: charging check');
+    const assignmentId = await assignToStudent(app, 'healthy-control-corvane-linden', student.email, 'Replay review: charging check');
     const attemptId = await submittedAttempt(db, student.email, assignmentId, 36_000, 88);
     await submittedAttempt(db, classmate.email, assignmentId, 52_000, 74);
 

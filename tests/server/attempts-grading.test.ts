@@ -23,7 +23,7 @@ beforeAll(async () => {
   const [healthy] = await t.ctx.db
     .select({ versionId: scenarios.publishedVersionId })
     .from(scenarios)
-    .where(eq(scenarios.slug, 'healthy-control-corvane-sable'));
+    .where(eq(scenarios.slug, 'healthy-control-corvane-linden'));
   const [row] = await t.ctx.db
     .insert(assignments)
     .values({
@@ -227,7 +227,7 @@ describe('checking what the student wrote down', () => {
   });
 
   it('finds a reversed clamp, a held load and an overheated pile in the re-run', async () => {
-    const practiceId = (await t.ctx.db.select({ id: scenarios.id }).from(scenarios).where(eq(scenarios.slug, 'healthy-control-corvane-sable')))[0]!.id;
+    const practiceId = (await t.ctx.db.select({ id: scenarios.id }).from(scenarios).where(eq(scenarios.slug, 'healthy-control-corvane-linden')))[0]!.id;
     const agent = await signIn(t.app, ADA);
     const boot = (await agent.post('/api/attempts').send({ scenarioId: practiceId, mode: 'practice' }).expect(201)).body as AttemptBootstrap;
     const events: InputEvent[] = [

@@ -70,7 +70,7 @@ describe('starting an attempt', () => {
   });
 
   it('starts a practice run of a published scenario', async () => {
-    const id = await scenarioId(t.ctx, 'healthy-control-corvane-sable');
+    const id = await scenarioId(t.ctx, 'healthy-control-corvane-linden');
     const res = await ada.post('/api/attempts').send({ scenarioId: id, mode: 'practice' }).expect(201);
     expect(res.body.attempt).toMatchObject({ mode: 'practice', assignmentId: null, status: 'running' });
     expect(answerKeyFound(res.body)).toEqual([]);
@@ -173,7 +173,7 @@ describe('the event log', () => {
   });
 
   it('stores events after a gap, and counts lastSeq only as far as there is no gap', async () => {
-    const fresh = await ada.post('/api/attempts').send({ scenarioId: await scenarioId(t.ctx, 'healthy-control-corvane-sable'), mode: 'practice' }).expect(201);
+    const fresh = await ada.post('/api/attempts').send({ scenarioId: await scenarioId(t.ctx, 'healthy-control-corvane-linden'), mode: 'practice' }).expect(201);
     const fid = fresh.body.attempt.id as number;
     const all = numbered(script);
     const a = await ada.post(`/api/attempts/${fid}/events`).send({ events: all.slice(0, 2) }).expect(200);
@@ -249,7 +249,7 @@ describe('the event log', () => {
   });
 
   it('answers 409 to events for a submitted attempt', async () => {
-    const done = await ada.post('/api/attempts').send({ scenarioId: await scenarioId(t.ctx, 'healthy-control-corvane-sable'), mode: 'practice' }).expect(201);
+    const done = await ada.post('/api/attempts').send({ scenarioId: await scenarioId(t.ctx, 'healthy-control-corvane-linden'), mode: 'practice' }).expect(201);
     const did = done.body.attempt.id as number;
     await ada.post(`/api/attempts/${did}/submit`).send({ atMs: 0, readings: [], diagnosis: { verdicts: [], faultKind: 'none', notes: '' } }).expect(200);
     const res = await ada.post(`/api/attempts/${did}/events`).send({ events: numbered(leads(0, 'battery-pos', 'battery-neg')) }).expect(409);
