@@ -23,7 +23,7 @@ import { scenarios, scenarioVersions, users } from '../db/schema.ts';
 import { badRequest, conflict, HttpError, notFound } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams, parseQuery } from '../http/validate.ts';
-import { appendVersion, exportFileName, insertScenario, listScenarios, parseScenarioDocument, scenarioDetail, versionSummary, visibleTo } from '../services/scenario-store.ts';
+import { appendVersion, exportFileName, insertScenario, listScenarios, parseScenarioDocument, scenarioDetail, versionColumns, versionSummary, visibleTo } from '../services/scenario-store.ts';
 
 const STAFF = ['instructor', 'admin'] as const;
 export const SCENARIO_FILE_MAX_BYTES = 512 * 1024;
@@ -132,16 +132,7 @@ export function scenarioRoutes(ctx: AppContext) {
     const { id, versionId } = parseParams(scenarioVersionParamsSchema, req);
     const { scenario } = await assertCanSeeScenarioVersion(ctx.db, user, id, versionId);
     const [v] = await ctx.db
-      .select({
-        id: scenarioVersions.id,
-        version: scenarioVersions.version,
-        title: scenarioVersions.title,
-        note: scenarioVersions.note,
-        createdById: scenarioVersions.createdBy,
-        createdByName: users.name,
-        createdAt: scenarioVersions.createdAt,
-        definition: scenarioVersions.definition,
-      })
+      .select(versionColumns)
       .from(scenarioVersions)
       .leftJoin(users, eq(users.id, scenarioVersions.createdBy))
       .where(eq(scenarioVersions.id, versionId));

@@ -135,6 +135,18 @@ async function publishedNumbers(db: DbOrTx, ids: number[]): Promise<Map<number, 
   return map;
 }
 
+/** The columns of a version as the library shows it (join `users` on `createdBy` for the author's name). */
+export const versionColumns = {
+  id: scenarioVersions.id,
+  version: scenarioVersions.version,
+  title: scenarioVersions.title,
+  note: scenarioVersions.note,
+  createdById: scenarioVersions.createdBy,
+  createdByName: users.name,
+  createdAt: scenarioVersions.createdAt,
+  definition: scenarioVersions.definition,
+};
+
 export async function scenarioDetail(db: DbOrTx, user: Who, scenarioId: number): Promise<ScenarioDetail> {
   const [s] = await db
     .select({
@@ -152,16 +164,7 @@ export async function scenarioDetail(db: DbOrTx, user: Who, scenarioId: number):
     .where(eq(scenarios.id, scenarioId));
   if (!s) throw notFound('No such scenario');
   const versions = await db
-    .select({
-      id: scenarioVersions.id,
-      version: scenarioVersions.version,
-      title: scenarioVersions.title,
-      note: scenarioVersions.note,
-      createdById: scenarioVersions.createdBy,
-      createdByName: users.name,
-      createdAt: scenarioVersions.createdAt,
-      definition: scenarioVersions.definition,
-    })
+    .select(versionColumns)
     .from(scenarioVersions)
     .leftJoin(users, eq(users.id, scenarioVersions.createdBy))
     .where(eq(scenarioVersions.scenarioId, scenarioId))
