@@ -12,59 +12,58 @@ function Bar({ n, d }: { n: number; d: number }) {
   );
 }
 
+interface AccuracyRow {
+  key: string;
+  label: string;
+  right: number;
+  of: number;
+}
+
+function AccuracyTable({ caption, subject, measure, rows }: { caption: string; subject: string; measure: string; rows: AccuracyRow[] }) {
+  return (
+    <table className="text-sm">
+      <caption className="mb-2 text-left font-semibold text-slate-700">{caption}</caption>
+      <thead className="text-left text-slate-500">
+        <tr>
+          <th scope="col" className="py-1 pr-3 font-medium">{subject}</th>
+          <th scope="col" className="py-1 pr-3 font-medium">{measure}</th>
+          <th scope="col" className="py-1 font-medium">
+            <span className="sr-only">Share</span>
+          </th>
+        </tr>
+      </thead>
+      <tbody>
+        {rows.map((r) => (
+          <tr key={r.key}>
+            <td className="py-1 pr-3">{r.label}</td>
+            <td className="py-1 pr-3 font-mono">
+              {r.right} of {r.of} ({pct(r.right, r.of)})
+            </td>
+            <td className="py-1">
+              <Bar n={r.right} d={r.of} />
+            </td>
+          </tr>
+        ))}
+      </tbody>
+    </table>
+  );
+}
+
 export function AccuracyTables({ byFault, byTest }: { byFault: InstructorCompare['accuracyByFault']; byTest: InstructorCompare['accuracyByTest'] }) {
   return (
     <div className="grid gap-4 md:grid-cols-2">
-      <table className="text-sm">
-        <caption className="mb-2 text-left font-semibold text-slate-700">Accuracy per fault</caption>
-        <thead className="text-left text-slate-500">
-          <tr>
-            <th scope="col" className="py-1 pr-3 font-medium">Actual fault</th>
-            <th scope="col" className="py-1 pr-3 font-medium">Named</th>
-            <th scope="col" className="py-1 font-medium">
-              <span className="sr-only">Share</span>
-            </th>
-          </tr>
-        </thead>
-        <tbody>
-          {byFault.map((f) => (
-            <tr key={f.fault}>
-              <td className="py-1 pr-3">{f.label}</td>
-              <td className="py-1 pr-3 font-mono">
-                {f.named} of {f.attempts} ({pct(f.named, f.attempts)})
-              </td>
-              <td className="py-1">
-                <Bar n={f.named} d={f.attempts} />
-              </td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
-      <table className="text-sm">
-        <caption className="mb-2 text-left font-semibold text-slate-700">Accuracy per test</caption>
-        <thead className="text-left text-slate-500">
-          <tr>
-            <th scope="col" className="py-1 pr-3 font-medium">Test</th>
-            <th scope="col" className="py-1 pr-3 font-medium">Right verdicts</th>
-            <th scope="col" className="py-1 font-medium">
-              <span className="sr-only">Share</span>
-            </th>
-          </tr>
-        </thead>
-        <tbody>
-          {byTest.map((t) => (
-            <tr key={t.test}>
-              <td className="py-1 pr-3">{t.label}</td>
-              <td className="py-1 pr-3 font-mono">
-                {t.right} of {t.verdicts} ({pct(t.right, t.verdicts)})
-              </td>
-              <td className="py-1">
-                <Bar n={t.right} d={t.verdicts} />
-              </td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
+      <AccuracyTable
+        caption="Accuracy per fault"
+        subject="Actual fault"
+        measure="Named"
+        rows={byFault.map((f) => ({ key: f.fault, label: f.label, right: f.named, of: f.attempts }))}
+      />
+      <AccuracyTable
+        caption="Accuracy per test"
+        subject="Test"
+        measure="Right verdicts"
+        rows={byTest.map((t) => ({ key: t.test, label: t.label, right: t.right, of: t.verdicts }))}
+      />
     </div>
   );
 }
