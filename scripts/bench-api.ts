@@ -8,7 +8,6 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { createHmac, randomBytes } from 'node:crypto';
 import { cpus } from 'node:os';
-import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import pg from 'pg';
 import { hashPassword } from '../server/auth/passwords.ts';
@@ -59,7 +58,9 @@ function signedCookie(sid: string): string {
 }
 
 async function startServerProcess(databaseUrl: string): Promise<{ url: string; child: ChildProcess }> {
-  const child = spawn(join(root, 'node_modules', '.bin', 'tsx'), ['server/serve.ts'], {
+  // Node itself with tsx's loader, so the pid held is the server's; BENCH_PROFILE_DIR writes a CPU profile there.
+  const profile = process.env.BENCH_PROFILE_DIR ? ['--cpu-prof', `--cpu-prof-dir=${process.env.BENCH_PROFILE_DIR}`] : [];
+  const child = spawn(process.execPath, ['--import', 'tsx', ...profile, 'server/serve.ts'], {
     cwd: root,
     env: { ...process.env, DATABASE_URL: databaseUrl, PORT: '0', NODE_ENV: 'production', SESSION_SECRET: SECRET, SIGN_IN_LIMIT: '100000' },
     stdio: ['ignore', 'pipe', 'inherit'],

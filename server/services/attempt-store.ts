@@ -8,13 +8,16 @@ import { and, asc, desc, eq, sql } from 'drizzle-orm';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import type { AttemptBootstrap, AttemptResult, BenchScenarioView, MyAttemptRow, StartAttemptInput, StoredEvent } from '../../shared/api/attempts.ts';
 import { attemptResultSchema } from '../../shared/api/attempts.ts';
-import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, restoreScenario, studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
+import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
 import { deriveBenchKey, healthyVehicle, sealEvents, sealFaults, sealVehicle } from '../../shared/sealed-faults.ts';
 import { assertCanPractiseScenario, assertCanStartAssignment } from '../auth/access.ts';
 import type { Db, DbOrTx } from '../db/client.ts';
 import { assignments, attemptEvents, attempts, scenarioVersions } from '../db/schema.ts';
 import { notFound } from '../http/errors.ts';
+import { loadDefinition } from './definitions.ts';
 import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
+
+export { loadDefinition };
 
 export interface AttemptRow {
   id: number;
@@ -49,12 +52,6 @@ export async function loadAttempt(db: DbOrTx, attemptId: number, opts: { lock?: 
   const [row] = opts.lock ? await q.for('update') : await q;
   if (!row) throw notFound('No such attempt');
   return { ...row, mode: row.mode === 'practice' ? 'practice' : 'assigned', status: row.status === 'submitted' ? 'submitted' : 'running' };
-}
-
-export async function loadDefinition(db: DbOrTx, scenarioVersionId: number): Promise<ScenarioDefinition> {
-  const [row] = await db.select({ definition: scenarioVersions.definition }).from(scenarioVersions).where(eq(scenarioVersions.id, scenarioVersionId));
-  if (!row) throw notFound('No such scenario version');
-  return restoreScenario(row.definition);
 }
 
 /** What the assignment shows after submission (practice shows everything). */

@@ -7,10 +7,11 @@ import { asc, eq } from 'drizzle-orm';
 import type { InputEvent } from '../../sim/inputs.ts';
 import type { VehicleParams } from '../../sim/params.ts';
 import { inputEventSchema } from '../../shared/api/attempts.ts';
-import { restoreScenario, type ScenarioDefinition } from '../../shared/scenario.ts';
+import type { ScenarioDefinition } from '../../shared/scenario.ts';
 import type { DbOrTx } from '../db/client.ts';
-import { attemptEvents, attempts, scenarioVersions } from '../db/schema.ts';
+import { attemptEvents, attempts } from '../db/schema.ts';
 import { notFound } from '../http/errors.ts';
+import { loadDefinition } from './definitions.ts';
 
 export interface StoredInput {
   seq: number;
@@ -51,12 +52,11 @@ export function scenarioFaultEvents(def: Pick<ScenarioDefinition, 'faults'>): In
 
 export async function loadAttemptRun(db: DbOrTx, attemptId: number): Promise<AttemptRunInputs> {
   const [a] = await db
-    .select({ seed: attempts.seed, status: attempts.status, definition: scenarioVersions.definition, diagnosis: attempts.diagnosis, result: attempts.result })
+    .select({ seed: attempts.seed, status: attempts.status, scenarioVersionId: attempts.scenarioVersionId, diagnosis: attempts.diagnosis, result: attempts.result })
     .from(attempts)
-    .innerJoin(scenarioVersions, eq(scenarioVersions.id, attempts.scenarioVersionId))
     .where(eq(attempts.id, attemptId));
   if (!a) throw notFound('No such attempt');
-  const definition = restoreScenario(a.definition);
+  const definition = await loadDefinition(db, a.scenarioVersionId);
   const rows = await db
     .select({ seq: attemptEvents.seq, kind: attemptEvents.kind, simTimeMs: attemptEvents.simTimeMs, payload: attemptEvents.payload, source: attemptEvents.source })
     .from(attemptEvents)
