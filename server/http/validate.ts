@@ -2,10 +2,15 @@ import type { Request } from 'express';
 import type { z } from 'zod';
 import { zodToHttp } from './errors.ts';
 
-export function parseBody<S extends z.ZodType>(schema: S, req: Request): z.infer<S> {
-  const r = schema.safeParse(req.body ?? {});
-  if (!r.success) throw zodToHttp(r.error, 'body');
+/** A value checked against a schema; a failure is a 400 naming the field under `where`. */
+export function parseValue<S extends z.ZodType>(schema: S, value: unknown, where: 'body' | 'query' | 'params'): z.infer<S> {
+  const r = schema.safeParse(value);
+  if (!r.success) throw zodToHttp(r.error, where);
   return r.data;
+}
+
+export function parseBody<S extends z.ZodType>(schema: S, req: Request): z.infer<S> {
+  return parseValue(schema, req.body ?? {}, 'body');
 }
 
 export function parseQuery<S extends z.ZodType>(schema: S, req: Request): z.infer<S> {

@@ -9,14 +9,19 @@
  * instructor's pending injection.
  */
 import { and, asc, eq, gt } from 'drizzle-orm';
+import type { DiagnosticTest } from '../../sim/faults.ts';
 import type { Controls, InputEvent } from '../../sim/inputs.ts';
 import { applyInput, initialControls } from '../../sim/inputs.ts';
-import type { PostEventsInput, PostEventsResponse } from '../../shared/api/attempts.ts';
+import { orderEvents } from '../../sim/replay.ts';
+import { postEventsSchema, type PostEventsResponse } from '../../shared/api/attempts.ts';
+import type { SessionUser } from '../../shared/api/auth.ts';
 import { pendingActionSchema, type PendingAction } from '../../shared/api/live.ts';
 import type { Db, DbOrTx } from '../db/client.ts';
 import { attemptEvents, attempts, pendingInjections } from '../db/schema.ts';
-import { badRequest, conflict } from '../http/errors.ts';
-import { loadAttempt, loadDefinition, storedEvents } from './attempt-store.ts';
+import { badRequest, conflict, forbidden } from '../http/errors.ts';
+import { parseValue } from '../http/validate.ts';
+import { loadAttempt, storedEvents } from './attempt-store.ts';
+import { loadDefinition } from './definitions.ts';
 import { testOfSetup } from './live-board.ts';
 
 async function pendingActions(db: DbOrTx, attemptId: number): Promise<PendingAction[]> {
@@ -38,24 +43,92 @@ export function matchesInjection(event: InputEvent, actions: readonly PendingAct
   return true;
 }
 
-/**
- * The controls after the whole log, and a guess at the engine (running after
- * a start until the key goes off): enough to name the test being set up for
- * the live board's list, which re-runs the model for anything finer.
- */
-export function setupAfter(events: readonly InputEvent[]): { controls: Controls; engineGuess: 'off' | 'cranking' | 'running' } {
-  let controls = initialControls();
-  let engineGuess: 'off' | 'cranking' | 'running' = 'off';
-  for (const e of [...events].sort((a, b) => a.atMs - b.atMs)) {
-    controls = applyInput(controls, e, 0);
-    if (e.kind === 'key') engineGuess = e.position === 'start' ? 'cranking' : e.position === 'off' ? 'off' : engineGuess === 'cranking' ? 'running' : engineGuess;
-  }
-  return { controls, engineGuess };
+/** The bench set-up after a run of events: what names the test being set up for the live board's list. */
+export interface Setup {
+  controls: Controls;
+  /** Running after a start until the key goes off. */
+  engineGuess: 'off' | 'cranking' | 'running';
+  /** The latest sim time among the events folded in. */
+  maxAtMs: number;
 }
 
-export async function postEvents(db: Db, attemptId: number, input: PostEventsInput): Promise<PostEventsResponse> {
-  return db.transaction(async (tx) => {
+export const initialSetup = (): Setup => ({ controls: initialControls(), engineGuess: 'off', maxAtMs: 0 });
+
+/** The set-up after `events` too, taken in time order (equal times in the order given). */
+export function foldSetup(from: Setup, events: readonly InputEvent[]): Setup {
+  let { controls, engineGuess, maxAtMs } = from;
+  for (const e of orderEvents(events)) {
+    controls = applyInput(controls, e, 0);
+    if (e.kind === 'key') engineGuess = e.position === 'start' ? 'cranking' : e.position === 'off' ? 'off' : engineGuess === 'cranking' ? 'running' : engineGuess;
+    maxAtMs = Math.max(maxAtMs, e.atMs);
+  }
+  return { controls, engineGuess, maxAtMs };
+}
+
+/**
+ * The set-up after the whole log: enough to name the test being set up for
+ * the live board's list, which re-runs the model for anything finer.
+ */
+export function setupAfter(events: readonly InputEvent[]): Setup {
+  return foldSetup(initialSetup(), events);
+}
+
+/**
+ * The set-up after events 1..lastSeq of each attempt this process has
+ * stored events for. An entry is used only when its lastSeq is the one in
+ * the locked row, so a batch stored by another process just costs a rebuild
+ * from the database.
+ */
+const SETUP_CACHE_SIZE = 10_000;
+const setupCache = new Map<number, { lastSeq: number; setup: Setup }>();
+
+function rememberSetup(attemptId: number, lastSeq: number, setup: Setup): void {
+  setupCache.delete(attemptId);
+  if (setupCache.size >= SETUP_CACHE_SIZE) {
+    const oldest = setupCache.keys().next();
+    if (!oldest.done) setupCache.delete(oldest.value);
+  }
+  setupCache.set(attemptId, { lastSeq, setup });
+}
+
+/** Forgets the cached set-ups (tests use it to force the rebuild from the database). */
+export function forgetSetups(): void {
+  setupCache.clear();
+}
+
+/**
+ * The set-up after events 1..newLastSeq, carried on from the cached one when
+ * the new events are all at or after its latest time, else rebuilt from the
+ * stored log. `fresh` holds this batch's stored events by seq.
+ */
+async function setupThrough(tx: DbOrTx, attemptId: number, oldLastSeq: number, newLastSeq: number, fresh: ReadonlyMap<number, InputEvent>): Promise<Setup> {
+  const cached = oldLastSeq === 0 ? { lastSeq: 0, setup: initialSetup() } : setupCache.get(attemptId);
+  if (cached && cached.lastSeq === oldLastSeq) {
+    const added: InputEvent[] = [];
+    for (let seq = oldLastSeq + 1; seq <= newLastSeq; seq++) {
+      const e = fresh.get(seq);
+      if (!e) break;
+      added.push(e);
+    }
+    if (added.length === newLastSeq - oldLastSeq && added.every((e) => e.atMs >= cached.setup.maxAtMs)) {
+      return foldSetup(cached.setup, added);
+    }
+  }
+  const prefix = (await storedEvents(tx, attemptId)).filter((e) => e.seq <= newLastSeq).map((e) => e.event);
+  return setupAfter(prefix);
+}
+
+/**
+ * Stores a batch for the signed-in student's own attempt. The ownership
+ * check reads the row it locks, so a batch costs one lock, one insert, one
+ * look at the seqs after lastSeq and one update.
+ */
+export async function postEvents(db: Db, user: SessionUser, attemptId: number, body: unknown): Promise<PostEventsResponse> {
+  const { response, remember } = await db.transaction(async (tx) => {
+    let remember: { lastSeq: number; setup: Setup } | null = null;
     const attempt = await loadAttempt(tx, attemptId, { lock: true });
+    if (attempt.userId !== user.id) throw forbidden('This attempt is not yours');
+    const input = parseValue(postEventsSchema, body, 'body');
     if (attempt.status === 'submitted') throw conflict('This attempt has been submitted; it takes no more events');
 
     const def = await loadDefinition(tx, attempt.scenarioVersionId);
@@ -91,12 +164,21 @@ export async function postEvents(db: Db, attemptId: number, input: PostEventsInp
     }
 
     if (inserted.length > 0 || lastSeq !== attempt.lastSeq) {
-      const all = (await storedEvents(tx, attemptId)).map((e) => e.event);
-      const simTimeMs = all.reduce((m, e) => Math.max(m, e.atMs), attempt.simTimeMs);
-      const { controls, engineGuess } = setupAfter(all);
-      const currentTest = testOfSetup(controls, { engine: engineGuess });
-      await tx.update(attempts).set({ lastSeq, simTimeMs, currentTest }).where(eq(attempts.id, attemptId));
+      const insertedSeqs = new Set(inserted.map((r) => r.seq));
+      const fresh = new Map(input.events.filter((e) => insertedSeqs.has(e.seq)).map((e) => [e.seq, e.event] as const));
+      const simTimeMs = [...fresh.values()].reduce((m, e) => Math.max(m, e.atMs), attempt.simTimeMs);
+      const set: { simTimeMs: number; lastSeq?: number; currentTest?: DiagnosticTest | null } = { simTimeMs };
+      if (lastSeq !== attempt.lastSeq) {
+        const setup = await setupThrough(tx, attemptId, attempt.lastSeq, lastSeq, fresh);
+        set.lastSeq = lastSeq;
+        set.currentTest = testOfSetup(setup.controls, { engine: setup.engineGuess });
+        remember = { lastSeq, setup };
+      }
+      await tx.update(attempts).set(set).where(eq(attempts.id, attemptId));
     }
-    return { lastSeq, stored: inserted.length };
+    return { response: { lastSeq, stored: inserted.length }, remember };
   });
+  // Cached only once the transaction has committed, so a rolled-back batch leaves nothing behind.
+  if (remember) rememberSetup(attemptId, remember.lastSeq, remember.setup);
+  return response;
 }

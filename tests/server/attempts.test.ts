@@ -1,6 +1,10 @@
 import { and, eq, sql } from 'drizzle-orm';
+import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { InputEvent } from '../../sim/inputs.ts';
 import type { AttemptBootstrap } from '../../shared/api/attempts.ts';
+import { forgetSetups, setupAfter } from '../../server/services/attempt-events.ts';
+import { testOfSetup } from '../../server/services/live-board.ts';
 import { DIAGNOSTIC_TESTS } from '../../shared/scenario.ts';
 import { unsealEvents } from '../../shared/sealed-faults.ts';
 import { assignments, attemptEvents, attempts, pendingInjections } from '../../server/db/schema.ts';
@@ -182,6 +186,50 @@ describe('the event log', () => {
     expect(b.body).toEqual({ lastSeq: 2, stored: 2 });
     const c = await ada.post(`/api/attempts/${fid}/events`).send({ events: all.slice(2, 4) }).expect(200);
     expect(c.body).toEqual({ lastSeq: 6, stored: 2 });
+  });
+
+  it('names the set-up the same whether it is carried on from the last batch or rebuilt from the stored log', async () => {
+    const practice = await scenarioId(t.ctx, 'healthy-control-corvane-linden');
+    // Through several tests: battery at rest, running, loaded, a drop across the B+ side, key off.
+    const tour: InputEvent[] = [
+      ...leads(0, 'battery-pos', 'battery-neg'),
+      ...startEngine(1000, 2000),
+      { kind: 'clamp', atMs: 5000, conductor: 'bplus-cable', arrow: 'toward-battery' },
+      ...pileRamp(6000, 3, 0.15),
+      { kind: 'pile', atMs: 10_000, dial01: 0 },
+      ...leads(11_000, 'battery-pos', 'alt-bplus'),
+      ...leads(13_000, 'alt-bplus', 'alt-case'),
+      { kind: 'key', atMs: 15_000, position: 'off' },
+    ];
+    const all = numbered(tour);
+    const expected = (through: number) => testOfSetup(setupAfter(all.filter((e) => e.seq <= through).map((e) => e.event)).controls, { engine: setupAfter(all.filter((e) => e.seq <= through).map((e) => e.event)).engineGuess });
+    await fc.assert(
+      fc.asyncProperty(
+        // Cut points (batches), one batch sent late (a gap, then its fill), and whether the cache is lost (another process) before each batch.
+        fc.uniqueArray(fc.integer({ min: 1, max: all.length - 1 }), { maxLength: 6 }),
+        fc.nat({ max: 6 }),
+        fc.array(fc.boolean(), { minLength: 8, maxLength: 8 }),
+        async (cuts, lateIndex, lose) => {
+          const bounds = [0, ...[...cuts].sort((a, b) => a - b), all.length];
+          const batches = bounds.slice(1).map((end, i) => all.slice(bounds[i], end));
+          if (lateIndex < batches.length - 1) batches.push(...batches.splice(lateIndex, 1));
+          const started = await ada.post('/api/attempts').send({ scenarioId: practice, mode: 'practice' }).expect(201);
+          const aid = started.body.attempt.id as number;
+          for (const [i, batch] of batches.entries()) {
+            if (lose[i]) forgetSetups();
+            const res = await ada.post(`/api/attempts/${aid}/events`).send({ events: batch }).expect(200);
+            const [row] = await t.ctx.db.select({ lastSeq: attempts.lastSeq, currentTest: attempts.currentTest }).from(attempts).where(eq(attempts.id, aid));
+            expect(row!.lastSeq).toBe(res.body.lastSeq);
+            expect(row!.currentTest).toBe(row!.lastSeq === 0 ? null : expected(row!.lastSeq));
+          }
+          expect((await t.ctx.db.select({ lastSeq: attempts.lastSeq }).from(attempts).where(eq(attempts.id, aid)))[0]!.lastSeq).toBe(all.length);
+        },
+      ),
+      { numRuns: 12 },
+    );
+    // The tour does pass through several set-ups, so the comparison above is not of one constant.
+    const seen = new Set(all.map((e) => expected(e.seq)));
+    for (const test of ['battery-ocv', 'regulated-voltage', 'output', 'voltage-drop-positive', 'ripple'] as const) expect(seen).toContain(test);
   });
 
   it('answers 400 naming the path of a bad event, and stores nothing of that batch', async () => {

@@ -6,7 +6,8 @@
 import { eq, sql } from 'drizzle-orm';
 import supertest from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { SESSION_MAX_AGE_MS } from '../../server/auth/session.ts';
+import type { Cookie, SessionData } from 'express-session';
+import { SESSION_MAX_AGE_MS, SESSION_TOUCH_EVERY_MS, throttledPgStore } from '../../server/auth/session.ts';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
 import { users } from '../../server/db/schema.ts';
 import { anonymousAgent, DEMO_PASSWORD, signIn, startTestApp, type TestApp } from './support.ts';
@@ -53,6 +54,32 @@ describe('session lifetime', () => {
     expect(after.body.user).toBeNull();
     const res = await agent.get('/api/classes');
     expect(res.status).toBe(401);
+  });
+
+  it('pushes the stored expiry on at most every few minutes, never past the cookie lifetime (common practice, no source: idle timeout kept within minutes)', async () => {
+    let clock = Date.now();
+    const store = throttledPgStore({ pool: t.ctx.pool, now: () => clock });
+    const call = (f: (cb: (err?: unknown) => void) => void) => new Promise<void>((resolve, reject) => f((err) => (err ? reject(err) : resolve())));
+    const sid = `throttle-${clock}`;
+    const record = (expires: number) =>
+      ({ cookie: { originalMaxAge: SESSION_MAX_AGE_MS, expires: new Date(expires), httpOnly: true, path: '/' } as unknown as Cookie, userId: 1, role: 'student', csrfToken: 'x' }) as SessionData & { cookie: Cookie };
+    const storedExpiry = async () => (await t.ctx.pool.query<{ expire: Date }>('select expire from session where sid = $1', [sid])).rows[0]?.expire.getTime();
+
+    await call((cb) => store.set(sid, record(clock + SESSION_MAX_AGE_MS), cb));
+    const first = await storedExpiry();
+    expect(first).toBeDefined();
+    // A minute later: the cookie's lifetime moves on, the row does not (no write).
+    clock += 60_000;
+    await call((cb) => store.touch!(sid, record(clock + SESSION_MAX_AGE_MS), cb));
+    expect(await storedExpiry()).toBe(first);
+    // Past the window: the row catches up with the cookie.
+    clock += SESSION_TOUCH_EVERY_MS;
+    await call((cb) => store.touch!(sid, record(clock + SESSION_MAX_AGE_MS), cb));
+    const later = await storedExpiry();
+    expect(Math.abs(later! - (clock + SESSION_MAX_AGE_MS))).toBeLessThan(1000);
+    expect(later! - first!).toBeGreaterThanOrEqual(SESSION_TOUCH_EVERY_MS);
+    await call((cb) => store.destroy(sid, cb));
+    expect(await storedExpiry()).toBeUndefined();
   });
 
   it('destroys the session at sign-out: the old cookie cannot be replayed (ASVS 3.3.1)', async () => {
