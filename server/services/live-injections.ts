@@ -4,7 +4,7 @@
  * each one sealed with its attempt's key; storing the logged event marks the
  * row applied (a trigger of the `live_notify` migration).
  */
-import { and, asc, eq, isNull, sql } from 'drizzle-orm';
+import { and, asc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { Fault } from '../../sim/faults.ts';
 import {
   liveFaultId,
@@ -43,9 +43,25 @@ function parseRow(row: { id: number; attemptId: number; action: unknown; created
   return action.success ? { ...row, action: action.data } : null;
 }
 
+/** The injections of one attempt, oldest first. */
 export async function listInjections(db: DbOrTx, attemptId: number): Promise<InjectionRow[]> {
-  const rows = await db.select(injectionColumns).from(pendingInjections).where(eq(pendingInjections.attemptId, attemptId)).orderBy(asc(pendingInjections.id));
-  return rows.flatMap((r) => parseRow(r) ?? []);
+  return (await injectionsByAttempt(db, [attemptId])).get(attemptId) ?? [];
+}
+
+/** The injections of several attempts in one query, oldest first per attempt (an attempt with none has no entry). */
+export async function injectionsByAttempt(db: DbOrTx, attemptIds: readonly number[]): Promise<Map<number, InjectionRow[]>> {
+  const byAttempt = new Map<number, InjectionRow[]>();
+  if (attemptIds.length === 0) return byAttempt;
+  const where = attemptIds.length === 1 ? eq(pendingInjections.attemptId, attemptIds[0]!) : inArray(pendingInjections.attemptId, [...attemptIds]);
+  const rows = await db.select(injectionColumns).from(pendingInjections).where(where).orderBy(asc(pendingInjections.attemptId), asc(pendingInjections.id));
+  for (const r of rows) {
+    const row = parseRow(r);
+    if (!row) continue;
+    const list = byAttempt.get(row.attemptId);
+    if (list) list.push(row);
+    else byAttempt.set(row.attemptId, [row]);
+  }
+  return byAttempt;
 }
 
 export async function unappliedInjections(db: DbOrTx, attemptId: number): Promise<InjectionRow[]> {
