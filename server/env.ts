@@ -18,6 +18,11 @@ const envSchema = z.object({
   SMTP_PORT: z.coerce.number().int().min(0).max(65535).default(0),
   MAIL_FROM: z.string().default('Loadline <no-reply@loadline.invalid>'),
   SIGN_IN_LIMIT: z.coerce.number().int().min(1).default(10),
+  /**
+   * Worker threads that grade submissions (server/services/grading-pool.ts), so a
+   * re-run does not hold up other requests; 0 grades in the request's own thread.
+   */
+  GRADING_WORKERS: z.coerce.number().int().min(0).max(8).default(1),
 });
 
 export type Env = z.infer<typeof envSchema>;

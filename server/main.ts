@@ -10,6 +10,7 @@ import type { AppContext } from './context.ts';
 import { connect } from './db/client.ts';
 import { readEnv, type Env } from './env.ts';
 import { makeLogger } from './logger.ts';
+import { openSharedGradingPool } from './services/grading-pool.ts';
 import { smtpMailer } from './services/mailer.ts';
 
 export interface RunningServer {
@@ -34,14 +35,23 @@ export function buildContext(env: Env, logLevel: 'info' | 'warn' | 'error' | 'si
 
 export async function startServer(opts: { env?: Env; staticDir?: string; logLevel?: 'info' | 'warn' | 'error' | 'silent' } = {}): Promise<RunningServer> {
   const env = opts.env ?? readEnv();
+  const ctx = buildContext(env, opts.logLevel);
+  // Submissions are graded on worker threads; they load before the server listens and warm up meanwhile.
+  const gradingReady = openSharedGradingPool({ workers: env.GRADING_WORKERS, log: ctx.log });
   // Build the rectifier characteristics of every fault topology now, so the first
   // grading or live injection of a diode or phase fault does not stall a request.
   prepareBridgeTables();
-  const ctx = buildContext(env, opts.logLevel);
+  const grading = await gradingReady;
   const { app } = createApp(ctx, { staticDir: opts.staticDir });
-  const server = await new Promise<Server>((resolve, reject) => {
-    const s = app.listen(env.PORT, env.HOST, (err?: Error) => (err ? reject(err) : resolve(s)));
-  });
+  let server: Server;
+  try {
+    server = await new Promise<Server>((resolve, reject) => {
+      const s = app.listen(env.PORT, env.HOST, (err?: Error) => (err ? reject(err) : resolve(s)));
+    });
+  } catch (err) {
+    await grading.release();
+    throw err;
+  }
   const port = (server.address() as AddressInfo).port;
   return {
     url: `http://${env.HOST}:${port}`,
@@ -53,6 +63,7 @@ export async function startServer(opts: { env?: Env; staticDir?: string; logLeve
         server.close(() => resolve());
         server.closeAllConnections();
       });
+      await grading.release();
       await ctx.closeDb();
     },
   };

@@ -1,44 +1,20 @@
 /**
- * Submission: in one transaction with the attempt locked, re-run the model
- * over the stored log up to the submission's sim time, grade, and store the
- * readings, diagnosis and result. Time to diagnosis is the sim time of the
- * submission (what the student spent at the bench, pauses and reloads aside).
- * The right verdicts come from the reference procedures run on the scenario
- * version's car with the faults in place at the submission, cached per
- * definition and fault set.
+ * Submission: in one transaction with the attempt locked, check the log is
+ * complete, grade (server/services/grade-run.ts, on the grading pool: the
+ * model re-run over the stored log up to the submission's sim time, the right
+ * verdicts, the curves), and store the readings, diagnosis and result. The
+ * attempt row stays locked while the grading runs. Time to diagnosis is the
+ * sim time of the submission (what the student spent at the bench, pauses and
+ * reloads aside).
  */
 import { eq } from 'drizzle-orm';
-import { outputCurve } from '../../sim/instruments.ts';
 import type { AttemptResult, SubmitInput } from '../../shared/api/attempts.ts';
-import type { Fault } from '../../sim/faults.ts';
-import { referenceMeasurements } from '../../shared/reference-procedures.ts';
-import type { ScenarioDefinition } from '../../shared/scenario.ts';
-import { healthyVehicle } from '../../shared/sealed-faults.ts';
 import type { Db } from '../db/client.ts';
 import { attempts } from '../db/schema.ts';
 import { badRequest, conflict } from '../http/errors.ts';
-import { rerunAttempt } from './attempt-replay.ts';
 import { loadAttempt, showAfter } from './attempt-store.ts';
-import { correctVerdicts, gradeAttempt } from './grading.ts';
+import { gradeSubmission } from './grading-pool.ts';
 import { loadAttemptRun } from './live-attempt-run.ts';
-
-const VERDICT_CACHE_SIZE = 64;
-const verdictCache = new Map<string, ReturnType<typeof correctVerdicts>>();
-
-/** The right verdicts for a scenario version's car with these faults (the reference procedures take a few hundred ms, so they are kept). */
-export function verdictsFor(def: ScenarioDefinition, faults: readonly Fault[]): ReturnType<typeof correctVerdicts> {
-  const inPlace = faults.map((f) => ({ id: f.id, kind: f.kind, severity01: f.severity01, onsetS: f.onsetS, intermittent: f.intermittent ?? null }));
-  const key = JSON.stringify([def.vehicle.params, def.passRules, inPlace]);
-  const hit = verdictCache.get(key);
-  if (hit) return hit;
-  const verdicts = correctVerdicts(referenceMeasurements({ vehicle: def.vehicle, passRules: def.passRules, faults: inPlace }));
-  if (verdictCache.size >= VERDICT_CACHE_SIZE) {
-    const oldest = verdictCache.keys().next();
-    if (!oldest.done) verdictCache.delete(oldest.value);
-  }
-  verdictCache.set(key, verdicts);
-  return verdicts;
-}
 
 export async function submitAttempt(db: Db, attemptId: number, input: SubmitInput): Promise<AttemptResult> {
   return db.transaction(async (tx) => {
@@ -56,30 +32,15 @@ export async function submitAttempt(db: Db, attemptId: number, input: SubmitInpu
       throw badRequest(`atMs: the submission (${input.atMs} ms) is earlier than the last stored event (${lastAtMs} ms)`, { field: 'atMs' });
     }
 
-    const params = run.params;
-    const rerun = rerunAttempt(params, run.seed, run.events, input.atMs);
-    const faults = rerun.final.controls.faults;
     const show = await showAfter(tx, attempt.assignmentId);
-    const curve = show.showCurveAfter
-      ? {
-          healthy: outputCurve(healthyVehicle(params, run.definition.vehicle.name).healthy, [], { hot: false }),
-          fitted: outputCurve(params, faults, { hot: false }),
-        }
-      : null;
-    const result = gradeAttempt({
-      mode: attempt.mode,
+    const result = await gradeSubmission({
+      definition: run.definition,
+      seed: run.seed,
+      events: run.events,
       submission: input,
-      testsExpected: run.definition.testsExpected,
-      // The faults the car had by the submission (scenario and live), as the re-run saw them.
-      correctVerdicts: verdictsFor(
-        run.definition,
-        faults.filter((f) => f.onsetS * 1000 <= input.atMs),
-      ),
-      faults,
-      samples: rerun.samples,
+      mode: attempt.mode,
       showFeedback: show.showFeedbackAfter,
-      curve,
-      pulleyRatio: params.belt.pulleyRatio,
+      showCurve: show.showCurveAfter,
     });
 
     await tx

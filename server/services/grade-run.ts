@@ -1,0 +1,108 @@
+/**
+ * The CPU part of a submission, pure and on plain data so that it can run in
+ * a grading worker as well as in the request's own thread: re-run the model
+ * over the log up to the submission's sim time, find the right verdicts for
+ * the faults in place by then (reference procedures, cached per car and fault
+ * set), draw the output curves when the assignment shows them, and grade.
+ * Everything the submission then stores comes from the input and the result.
+ */
+import type { AttemptResult, SubmitInput } from '../../shared/api/attempts.ts';
+import { referenceMeasurements } from '../../shared/reference-procedures.ts';
+import { blankScenario, type ScenarioDefinition } from '../../shared/scenario.ts';
+import { healthyVehicle } from '../../shared/sealed-faults.ts';
+import type { Fault } from '../../sim/faults.ts';
+import type { InputEvent } from '../../sim/inputs.ts';
+import { outputCurve } from '../../sim/instruments.ts';
+import { rerunAttempt } from './attempt-replay.ts';
+import { correctVerdicts, gradeAttempt } from './grading.ts';
+
+/** One submission to grade: structured-clonable, so it can be posted to a worker. */
+export interface GradeJob {
+  definition: ScenarioDefinition;
+  seed: number;
+  /** The scenario's faults at 0 ms, then the stored log in seq order. */
+  events: InputEvent[];
+  submission: SubmitInput;
+  mode: 'assigned' | 'practice';
+  showFeedback: boolean;
+  showCurve: boolean;
+}
+
+const VERDICT_CACHE_SIZE = 64;
+const verdictCache = new Map<string, ReturnType<typeof correctVerdicts>>();
+
+/** The right verdicts for a scenario version's car with these faults (the reference procedures take a few hundred ms, so they are kept). */
+export function verdictsFor(def: ScenarioDefinition, faults: readonly Fault[]): ReturnType<typeof correctVerdicts> {
+  const inPlace = faults.map((f) => ({ id: f.id, kind: f.kind, severity01: f.severity01, onsetS: f.onsetS, intermittent: f.intermittent ?? null }));
+  const key = JSON.stringify([def.vehicle.params, def.passRules, inPlace]);
+  const hit = verdictCache.get(key);
+  if (hit) return hit;
+  const verdicts = correctVerdicts(referenceMeasurements({ vehicle: def.vehicle, passRules: def.passRules, faults: inPlace }));
+  if (verdictCache.size >= VERDICT_CACHE_SIZE) {
+    const oldest = verdictCache.keys().next();
+    if (!oldest.done) verdictCache.delete(oldest.value);
+  }
+  verdictCache.set(key, verdicts);
+  return verdicts;
+}
+
+export function gradeRun(job: GradeJob): AttemptResult {
+  const { definition, submission } = job;
+  const params = definition.vehicle.params;
+  const rerun = rerunAttempt(params, job.seed, job.events, submission.atMs);
+  const faults = rerun.final.controls.faults;
+  const curve = job.showCurve
+    ? {
+        healthy: outputCurve(healthyVehicle(params, definition.vehicle.name).healthy, [], { hot: false }),
+        fitted: outputCurve(params, faults, { hot: false }),
+      }
+    : null;
+  return gradeAttempt({
+    mode: job.mode,
+    submission,
+    testsExpected: definition.testsExpected,
+    // The faults the car had by the submission (scenario and live), as the re-run saw them.
+    correctVerdicts: verdictsFor(
+      definition,
+      faults.filter((f) => f.onsetS * 1000 <= submission.atMs),
+    ),
+    faults,
+    samples: rerun.samples,
+    showFeedback: job.showFeedback,
+    curve,
+    pulleyRatio: params.belt.pulleyRatio,
+  });
+}
+
+/**
+ * A made-up attempt for warming a grader up: a car with an open diode, the
+ * engine started and held at 2,000 rpm with the pile stepped up and down,
+ * submitted after `simS` seconds with one reading.
+ */
+export function warmUpJob(simS = 60): GradeJob {
+  const definition = blankScenario();
+  definition.faults = [{ id: 'warm-up', kind: 'diode-open', severity01: 1, onsetS: 0, intermittent: null }];
+  const atMs = simS * 1000;
+  const events: InputEvent[] = [
+    ...definition.faults.map((fault) => ({ kind: 'fault-inject' as const, atMs: 0, fault })),
+    { kind: 'lead', atMs: 0, which: 'red', point: 'battery-pos' },
+    { kind: 'lead', atMs: 0, which: 'black', point: 'battery-neg' },
+    { kind: 'key', atMs: 1000, position: 'start' },
+    { kind: 'key', atMs: 3000, position: 'on' },
+    { kind: 'rpm', atMs: 4000, rpm: 2000 },
+  ];
+  for (let t = 6000; t < atMs; t += 2000) events.push({ kind: 'pile', atMs: t, dial01: ((t / 2000) % 5) / 5 });
+  return {
+    definition,
+    seed: 7,
+    events,
+    submission: {
+      atMs,
+      readings: [{ id: 'warm-up', test: 'regulated-voltage', quantity: 'voltage', value: 14, unit: 'V', atMs: atMs - 500, where: 'battery posts' }],
+      diagnosis: { faultKind: 'diode-open', verdicts: [{ test: 'regulated-voltage', pass: false }], notes: '' },
+    },
+    mode: 'assigned',
+    showFeedback: true,
+    showCurve: true,
+  };
+}

@@ -1,0 +1,286 @@
+/**
+ * Grading off the event loop: a few worker threads (GRADING_WORKERS, one by
+ * default) that run `gradeRun`, so a submission's re-run does not hold up the
+ * requests of everyone else at the bench.
+ *
+ * - Each worker warms up (rectifier tables, two graded runs of a made-up
+ *   attempt, a few seconds) before it takes a job; jobs wait in a queue while
+ *   every worker is busy or warming. Starting the pool waits until the workers
+ *   have loaded (so a worker that cannot load is known), not for the warm-up.
+ * - A worker that dies or overruns its job is replaced; the job it held fails
+ *   with a 503 (the submission's transaction rolls back, so submitting again
+ *   works), and the queued jobs go to the replacement.
+ * - When no worker can start (its module does not load, or it dies while
+ *   warming up), grading falls back to the request's thread, with one warning
+ *   in the log; a replacement that cannot start is not retried.
+ *   GRADING_WORKERS=0 grades there from the start.
+ * - `close` stops the workers and fails what is still waiting with a 503.
+ *
+ * Workers are a resource of the process, so `startServer` opens one shared
+ * pool per process (counted, for tests that start several servers) and
+ * `gradeSubmission` uses it; without an open pool it grades in-thread.
+ */
+import { Worker } from 'node:worker_threads';
+import type { AttemptResult } from '../../shared/api/attempts.ts';
+import type { AppContext } from '../context.ts';
+import { HttpError } from '../http/errors.ts';
+import { gradeRun, type GradeJob } from './grade-run.ts';
+import type { FromWorker, ToWorker } from './grading-worker.ts';
+
+export interface GradingPoolOptions {
+  /** Worker threads; 0 grades in the request's thread. */
+  workers: number;
+  log: AppContext['log'];
+  /** The workers' Node options; by default the server's own (which load TypeScript under tsx). */
+  execArgv?: string[];
+  /** A job not answered by then fails with a 503 and its worker is replaced. */
+  jobTimeoutMs?: number;
+  /** A worker not ready by then counts as one that cannot start. */
+  startTimeoutMs?: number;
+  /** The worker's module (tests swap in one that misbehaves). */
+  workerUrl?: URL;
+}
+
+export interface GradingStats {
+  /** Workers running or warming up. */
+  workers: number;
+  gradedInWorker: number;
+  gradedInThread: number;
+  /** Workers replaced after dying or overrunning a job. */
+  replaced: number;
+  /** Why grading runs in the request's thread, or null while workers grade. */
+  inThreadBecause: string | null;
+  /** How long the last job took inside its worker, in ms. */
+  lastWorkerMs: number | null;
+}
+
+export interface GradingPool {
+  grade(job: GradeJob): Promise<AttemptResult>;
+  stats(): GradingStats;
+  close(): Promise<void>;
+}
+
+interface Pending {
+  id: number;
+  job: GradeJob;
+  resolve(result: AttemptResult): void;
+  reject(err: unknown): void;
+}
+
+interface Slot {
+  worker: Worker;
+  /** Its module loaded: it can grade, once warmed up. */
+  loaded: boolean;
+  /** Warmed up and taking jobs. */
+  ready: boolean;
+  job: Pending | null;
+  timer: NodeJS.Timeout | null;
+  lastError: Error | null;
+}
+
+const DEFAULT_WORKER_URL = new URL('./grading-worker-entry.mjs', import.meta.url);
+
+const unavailable = (message: string) => new HttpError(503, message);
+
+export async function startGradingPool(opts: GradingPoolOptions): Promise<GradingPool> {
+  const jobTimeoutMs = opts.jobTimeoutMs ?? 30_000;
+  const startTimeoutMs = opts.startTimeoutMs ?? 60_000;
+  const slots: Slot[] = [];
+  const queue: Pending[] = [];
+  const startWaiters = new Set<() => void>();
+  const counts = { gradedInWorker: 0, gradedInThread: 0, replaced: 0, lastWorkerMs: null as number | null };
+  let inThreadBecause: string | null = opts.workers > 0 ? null : 'GRADING_WORKERS is 0';
+  let closing = false;
+  let nextId = 1;
+
+  const settleStart = () => {
+    if (slots.every((s) => s.loaded)) for (const w of startWaiters) w();
+  };
+
+  const inThread = (job: GradeJob): AttemptResult => {
+    counts.gradedInThread++;
+    return gradeRun(job);
+  };
+
+  const pump = () => {
+    if (slots.length === 0) {
+      // No worker left to wait for: the queue is graded here.
+      for (const p of queue.splice(0)) {
+        try {
+          p.resolve(inThread(p.job));
+        } catch (err) {
+          p.reject(err);
+        }
+      }
+      return;
+    }
+    for (const slot of slots) {
+      if (!slot.ready || slot.job) continue;
+      const p = queue.shift();
+      if (!p) return;
+      assign(slot, p);
+    }
+  };
+
+  const assign = (slot: Slot, p: Pending) => {
+    try {
+      slot.worker.postMessage({ id: p.id, job: p.job } satisfies ToWorker);
+    } catch (err) {
+      // The job could not be copied to the worker (not plain data): the same error as in-thread would be a bug too.
+      p.reject(err);
+      return;
+    }
+    slot.job = p;
+    slot.timer = setTimeout(() => {
+      slot.timer = null;
+      slot.job = null;
+      opts.log('error', `Grading took longer than ${jobTimeoutMs} ms; replacing the grading worker`);
+      p.reject(unavailable('Grading took too long; submit again in a moment'));
+      void slot.worker.terminate();
+    }, jobTimeoutMs);
+  };
+
+  const finish = (slot: Slot, id: number): Pending | null => {
+    const p = slot.job;
+    if (!p || p.id !== id) return null;
+    if (slot.timer) clearTimeout(slot.timer);
+    slot.timer = null;
+    slot.job = null;
+    return p;
+  };
+
+  const spawn = () => {
+    let worker: Worker;
+    try {
+      worker = new Worker(opts.workerUrl ?? DEFAULT_WORKER_URL, opts.execArgv ? { execArgv: opts.execArgv } : {});
+    } catch (err) {
+      cannotStart(err instanceof Error ? err.message : String(err));
+      return;
+    }
+    const slot: Slot = { worker, loaded: false, ready: false, job: null, timer: null, lastError: null };
+    slots.push(slot);
+    const startTimer = setTimeout(() => {
+      slot.lastError = new Error(`not ready within ${startTimeoutMs} ms`);
+      void worker.terminate();
+    }, startTimeoutMs);
+    startTimer.unref();
+
+    worker.on('message', (msg: FromWorker) => {
+      if (msg.kind === 'loaded') {
+        slot.loaded = true;
+        settleStart();
+      } else if (msg.kind === 'ready') {
+        clearTimeout(startTimer);
+        slot.ready = true;
+        opts.log('info', `Grading worker ready (warmed up in ${msg.warmUpMs} ms)`);
+        settleStart();
+        pump();
+      } else if (msg.kind === 'done') {
+        const p = finish(slot, msg.id);
+        if (p) {
+          counts.gradedInWorker++;
+          counts.lastWorkerMs = msg.ms;
+          p.resolve(msg.result);
+        }
+        pump();
+      } else {
+        const p = finish(slot, msg.id);
+        if (p) p.reject(msg.status !== undefined ? new HttpError(msg.status, msg.message, msg.details ?? {}) : new Error(msg.message));
+        pump();
+      }
+    });
+    worker.on('error', (err) => {
+      slot.lastError = err;
+    });
+    worker.on('exit', (code) => {
+      clearTimeout(startTimer);
+      slots.splice(slots.indexOf(slot), 1);
+      if (closing) return;
+      if (!slot.ready) {
+        cannotStart(slot.lastError?.message ?? `exited with code ${code}`);
+        return;
+      }
+      const p = slot.job;
+      if (p) {
+        finish(slot, p.id);
+        p.reject(unavailable('Grading stopped unexpectedly; submit again in a moment'));
+      }
+      opts.log('error', `Grading worker stopped (exit code ${code}${slot.lastError ? `: ${slot.lastError.message}` : ''}); starting another`);
+      counts.replaced++;
+      spawn();
+      pump();
+    });
+  };
+
+  const cannotStart = (reason: string) => {
+    if (slots.length === 0 && inThreadBecause === null) {
+      inThreadBecause = `the grading worker could not start (${reason})`;
+      opts.log('warn', `Grading runs in the request's thread: ${inThreadBecause}`);
+    }
+    settleStart();
+    pump();
+  };
+
+  const ready = new Promise<void>((resolve) => startWaiters.add(resolve));
+  for (let i = 0; i < opts.workers; i++) spawn();
+  settleStart();
+  await ready;
+
+  return {
+    async grade(job) {
+      if (closing) throw unavailable('The server is shutting down');
+      if (slots.length === 0) return inThread(job);
+      return new Promise<AttemptResult>((resolve, reject) => {
+        queue.push({ id: nextId++, job, resolve, reject });
+        pump();
+      });
+    },
+    stats: () => ({ workers: slots.length, ...counts, inThreadBecause }),
+    async close() {
+      if (closing) return;
+      closing = true;
+      const stopped = unavailable('The server is shutting down');
+      for (const p of queue.splice(0)) p.reject(stopped);
+      for (const slot of [...slots]) {
+        const p = slot.job;
+        if (p) {
+          finish(slot, p.id);
+          p.reject(stopped);
+        }
+      }
+      await Promise.all([...slots].map((s) => s.worker.terminate()));
+    },
+  };
+}
+
+// ---------------------------------------------------------------------------
+// The process's pool
+
+let shared: { pool: Promise<GradingPool>; users: number } | null = null;
+
+/** Opens the process's pool (or joins the one open); release once per open. */
+export async function openSharedGradingPool(opts: GradingPoolOptions): Promise<{ pool: GradingPool; release(): Promise<void> }> {
+  if (!shared) shared = { pool: startGradingPool(opts), users: 0 };
+  const entry = shared;
+  entry.users++;
+  const pool = await entry.pool;
+  let released = false;
+  return {
+    pool,
+    async release() {
+      if (released) return;
+      released = true;
+      entry.users--;
+      if (entry.users === 0) {
+        if (shared === entry) shared = null;
+        await pool.close();
+      }
+    },
+  };
+}
+
+/** Grades on the process's pool, or in this thread when none is open. */
+export async function gradeSubmission(job: GradeJob): Promise<AttemptResult> {
+  const pool = shared ? await shared.pool : null;
+  return pool ? pool.grade(job) : gradeRun(job);
+}
