@@ -97,10 +97,19 @@ export async function requireAttemptReader(db: DbOrTx, user: SessionUser, attemp
     .from(attempts)
     .where(eq(attempts.id, attemptId));
   if (!row) throw notFound('No such attempt');
+  return attemptReaderAccess(db, user, { attemptId, ...row });
+}
+
+/** The reader check on an attempt row already read (saves reading it twice). */
+export async function attemptReaderAccess(
+  db: DbOrTx,
+  user: SessionUser,
+  row: { attemptId: number; ownerId: number; assignmentId: number | null; status: string },
+): Promise<AttemptAccess> {
   const isOwner = row.ownerId === user.id;
   const teaches = !isOwner && (await teachesAttempt(db, user, row));
   if (!isOwner && !teaches) throw forbidden('This attempt is not yours');
-  return { attemptId, ownerId: row.ownerId, assignmentId: row.assignmentId, status: row.status, isOwner, teaches };
+  return { attemptId: row.attemptId, ownerId: row.ownerId, assignmentId: row.assignmentId, status: row.status, isOwner, teaches };
 }
 
 /** The attempt, when the user is its student. */

@@ -1,5 +1,6 @@
 import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres';
 import pg from 'pg';
+import { tagScope } from './scoped-cache.ts';
 import * as schema from './schema.ts';
 
 export type Db = NodePgDatabase<typeof schema>;
@@ -17,6 +18,11 @@ export function connect(url: string, max = 20): Database {
     // An idle client lost its server (restart); the pool replaces it on next use.
   });
   const db = drizzle(pool, { schema });
+  // The database's cache scope, carried by its transactions too (scoped-cache.ts).
+  const scope = {};
+  tagScope(db, scope);
+  const transaction = db.transaction.bind(db);
+  db.transaction = ((run, config) => transaction((tx) => (tagScope(tx, scope), run(tx)), config)) as Db['transaction'];
   return { pool, db, close: () => pool.end() };
 }
 

@@ -3,13 +3,13 @@
  * submit it, and a student's own list.
  */
 import { attemptIdParamsSchema, startAttemptSchema, submitSchema } from '../../shared/api/attempts.ts';
-import { requireAttemptOwner, requireAttemptReader } from '../auth/access.ts';
+import { attemptReaderAccess, requireAttemptOwner } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
 import { postEvents } from '../services/attempt-events.ts';
-import { attemptBootstrap, myAttempts, startAttempt } from '../services/attempt-store.ts';
+import { attemptBootstrap, loadAttempt, myAttempts, startAttempt } from '../services/attempt-store.ts';
 import { submitAttempt } from '../services/attempt-submit.ts';
 
 export function attemptRoutes(ctx: AppContext) {
@@ -27,8 +27,9 @@ export function attemptRoutes(ctx: AppContext) {
 
   g.get('/:id', 'signed-in', async (req, res) => {
     const { id } = parseParams(attemptIdParamsSchema, req);
-    await requireAttemptReader(ctx.db, currentUser(req), id);
-    res.json(await attemptBootstrap(ctx.db, ctx.env.SESSION_SECRET, id));
+    const attempt = await loadAttempt(ctx.db, id);
+    await attemptReaderAccess(ctx.db, currentUser(req), { attemptId: id, ownerId: attempt.userId, assignmentId: attempt.assignmentId, status: attempt.status });
+    res.json(await attemptBootstrap(ctx.db, ctx.env.SESSION_SECRET, attempt));
   });
 
   // The ownership check is made on the row the batch locks (see postEvents).

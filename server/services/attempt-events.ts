@@ -18,6 +18,7 @@ import type { SessionUser } from '../../shared/api/auth.ts';
 import { pendingActionSchema, type PendingAction } from '../../shared/api/live.ts';
 import type { Db, DbOrTx } from '../db/client.ts';
 import { attemptEvents, attempts, pendingInjections } from '../db/schema.ts';
+import { scopedCache } from '../db/scoped-cache.ts';
 import { badRequest, conflict, forbidden } from '../http/errors.ts';
 import { parseValue } from '../http/validate.ts';
 import { loadAttempt, storedEvents } from './attempt-store.ts';
@@ -79,21 +80,11 @@ export function setupAfter(events: readonly InputEvent[]): Setup {
  * the locked row, so a batch stored by another process just costs a rebuild
  * from the database.
  */
-const SETUP_CACHE_SIZE = 10_000;
-const setupCache = new Map<number, { lastSeq: number; setup: Setup }>();
+const setups = scopedCache<number, { lastSeq: number; setup: Setup }>(10_000);
 
-function rememberSetup(attemptId: number, lastSeq: number, setup: Setup): void {
-  setupCache.delete(attemptId);
-  if (setupCache.size >= SETUP_CACHE_SIZE) {
-    const oldest = setupCache.keys().next();
-    if (!oldest.done) setupCache.delete(oldest.value);
-  }
-  setupCache.set(attemptId, { lastSeq, setup });
-}
-
-/** Forgets the cached set-ups (tests use it to force the rebuild from the database). */
-export function forgetSetups(): void {
-  setupCache.clear();
+/** Forgets the cached set-ups of a database (tests use it to force the rebuild from the stored log). */
+export function forgetSetups(db: Db): void {
+  setups.of(db)?.clear();
 }
 
 /**
@@ -102,7 +93,7 @@ export function forgetSetups(): void {
  * stored log. `fresh` holds this batch's stored events by seq.
  */
 async function setupThrough(tx: DbOrTx, attemptId: number, oldLastSeq: number, newLastSeq: number, fresh: ReadonlyMap<number, InputEvent>): Promise<Setup> {
-  const cached = oldLastSeq === 0 ? { lastSeq: 0, setup: initialSetup() } : setupCache.get(attemptId);
+  const cached = oldLastSeq === 0 ? { lastSeq: 0, setup: initialSetup() } : setups.of(tx)?.get(attemptId);
   if (cached && cached.lastSeq === oldLastSeq) {
     const added: InputEvent[] = [];
     for (let seq = oldLastSeq + 1; seq <= newLastSeq; seq++) {
@@ -179,6 +170,6 @@ export async function postEvents(db: Db, user: SessionUser, attemptId: number, b
     return { response: { lastSeq, stored: inserted.length }, remember };
   });
   // Cached only once the transaction has committed, so a rolled-back batch leaves nothing behind.
-  if (remember) rememberSetup(attemptId, remember.lastSeq, remember.setup);
+  if (remember) setups.of(db)?.set(attemptId, remember);
   return response;
 }

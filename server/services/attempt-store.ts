@@ -13,6 +13,7 @@ import { deriveBenchKey, healthyVehicle, sealEvents, sealFaults, sealVehicle } f
 import { assertCanPractiseScenario, assertCanStartAssignment } from '../auth/access.ts';
 import type { Db, DbOrTx } from '../db/client.ts';
 import { assignments, attemptEvents, attempts, scenarioVersions } from '../db/schema.ts';
+import { scopedCache } from '../db/scoped-cache.ts';
 import { notFound } from '../http/errors.ts';
 import { loadDefinition } from './definitions.ts';
 import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
@@ -123,14 +124,45 @@ export function storedResult(raw: unknown): AttemptResult | null {
   return parsed.success ? parsed.data : null;
 }
 
-export async function attemptBootstrap(db: DbOrTx, secret: string, attemptId: number): Promise<AttemptBootstrap> {
-  const a = await loadAttempt(db, attemptId);
-  const def = await loadDefinition(db, a.scenarioVersionId);
-  const show = await showAfter(db, a.assignmentId);
-  const benchKey = await deriveBenchKey(secret, a.id);
+interface SealedCar {
+  benchKey: string;
+  view: BenchScenarioView;
+  healthy: AttemptBootstrap['vehicle'];
+  sealedFaults: string;
+  sealedVehicle: string | null;
+}
+
+/**
+ * What a bootstrap sends of the car: the same for every read of one attempt
+ * (its key, its scenario version), so it is sealed once and kept.
+ */
+const sealedCars = scopedCache<number, SealedCar>(2_000);
+
+async function sealedCar(db: DbOrTx, secret: string, attemptId: number, def: ScenarioDefinition): Promise<SealedCar> {
+  const cache = sealedCars.of(db);
+  const hit = cache?.get(attemptId);
+  if (hit) return hit;
+  const benchKey = await deriveBenchKey(secret, attemptId);
   const { healthy, differs } = healthyVehicle(def.vehicle.params, def.vehicle.name);
   // Exactly the faults the server's re-run injects at 0 ms.
   const faults = scenarioFaultEvents(def).flatMap((e) => (e.kind === 'fault-inject' ? [e.fault] : []));
+  const car: SealedCar = {
+    benchKey,
+    view: benchScenarioView(def),
+    healthy,
+    sealedFaults: await sealFaults(faults, benchKey),
+    sealedVehicle: differs ? await sealVehicle(def.vehicle.params, benchKey) : null,
+  };
+  cache?.set(attemptId, car);
+  return car;
+}
+
+/** The bootstrap of an attempt, by id or from its row already read. */
+export async function attemptBootstrap(db: DbOrTx, secret: string, attempt: number | AttemptRow): Promise<AttemptBootstrap> {
+  const a = typeof attempt === 'number' ? await loadAttempt(db, attempt) : attempt;
+  const def = await loadDefinition(db, a.scenarioVersionId);
+  const show = await showAfter(db, a.assignmentId);
+  const sealed = await sealedCar(db, secret, a.id, def);
   const events = await storedEvents(db, a.id);
   const isFault = (e: StoredEvent) => e.event.kind === 'fault-inject' || e.event.kind === 'fault-clear';
   const faultEvents = events.filter(isFault);
@@ -145,13 +177,13 @@ export async function attemptBootstrap(db: DbOrTx, secret: string, attemptId: nu
       lastSeq: a.lastSeq,
       ...show,
     },
-    scenario: benchScenarioView(def),
-    vehicle: healthy,
-    sealedFaults: await sealFaults(faults, benchKey),
-    sealedVehicle: differs ? await sealVehicle(def.vehicle.params, benchKey) : null,
-    benchKey,
+    scenario: sealed.view,
+    vehicle: sealed.healthy,
+    sealedFaults: sealed.sealedFaults,
+    sealedVehicle: sealed.sealedVehicle,
+    benchKey: sealed.benchKey,
     events: events.filter((e) => !isFault(e)),
-    sealedEvents: faultEvents.length ? await sealEvents(faultEvents, benchKey) : null,
+    sealedEvents: faultEvents.length ? await sealEvents(faultEvents, sealed.benchKey) : null,
     result: a.status === 'submitted' ? storedResult(a.result) : null,
   };
 }

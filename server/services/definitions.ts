@@ -1,15 +1,16 @@
 /**
- * Scenario definitions by version id, restored once per process. A version
- * is never changed once written, so an entry never goes stale.
+ * Scenario definitions by version id, restored once per process and
+ * database. A version is never changed once written, so an entry never goes
+ * stale.
  */
 import { eq } from 'drizzle-orm';
 import { restoreScenario, type ScenarioDefinition } from '../../shared/scenario.ts';
 import type { DbOrTx } from '../db/client.ts';
 import { scenarioVersions } from '../db/schema.ts';
+import { scopedCache } from '../db/scoped-cache.ts';
 import { notFound } from '../http/errors.ts';
 
-const DEFINITION_CACHE_SIZE = 256;
-const definitionCache = new Map<number, ScenarioDefinition>();
+const definitions = scopedCache<number, ScenarioDefinition>(256);
 
 function deepFreeze<T>(x: T): T {
   if (typeof x === 'object' && x !== null && !Object.isFrozen(x)) {
@@ -24,19 +25,12 @@ function deepFreeze<T>(x: T): T {
  * (frozen, so no caller can change it for the others).
  */
 export async function loadDefinition(db: DbOrTx, scenarioVersionId: number): Promise<ScenarioDefinition> {
-  const hit = definitionCache.get(scenarioVersionId);
-  if (hit) {
-    definitionCache.delete(scenarioVersionId);
-    definitionCache.set(scenarioVersionId, hit);
-    return hit;
-  }
+  const cache = definitions.of(db);
+  const hit = cache?.get(scenarioVersionId);
+  if (hit) return hit;
   const [row] = await db.select({ definition: scenarioVersions.definition }).from(scenarioVersions).where(eq(scenarioVersions.id, scenarioVersionId));
   if (!row) throw notFound('No such scenario version');
   const def = deepFreeze(restoreScenario(row.definition));
-  if (definitionCache.size >= DEFINITION_CACHE_SIZE) {
-    const oldest = definitionCache.keys().next();
-    if (!oldest.done) definitionCache.delete(oldest.value);
-  }
-  definitionCache.set(scenarioVersionId, def);
+  cache?.set(scenarioVersionId, def);
   return def;
 }

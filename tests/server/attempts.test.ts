@@ -216,7 +216,7 @@ describe('the event log', () => {
           const started = await ada.post('/api/attempts').send({ scenarioId: practice, mode: 'practice' }).expect(201);
           const aid = started.body.attempt.id as number;
           for (const [i, batch] of batches.entries()) {
-            if (lose[i]) forgetSetups();
+            if (lose[i]) forgetSetups(t.ctx.db);
             const res = await ada.post(`/api/attempts/${aid}/events`).send({ events: batch }).expect(200);
             const [row] = await t.ctx.db.select({ lastSeq: attempts.lastSeq, currentTest: attempts.currentTest }).from(attempts).where(eq(attempts.id, aid));
             expect(row!.lastSeq).toBe(res.body.lastSeq);
