@@ -20,15 +20,15 @@ import { attempts } from '../db/schema.ts';
 import { conflict } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
-import { boardAttempt, className, classBoard, createBoardRuns } from '../services/live-board.ts';
+import { boardAttempts, className, classBoard, createBoardRuns } from '../services/live-board.ts';
 import { ATTEMPT_CHANNEL, INJECTION_CHANNEL, liveBusFor } from '../services/live-bus.ts';
 import { benchKeyOf, createClear, createInjection, injectionViews, listInjections, toBenchMessage, unappliedInjections } from '../services/live-injections.ts';
 import { openSse } from '../services/live-sse.ts';
 
 /** While the notification connection is down, streams look for news this often. */
 const FALLBACK_POLL_MS = 2_000;
-/** Notifications about one attempt that arrive within this window make one board update. */
-const BOARD_COALESCE_MS = 150;
+/** Notifications that arrive within this window make one board update, for every attempt they name at once. */
+const BOARD_COALESCE_MS = 250;
 
 const INSTRUCTORS = ['instructor', 'admin'] as const;
 
@@ -61,15 +61,16 @@ export function liveRoutes(ctx: AppContext) {
       timer = null;
       if (running) return schedule();
       running = true;
+      const ids = [...due];
+      due.clear();
       try {
-        for (const attemptId of [...due]) {
-          due.delete(attemptId);
-          const entry = await boardAttempt(ctx.db, classId, attemptId, runs);
-          if (!entry) continue;
-          if (entry.status !== 'running') runs.forget(attemptId);
+        for (const entry of await boardAttempts(ctx.db, classId, ids, runs)) {
+          if (entry.status !== 'running') runs.forget(entry.attemptId);
           sse.send('attempt', entry);
         }
       } catch (err) {
+        // Kept for the next update, as if they had not been taken.
+        for (const id of ids) due.add(id);
         ctx.log('warn', 'board update failed', err);
       } finally {
         running = false;

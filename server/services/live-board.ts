@@ -2,23 +2,28 @@
  * The class board: every running attempt of a class (its assignments, and
  * practice by its students) with the student, scenario, sim time, the test the
  * bench is set up for and the meters, as the server's own re-run of the
- * stored events shows them. The re-run is kept per attempt and carried
- * forward as events arrive, so an update costs only the new sim time.
+ * stored events shows them. A refresh handles every changed attempt at once:
+ * one query for their rows (with the time of each one's latest event), one
+ * for the events the re-run cache has not seen yet, one for their injections.
+ * The re-run is kept per attempt and carried forward as events arrive, so an
+ * update costs only the new events and the new sim time.
  */
-import { and, desc, eq, inArray, isNull, or, sql } from 'drizzle-orm';
+import { and, asc, eq, gt, inArray, isNull, or, sql } from 'drizzle-orm';
 import type { DiagnosticTest } from '../../sim/faults.ts';
-import type { Controls } from '../../sim/inputs.ts';
+import type { Controls, InputEvent } from '../../sim/inputs.ts';
 import type { Readings } from '../../sim/instruments.ts';
 import { readMeters } from '../../sim/instruments.ts';
+import type { VehicleParams } from '../../sim/params.ts';
 import type { ReplayPoint } from '../../sim/replay.ts';
-import { advance, stateAt } from '../../sim/replay.ts';
+import { advance, startPoint, stateAt } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
 import type { BoardAttempt, LiveReadings } from '../../shared/api/live.ts';
 import type { DbOrTx } from '../db/client.ts';
 import { assignments, attemptEvents, attempts, classes, enrollments, scenarioVersions, users } from '../db/schema.ts';
 import { notFound } from '../http/errors.ts';
-import { loadAttemptRun, type AttemptRunInputs } from './live-attempt-run.ts';
-import { injectionViews, listInjections } from './live-injections.ts';
+import { loadDefinition } from './definitions.ts';
+import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
+import { injectionsByAttempt, injectionViews, type InjectionRow } from './live-injections.ts';
 
 /** A re-run longer than this many steps is not made for the board (it would hold the process). */
 const MAX_BOARD_STEPS = 400_000;
@@ -35,6 +40,12 @@ const boardColumns = {
   startedAt: attempts.startedAt,
   simTimeMs: attempts.simTimeMs,
   lastSeq: attempts.lastSeq,
+  seed: attempts.seed,
+  scenarioVersionId: attempts.scenarioVersionId,
+  /** When the latest event arrived: one step back along the (attempt, seq) index, not a scan of the log. */
+  lastActivityAt: sql<Date | null>`(select ${attemptEvents.createdAt} from ${attemptEvents} where ${attemptEvents.attemptId} = ${attempts.id} order by ${attemptEvents.seq} desc limit 1)`.mapWith(
+    attemptEvents.createdAt,
+  ),
 };
 
 /** Attempts of the class: assigned through its assignments, or practice by its enrolled students. */
@@ -66,24 +77,26 @@ async function boardRows(db: DbOrTx, classId: number, where: ReturnType<typeof a
 
 /** The running attempts of the class, oldest student name first. */
 export async function classBoard(db: DbOrTx, classId: number, runs: BoardRuns): Promise<BoardAttempt[]> {
-  const rows = await boardRows(db, classId, eq(attempts.status, 'running'));
-  return Promise.all(rows.map((r) => toBoardAttempt(db, r, runs)));
+  return toBoardAttempts(db, await boardRows(db, classId, eq(attempts.status, 'running')), runs);
 }
 
-/** One attempt of the class as the board shows it, or null when it is not the class's. */
-export async function boardAttempt(db: DbOrTx, classId: number, attemptId: number, runs: BoardRuns): Promise<BoardAttempt | null> {
-  const [row] = await boardRows(db, classId, eq(attempts.id, attemptId));
-  return row ? toBoardAttempt(db, row, runs) : null;
+/**
+ * Those of the given attempts that are the class's, as the board shows them
+ * (running or not), in board order; ids not of the class are left out.
+ */
+export async function boardAttempts(db: DbOrTx, classId: number, attemptIds: readonly number[], runs: BoardRuns): Promise<BoardAttempt[]> {
+  if (attemptIds.length === 0) return [];
+  return toBoardAttempts(db, await boardRows(db, classId, inArray(attempts.id, [...attemptIds])), runs);
 }
 
-async function toBoardAttempt(db: DbOrTx, r: BoardRow, runs: BoardRuns): Promise<BoardAttempt> {
-  const [last] = await db
-    .select({ at: attemptEvents.createdAt })
-    .from(attemptEvents)
-    .where(eq(attemptEvents.attemptId, r.attemptId))
-    .orderBy(desc(attemptEvents.seq))
-    .limit(1);
-  const live = r.status === 'running' ? await runs.at(db, r.attemptId, r.lastSeq, r.simTimeMs) : null;
+async function toBoardAttempts(db: DbOrTx, rows: readonly BoardRow[], runs: BoardRuns): Promise<BoardAttempt[]> {
+  if (rows.length === 0) return [];
+  const ids = rows.map((r) => r.attemptId);
+  const [views, injections] = await Promise.all([runs.views(db, rows.filter((r) => r.status === 'running')), injectionsByAttempt(db, ids)]);
+  return rows.map((r) => toBoardAttempt(r, views.get(r.attemptId) ?? null, injections.get(r.attemptId) ?? []));
+}
+
+function toBoardAttempt(r: BoardRow, live: LiveView | null, injections: readonly InjectionRow[]): BoardAttempt {
   return {
     attemptId: r.attemptId,
     studentId: r.studentId,
@@ -98,8 +111,8 @@ async function toBoardAttempt(db: DbOrTx, r: BoardRow, runs: BoardRuns): Promise
     lastSeq: r.lastSeq,
     currentTest: live?.currentTest ?? null,
     readings: live?.readings ?? null,
-    injections: injectionViews(await listInjections(db, r.attemptId)),
-    lastActivityAt: last ? last.at.toISOString() : null,
+    injections: injectionViews(injections),
+    lastActivityAt: r.lastActivityAt ? r.lastActivityAt.toISOString() : null,
   };
 }
 
@@ -142,9 +155,27 @@ export function testOfSetup(c: Controls, r: Pick<Readings, 'engine'>): Diagnosti
   return null;
 }
 
+/** An event as the re-run holds it; the scenario's own faults come first with seq 0 and below. */
+interface RunItem {
+  seq: number;
+  event: InputEvent;
+}
+
+/** The model's order: by sim time, equal times in log order (what `orderEvents` gives the log by seq). */
+const byTimeThenSeq = (a: RunItem, b: RunItem) => a.event.atMs - b.event.atMs || a.seq - b.seq;
+
 interface RunCacheEntry {
-  inputs: AttemptRunInputs;
-  lastSeq: number;
+  seed: number;
+  scenarioVersionId: number;
+  params: VehicleParams;
+  /** Every stored event with a seq up to this one is held (later ones past a gap may be held too). */
+  through: number;
+  seqs: Set<number>;
+  /** The held events in the model's order, and the same events alone for the model. */
+  items: RunItem[];
+  events: InputEvent[];
+  lastAtMs: number;
+  /** How far the re-run has got; events before point.nextEventIndex are applied. */
   point: ReplayPoint;
 }
 
@@ -153,43 +184,170 @@ export interface LiveView {
   readings: LiveReadings;
 }
 
+/** What the re-run cache needs of an attempt's row. */
+export interface BoardRunRow {
+  attemptId: number;
+  seed: number;
+  scenarioVersionId: number;
+  lastSeq: number;
+  simTimeMs: number;
+}
+
+/** Counts since the cache was made, for the benches and tests. */
+export interface BoardRunStats {
+  /** Re-runs from the start: a newly watched attempt, or an event before the kept moment. */
+  fullRuns: number;
+  /** Re-runs carried forward from the kept moment. */
+  carried: number;
+  /** Stored events read (each read once, except those past a gap until it fills). */
+  eventsLoaded: number;
+}
+
 /** The per-process cache of the board's re-runs (one entry per running attempt watched). */
 export interface BoardRuns {
-  at(db: DbOrTx, attemptId: number, lastSeq: number, simTimeMs: number): Promise<LiveView | null>;
+  /** The live view of each attempt (null when the model cannot be run for it), loading only events not yet held. */
+  views(db: DbOrTx, rows: readonly BoardRunRow[]): Promise<Map<number, LiveView | null>>;
   forget(attemptId: number): void;
+  readonly stats: BoardRunStats;
+}
+
+/** The stored events after the given seq of each attempt, in one query, by attempt then seq. */
+async function eventsAfter(db: DbOrTx, after: ReadonlyMap<number, number>) {
+  const pairs = [...after].map(([attemptId, seq]) => and(eq(attemptEvents.attemptId, attemptId), gt(attemptEvents.seq, seq)));
+  return db
+    .select({ attemptId: attemptEvents.attemptId, seq: attemptEvents.seq, kind: attemptEvents.kind, simTimeMs: attemptEvents.simTimeMs, payload: attemptEvents.payload })
+    .from(attemptEvents)
+    .where(pairs.length === 1 ? pairs[0] : or(...pairs))
+    .orderBy(asc(attemptEvents.attemptId), asc(attemptEvents.seq));
+}
+
+async function newEntry(db: DbOrTx, row: BoardRunRow): Promise<RunCacheEntry> {
+  const definition = await loadDefinition(db, row.scenarioVersionId);
+  const scenario = scenarioFaultEvents(definition);
+  const items = scenario.map((event, i) => ({ seq: i - scenario.length + 1, event }));
+  return {
+    seed: row.seed,
+    scenarioVersionId: row.scenarioVersionId,
+    params: definition.vehicle.params,
+    through: 0,
+    seqs: new Set(),
+    items,
+    events: items.map((i) => i.event),
+    lastAtMs: items.reduce((m, i) => Math.max(m, i.event.atMs), 0),
+    point: startPoint(definition.vehicle.params, row.seed),
+  };
+}
+
+/**
+ * Takes in newly loaded events. They go after the applied ones when none of
+ * them is due before the kept moment's last step (the model would then apply
+ * them exactly as a run from the start does); otherwise the kept moment is
+ * dropped and the next run starts over. Returns whether the moment was kept.
+ */
+function takeIn(entry: RunCacheEntry, fresh: RunItem[]): boolean {
+  if (fresh.length === 0) return true;
+  const lastStepAt = entry.point.state.timeMs - DT_MS;
+  const keep = fresh.every((i) => i.event.atMs > lastStepAt);
+  fresh.sort(byTimeThenSeq);
+  const last = entry.items[entry.items.length - 1];
+  if (keep && (!last || byTimeThenSeq(last, fresh[0]!) < 0)) {
+    for (const i of fresh) {
+      entry.items.push(i);
+      entry.events.push(i.event);
+    }
+  } else {
+    // Re-sort only what is not applied yet (all of it when the moment is dropped).
+    const from = keep ? entry.point.nextEventIndex : 0;
+    const tail = entry.items.splice(from).concat(fresh).sort(byTimeThenSeq);
+    entry.items.push(...tail);
+    entry.events = entry.items.map((i) => i.event);
+  }
+  for (const i of fresh) entry.lastAtMs = Math.max(entry.lastAtMs, i.event.atMs);
+  return keep;
 }
 
 export function createBoardRuns(log: (message: string, err: unknown) => void): BoardRuns {
   const cache = new Map<number, RunCacheEntry>();
-  return {
-    async at(db, attemptId, lastSeq, simTimeMs) {
+  const stats: BoardRunStats = { fullRuns: 0, carried: 0, eventsLoaded: 0 };
+  // One refresh at a time per process, so two streams never take in the same events twice.
+  let queue: Promise<unknown> = Promise.resolve();
+
+  async function refresh(db: DbOrTx, rows: readonly BoardRunRow[]): Promise<Map<number, LiveView | null>> {
+    const views = new Map<number, LiveView | null>();
+    if (rows.length === 0) return views;
+    const after = new Map<number, number>();
+    for (const row of rows) {
+      const held = cache.get(row.attemptId);
+      // Another scenario or seed, or a log that went back: start this attempt over.
+      if (held && (held.seed !== row.seed || held.scenarioVersionId !== row.scenarioVersionId || row.lastSeq < held.through)) cache.delete(row.attemptId);
+      after.set(row.attemptId, cache.get(row.attemptId)?.through ?? 0);
+    }
+    let loaded: Awaited<ReturnType<typeof eventsAfter>>;
+    try {
+      loaded = await eventsAfter(db, after);
+    } catch (err) {
+      log('board re-run failed', err);
+      for (const row of rows) views.set(row.attemptId, null);
+      return views;
+    }
+    stats.eventsLoaded += loaded.length;
+    const byAttempt = new Map<number, typeof loaded>();
+    for (const r of loaded) {
+      const list = byAttempt.get(r.attemptId);
+      if (list) list.push(r);
+      else byAttempt.set(r.attemptId, [r]);
+    }
+    for (const row of rows) {
       try {
-        let entry = cache.get(attemptId);
-        const inputs = entry && entry.lastSeq === lastSeq ? entry.inputs : await loadAttemptRun(db, attemptId);
-        const lastAtMs = inputs.events.reduce((m, e) => Math.max(m, e.atMs), 0);
-        const targetMs = Math.ceil(Math.max(simTimeMs, lastAtMs) / DT_MS) * DT_MS;
-        if (targetMs / DT_MS > MAX_BOARD_STEPS) return null;
-        const reusable =
-          entry !== undefined &&
-          entry.point.state.timeMs <= targetMs &&
-          inputs.events.length >= entry.inputs.events.length &&
-          inputs.events.slice(entry.point.nextEventIndex).every((e) => e.atMs >= entry!.point.state.timeMs);
-        if (!entry || !reusable) {
-          entry = { inputs, lastSeq, point: stateAt(inputs.params, inputs.seed, inputs.events, targetMs) };
-        } else {
-          const steps = Math.round((targetMs - entry.point.state.timeMs) / DT_MS);
-          entry = { inputs, lastSeq, point: steps > 0 ? advance(inputs.params, entry.point, inputs.events, steps) : entry.point };
+        let entry = cache.get(row.attemptId);
+        if (!entry) {
+          entry = await newEntry(db, row);
+          cache.set(row.attemptId, entry);
         }
-        cache.set(attemptId, entry);
-        const readings = readMeters(entry.inputs.params, entry.point.state);
-        return { currentTest: testOfSetup(entry.point.controls, readings), readings: liveReadings(readings) };
+        const fresh: RunItem[] = [];
+        for (const r of byAttempt.get(row.attemptId) ?? []) {
+          if (entry.seqs.has(r.seq)) continue;
+          entry.seqs.add(r.seq);
+          const event = rowToInput(r);
+          if (event) fresh.push({ seq: r.seq, event });
+        }
+        if (!takeIn(entry, fresh)) entry.point = startPoint(entry.params, entry.seed);
+        entry.through = Math.max(entry.through, row.lastSeq);
+        views.set(row.attemptId, carryTo(entry, row.simTimeMs));
       } catch (err) {
         log('board re-run failed', err);
-        return null;
+        views.set(row.attemptId, null);
       }
+    }
+    return views;
+  }
+
+  /** The view at the attempt's sim time: carried forward from the kept moment, or run from the start. */
+  function carryTo(entry: RunCacheEntry, simTimeMs: number): LiveView | null {
+    const targetMs = Math.ceil(Math.max(simTimeMs, entry.lastAtMs) / DT_MS) * DT_MS;
+    if (targetMs / DT_MS > MAX_BOARD_STEPS) return null;
+    const from = entry.point;
+    if (from.state.timeMs === 0 || from.state.timeMs > targetMs) {
+      entry.point = stateAt(entry.params, entry.seed, entry.events, targetMs);
+      stats.fullRuns++;
+    } else {
+      const steps = Math.round((targetMs - from.state.timeMs) / DT_MS);
+      entry.point = advance(entry.params, from, entry.events, steps);
+      stats.carried++;
+    }
+    const readings = readMeters(entry.params, entry.point.state);
+    return { currentTest: testOfSetup(entry.point.controls, readings), readings: liveReadings(readings) };
+  }
+
+  return {
+    views(db, rows) {
+      const run = queue.then(() => refresh(db, rows));
+      queue = run.catch(() => undefined);
+      return run;
     },
     forget(attemptId) {
       cache.delete(attemptId);
     },
+    stats,
   };
 }
