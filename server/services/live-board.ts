@@ -8,7 +8,7 @@
  * The re-run is kept per attempt and carried forward as events arrive, so an
  * update costs only the new events and the new sim time.
  */
-import { and, asc, eq, gt, inArray, isNull, or, sql } from 'drizzle-orm';
+import { and, eq, inArray, isNull, or, sql } from 'drizzle-orm';
 import type { DiagnosticTest } from '../../sim/faults.ts';
 import type { Controls, InputEvent } from '../../sim/inputs.ts';
 import type { Readings } from '../../sim/instruments.ts';
@@ -211,14 +211,34 @@ export interface BoardRuns {
   readonly stats: BoardRunStats;
 }
 
-/** The stored events after the given seq of each attempt, in one query, by attempt then seq. */
-async function eventsAfter(db: DbOrTx, after: ReadonlyMap<number, number>) {
-  const pairs = [...after].map(([attemptId, seq]) => and(eq(attemptEvents.attemptId, attemptId), gt(attemptEvents.seq, seq)));
-  return db
-    .select({ attemptId: attemptEvents.attemptId, seq: attemptEvents.seq, kind: attemptEvents.kind, simTimeMs: attemptEvents.simTimeMs, payload: attemptEvents.payload })
-    .from(attemptEvents)
-    .where(pairs.length === 1 ? pairs[0] : or(...pairs))
-    .orderBy(asc(attemptEvents.attemptId), asc(attemptEvents.seq));
+interface LoadedEvent {
+  attemptId: number;
+  seq: number;
+  kind: string;
+  simTimeMs: number;
+  payload: unknown;
+}
+
+/**
+ * The stored events after the given seq of each attempt, in one query, by
+ * attempt then seq. Each attempt is its own range on the (attempt, seq) index
+ * (the ordered lateral keeps the planner from scanning the whole log).
+ */
+async function eventsAfter(db: DbOrTx, after: ReadonlyMap<number, number>): Promise<LoadedEvent[]> {
+  const due = sql.join(
+    [...after].map(([attemptId, seq]) => sql`(${attemptId}::int, ${seq}::int)`),
+    sql`, `,
+  );
+  const result = await db.execute<{ attemptId: number; seq: number; kind: string; simTimeMs: number; payload: unknown }>(sql`
+    select e.attempt_id as "attemptId", e.seq, e.kind, e.sim_time_ms as "simTimeMs", e.payload
+    from (values ${due}) as due (attempt_id, after_seq)
+    cross join lateral (
+      select x.attempt_id, x.seq, x.kind, x.sim_time_ms, x.payload from ${attemptEvents} x
+      where x.attempt_id = due.attempt_id and x.seq > due.after_seq
+      order by x.seq
+    ) e
+    order by e.attempt_id, e.seq`);
+  return result.rows;
 }
 
 async function newEntry(db: DbOrTx, row: BoardRunRow): Promise<RunCacheEntry> {
@@ -282,7 +302,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
       if (held && (held.seed !== row.seed || held.scenarioVersionId !== row.scenarioVersionId || row.lastSeq < held.through)) cache.delete(row.attemptId);
       after.set(row.attemptId, cache.get(row.attemptId)?.through ?? 0);
     }
-    let loaded: Awaited<ReturnType<typeof eventsAfter>>;
+    let loaded: LoadedEvent[];
     try {
       loaded = await eventsAfter(db, after);
     } catch (err) {
