@@ -18,7 +18,7 @@ export function attemptRoutes(ctx: AppContext) {
   g.post('/', ['student'], async (req, res) => {
     const input = parseBody(startAttemptSchema, req);
     const id = await startAttempt(ctx.db, currentUser(req), input);
-    res.status(201).json(await attemptBootstrap(ctx.db, ctx.env.SESSION_SECRET, id));
+    res.status(201).json(await attemptBootstrap(ctx, ctx.env.SESSION_SECRET, id));
   });
 
   g.get('/mine', ['student'], async (req, res) => {
@@ -29,13 +29,13 @@ export function attemptRoutes(ctx: AppContext) {
     const { id } = parseParams(attemptIdParamsSchema, req);
     const attempt = await loadAttempt(ctx.db, id);
     await attemptReaderAccess(ctx.db, currentUser(req), { attemptId: id, ownerId: attempt.userId, assignmentId: attempt.assignmentId, status: attempt.status });
-    res.json(await attemptBootstrap(ctx.db, ctx.env.SESSION_SECRET, attempt));
+    res.json(await attemptBootstrap(ctx, ctx.env.SESSION_SECRET, attempt));
   });
 
   // The ownership check is made on the row the batch locks (see postEvents).
   g.post('/:id/events', ['student'], async (req, res) => {
     const { id } = parseParams(attemptIdParamsSchema, req);
-    res.json(await postEvents(ctx.db, currentUser(req), id, req.body ?? {}));
+    res.json(await postEvents(ctx, currentUser(req), id, req.body ?? {}));
   });
 
   g.post('/:id/submit', ['student'], async (req, res) => {

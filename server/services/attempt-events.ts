@@ -1,14 +1,14 @@
 /**
- * The event log of a running attempt. A batch is stored in one transaction
- * with the attempt's row locked, so concurrent posts of the same batch store
- * each event once (the unique (attempt, seq) index and `on conflict do
- * nothing` make a retried batch a no-op). Gaps are stored as they come:
+ * The event log of a running attempt. A batch is stored by one statement
+ * that locks the attempt's row; the unique (attempt, seq) index and `on
+ * conflict do nothing` store each event once however often, and however
+ * concurrently, a batch is sent. Gaps are stored as they come:
  * `lastSeq` is the highest seq up to which every event from 1 is stored, so
  * the bench knows to resend everything after it, and submission waits for
  * the gaps to fill. Fault events are taken only as the log of an
  * instructor's pending injection.
  */
-import { and, asc, eq, gt } from 'drizzle-orm';
+import type pg from 'pg';
 import type { DiagnosticTest } from '../../sim/faults.ts';
 import type { Controls, InputEvent } from '../../sim/inputs.ts';
 import { applyInput, initialControls } from '../../sim/inputs.ts';
@@ -16,17 +16,17 @@ import { orderEvents } from '../../sim/replay.ts';
 import { postEventsSchema, type PostEventsResponse } from '../../shared/api/attempts.ts';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import { pendingActionSchema, type PendingAction } from '../../shared/api/live.ts';
-import type { Db, DbOrTx } from '../db/client.ts';
-import { attemptEvents, attempts, pendingInjections } from '../db/schema.ts';
+import type { Db } from '../db/client.ts';
 import { scopedCache } from '../db/scoped-cache.ts';
 import { badRequest, conflict, forbidden } from '../http/errors.ts';
 import { parseValue } from '../http/validate.ts';
-import { loadAttempt, storedEvents } from './attempt-store.ts';
+import { notFound } from '../http/errors.ts';
 import { loadDefinition } from './definitions.ts';
+import { rowToInput } from './live-attempt-run.ts';
 import { testOfSetup } from './live-board.ts';
 
-async function pendingActions(db: DbOrTx, attemptId: number): Promise<PendingAction[]> {
-  const rows = await db.select({ action: pendingInjections.action }).from(pendingInjections).where(eq(pendingInjections.attemptId, attemptId));
+async function pendingActions(client: pg.Pool, attemptId: number): Promise<PendingAction[]> {
+  const { rows } = await client.query<{ action: unknown }>({ name: 'events-pending-actions', text: 'select action from pending_injections where attempt_id = $1', values: [attemptId] });
   return rows.flatMap((r) => {
     const parsed = pendingActionSchema.safeParse(r.action);
     return parsed.success ? [parsed.data] : [];
@@ -92,8 +92,14 @@ export function forgetSetups(db: Db): void {
  * the new events are all at or after its latest time, else rebuilt from the
  * stored log. `fresh` holds this batch's stored events by seq.
  */
-async function setupThrough(tx: DbOrTx, attemptId: number, oldLastSeq: number, newLastSeq: number, fresh: ReadonlyMap<number, InputEvent>): Promise<Setup> {
-  const cached = oldLastSeq === 0 ? { lastSeq: 0, setup: initialSetup() } : setups.of(tx)?.get(attemptId);
+async function setupThrough(
+  ctx: { db: Db; pool: pg.Pool },
+  attemptId: number,
+  oldLastSeq: number,
+  newLastSeq: number,
+  fresh: ReadonlyMap<number, InputEvent>,
+): Promise<Setup> {
+  const cached = oldLastSeq === 0 ? { lastSeq: 0, setup: initialSetup() } : setups.of(ctx.db)?.get(attemptId);
   if (cached && cached.lastSeq === oldLastSeq) {
     const added: InputEvent[] = [];
     for (let seq = oldLastSeq + 1; seq <= newLastSeq; seq++) {
@@ -105,71 +111,127 @@ async function setupThrough(tx: DbOrTx, attemptId: number, oldLastSeq: number, n
       return foldSetup(cached.setup, added);
     }
   }
-  const prefix = (await storedEvents(tx, attemptId)).filter((e) => e.seq <= newLastSeq).map((e) => e.event);
-  return setupAfter(prefix);
+  const { rows } = await ctx.pool.query<{ kind: string; simTimeMs: number; payload: unknown }>({
+    name: 'events-prefix',
+    text: 'select kind, sim_time_ms as "simTimeMs", payload from attempt_events where attempt_id = $1 and seq <= $2 order by seq',
+    values: [attemptId, newLastSeq],
+  });
+  return setupAfter(rows.flatMap((r) => rowToInput(r) ?? []));
+}
+
+/** The attempt's owner and scenario version (neither ever changes), kept per database. */
+const owners = scopedCache<number, { userId: number; scenarioVersionId: number }>(10_000);
+
+async function ownerOf(ctx: { db: Db; pool: pg.Pool }, attemptId: number): Promise<{ userId: number; scenarioVersionId: number }> {
+  const hit = owners.of(ctx.db)?.get(attemptId);
+  if (hit) return hit;
+  const { rows } = await ctx.pool.query<{ userId: number; scenarioVersionId: number }>({
+    name: 'events-attempt-owner',
+    text: 'select user_id as "userId", scenario_version_id as "scenarioVersionId" from attempts where id = $1',
+    values: [attemptId],
+  });
+  const row = rows[0];
+  if (!row) throw notFound('No such attempt');
+  owners.of(ctx.db)?.set(attemptId, row);
+  return row;
 }
 
 /**
- * Stores a batch for the signed-in student's own attempt. The ownership
- * check reads the row it locks, so a batch costs one lock, one insert, one
- * look at the seqs after lastSeq and one update.
+ * Stores a batch for the signed-in student's own attempt. This is the
+ * busiest write of the product (a batch a second from every bench), so it is
+ * two named statements and no open transaction:
+ *
+ * 1. One statement locks the attempt's row, inserts the batch only if the
+ *    attempt is this student's and still running (so a batch racing a
+ *    submission stores nothing), and returns the seqs after lastSeq.
+ * 2. One update moves lastSeq, the set-up and the sim time on, and only
+ *    forwards (`greatest`), so two batches finishing out of order never
+ *    move them back.
+ *
+ * Were the process to stop between the two, the events are stored and the
+ * next batch (or the retry of this one) finds them after lastSeq and moves
+ * it on; submission checks the stored log itself for gaps.
  */
-export async function postEvents(db: Db, user: SessionUser, attemptId: number, body: unknown): Promise<PostEventsResponse> {
-  const { response, remember } = await db.transaction(async (tx) => {
-    let remember: { lastSeq: number; setup: Setup } | null = null;
-    const attempt = await loadAttempt(tx, attemptId, { lock: true });
-    if (attempt.userId !== user.id) throw forbidden('This attempt is not yours');
-    const input = parseValue(postEventsSchema, body, 'body');
-    if (attempt.status === 'submitted') throw conflict('This attempt has been submitted; it takes no more events');
+export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUser, attemptId: number, body: unknown): Promise<PostEventsResponse> {
+  const owner = await ownerOf(ctx, attemptId);
+  if (owner.userId !== user.id) throw forbidden('This attempt is not yours');
+  const input = parseValue(postEventsSchema, body, 'body');
 
-    const def = await loadDefinition(tx, attempt.scenarioVersionId);
-    const accessoryIds = new Set(def.vehicle.params.loads.accessories.map((a) => a.id));
-    const hasFaultEvents = input.events.some((e) => e.event.kind === 'fault-inject' || e.event.kind === 'fault-clear');
-    const actions = hasFaultEvents ? await pendingActions(tx, attemptId) : [];
-    input.events.forEach(({ event }, i) => {
-      if (event.kind === 'accessory' && !accessoryIds.has(event.id)) {
-        throw badRequest(`events.${i}.event.id: this car has no accessory "${event.id}"`, { field: `events.${i}.event.id` });
-      }
-      if (!matchesInjection(event, actions)) {
-        throw badRequest(`events.${i}.event: fault events are taken only as the log of an instructor's injection`, { field: `events.${i}.event` });
-      }
-    });
-
-    const inserted = await tx
-      .insert(attemptEvents)
-      .values(
-        input.events.map(({ seq, event }) => ({ attemptId, seq, simTimeMs: event.atMs, kind: event.kind, payload: event })),
-      )
-      .onConflictDoNothing({ target: [attemptEvents.attemptId, attemptEvents.seq] })
-      .returning({ seq: attemptEvents.seq });
-
-    let lastSeq = attempt.lastSeq;
-    const later = await tx
-      .select({ seq: attemptEvents.seq })
-      .from(attemptEvents)
-      .where(and(eq(attemptEvents.attemptId, attemptId), gt(attemptEvents.seq, lastSeq)))
-      .orderBy(asc(attemptEvents.seq));
-    for (const { seq } of later) {
-      if (seq !== lastSeq + 1) break;
-      lastSeq = seq;
+  const def = await loadDefinition(ctx.db, owner.scenarioVersionId);
+  const accessoryIds = new Set(def.vehicle.params.loads.accessories.map((a) => a.id));
+  const hasFaultEvents = input.events.some((e) => e.event.kind === 'fault-inject' || e.event.kind === 'fault-clear');
+  const actions = hasFaultEvents ? await pendingActions(ctx.pool, attemptId) : [];
+  input.events.forEach(({ event }, i) => {
+    if (event.kind === 'accessory' && !accessoryIds.has(event.id)) {
+      throw badRequest(`events.${i}.event.id: this car has no accessory "${event.id}"`, { field: `events.${i}.event.id` });
     }
-
-    if (inserted.length > 0 || lastSeq !== attempt.lastSeq) {
-      const insertedSeqs = new Set(inserted.map((r) => r.seq));
-      const fresh = new Map(input.events.filter((e) => insertedSeqs.has(e.seq)).map((e) => [e.seq, e.event] as const));
-      const simTimeMs = [...fresh.values()].reduce((m, e) => Math.max(m, e.atMs), attempt.simTimeMs);
-      const set: { simTimeMs: number; lastSeq?: number; currentTest?: DiagnosticTest | null } = { simTimeMs };
-      if (lastSeq !== attempt.lastSeq) {
-        const setup = await setupThrough(tx, attemptId, attempt.lastSeq, lastSeq, fresh);
-        set.lastSeq = lastSeq;
-        set.currentTest = testOfSetup(setup.controls, { engine: setup.engineGuess });
-        remember = { lastSeq, setup };
-      }
-      await tx.update(attempts).set(set).where(eq(attempts.id, attemptId));
+    if (!matchesInjection(event, actions)) {
+      throw badRequest(`events.${i}.event: fault events are taken only as the log of an instructor's injection`, { field: `events.${i}.event` });
     }
-    return { response: { lastSeq, stored: inserted.length }, remember };
   });
-  // Cached only once the transaction has committed, so a rolled-back batch leaves nothing behind.
-  if (remember) setups.of(db)?.set(attemptId, remember);
-  return response;
+
+  // The rows this statement inserts, and the seqs after lastSeq stored before it (a statement does not see its own rows).
+  const { rows } = await ctx.pool.query<{ status: string; lastSeq: number; simTimeMs: number; inserted: number[]; earlier: number[] }>({
+    name: 'events-store-batch',
+    text: `with a as (
+             select status, last_seq, sim_time_ms from attempts where id = $1 and user_id = $6 for update
+           ), ins as (
+             insert into attempt_events (attempt_id, seq, sim_time_ms, kind, payload)
+             select $1, e.seq, e.sim_time_ms, e.kind, e.payload
+               from unnest($2::int[], $3::int[], $4::text[], $5::jsonb[]) as e(seq, sim_time_ms, kind, payload)
+              where exists (select 1 from a where a.status = 'running')
+             on conflict (attempt_id, seq) do nothing
+             returning seq
+           )
+           select a.status, a.last_seq as "lastSeq", a.sim_time_ms as "simTimeMs",
+                  coalesce((select array_agg(seq) from ins), '{}') as inserted,
+                  coalesce((select array_agg(e.seq order by e.seq) from attempt_events e where e.attempt_id = $1 and e.seq > a.last_seq), '{}') as earlier
+             from a`,
+    values: [
+      attemptId,
+      input.events.map((e) => e.seq),
+      input.events.map((e) => e.event.atMs),
+      input.events.map((e) => e.event.kind),
+      input.events.map((e) => JSON.stringify(e.event)),
+      user.id,
+    ],
+  });
+  const attempt = rows[0];
+  if (!attempt) throw notFound('No such attempt');
+  if (attempt.status === 'submitted') throw conflict('This attempt has been submitted; it takes no more events');
+
+  const insertedSeqs = new Set(attempt.inserted);
+  let lastSeq = attempt.lastSeq;
+  for (const seq of [...attempt.inserted, ...attempt.earlier].sort((a, b) => a - b)) {
+    if (seq === lastSeq + 1) lastSeq = seq;
+    else if (seq > lastSeq + 1) break;
+  }
+  if (insertedSeqs.size > 0 || lastSeq !== attempt.lastSeq) {
+    const fresh = new Map(input.events.filter((e) => insertedSeqs.has(e.seq)).map((e) => [e.seq, e.event] as const));
+    const simTimeMs = [...fresh.values()].reduce((m, e) => Math.max(m, e.atMs), attempt.simTimeMs);
+    if (lastSeq !== attempt.lastSeq) {
+      const setup = await setupThrough(ctx, attemptId, attempt.lastSeq, lastSeq, fresh);
+      const currentTest: DiagnosticTest | null = testOfSetup(setup.controls, { engine: setup.engineGuess });
+      // SET reads the row as it was, so the set-up changes only with a lastSeq that moves forward; the sim time always may.
+      const moved = await ctx.pool.query<{ lastSeq: number }>({
+        name: 'events-move-on',
+        text: `update attempts
+                  set last_seq = greatest(last_seq, $2),
+                      current_test = case when last_seq < $2 then $3 else current_test end,
+                      sim_time_ms = greatest(sim_time_ms, $4)
+                where id = $1
+            returning last_seq as "lastSeq"`,
+        values: [attemptId, lastSeq, currentTest, simTimeMs],
+      });
+      // The same lastSeq, whoever wrote it, means the same stored prefix and so the same set-up.
+      if (moved.rows[0]?.lastSeq === lastSeq) setups.of(ctx.db)?.set(attemptId, { lastSeq, setup });
+    } else if (simTimeMs > attempt.simTimeMs) {
+      await ctx.pool.query({
+        name: 'events-time-on',
+        text: 'update attempts set sim_time_ms = greatest(sim_time_ms, $2) where id = $1',
+        values: [attemptId, simTimeMs],
+      });
+    }
+  }
+  return { lastSeq, stored: insertedSeqs.size };
 }

@@ -4,7 +4,8 @@
  * sealed (docs/decisions/001-sealed-faults.md).
  */
 import { randomInt } from 'node:crypto';
-import { and, asc, desc, eq, sql } from 'drizzle-orm';
+import type pg from 'pg';
+import { and, desc, eq, sql } from 'drizzle-orm';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import type { AttemptBootstrap, AttemptResult, BenchScenarioView, MyAttemptRow, StartAttemptInput, StoredEvent } from '../../shared/api/attempts.ts';
 import { attemptResultSchema } from '../../shared/api/attempts.ts';
@@ -12,7 +13,7 @@ import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, studentScenar
 import { deriveBenchKey, healthyVehicle, sealEvents, sealFaults, sealVehicle } from '../../shared/sealed-faults.ts';
 import { assertCanPractiseScenario, assertCanStartAssignment } from '../auth/access.ts';
 import type { Db, DbOrTx } from '../db/client.ts';
-import { assignments, attemptEvents, attempts, scenarioVersions } from '../db/schema.ts';
+import { assignments, attempts, scenarioVersions } from '../db/schema.ts';
 import { scopedCache } from '../db/scoped-cache.ts';
 import { notFound } from '../http/errors.ts';
 import { loadDefinition } from './definitions.ts';
@@ -97,12 +98,13 @@ export async function startAttempt(db: Db, user: SessionUser, input: StartAttemp
   });
 }
 
-export async function storedEvents(db: DbOrTx, attemptId: number): Promise<StoredEvent[]> {
-  const rows = await db
-    .select({ seq: attemptEvents.seq, kind: attemptEvents.kind, simTimeMs: attemptEvents.simTimeMs, payload: attemptEvents.payload })
-    .from(attemptEvents)
-    .where(eq(attemptEvents.attemptId, attemptId))
-    .orderBy(asc(attemptEvents.seq));
+/** The stored log of an attempt by seq (a named statement: every bootstrap reads it). */
+export async function storedEvents(pool: pg.Pool, attemptId: number): Promise<StoredEvent[]> {
+  const { rows } = await pool.query<{ seq: number; kind: string; simTimeMs: number; payload: unknown }>({
+    name: 'attempt-stored-events',
+    text: 'select seq, kind, sim_time_ms as "simTimeMs", payload from attempt_events where attempt_id = $1 order by seq',
+    values: [attemptId],
+  });
   return rows.flatMap((r) => {
     const event = rowToInput(r);
     return event ? [{ seq: r.seq, event }] : [];
@@ -158,12 +160,13 @@ async function sealedCar(db: DbOrTx, secret: string, attemptId: number, def: Sce
 }
 
 /** The bootstrap of an attempt, by id or from its row already read. */
-export async function attemptBootstrap(db: DbOrTx, secret: string, attempt: number | AttemptRow): Promise<AttemptBootstrap> {
+export async function attemptBootstrap(ctx: { db: Db; pool: pg.Pool }, secret: string, attempt: number | AttemptRow): Promise<AttemptBootstrap> {
+  const { db } = ctx;
   const a = typeof attempt === 'number' ? await loadAttempt(db, attempt) : attempt;
   const def = await loadDefinition(db, a.scenarioVersionId);
   const show = await showAfter(db, a.assignmentId);
   const sealed = await sealedCar(db, secret, a.id, def);
-  const events = await storedEvents(db, a.id);
+  const events = await storedEvents(ctx.pool, a.id);
   const isFault = (e: StoredEvent) => e.event.kind === 'fault-inject' || e.event.kind === 'fault-clear';
   const faultEvents = events.filter(isFault);
   return {

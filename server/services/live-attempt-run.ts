@@ -34,9 +34,13 @@ export interface AttemptRunInputs {
   events: InputEvent[];
 }
 
+const KNOWN_KINDS: ReadonlySet<string> = new Set(inputEventSchema.options.map((o) => o.shape.kind.value));
+
 /** A stored row as the model's event (the payload is the event; older rows may keep kind and time in columns). */
 export function rowToInput(row: { kind: string; simTimeMs: number; payload: unknown }): InputEvent | null {
   const payload = (typeof row.payload === 'object' && row.payload !== null ? row.payload : {}) as Record<string, unknown>;
+  // A row stored by the event log holds the event it validated, with its kind and time also in columns: taken as stored.
+  if (payload.kind === row.kind && payload.atMs === row.simTimeMs && typeof row.kind === 'string' && KNOWN_KINDS.has(row.kind)) return payload as unknown as InputEvent;
   const candidate = 'event' in payload && typeof payload.event === 'object' ? payload.event : 'kind' in payload ? payload : { ...payload, kind: row.kind, atMs: row.simTimeMs };
   const parsed = inputEventSchema.safeParse(candidate);
   return parsed.success ? parsed.data : null;

@@ -176,6 +176,29 @@ describe('the event log', () => {
     expect(await count(otherId)).toBe(script.length);
   });
 
+  it('ends with lastSeq past every batch when later batches finish first (it never moves back)', async () => {
+    const practice = await scenarioId(t.ctx, 'healthy-control-corvane-linden');
+    const all = numbered(script);
+    const third = Math.ceil(all.length / 3);
+    const batches = [all.slice(0, third), all.slice(third, 2 * third), all.slice(2 * third)];
+    for (let round = 0; round < 4; round++) {
+      const started = await ada.post('/api/attempts').send({ scenarioId: practice, mode: 'practice' }).expect(201);
+      const aid = started.body.attempt.id as number;
+      // All three at once, the last first: whichever order they finish in, the row only moves forward.
+      const answers = await Promise.all([...batches].reverse().map((events) => ada.post(`/api/attempts/${aid}/events`).send({ events })));
+      expect(answers.map((a) => a.status)).toEqual([200, 200, 200]);
+      expect(answers.reduce((n, a) => n + (a.body.stored as number), 0)).toBe(all.length);
+      const [row] = await t.ctx.db.select({ lastSeq: attempts.lastSeq, simTimeMs: attempts.simTimeMs, currentTest: attempts.currentTest }).from(attempts).where(eq(attempts.id, aid));
+      // The last to finish saw everything stored before it; a resend of nothing settles any that finished early.
+      const settle = await ada.post(`/api/attempts/${aid}/events`).send({ events: all.slice(-1) }).expect(200);
+      expect(settle.body).toEqual({ lastSeq: all.length, stored: 0 });
+      const [after] = await t.ctx.db.select({ lastSeq: attempts.lastSeq, simTimeMs: attempts.simTimeMs, currentTest: attempts.currentTest }).from(attempts).where(eq(attempts.id, aid));
+      expect(after).toEqual({ lastSeq: all.length, simTimeMs: 11000, currentTest: 'output' });
+      expect(row!.lastSeq).toBeLessThanOrEqual(all.length);
+      expect(await count(aid)).toBe(all.length);
+    }
+  });
+
   it('stores events after a gap, and counts lastSeq only as far as there is no gap', async () => {
     const fresh = await ada.post('/api/attempts').send({ scenarioId: await scenarioId(t.ctx, 'healthy-control-corvane-linden'), mode: 'practice' }).expect(201);
     const fid = fresh.body.attempt.id as number;
