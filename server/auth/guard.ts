@@ -9,6 +9,7 @@ import type { Role, SessionUser } from '../../shared/api/auth.ts';
 import type { Db } from '../db/client.ts';
 import { users } from '../db/schema.ts';
 import { HttpError } from '../http/errors.ts';
+import type { UserPreloadingStore } from './session.ts';
 
 export type Access = 'public' | 'signed-in' | readonly Role[];
 
@@ -28,10 +29,16 @@ export function loadUser(db: Db): RequestHandler {
   return async (req, _res, next) => {
     const id = req.session?.userId;
     if (!id) return next();
-    const [row] = await db
-      .select({ id: users.id, email: users.email, name: users.name, role: users.role, disabled: users.disabled })
-      .from(users)
-      .where(eq(users.id, id));
+    // Usually read with the session already (session.ts); else read here.
+    const store = req.sessionStore as Partial<UserPreloadingStore> | undefined;
+    const preloaded = store?.takeUser?.(req.sessionID) ?? null;
+    const [row] =
+      preloaded && preloaded.id === id
+        ? [preloaded]
+        : await db
+            .select({ id: users.id, email: users.email, name: users.name, role: users.role, disabled: users.disabled })
+            .from(users)
+            .where(eq(users.id, id));
     if (!row || row.disabled) {
       // The account is gone or disabled: the request continues as anonymous, on a fresh session.
       await new Promise<void>((resolve, reject) => req.session.regenerate((err) => (err ? reject(err) : resolve())));

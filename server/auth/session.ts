@@ -26,6 +26,23 @@ const TOUCHED_KEPT = 50_000;
 type SessionRecord = session.SessionData & { cookie: session.Cookie };
 type Callback = (err?: unknown) => void;
 
+/** The signed-in user's row as the session read found it. */
+export interface PreloadedUser {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+  disabled: boolean;
+}
+
+/** A store that reads the session's user in the same query as the session; `takeUser` hands it to this request's user check. */
+export interface UserPreloadingStore {
+  takeUser(sid: string): PreloadedUser | null;
+}
+
+/** A preloaded user is for the request that read it, within this long. */
+const PRELOAD_FRESH_MS = 2_000;
+
 /** connect-pg-simple's store, with the stored expiry touched at most every `touchEveryMs` per session and process. */
 export function throttledPgStore(opts: { pool: pg.Pool; touchEveryMs?: number; now?: () => number }): session.Store {
   const PgStore = connectPgSimple(session);
@@ -40,7 +57,43 @@ export function throttledPgStore(opts: { pool: pg.Pool; touchEveryMs?: number; n
     }
     touchedAt.set(sid, now());
   };
-  class ThrottledStore extends PgStore {
+  const preloaded = new Map<string, { user: PreloadedUser; at: number }>();
+  class ThrottledStore extends PgStore implements UserPreloadingStore {
+    override get(sid: string, fn: (err: unknown, session?: SessionRecord | null) => void): void {
+      // The session and its user in one named statement: every API request makes this read.
+      opts.pool
+        .query<{ sess: SessionRecord | string; id: number | null; email: string; name: string; role: Role; disabled: boolean }>({
+          name: 'session-get-with-user',
+          text: `select s.sess, u.id, u.email, u.name, u.role, u.disabled
+                   from session s
+                   left join users u on u.id = case when s.sess->>'userId' ~ '^[0-9]{1,9}$' then (s.sess->>'userId')::int end
+                  where s.sid = $1 and s.expire >= now()`,
+          values: [sid],
+        })
+        .then(
+          ({ rows }) => {
+            const row = rows[0];
+            if (!row) return fn(null, null);
+            let sess: SessionRecord;
+            try {
+              sess = typeof row.sess === 'string' ? (JSON.parse(row.sess) as SessionRecord) : row.sess;
+            } catch {
+              return this.destroy(sid, (err) => fn(err ?? null, null));
+            }
+            if (row.id !== null) {
+              if (preloaded.size >= TOUCHED_KEPT) preloaded.clear();
+              preloaded.set(sid, { user: { id: row.id, email: row.email, name: row.name, role: row.role, disabled: row.disabled }, at: now() });
+            }
+            fn(null, sess);
+          },
+          (err: unknown) => fn(err),
+        );
+    }
+    takeUser(sid: string): PreloadedUser | null {
+      const hit = preloaded.get(sid);
+      preloaded.delete(sid);
+      return hit && now() - hit.at <= PRELOAD_FRESH_MS ? hit.user : null;
+    }
     override set(sid: string, sess: SessionRecord, fn?: Callback): void {
       super.set(sid, sess, (err?: unknown) => {
         if (!err) remember(sid);
@@ -60,6 +113,7 @@ export function throttledPgStore(opts: { pool: pg.Pool; touchEveryMs?: number; n
     }
     override destroy(sid: string, fn?: Callback): void {
       touchedAt.delete(sid);
+      preloaded.delete(sid);
       super.destroy(sid, fn);
     }
   }
