@@ -23,6 +23,12 @@ const envSchema = z.object({
    * re-run does not hold up other requests; 0 grades in the request's own thread.
    */
   GRADING_WORKERS: z.coerce.number().int().min(0).max(8).default(1),
+  /**
+   * PostgreSQL connections this process keeps at most. Each busy bench holds
+   * one for a few milliseconds a second; with several processes, keep the sum
+   * under the server's max_connections.
+   */
+  DATABASE_POOL_SIZE: z.coerce.number().int().min(2).max(200).default(40),
 });
 
 export type Env = z.infer<typeof envSchema>;

@@ -22,7 +22,7 @@ export interface RunningServer {
 }
 
 export function buildContext(env: Env, logLevel: 'info' | 'warn' | 'error' | 'silent' = 'info'): AppContext & { closeDb(): Promise<void> } {
-  const database = connect(env.DATABASE_URL);
+  const database = connect(env.DATABASE_URL, env.DATABASE_POOL_SIZE);
   return {
     env,
     db: database.db,

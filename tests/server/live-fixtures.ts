@@ -249,19 +249,22 @@ export async function listen(t: TestApp): Promise<{ url: string; close(): Promis
 export interface ServerProcess {
   url: string;
   child: ChildProcess;
+  /** The pids that serve requests: the child itself, or its WEB_PROCESSES workers. */
+  processes: number[];
   stop(): Promise<void>;
 }
 
 /** A separate server process (the bare server entry) on the given database. */
 export async function spawnServer(databaseUrl: string, env: Record<string, string> = {}): Promise<ServerProcess> {
-  const tsx = new URL('../../node_modules/.bin/tsx', import.meta.url).pathname;
   const entry = new URL('../../server/serve.ts', import.meta.url).pathname;
-  const child = spawn(tsx, [entry], {
+  // Node itself with tsx's loader, so the pid held (and signalled) is the server's.
+  const child = spawn(process.execPath, ['--import', 'tsx', entry], {
     env: { ...process.env, NODE_ENV: 'test', DATABASE_URL: databaseUrl, PORT: '0', HOST: '127.0.0.1', SIGN_IN_LIMIT: '1000', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   let err = '';
   child.stderr!.on('data', (d: Buffer) => (err += d.toString()));
+  let announced: { listening: string; processes?: number[] } = { listening: '' };
   const url = await new Promise<string>((resolve, reject) => {
     let out = '';
     const timer = setTimeout(() => reject(new Error(`server process did not start: ${err} ${out}`)), 90_000);
@@ -270,7 +273,8 @@ export async function spawnServer(databaseUrl: string, env: Record<string, strin
       const line = out.split('\n').find((l) => l.includes('"listening"'));
       if (line) {
         clearTimeout(timer);
-        resolve((JSON.parse(line) as { listening: string }).listening);
+        announced = JSON.parse(line) as typeof announced;
+        resolve(announced.listening);
       }
     });
     child.on('exit', (code) => {
@@ -281,6 +285,7 @@ export async function spawnServer(databaseUrl: string, env: Record<string, strin
   return {
     url,
     child,
+    processes: announced.processes ?? [child.pid!],
     async stop() {
       if (child.exitCode !== null) return;
       child.kill('SIGTERM');
