@@ -1,12 +1,14 @@
 /**
  * `npm run bench:api`: 300 simulated students on loopback, each posting event
  * batches and reading their attempt, while an instructor's live board is
- * open, against one server process on a throwaway database. Prints
+ * open, against a server process (or several: BENCH_PROCESSES) on a throwaway database. Prints
  * throughput, latency percentiles and errors beside the goals, and the time
  * the server takes to grade a 10-minute attempt under that load.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import { createHmac, randomBytes } from 'node:crypto';
+import http from 'node:http';
+import { readdirSync, readFileSync } from 'node:fs';
 import { cpus } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import pg from 'pg';
@@ -16,10 +18,14 @@ import { withTestCluster } from './test-cluster.ts';
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 const STUDENTS = Number(process.env.BENCH_STUDENTS ?? 300);
+/** Server processes sharing the port (WEB_PROCESSES of server/serve.ts). */
+const PROCESSES = Number(process.env.BENCH_PROCESSES ?? 1);
 const DURATION_MS = Number(process.env.BENCH_SECONDS ?? 15) * 1000;
 const BATCH_EVERY_MS = 1000;
 const READ_EVERY_MS = 2000;
 const ROUNDS = 2;
+/** A first round of the same load, not counted: new connections, the board's first snapshot and cold code paths settle in it. */
+const WARM_UP_MS = Number(process.env.BENCH_WARM_UP_SECONDS ?? 5) * 1000;
 const SECRET = 'bench-secret-bench-secret-bench-secret';
 
 interface Sample {
@@ -38,11 +44,60 @@ interface Figures {
 
 interface RoundResult {
   elapsedS: number;
+  /** Share of one core each used over the round. */
+  cpu: { server: number; postgres: number; load: number; machineBusy: number };
   all: Figures;
   post: Figures;
   read: Figures;
   gradingMs: number;
   gradingStatus: number;
+}
+
+/** CPU seconds used so far by a process and its children (`tree`), or by every process of a command name (`comm`); Linux /proc, 0 elsewhere. */
+function cpuSeconds(match: { tree?: number; comm?: string }): number {
+  const tick = 100; // USER_HZ on Linux
+  let pids: string[] = [];
+  try {
+    pids = readdirSync('/proc').filter((d) => /^\d+$/.test(d));
+  } catch {
+    return 0;
+  }
+  const stats = new Map<number, { comm: string; ppid: number; cpu: number }>();
+  for (const pid of pids) {
+    try {
+      const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+      const close = stat.lastIndexOf(')');
+      const fields = stat.slice(close + 2).split(' ');
+      stats.set(Number(pid), { comm: stat.slice(stat.indexOf('(') + 1, close), ppid: Number(fields[1]), cpu: (Number(fields[11]) + Number(fields[12])) / tick });
+    } catch {
+      // the process ended meanwhile
+    }
+  }
+  let total = 0;
+  for (const [pid, st] of stats) {
+    if (match.comm !== undefined && st.comm === match.comm) total += st.cpu;
+    if (match.tree !== undefined) {
+      for (let p: number | undefined = pid, hops = 0; p !== undefined && p > 1 && hops < 8; p = stats.get(p)?.ppid, hops++) {
+        if (p === match.tree) {
+          total += st.cpu;
+          break;
+        }
+      }
+    }
+  }
+  return total;
+}
+
+/** The whole machine's busy and total CPU ticks so far (/proc/stat), to tell how near the cores were to full. */
+function machineTicks(): { busy: number; total: number } {
+  try {
+    const cpu = readFileSync('/proc/stat', 'utf8').split('\n')[0]!.trim().split(/\s+/).slice(1).map(Number);
+    const idle = (cpu[3] ?? 0) + (cpu[4] ?? 0);
+    const total = cpu.slice(0, 8).reduce((a, b) => a + b, 0);
+    return { busy: total - idle, total };
+  } catch {
+    return { busy: 0, total: 0 };
+  }
 }
 
 function percentile(sorted: number[], p: number): number {
@@ -62,7 +117,7 @@ async function startServerProcess(databaseUrl: string): Promise<{ url: string; c
   const profile = process.env.BENCH_PROFILE_DIR ? ['--cpu-prof', `--cpu-prof-dir=${process.env.BENCH_PROFILE_DIR}`] : [];
   const child = spawn(process.execPath, ['--import', 'tsx', ...profile, 'server/serve.ts'], {
     cwd: root,
-    env: { ...process.env, DATABASE_URL: databaseUrl, PORT: '0', NODE_ENV: 'production', SESSION_SECRET: SECRET, SIGN_IN_LIMIT: '100000' },
+    env: { ...process.env, DATABASE_URL: databaseUrl, PORT: '0', NODE_ENV: 'production', SESSION_SECRET: SECRET, SIGN_IN_LIMIT: '100000', WEB_PROCESSES: String(PROCESSES) },
     stdio: ['ignore', 'pipe', 'inherit'],
   });
   const url = await new Promise<string>((resolve, reject) => {
@@ -119,15 +174,43 @@ async function main() {
     const teacher = await sessionFor(instructor.rows[0]!.id, 'instructor');
 
     const server = await startServerProcess(databaseUrl);
-    const call = async (who: { cookie: string; csrf: string }, method: string, path: string, body?: unknown) => {
-      const res = await fetch(`${server.url}${path}`, {
-        method,
-        headers: { Cookie: who.cookie, 'X-CSRF-Token': who.csrf, 'Content-Type': 'application/json', Accept: 'application/json' },
-        body: body === undefined ? undefined : JSON.stringify(body),
+    // node:http with kept-alive sockets: far cheaper per request than fetch, so the load generator takes less of the cores it shares with the server.
+    const agent = new http.Agent({ keepAlive: true, maxSockets: STUDENTS + 8 });
+    const target = new URL(server.url);
+    const call = (who: { cookie: string; csrf: string }, method: string, path: string, body?: unknown) =>
+      new Promise<{ status: number; body: unknown }>((resolve, reject) => {
+        const payload = body === undefined ? undefined : JSON.stringify(body);
+        const req = http.request(
+          {
+            agent,
+            host: target.hostname,
+            port: target.port,
+            method,
+            path,
+            headers: {
+              Cookie: who.cookie,
+              'X-CSRF-Token': who.csrf,
+              Accept: 'application/json',
+              ...(payload === undefined ? {} : { 'Content-Type': 'application/json', 'Content-Length': Buffer.byteLength(payload) }),
+            },
+          },
+          (res) => {
+            const chunks: Buffer[] = [];
+            res.on('data', (c: Buffer) => chunks.push(c));
+            res.on('end', () => {
+              const text = Buffer.concat(chunks).toString();
+              try {
+                resolve({ status: res.statusCode ?? 0, body: text ? (JSON.parse(text) as unknown) : null });
+              } catch (err) {
+                reject(err instanceof Error ? err : new Error(String(err)));
+              }
+            });
+            res.on('error', reject);
+          },
+        );
+        req.on('error', reject);
+        req.end(payload);
       });
-      const text = await res.text();
-      return { status: res.status, body: text ? (JSON.parse(text) as unknown) : null };
-    };
 
     try {
       const attemptIds: number[] = [];
@@ -136,6 +219,36 @@ async function main() {
         if (res.status !== 201) throw new Error(`starting an attempt answered ${res.status}: ${JSON.stringify(res.body)}`);
         attemptIds.push((res.body as { attempt: { id: number } }).attempt.id);
       }
+
+      // What one request costs, in CPU time of the server and of PostgreSQL, with 20 requests in flight and no other load.
+      const costs: { label: string; n: number; serverMs: number; postgresMs: number }[] = [];
+      const measureCost = async (label: string, n: number, f: (k: number) => Promise<{ status: number }>) => {
+        const s0 = cpuSeconds({ tree: server.child.pid });
+        const p0 = cpuSeconds({ comm: 'postgres' });
+        let next = 0;
+        await Promise.all(
+          Array.from({ length: 20 }, async () => {
+            while (next < n) {
+              const res = await f(next++);
+              if (res.status !== 200) throw new Error(`${label} answered ${res.status}`);
+            }
+          }),
+        );
+        costs.push({ label, n, serverMs: ((cpuSeconds({ tree: server.child.pid }) - s0) * 1000) / n, postgresMs: ((cpuSeconds({ comm: 'postgres' }) - p0) * 1000) / n });
+      };
+      const seqs = new Map<number, number>();
+      const batchFor = (attemptId: number) => {
+        const seq = seqs.get(attemptId) ?? 0;
+        seqs.set(attemptId, seq + 5);
+        const atMs = seq * 10;
+        return { events: Array.from({ length: 5 }, (_, k) => ({ seq: seq + k + 1, event: { kind: 'pile', atMs: atMs + k * 10, dial01: ((seq + k) % 10) / 20 } })) };
+      };
+      const postOne = (k: number) => call(students[k % STUDENTS]!, 'POST', `/api/attempts/${attemptIds[k % STUDENTS]!}/events`, batchFor(attemptIds[k % STUDENTS]!));
+      await measureCost('warm-up', 1000, postOne);
+      costs.length = 0;
+      await measureCost('post-events', 2000, postOne);
+      await measureCost('read-attempt', 1000, (k) => call(students[k % STUDENTS]!, 'GET', `/api/attempts/${attemptIds[k % STUDENTS]!}`));
+      await measureCost('signed-in-me', 1000, (k) => call(students[k % STUDENTS]!, 'GET', '/api/auth/me'));
 
       // The instructor's live board stream stays open throughout.
       const board = new AbortController();
@@ -188,12 +301,15 @@ async function main() {
       const idleGrade = await call(probe, 'POST', `/api/attempts/${idleId}/submit`, { atMs: submitAtMs, readings: [], diagnosis: { verdicts: [], faultKind: 'none', notes: '' } });
       const idleGradingMs = performance.now() - idleT0;
 
-      const seqs = new Map<number, number>();
       const results: RoundResult[] = [];
-      for (let round = 0; round < ROUNDS; round++) {
+      // Round -1 is the warm-up: the same load, not counted, and no grading probe.
+      for (let round = WARM_UP_MS > 0 ? -1 : 0; round < ROUNDS; round++) {
+        const warmUp = round < 0;
         const samples: Sample[] = [];
+        const machine0 = machineTicks();
+        const cpu0 = { server: cpuSeconds({ tree: server.child.pid }), postgres: cpuSeconds({ comm: 'postgres' }), load: process.cpuUsage() };
         const started = performance.now();
-        const until = started + DURATION_MS;
+        const until = started + (warmUp ? WARM_UP_MS : DURATION_MS);
         let gradingMs = Number.NaN;
         let gradingStatus = 0;
 
@@ -204,12 +320,9 @@ async function main() {
           await new Promise((r) => setTimeout(r, (index / STUDENTS) * BATCH_EVERY_MS));
           let nextRead = performance.now() + READ_EVERY_MS * (index / STUDENTS);
           while (performance.now() < until) {
-            const seq = seqs.get(attemptId) ?? 0;
-            const atMs = seq * 10;
-            const events = Array.from({ length: 5 }, (_, k) => ({ seq: seq + k + 1, event: { kind: 'pile', atMs: atMs + k * 10, dial01: ((seq + k) % 10) / 20 } }));
-            seqs.set(attemptId, seq + 5);
+            const batch = batchFor(attemptId);
             const t0 = performance.now();
-            const res = await call(who, 'POST', `/api/attempts/${attemptId}/events`, { events }).catch(() => ({ status: 0, body: null }));
+            const res = await call(who, 'POST', `/api/attempts/${attemptId}/events`, batch).catch(() => ({ status: 0, body: null }));
             samples.push({ kind: 'post-events', ms: performance.now() - t0, ok: res.status === 200 });
             if (performance.now() >= nextRead) {
               nextRead += READ_EVERY_MS;
@@ -223,6 +336,7 @@ async function main() {
         };
 
         const grading = (async () => {
+          if (warmUp) return;
           await new Promise((r) => setTimeout(r, DURATION_MS / 2));
           const t0 = performance.now();
           const res = await call(probe, 'POST', `/api/attempts/${probeAttempts[round]!}/submit`, {
@@ -237,24 +351,39 @@ async function main() {
 
         await Promise.all([...Array.from({ length: STUDENTS }, (_, i) => studentLoop(i)), grading]);
         const elapsedS = (performance.now() - started) / 1000;
+        if (warmUp) continue;
+        const loadUsed = process.cpuUsage(cpu0.load);
+        const cpu = {
+          server: (cpuSeconds({ tree: server.child.pid }) - cpu0.server) / elapsedS,
+          postgres: (cpuSeconds({ comm: 'postgres' }) - cpu0.postgres) / elapsedS,
+          load: (loadUsed.user + loadUsed.system) / 1e6 / elapsedS,
+          machineBusy: (() => {
+            const m = machineTicks();
+            return m.total > machine0.total ? (m.busy - machine0.busy) / (m.total - machine0.total) : Number.NaN;
+          })(),
+        };
         const report = (kind: Sample['kind'] | 'all') => {
           const chosen = samples.filter((x) => kind === 'all' || x.kind === kind);
           const sorted = chosen.map((x) => x.ms).sort((a, b) => a - b);
           return { count: chosen.length, p50: percentile(sorted, 50), p99: percentile(sorted, 99), max: sorted.at(-1) ?? Number.NaN, errors: chosen.filter((x) => !x.ok).length };
         };
-        results.push({ elapsedS, all: report('all'), post: report('post-events'), read: report('read-attempt'), gradingMs, gradingStatus });
+        results.push({ elapsedS, cpu, all: report('all'), post: report('post-events'), read: report('read-attempt'), gradingMs, gradingStatus });
       }
       board.abort();
 
       const fmt = (x: number) => x.toFixed(1);
-      console.log(`API under load: ${STUDENTS} students on loopback, ${ROUNDS} rounds of ${DURATION_MS / 1000} s, one server process; load generator, server and PostgreSQL share this ${cpus().length}-core machine`);
+      console.log(`API under load: ${STUDENTS} students on loopback, ${ROUNDS} rounds of ${DURATION_MS / 1000} s after a ${WARM_UP_MS / 1000} s warm-up under the same load, ${PROCESSES} server process${PROCESSES === 1 ? '' : 'es'} on one port; load generator, server and PostgreSQL share this ${cpus().length}-core machine`);
       results.forEach((r, i) => {
-        console.log(`  round ${i + 1}: ${(r.all.count / r.elapsedS).toFixed(0)} requests/s`);
+        console.log(
+          `  round ${i + 1}: ${(r.all.count / r.elapsedS).toFixed(0)} requests/s; cores used: server ${r.cpu.server.toFixed(2)}, PostgreSQL ${r.cpu.postgres.toFixed(2)}, load generator ${r.cpu.load.toFixed(2)}; machine ${(r.cpu.machineBusy * 100).toFixed(0)} % busy`,
+        );
         for (const [name, x] of [['post-events', r.post], ['read-attempt', r.read], ['all', r.all]] as const) {
           console.log(`    ${name.padEnd(13)} n=${x.count}  p50 ${fmt(x.p50)} ms  p99 ${fmt(x.p99)} ms  max ${fmt(x.max)} ms  errors ${x.errors}`);
         }
         console.log(`    grading a 10-minute attempt under load: ${fmt(r.gradingMs)} ms (status ${r.gradingStatus})`);
       });
+      console.log('  CPU time per request (20 in flight, no other load):');
+      for (const c of costs) console.log(`    ${c.label.padEnd(13)} server ${c.serverMs.toFixed(2)} ms   PostgreSQL ${c.postgresMs.toFixed(2)} ms   (n=${c.n})`);
       const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
       const spread = (xs: number[]) => (Math.max(...xs) - Math.min(...xs)) / mean(xs);
       const p99s = results.map((r) => r.all.p99);
@@ -270,6 +399,7 @@ async function main() {
       console.log(`    grading      ${fmt(mean(gradings))} ms under load, ${fmt(idleGradingMs)} ms idle (status ${idleGrade.status})   goal < 100 ms: ratio ${(mean(gradings) / 100).toFixed(2)} ${mean(gradings) < 100 ? '(met)' : '(NOT met)'}   noise ±${((spread(gradings) * 100) / 2).toFixed(0)} %`);
       console.log(`    live board   stream status ${boardStatus}, ${boardMessages} messages received`);
     } finally {
+      agent.destroy();
       server.child.kill('SIGTERM');
       await db.end();
     }
