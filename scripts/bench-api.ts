@@ -383,7 +383,7 @@ async function main() {
 
       const fmt = (x: number) => x.toFixed(1);
       console.log(`API under load: ${STUDENTS} students on loopback, ${ROUNDS} rounds of ${DURATION_MS / 1000} s after a ${WARM_UP_MS / 1000} s warm-up under the same load, ${PROCESSES} server process${PROCESSES === 1 ? '' : 'es'} on one port; load generator, server and PostgreSQL share this ${cpus().length}-core machine`);
-      console.log(`  machine before starting: load average ${loadBefore.toFixed(1)} on ${cpus().length} cores (above about 0.5 the figures below are slowed by other work)`);
+      console.log(`  machine before starting: load average ${loadBefore.toFixed(1)} on ${cpus().length} cores (a benchmark just before, or other work, raises it and slows the figures)`);
       results.forEach((r, i) => {
         console.log(
           `  round ${i + 1}: ${(r.all.count / r.elapsedS).toFixed(0)} requests/s; cores used: server ${r.cpu.server.toFixed(2)}, PostgreSQL ${r.cpu.postgres.toFixed(2)}, load generator ${r.cpu.load.toFixed(2)}; machine ${(r.cpu.machineBusy * 100).toFixed(0)} % busy`,
