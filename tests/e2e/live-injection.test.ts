@@ -34,6 +34,10 @@ describe('live fault injection in the browser', () => {
     await signInAs(bench, app.url, student.email);
     const attemptId = await openBench(bench, app.url, `assignmentId=${assignmentId}`);
     await hookUp(bench, { red: 'battery-pos', black: 'battery-neg', clamp: 'bplus-cable' });
+    // Zero the clamp where it sits, engine off, before reading current (common practice, no source: an
+    // inductive clamp carries an offset of its own, up to a couple of amps here, that would hide a "nothing flows").
+    await bench.getByRole('button', { name: 'Zero clamp' }).click();
+    await expect.poll(async () => Math.abs(await reading(bench, 'amps')), { timeout: 10_000 }).toBeLessThan(0.3);
     await startEngine(bench);
     await holdRpm(bench, '2,000');
     // A healthy car charges: above 13.5 V at the battery and current in the B+ cable.
