@@ -17,8 +17,11 @@ export const NAV: Record<Role, NavItem[]> = {
     { label: 'Scenarios', to: paths.scenarios.href() },
     { label: 'Classes', to: paths.classes.href() },
   ],
+  // Admins run the accounts first, and may look after any class or scenario as an instructor does.
   admin: [
     { label: 'Users', to: paths.adminUsers.href() },
+    { label: 'Classes', to: paths.classes.href() },
+    { label: 'Scenarios', to: paths.scenarios.href() },
     { label: 'Outbox', to: paths.adminOutbox.href() },
   ],
 };

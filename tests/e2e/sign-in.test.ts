@@ -18,7 +18,7 @@ afterAll(async () => {
 const expectedNav = {
   student: ['Bench', 'My attempts', 'Progress'],
   instructor: ['Scenarios', 'Classes'],
-  admin: ['Users', 'Outbox'],
+  admin: ['Users', 'Classes', 'Scenarios', 'Outbox'],
 } as const;
 
 const startPageTitle = { student: 'Bench', instructor: 'Scenario library', admin: 'Users' } as const;
@@ -40,6 +40,23 @@ describe('signing in as each role', () => {
       await page.close();
     });
   }
+
+  it('lets an admin open every class and the scenario library from the menu', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+    const problems = watchConsole(page);
+    await signInAs(page, app.url, DEMO_PEOPLE.find((p) => p.role === 'admin')!.email);
+    const nav = page.getByRole('navigation', { name: 'Main' });
+    await nav.getByRole('link', { name: 'Classes' }).click();
+    await page.waitForURL(/\/classes$/);
+    // Both demo classes, though the admin teaches neither.
+    await expect.poll(() => page.getByRole('link', { name: /Charging Systems/ }).count(), { timeout: 20_000 }).toBeGreaterThanOrEqual(2);
+    expect(await page.getByText('Every section of the school').count()).toBe(1);
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/admin-classes.png`, fullPage: true });
+    await nav.getByRole('link', { name: 'Scenarios' }).click();
+    await expect.poll(() => page.getByRole('heading', { level: 1 }).first().textContent(), { timeout: 20_000 }).toBe('Scenario library');
+    expect(problems).toEqual([]);
+    await page.close();
+  });
 
   it('shows an error for a wrong password and keeps the user on the sign-in page', async () => {
     const page = await browser.newPage();

@@ -1,5 +1,6 @@
 import { Link, useNavigate } from 'react-router-dom';
 import { paths } from '../../config/paths.ts';
+import { useMe } from '../../features/auth/api/get-me.ts';
 import { EmptyState, ErrorState, PageHeader, Panel, Spinner } from '../../components/ui/states.tsx';
 import { classesQueryOptions, useClasses } from '../../features/classes/api/get-classes.ts';
 import { CreateClassForm } from '../../features/classes/components/create-class-form.tsx';
@@ -13,9 +14,13 @@ export async function classesLoader() {
 export function ClassesPage() {
   const classes = useClasses();
   const navigate = useNavigate();
+  const isAdmin = useMe().data?.user?.role === 'admin';
   return (
     <>
-      <PageHeader title="Classes" description="Your sections, their students and assignments." />
+      <PageHeader
+        title="Classes"
+        description={isAdmin ? 'Every section of the school, its students and assignments.' : 'Your sections, their students and assignments.'}
+      />
       <div className="space-y-6">
         {classes.isPending ? (
           <Spinner label="Loading classes" />
