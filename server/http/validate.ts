@@ -14,13 +14,9 @@ export function parseBody<S extends z.ZodType>(schema: S, req: Request): z.infer
 }
 
 export function parseQuery<S extends z.ZodType>(schema: S, req: Request): z.infer<S> {
-  const r = schema.safeParse(req.query ?? {});
-  if (!r.success) throw zodToHttp(r.error, 'query');
-  return r.data;
+  return parseValue(schema, req.query ?? {}, 'query');
 }
 
 export function parseParams<S extends z.ZodType>(schema: S, req: Request): z.infer<S> {
-  const r = schema.safeParse(req.params ?? {});
-  if (!r.success) throw zodToHttp(r.error, 'params');
-  return r.data;
+  return parseValue(schema, req.params ?? {}, 'params');
 }

@@ -18,15 +18,14 @@ import type { SessionUser } from '../../shared/api/auth.ts';
 import { pendingActionSchema, type PendingAction } from '../../shared/api/live.ts';
 import type { Db } from '../db/client.ts';
 import { scopedCache } from '../db/scoped-cache.ts';
-import { badRequest, conflict, forbidden } from '../http/errors.ts';
+import { badRequest, conflict, forbidden, notFound } from '../http/errors.ts';
 import { parseValue } from '../http/validate.ts';
-import { notFound } from '../http/errors.ts';
 import { loadDefinition } from './definitions.ts';
 import { rowToInput } from './live-attempt-run.ts';
 import { testOfSetup } from './live-board.ts';
 
-async function pendingActions(client: pg.Pool, attemptId: number): Promise<PendingAction[]> {
-  const { rows } = await client.query<{ action: unknown }>({ name: 'events-pending-actions', text: 'select action from pending_injections where attempt_id = $1', values: [attemptId] });
+async function pendingActions(pool: pg.Pool, attemptId: number): Promise<PendingAction[]> {
+  const { rows } = await pool.query<{ action: unknown }>({ name: 'events-pending-actions', text: 'select action from pending_injections where attempt_id = $1', values: [attemptId] });
   return rows.flatMap((r) => {
     const parsed = pendingActionSchema.safeParse(r.action);
     return parsed.success ? [parsed.data] : [];
@@ -206,32 +205,25 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
     if (seq === lastSeq + 1) lastSeq = seq;
     else if (seq > lastSeq + 1) break;
   }
-  if (insertedSeqs.size > 0 || lastSeq !== attempt.lastSeq) {
-    const fresh = new Map(input.events.filter((e) => insertedSeqs.has(e.seq)).map((e) => [e.seq, e.event] as const));
-    const simTimeMs = [...fresh.values()].reduce((m, e) => Math.max(m, e.atMs), attempt.simTimeMs);
-    if (lastSeq !== attempt.lastSeq) {
-      const setup = await setupThrough(ctx, attemptId, attempt.lastSeq, lastSeq, fresh);
-      const currentTest: DiagnosticTest | null = testOfSetup(setup.controls, { engine: setup.engineGuess });
-      // SET reads the row as it was, so the set-up changes only with a lastSeq that moves forward; the sim time always may.
-      const moved = await ctx.pool.query<{ lastSeq: number }>({
-        name: 'events-move-on',
-        text: `update attempts
-                  set last_seq = greatest(last_seq, $2),
-                      current_test = case when last_seq < $2 then $3 else current_test end,
-                      sim_time_ms = greatest(sim_time_ms, $4)
-                where id = $1
-            returning last_seq as "lastSeq"`,
-        values: [attemptId, lastSeq, currentTest, simTimeMs],
-      });
-      // The same lastSeq, whoever wrote it, means the same stored prefix and so the same set-up.
-      if (moved.rows[0]?.lastSeq === lastSeq) setups.of(ctx.db)?.set(attemptId, { lastSeq, setup });
-    } else if (simTimeMs > attempt.simTimeMs) {
-      await ctx.pool.query({
-        name: 'events-time-on',
-        text: 'update attempts set sim_time_ms = greatest(sim_time_ms, $2) where id = $1',
-        values: [attemptId, simTimeMs],
-      });
-    }
+  const moves = lastSeq !== attempt.lastSeq;
+  const fresh = new Map(input.events.filter((e) => insertedSeqs.has(e.seq)).map((e) => [e.seq, e.event] as const));
+  const simTimeMs = [...fresh.values()].reduce((m, e) => Math.max(m, e.atMs), attempt.simTimeMs);
+  if (moves || simTimeMs > attempt.simTimeMs) {
+    const setup = moves ? await setupThrough(ctx, attemptId, attempt.lastSeq, lastSeq, fresh) : null;
+    const currentTest: DiagnosticTest | null = setup ? testOfSetup(setup.controls, { engine: setup.engineGuess }) : null;
+    // SET reads the row as it was, so the set-up changes only with a lastSeq that moves forward; the sim time always may.
+    const moved = await ctx.pool.query<{ lastSeq: number }>({
+      name: 'events-move-on',
+      text: `update attempts
+                set last_seq = greatest(last_seq, $2),
+                    current_test = case when last_seq < $2 then $3 else current_test end,
+                    sim_time_ms = greatest(sim_time_ms, $4)
+              where id = $1
+          returning last_seq as "lastSeq"`,
+      values: [attemptId, lastSeq, currentTest, simTimeMs],
+    });
+    // The same lastSeq, whoever wrote it, means the same stored prefix and so the same set-up.
+    if (setup && moved.rows[0]?.lastSeq === lastSeq) setups.of(ctx.db)?.set(attemptId, { lastSeq, setup });
   }
   return { lastSeq, stored: insertedSeqs.size };
 }

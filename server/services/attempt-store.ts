@@ -19,8 +19,6 @@ import { notFound } from '../http/errors.ts';
 import { loadDefinition } from './definitions.ts';
 import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
 
-export { loadDefinition };
-
 export interface AttemptRow {
   id: number;
   userId: number;
