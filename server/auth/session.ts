@@ -3,6 +3,7 @@ import session from 'express-session';
 import type { RequestHandler } from 'express';
 import type pg from 'pg';
 import type { Role } from '../../shared/api/auth.ts';
+import { Lru } from '../db/scoped-cache.ts';
 
 declare module 'express-session' {
   interface SessionData {
@@ -48,16 +49,9 @@ export function throttledPgStore(opts: { pool: pg.Pool; touchEveryMs?: number; n
   const PgStore = connectPgSimple(session);
   const every = opts.touchEveryMs ?? SESSION_TOUCH_EVERY_MS;
   const now = opts.now ?? Date.now;
-  const touchedAt = new Map<string, number>();
-  const remember = (sid: string) => {
-    touchedAt.delete(sid);
-    if (touchedAt.size >= TOUCHED_KEPT) {
-      const oldest = touchedAt.keys().next();
-      if (!oldest.done) touchedAt.delete(oldest.value);
-    }
-    touchedAt.set(sid, now());
-  };
-  const preloaded = new Map<string, { user: PreloadedUser; at: number }>();
+  const touchedAt = new Lru<string, number>(TOUCHED_KEPT);
+  const remember = (sid: string) => touchedAt.set(sid, now());
+  const preloaded = new Lru<string, { user: PreloadedUser; at: number }>(TOUCHED_KEPT);
   class ThrottledStore extends PgStore implements UserPreloadingStore {
     override get(sid: string, fn: (err: unknown, session?: SessionRecord | null) => void): void {
       // The session and its user in one named statement: every API request makes this read.
@@ -81,7 +75,6 @@ export function throttledPgStore(opts: { pool: pg.Pool; touchEveryMs?: number; n
               return this.destroy(sid, (err) => fn(err ?? null, null));
             }
             if (row.id !== null) {
-              if (preloaded.size >= TOUCHED_KEPT) preloaded.clear();
               preloaded.set(sid, { user: { id: row.id, email: row.email, name: row.name, role: row.role, disabled: row.disabled }, at: now() });
             }
             fn(null, sess);

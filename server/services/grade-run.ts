@@ -15,6 +15,7 @@ import type { InputEvent } from '../../sim/inputs.ts';
 import { outputCurve } from '../../sim/instruments.ts';
 import { rerunAttempt } from './attempt-replay.ts';
 import { correctVerdicts, gradeAttempt } from './grading.ts';
+import { Lru } from '../db/scoped-cache.ts';
 
 /** One submission to grade: structured-clonable, so it can be posted to a worker. */
 export interface GradeJob {
@@ -28,8 +29,7 @@ export interface GradeJob {
   showCurve: boolean;
 }
 
-const VERDICT_CACHE_SIZE = 64;
-const verdictCache = new Map<string, ReturnType<typeof correctVerdicts>>();
+const verdictCache = new Lru<string, ReturnType<typeof correctVerdicts>>(64);
 
 /** The right verdicts for a scenario version's car with these faults (the reference procedures take a few hundred ms, so they are kept). */
 export function verdictsFor(def: ScenarioDefinition, faults: readonly Fault[]): ReturnType<typeof correctVerdicts> {
@@ -38,10 +38,6 @@ export function verdictsFor(def: ScenarioDefinition, faults: readonly Fault[]): 
   const hit = verdictCache.get(key);
   if (hit) return hit;
   const verdicts = correctVerdicts(referenceMeasurements({ vehicle: def.vehicle, passRules: def.passRules, faults: inPlace }));
-  if (verdictCache.size >= VERDICT_CACHE_SIZE) {
-    const oldest = verdictCache.keys().next();
-    if (!oldest.done) verdictCache.delete(oldest.value);
-  }
   verdictCache.set(key, verdicts);
   return verdicts;
 }
