@@ -136,16 +136,41 @@ async function ownerOf(ctx: { db: Db; pool: pg.Pool }, attemptId: number): Promi
 }
 
 /**
+ * Where a batch leaves the attempt if it is what usually comes: the next
+ * events after the lastSeq this process last stored, all new, and none
+ * earlier in sim time than the set-up so far. Null when the batch is not
+ * that, or this process holds no set-up for the attempt (then the slow path
+ * below works it out from what the database says).
+ */
+function predictMoveOn(
+  cached: { lastSeq: number; setup: Setup } | undefined,
+  events: readonly { seq: number; event: InputEvent }[],
+): { fromSeq: number; lastSeq: number; setup: Setup; simTimeMs: number } | null {
+  const base = cached ?? (events[0]?.seq === 1 ? { lastSeq: 0, setup: initialSetup() } : undefined);
+  if (!base || events.length === 0) return null;
+  for (let i = 0; i < events.length; i++) {
+    const { seq, event } = events[i]!;
+    if (seq !== base.lastSeq + i + 1 || event.atMs < base.setup.maxAtMs) return null;
+  }
+  const setup = foldSetup(base.setup, events.map((e) => e.event));
+  return { fromSeq: base.lastSeq, lastSeq: base.lastSeq + events.length, setup, simTimeMs: setup.maxAtMs };
+}
+
+/**
  * Stores a batch for the signed-in student's own attempt. This is the
  * busiest write of the product (a batch a second from every bench), so it is
- * two named statements and no open transaction:
+ * usually one named statement, with no open transaction:
  *
- * 1. One statement locks the attempt's row, inserts the batch only if the
+ * 1. The statement locks the attempt's row, inserts the batch only if the
  *    attempt is this student's and still running (so a batch racing a
- *    submission stores nothing), and returns the seqs after lastSeq.
- * 2. One update moves lastSeq, the set-up and the sim time on, and only
- *    forwards (`greatest`), so two batches finishing out of order never
- *    move them back.
+ *    submission stores nothing), and returns the seqs after lastSeq. When
+ *    the batch is the one predicted (predictMoveOn) and the row and the log
+ *    bear the prediction out (the lastSeq it started from, every event new,
+ *    nothing stored after it), the same statement moves lastSeq, the set-up
+ *    and the sim time on.
+ * 2. Otherwise one update moves them on from what the statement returned,
+ *    and only forwards (`greatest`), so two batches finishing out of order
+ *    never move them back.
  *
  * Were the process to stop between the two, the events are stored and the
  * next batch (or the retry of this one) finds them after lastSeq and moves
@@ -169,8 +194,10 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
     }
   });
 
+  const predicted = predictMoveOn(setups.of(ctx.db)?.get(attemptId), input.events);
+  const currentTestPredicted: DiagnosticTest | null = predicted ? testOfSetup(predicted.setup.controls, { engine: predicted.setup.engineGuess }) : null;
   // The rows this statement inserts, and the seqs after lastSeq stored before it (a statement does not see its own rows).
-  const { rows } = await ctx.pool.query<{ status: string; lastSeq: number; simTimeMs: number; inserted: number[]; earlier: number[] }>({
+  const { rows } = await ctx.pool.query<{ status: string; lastSeq: number; simTimeMs: number; inserted: number[]; earlier: number[]; movedOn: boolean }>({
     name: 'events-store-batch',
     text: `with a as (
              select status, last_seq, sim_time_ms from attempts where id = $1 and user_id = $6 for update
@@ -181,10 +208,19 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
               where exists (select 1 from a where a.status = 'running')
              on conflict (attempt_id, seq) do nothing
              returning seq
+           ), predicted as (
+             update attempts t
+                set last_seq = $8, current_test = $9, sim_time_ms = greatest(t.sim_time_ms, $10)
+               from a
+              where t.id = $1 and $7::int is not null and a.status = 'running' and a.last_seq = $7
+                and (select count(*) from ins) = cardinality($2::int[])
+                and not exists (select 1 from attempt_events e where e.attempt_id = $1 and e.seq > $7)
+             returning t.id
            )
            select a.status, a.last_seq as "lastSeq", a.sim_time_ms as "simTimeMs",
                   coalesce((select array_agg(seq) from ins), '{}') as inserted,
-                  coalesce((select array_agg(e.seq order by e.seq) from attempt_events e where e.attempt_id = $1 and e.seq > a.last_seq), '{}') as earlier
+                  coalesce((select array_agg(e.seq order by e.seq) from attempt_events e where e.attempt_id = $1 and e.seq > a.last_seq), '{}') as earlier,
+                  exists (select 1 from predicted) as "movedOn"
              from a`,
     values: [
       attemptId,
@@ -193,11 +229,19 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
       input.events.map((e) => e.event.kind),
       input.events.map((e) => JSON.stringify(e.event)),
       user.id,
+      predicted?.fromSeq ?? null,
+      predicted?.lastSeq ?? null,
+      currentTestPredicted,
+      predicted?.simTimeMs ?? null,
     ],
   });
   const attempt = rows[0];
   if (!attempt) throw notFound('No such attempt');
   if (attempt.status === 'submitted') throw conflict('This attempt has been submitted; it takes no more events');
+  if (predicted && attempt.movedOn) {
+    setups.of(ctx.db)?.set(attemptId, { lastSeq: predicted.lastSeq, setup: predicted.setup });
+    return { lastSeq: predicted.lastSeq, stored: input.events.length };
+  }
 
   const insertedSeqs = new Set(attempt.inserted);
   let lastSeq = attempt.lastSeq;

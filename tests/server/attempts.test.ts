@@ -226,30 +226,39 @@ describe('the event log', () => {
     ];
     const all = numbered(tour);
     const expected = (through: number) => testOfSetup(setupAfter(all.filter((e) => e.seq <= through).map((e) => e.event)).controls, { engine: setupAfter(all.filter((e) => e.seq <= through).map((e) => e.event)).engineGuess });
-    await fc.assert(
-      fc.asyncProperty(
-        // Cut points (batches), one batch sent late (a gap, then its fill), and whether the cache is lost (another process) before each batch.
-        fc.uniqueArray(fc.integer({ min: 1, max: all.length - 1 }), { maxLength: 6 }),
-        fc.nat({ max: 6 }),
-        fc.array(fc.boolean(), { minLength: 8, maxLength: 8 }),
-        async (cuts, lateIndex, lose) => {
-          const bounds = [0, ...[...cuts].sort((a, b) => a - b), all.length];
-          const batches = bounds.slice(1).map((end, i) => all.slice(bounds[i], end));
-          if (lateIndex < batches.length - 1) batches.push(...batches.splice(lateIndex, 1));
-          const started = await ada.post('/api/attempts').send({ scenarioId: practice, mode: 'practice' }).expect(201);
-          const aid = started.body.attempt.id as number;
-          for (const [i, batch] of batches.entries()) {
-            if (lose[i]) forgetSetups(t.ctx.db);
-            const res = await ada.post(`/api/attempts/${aid}/events`).send({ events: batch }).expect(200);
-            const [row] = await t.ctx.db.select({ lastSeq: attempts.lastSeq, currentTest: attempts.currentTest }).from(attempts).where(eq(attempts.id, aid));
-            expect(row!.lastSeq).toBe(res.body.lastSeq);
-            expect(row!.currentTest).toBe(row!.lastSeq === 0 ? null : expected(row!.lastSeq));
-          }
-          expect((await t.ctx.db.select({ lastSeq: attempts.lastSeq }).from(attempts).where(eq(attempts.id, aid)))[0]!.lastSeq).toBe(all.length);
-        },
-      ),
-      { numRuns: 12 },
-    );
+    // A second server process on the same database: its caches are its own, so its batches leave this one's set-up stale.
+    const other = await startTestApp({}, t.databaseUrl);
+    const adaThere = await signIn(other.app, ADA);
+    try {
+      await fc.assert(
+        fc.asyncProperty(
+          // Cut points (batches), one batch sent late (a gap, then its fill), and who sends each batch: this process, this process with its cache lost, or the other process.
+          fc.uniqueArray(fc.integer({ min: 1, max: all.length - 1 }), { maxLength: 6 }),
+          fc.nat({ max: 6 }),
+          fc.array(fc.constantFrom('here', 'lost', 'other'), { minLength: 8, maxLength: 8 }),
+          async (cuts, lateIndex, via) => {
+            const bounds = [0, ...[...cuts].sort((a, b) => a - b), all.length];
+            const batches = bounds.slice(1).map((end, i) => all.slice(bounds[i], end));
+            if (lateIndex < batches.length - 1) batches.push(...batches.splice(lateIndex, 1));
+            const started = await ada.post('/api/attempts').send({ scenarioId: practice, mode: 'practice' }).expect(201);
+            const aid = started.body.attempt.id as number;
+            for (const [i, batch] of batches.entries()) {
+              if (via[i] === 'lost') forgetSetups(t.ctx.db);
+              const sender = via[i] === 'other' ? adaThere : ada;
+              const res = await sender.post(`/api/attempts/${aid}/events`).send({ events: batch }).expect(200);
+              const [row] = await t.ctx.db.select({ lastSeq: attempts.lastSeq, currentTest: attempts.currentTest }).from(attempts).where(eq(attempts.id, aid));
+              expect(row!.lastSeq).toBe(res.body.lastSeq);
+              expect(res.body.stored).toBe(batch.length);
+              expect(row!.currentTest).toBe(row!.lastSeq === 0 ? null : expected(row!.lastSeq));
+            }
+            expect((await t.ctx.db.select({ lastSeq: attempts.lastSeq }).from(attempts).where(eq(attempts.id, aid)))[0]!.lastSeq).toBe(all.length);
+          },
+        ),
+        { numRuns: 16 },
+      );
+    } finally {
+      await other.close();
+    }
     // The tour does pass through several set-ups, so the comparison above is not of one constant.
     const seen = new Set(all.map((e) => expected(e.seq)));
     for (const test of ['battery-ocv', 'regulated-voltage', 'output', 'voltage-drop-positive', 'ripple'] as const) expect(seen).toContain(test);
