@@ -9,6 +9,7 @@ import type { AppContext } from './context.ts';
 import { apiNotFound, errorHandler } from './http/errors.ts';
 import type { RouteSpec } from './http/route-table.ts';
 import { allRouteGroups } from './routes/all.ts';
+import { liveBusFor } from './services/live-bus.ts';
 
 export interface CreatedApp {
   app: express.Express;
@@ -46,7 +47,7 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
   app.use(
     '/api',
     express.json({ limit: '256kb' }),
-    sessionMiddleware({ pool: ctx.pool, secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY }),
+    sessionMiddleware({ pool: ctx.pool, secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY, bus: liveBusFor(ctx) }),
     csrfProtection,
     loadUser(ctx.db),
     (_req, res, next) => {

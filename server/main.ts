@@ -11,6 +11,7 @@ import { connect } from './db/client.ts';
 import { readEnv, type Env } from './env.ts';
 import { makeLogger } from './logger.ts';
 import { openSharedGradingPool } from './services/grading-pool.ts';
+import { closeLiveBus } from './services/live-bus.ts';
 import { smtpMailer } from './services/mailer.ts';
 
 export interface RunningServer {
@@ -29,7 +30,11 @@ export function buildContext(env: Env, logLevel: 'info' | 'warn' | 'error' | 'si
     pool: database.pool,
     mailer: smtpMailer({ host: env.SMTP_HOST, port: env.SMTP_PORT, from: env.MAIL_FROM }),
     log: makeLogger(logLevel),
-    closeDb: () => database.close(),
+    // The live bus (made on first use) listens on a connection of its own: it goes with the pool.
+    closeDb: async () => {
+      await closeLiveBus(database.pool);
+      await database.close();
+    },
   };
 }
 

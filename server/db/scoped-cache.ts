@@ -36,6 +36,11 @@ export class Lru<K, V> {
     this.map.clear();
   }
 
+  /** Forgets every entry `drop` says to, oldest first. */
+  deleteWhere(drop: (value: V, key: K) => boolean): void {
+    for (const [key, value] of this.map) if (drop(value, key)) this.map.delete(key);
+  }
+
   get size(): number {
     return this.map.size;
   }

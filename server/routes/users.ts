@@ -1,6 +1,7 @@
 import { and, asc, desc, eq, ilike, or, type SQL } from 'drizzle-orm';
 import { createUserSchema, listUsersQuerySchema, updateUserSchema, userIdParamsSchema, type User } from '../../shared/api/users.ts';
 import { currentUser } from '../auth/guard.ts';
+import { forgetSessionsOf } from '../auth/session.ts';
 import { hashPassword } from '../auth/passwords.ts';
 import type { AppContext } from '../context.ts';
 import { outbox, users } from '../db/schema.ts';
@@ -87,6 +88,8 @@ export function userRoutes(ctx: AppContext) {
       .where(eq(users.id, id))
       .returning(userColumns);
     if (!row) throw notFound('No such user');
+    // A disabled account or a changed role counts from this process's very next request.
+    forgetSessionsOf(ctx.pool, id);
     res.json({ user: toUser(row) });
   });
 

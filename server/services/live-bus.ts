@@ -7,9 +7,10 @@
  * the database. After a reconnect, subscribers are told, so they can re-read
  * whatever they might have missed while the connection was down.
  *
- * The database itself sends the notifications (triggers in the migration
- * `live_notify`): a stored attempt event, a new or changed attempt, and a new
- * or applied injection.
+ * The database itself sends the notifications (triggers in the migrations
+ * `live-notify` and `session-notify`): a stored attempt event, a new or
+ * changed attempt, a new or applied injection, an ended or rewritten session
+ * and a changed account.
  */
 import pg from 'pg';
 import type { AppContext } from '../context.ts';
@@ -18,8 +19,12 @@ import type { AppContext } from '../context.ts';
 export const ATTEMPT_CHANNEL = 'loadline_attempt';
 /** "attempt id:injection id": an injection was made, cleared or applied. */
 export const INJECTION_CHANNEL = 'loadline_injection';
-export type LiveChannel = typeof ATTEMPT_CHANNEL | typeof INJECTION_CHANNEL;
-const CHANNELS: readonly LiveChannel[] = [ATTEMPT_CHANNEL, INJECTION_CHANNEL];
+/** sid: a session ended before its expiry, or was rewritten (the session cache of server/auth/session.ts). */
+export const SESSION_CHANNEL = 'loadline_session';
+/** user id: an account changed or was removed. */
+export const USER_CHANNEL = 'loadline_user';
+export type LiveChannel = typeof ATTEMPT_CHANNEL | typeof INJECTION_CHANNEL | typeof SESSION_CHANNEL | typeof USER_CHANNEL;
+const CHANNELS: readonly LiveChannel[] = [ATTEMPT_CHANNEL, INJECTION_CHANNEL, SESSION_CHANNEL, USER_CHANNEL];
 
 type Listener = (payload: string) => void;
 
@@ -187,8 +192,9 @@ const buses = new WeakMap<pg.Pool, LiveBus>();
 
 /**
  * The process's bus for this app (one per database pool, made on first use).
- * It holds a connection only while someone subscribes, so an app that is
- * closed after its streams ended leaves nothing open.
+ * It holds a connection only while someone subscribes; the session cache
+ * subscribes for as long as the app runs, so closing the app's database
+ * closes its bus too (closeLiveBus).
  */
 export function liveBusFor(ctx: Pick<AppContext, 'env' | 'pool' | 'log'>): LiveBus {
   let bus = buses.get(ctx.pool);
@@ -197,4 +203,11 @@ export function liveBusFor(ctx: Pick<AppContext, 'env' | 'pool' | 'log'>): LiveB
     buses.set(ctx.pool, bus);
   }
   return bus;
+}
+
+/** Closes the bus of this pool, if one was made; the app's database close calls it. */
+export async function closeLiveBus(pool: pg.Pool): Promise<void> {
+  const bus = buses.get(pool);
+  buses.delete(pool);
+  await bus?.close();
 }
