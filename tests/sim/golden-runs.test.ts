@@ -8,7 +8,11 @@
  * (print `goldenDigests()` from golden.ts) and says why in its commit.
  */
 import { describe, expect, it } from 'vitest';
-import { digestOtherSteps, digestRun, goldenRuns } from './golden';
+import * as detMath from '../../sim/det-math';
+import { digestMath, digestOtherSteps, digestRun, goldenRuns } from './golden';
+
+/** The elementary functions in det-math.ts over golden.ts's inputs (recorded before their speed work too). */
+const GOLDEN_MATH = 'd83c4102d2f463fdbcae5724910c0112002fe75904ca5f693800063e0e4fd205';
 
 const GOLDEN: Readonly<Record<string, string>> = {
   'bench attempt, 10 minutes': '3e66c7748bd81f2b2e6d1c89b3b1b700509d900e7986fd954b64cbbc6f8f564f',
@@ -88,6 +92,10 @@ describe('golden runs (self-consistency: digests recorded from the model before 
       if (run.reaches) expect(run.reaches(result.reached), `the run no longer reaches what it is for: ${JSON.stringify(result.reached)}`).toBe(true);
     });
   }
+
+  it('the elementary functions, bit for bit', () => {
+    expect(digestMath(detMath)).toBe(GOLDEN_MATH);
+  });
 
   it('bare step at 5, 20, 10 and 1 ms', () => {
     expect(digestOtherSteps()).toBe(GOLDEN['bare step at 5, 20, 10 and 1 ms']);

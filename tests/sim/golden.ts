@@ -568,6 +568,42 @@ export function digestOtherSteps(): string {
   return h.digest('hex');
 }
 
+/** The model's elementary functions, as golden.ts digests them. */
+export interface MathFunctions {
+  detExp: (x: number) => number;
+  detExpm1: (x: number) => number;
+  detLog: (x: number) => number;
+  detLog1p: (x: number) => number;
+  detTanh: (x: number) => number;
+  detSin: (x: number) => number;
+  detCos: (x: number) => number;
+}
+
+/** Every elementary function, bit for bit, over wide random ranges and the awkward values. */
+export function digestMath(f: MathFunctions): string {
+  const h = createHash('sha256');
+  const r = generator(99);
+  const special = [0, -0, 1, -1, 0.5, 2, 1e-300, 5e-324, 2.2250738585072014e-308, 1e-4, -1e-4, 0.35, -0.35, 20, -20, 709.78, -745.2, 1e308, Infinity, -Infinity, NaN];
+  const xs: number[] = [...special];
+  for (let i = 0; i < 20_000; i++) xs.push((r() - 0.5) * 2 * 10 ** (r() * 40 - 20));
+  for (let i = 0; i < 20_000; i++) xs.push((r() - 0.5) * 1500);
+  for (let i = 0; i < 20_000; i++) xs.push(10 ** (r() * 600 - 300));
+  const out = new Float64Array(xs.length);
+  const fns: ((x: number) => number)[] = [f.detExp, f.detExpm1, f.detLog, f.detLog1p, f.detTanh];
+  for (const fn of fns) {
+    xs.forEach((x, k) => (out[k] = fn(x)));
+    h.update(new Uint8Array(out.buffer));
+  }
+  // The trigonometric functions within the few turns the model asks.
+  const angles = [...special.filter((x) => Math.abs(x) < 30), ...Array.from({ length: 20_000 }, () => (r() - 0.5) * 60)];
+  const trig = new Float64Array(angles.length);
+  for (const fn of [f.detSin, f.detCos]) {
+    angles.forEach((x, k) => (trig[k] = fn(x)));
+    h.update(new Uint8Array(trig.buffer));
+  }
+  return h.digest('hex');
+}
+
 /** Every digest, by run name (used to record them). */
 export function goldenDigests(): Record<string, string> {
   const out: Record<string, string> = {};
