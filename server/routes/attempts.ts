@@ -9,7 +9,7 @@ import type { AppContext } from '../context.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
 import { postEvents } from '../services/attempt-events.ts';
-import { attemptBootstrap, loadAttempt, myAttempts, startAttempt } from '../services/attempt-store.ts';
+import { attemptBootstrap, loadAttemptWithEvents, myAttempts, startAttempt } from '../services/attempt-store.ts';
 import { submitAttempt } from '../services/attempt-submit.ts';
 
 export function attemptRoutes(ctx: AppContext) {
@@ -27,9 +27,10 @@ export function attemptRoutes(ctx: AppContext) {
 
   g.get('/:id', 'signed-in', async (req, res) => {
     const { id } = parseParams(attemptIdParamsSchema, req);
-    const attempt = await loadAttempt(ctx.db, id);
+    const read = await loadAttemptWithEvents(ctx, id);
+    const { attempt } = read;
     await attemptReaderAccess(ctx.db, currentUser(req), { attemptId: id, ownerId: attempt.userId, assignmentId: attempt.assignmentId, status: attempt.status });
-    res.json(await attemptBootstrap(ctx, ctx.env.SESSION_SECRET, attempt));
+    res.json(await attemptBootstrap(ctx, ctx.env.SESSION_SECRET, read));
   });
 
   // The ownership check is made on the row the batch locks (see postEvents).

@@ -96,17 +96,43 @@ export async function startAttempt(db: Db, user: SessionUser, input: StartAttemp
   });
 }
 
-/** The stored log of an attempt by seq (a named statement: every bootstrap reads it). */
-export async function storedEvents(pool: pg.Pool, attemptId: number): Promise<StoredEvent[]> {
-  const { rows } = await pool.query<{ seq: number; kind: string; simTimeMs: number; payload: unknown }>({
-    name: 'attempt-stored-events',
-    text: 'select seq, kind, sim_time_ms as "simTimeMs", payload from attempt_events where attempt_id = $1 order by seq',
-    values: [attemptId],
+/**
+ * The stored log of each attempt read here, events 1..throughSeq: an event
+ * is stored once under its seq and never changes, so a prefix without gaps,
+ * once read, holds for good, and a later read fetches only what follows it.
+ */
+const keptLogs = scopedCache<number, { throughSeq: number; events: readonly StoredEvent[] }>(1_000);
+
+/**
+ * An attempt's row and its whole stored log in one named statement, which
+ * fetches only the events after the prefix this process already holds.
+ */
+export async function loadAttemptWithEvents(ctx: { db: Db; pool: pg.Pool }, attemptId: number): Promise<{ attempt: AttemptRow; events: StoredEvent[] }> {
+  const cache = keptLogs.of(ctx.db);
+  const kept = cache?.get(attemptId) ?? { throughSeq: 0, events: [] };
+  const { rows } = await ctx.pool.query<Omit<AttemptRow, 'mode' | 'status'> & { mode: string; status: string; after: [number, string, number, unknown][] }>({
+    name: 'attempt-with-events',
+    text: `select a.id, a.user_id as "userId", a.scenario_version_id as "scenarioVersionId", a.assignment_id as "assignmentId",
+                  a.mode, a.seed, a.status, a.last_seq as "lastSeq", a.sim_time_ms as "simTimeMs", a.result, a.started_at as "startedAt",
+                  (select coalesce(json_agg(json_build_array(e.seq, e.kind, e.sim_time_ms, e.payload) order by e.seq), '[]')
+                     from attempt_events e where e.attempt_id = a.id and e.seq > $2) as after
+             from attempts a where a.id = $1`,
+    values: [attemptId, kept.throughSeq],
   });
-  return rows.flatMap((r) => {
-    const event = rowToInput(r);
-    return event ? [{ seq: r.seq, event }] : [];
+  const row = rows[0];
+  if (!row) throw notFound('No such attempt');
+  const { after, ...rest } = row;
+  const attempt: AttemptRow = { ...rest, mode: row.mode === 'practice' ? 'practice' : 'assigned', status: row.status === 'submitted' ? 'submitted' : 'running' };
+  const fresh = after.flatMap(([seq, kind, simTimeMs, payload]) => {
+    const event = rowToInput({ kind, simTimeMs, payload });
+    return event ? [{ seq, event }] : [];
   });
+  const events = kept.events.length ? [...kept.events, ...fresh] : fresh;
+  // The row's lastSeq, read in the same snapshot, says how far the log has no gaps.
+  if (cache && attempt.lastSeq > kept.throughSeq) {
+    cache.set(attemptId, { throughSeq: attempt.lastSeq, events: events.filter((e) => e.seq <= attempt.lastSeq) });
+  }
+  return { attempt, events };
 }
 
 export function benchScenarioView(def: ScenarioDefinition): BenchScenarioView {
@@ -157,14 +183,17 @@ async function sealedCar(db: DbOrTx, secret: string, attemptId: number, def: Sce
   return car;
 }
 
-/** The bootstrap of an attempt, by id or from its row already read. */
-export async function attemptBootstrap(ctx: { db: Db; pool: pg.Pool }, secret: string, attempt: number | AttemptRow): Promise<AttemptBootstrap> {
+/** The bootstrap of an attempt, by id or from its row and log already read. */
+export async function attemptBootstrap(
+  ctx: { db: Db; pool: pg.Pool },
+  secret: string,
+  attempt: number | { attempt: AttemptRow; events: readonly StoredEvent[] },
+): Promise<AttemptBootstrap> {
   const { db } = ctx;
-  const a = typeof attempt === 'number' ? await loadAttempt(db, attempt) : attempt;
+  const { attempt: a, events } = typeof attempt === 'number' ? await loadAttemptWithEvents(ctx, attempt) : attempt;
   const def = await loadDefinition(db, a.scenarioVersionId);
   const show = await showAfter(db, a.assignmentId);
   const sealed = await sealedCar(db, secret, a.id, def);
-  const events = await storedEvents(ctx.pool, a.id);
   const isFault = (e: StoredEvent) => e.event.kind === 'fault-inject' || e.event.kind === 'fault-clear';
   const faultEvents = events.filter(isFault);
   return {

@@ -264,6 +264,39 @@ describe('the event log', () => {
     for (const test of ['battery-ocv', 'regulated-voltage', 'output', 'voltage-drop-positive', 'ripple'] as const) expect(seen).toContain(test);
   });
 
+  it('bootstraps with the whole stored log however much of it this process read before: after each batch, past a gap and its fill, and from another process', async () => {
+    const practice = await scenarioId(t.ctx, 'healthy-control-corvane-linden');
+    const all = numbered([...leads(0, 'battery-pos', 'battery-neg'), ...startEngine(1000, 2000), ...pileRamp(6000, 4, 0.1), { kind: 'key', atMs: 12_000, position: 'off' }]);
+    const other = await startTestApp({}, t.databaseUrl);
+    try {
+      const adaThere = await signIn(other.app, ADA);
+      await fc.assert(
+        fc.asyncProperty(
+          fc.uniqueArray(fc.integer({ min: 1, max: all.length - 1 }), { maxLength: 5 }),
+          fc.nat({ max: 5 }),
+          fc.array(fc.boolean(), { minLength: 7, maxLength: 7 }),
+          async (cuts, lateIndex, readThere) => {
+            const bounds = [0, ...[...cuts].sort((a, b) => a - b), all.length];
+            const batches = bounds.slice(1).map((end, i) => all.slice(bounds[i], end));
+            if (lateIndex < batches.length - 1) batches.push(...batches.splice(lateIndex, 1));
+            const aid = (await ada.post('/api/attempts').send({ scenarioId: practice, mode: 'practice' }).expect(201)).body.attempt.id as number;
+            for (const [i, batch] of batches.entries()) {
+              await ada.post(`/api/attempts/${aid}/events`).send({ events: batch }).expect(200);
+              const reader = readThere[i] ? adaThere : ada;
+              const boot = (await reader.get(`/api/attempts/${aid}`).expect(200)).body as AttemptBootstrap;
+              const stored = await t.ctx.db.select({ seq: attemptEvents.seq }).from(attemptEvents).where(eq(attemptEvents.attemptId, aid)).orderBy(attemptEvents.seq);
+              expect(boot.events.map((e) => e.seq)).toEqual(stored.map((r) => r.seq));
+              expect(boot.events).toEqual(all.filter((e) => stored.some((r) => r.seq === e.seq)));
+            }
+          },
+        ),
+        { numRuns: 12 },
+      );
+    } finally {
+      await other.close();
+    }
+  });
+
   it('answers 400 naming the path of a bad event, and stores nothing of that batch', async () => {
     const before = await count(id);
     const events = numbered([...leads(20_000, 'battery-pos', 'battery-neg'), { kind: 'rpm', atMs: 20_000, rpm: 1500 }, { kind: 'pile', atMs: 20_000, dial01: 1.5 }], 100);
