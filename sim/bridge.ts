@@ -460,23 +460,38 @@ export interface TableLookup {
   dominant: number;
 }
 
-function lookupLayer(t: BridgeTable, layer: number, u: number, s: number, out: TableLookup): TableLookup {
-  const fu = (u / U_MAX) * (U_POINTS - 1);
-  let iu = Math.floor(fu);
-  if (iu > U_POINTS - 2) iu = U_POINTS - 2;
-  const tu = fu - iu;
+/**
+ * Where sqrt(r) falls on the grid's s axis: the row below it and the weight
+ * toward the next. The bridge's operating point asks many u at one r, so it
+ * places r once (see bridgeOperatingPoint).
+ */
+interface RowPosition {
+  is: number;
+  ts: number;
+}
+
+function placeRow(r: number, out: RowPosition): RowPosition {
+  let s = Math.sqrt(r > 0 ? r : 0);
+  if (s < S_MIN) s = S_MIN;
+  else if (s > S_MAX) s = S_MAX;
   const fs = ((s - S_MIN) / (S_MAX - S_MIN)) * (S_POINTS - 1);
   let is = Math.floor(fs);
   if (is > S_POINTS - 2) is = S_POINTS - 2;
-  const ts = fs - is;
+  out.is = is;
+  out.ts = fs - is;
+  return out;
+}
+
+/** Bilinear lookup in one drop layer, at column iu (weight tu) and row is (weight ts). */
+function lookupLayer(t: BridgeTable, layer: number, iu: number, tu: number, is: number, ts: number, out: TableLookup): TableLookup {
   const i00 = layer * LAYER + is * U_POINTS + iu;
   const i10 = i00 + U_POINTS;
   const m = t.mean;
-  const a0 = m[i00]! + (m[i00 + 1]! - m[i00]!) * tu;
-  const a1 = m[i10]! + (m[i10 + 1]! - m[i10]!) * tu;
-  out.mean = a0 + (a1 - a0) * ts;
   const d0 = m[i00 + 1]! - m[i00]!;
   const d1 = m[i10 + 1]! - m[i10]!;
+  const a0 = m[i00]! + d0 * tu;
+  const a1 = m[i10]! + d1 * tu;
+  out.mean = a0 + (a1 - a0) * ts;
   out.dMeanDu = ((d0 + (d1 - d0) * ts) * (U_POINTS - 1)) / U_MAX;
   const q = t.acRms;
   const b0 = q[i00]! + (q[i00 + 1]! - q[i00]!) * tu;
@@ -489,11 +504,8 @@ function lookupLayer(t: BridgeTable, layer: number, u: number, s: number, out: T
 
 const layerScratch: TableLookup = { mean: 0, dMeanDu: 0, acRms: 0, dominant: 6 };
 
-/**
- * Lookup at (u, r, phi): bilinear in u and sqrt(r), linear between drop
- * layers; clamps outside the grid (above U_MAX the output is zero).
- */
-export function lookupTable(t: BridgeTable, u: number, r: number, out: TableLookup, phi = 0): TableLookup {
+/** The lookup at u and phi with sqrt(r) already placed on the grid (see lookupTable). */
+function lookupPlaced(t: BridgeTable, u: number, row: RowPosition, phi: number, out: TableLookup): TableLookup {
   if (u >= U_MAX) {
     out.mean = 0;
     out.dMeanDu = 0;
@@ -502,11 +514,12 @@ export function lookupTable(t: BridgeTable, u: number, r: number, out: TableLook
     return out;
   }
   const uu = u < 0 ? 0 : u;
-  let s = Math.sqrt(r > 0 ? r : 0);
-  if (s < S_MIN) s = S_MIN;
-  else if (s > S_MAX) s = S_MAX;
+  const fu = (uu / U_MAX) * (U_POINTS - 1);
+  let iu = Math.floor(fu);
+  if (iu > U_POINTS - 2) iu = U_POINTS - 2;
+  const tu = fu - iu;
   const levels = t.dropLevels;
-  if (levels.length === 1) return lookupLayer(t, 0, uu, s, out);
+  if (levels.length === 1) return lookupLayer(t, 0, iu, tu, row.is, row.ts, out);
   const top = levels.length - 1;
   const span = levels[top]! / top;
   let f = (phi > 0 ? phi : 0) / span;
@@ -514,14 +527,24 @@ export function lookupTable(t: BridgeTable, u: number, r: number, out: TableLook
   let li = Math.floor(f);
   if (li > top - 1) li = top - 1;
   const w = f - li;
-  lookupLayer(t, li, uu, s, out);
+  lookupLayer(t, li, iu, tu, row.is, row.ts, out);
   const lo = layerScratch;
-  lookupLayer(t, li + 1, uu, s, lo);
+  lookupLayer(t, li + 1, iu, tu, row.is, row.ts, lo);
   out.mean += (lo.mean - out.mean) * w;
   out.dMeanDu += (lo.dMeanDu - out.dMeanDu) * w;
   out.acRms += (lo.acRms - out.acRms) * w;
   if (w >= 0.5) out.dominant = lo.dominant;
   return out;
+}
+
+const rowScratch: RowPosition = { is: 0, ts: 0 };
+
+/**
+ * Lookup at (u, r, phi): bilinear in u and sqrt(r), linear between drop
+ * layers; clamps outside the grid (above U_MAX the output is zero).
+ */
+export function lookupTable(t: BridgeTable, u: number, r: number, out: TableLookup, phi = 0): TableLookup {
+  return lookupPlaced(t, u, placeRow(r, rowScratch), phi, out);
 }
 
 // ---- One operating point against a DC Thevenin source ---------------------
@@ -563,6 +586,7 @@ export interface BridgePoint {
 }
 
 const scratch: TableLookup = { mean: 0, dMeanDu: 0, acRms: 0, dominant: 6 };
+const pointRow: RowPosition = { is: 0, ts: 0 };
 
 /**
  * Mean bridge output against a stiff DC side: solves
@@ -583,30 +607,39 @@ export function bridgeOperatingPoint(inp: BridgePointInput, out: BridgePoint): B
   const vth = inp.dcTheveninV;
   const rth = inp.dcResistanceOhm;
   const table = inp.table;
+  // r is the same for every lookup below: place it on the grid once.
+  const row = placeRow(r, pointRow);
   // Bracket [lo, hi] with F(lo) <= 0 <= F(hi), F(I) = I - base * g(u(I)).
   let lo = 0;
-  const f0 = lookupTable(table, vth / e, r, scratch, 0).mean;
+  const f0 = lookupPlaced(table, vth / e, row, 0, scratch).mean;
   if (f0 <= 0) return out;
   let hi = base * f0;
   let i = inp.guessA > lo && inp.guessA < hi ? inp.guessA : 0.5 * hi;
+  // Whether `scratch` holds the lookup at the final i (the loop stopped on convergence).
+  let lookedUpAtI = false;
   for (let iter = 0; iter < 30; iter++) {
     const vf = nvt * detLog1p(i / is);
-    const lk = lookupTable(table, (vth + rth * i + 2 * vf) / e, r, scratch, vf / e);
+    const lk = lookupPlaced(table, (vth + rth * i + 2 * vf) / e, row, vf / e, scratch);
     const f = i - base * lk.mean;
     if (f > 0) hi = i;
     else lo = i;
-    if (Math.abs(f) < 1e-7 * (1 + hi) || hi - lo < 1e-9 * (1 + hi)) break;
+    if (Math.abs(f) < 1e-7 * (1 + hi) || hi - lo < 1e-9 * (1 + hi)) {
+      lookedUpAtI = true;
+      break;
+    }
     const dudi = (rth + nvt / (i + is)) / e;
     const df = 1 - base * lk.dMeanDu * dudi;
     let nextI = i - f / df;
     if (!(nextI > lo && nextI < hi)) nextI = 0.5 * (lo + hi);
     i = nextI;
   }
-  const vfEnd = nvt * detLog1p(i / is);
-  const lk = lookupTable(table, (vth + rth * i + 2 * vfEnd) / e, r, scratch, vfEnd / e);
+  if (!lookedUpAtI) {
+    const vfEnd = nvt * detLog1p(i / is);
+    lookupPlaced(table, (vth + rth * i + 2 * vfEnd) / e, row, vfEnd / e, scratch);
+  }
   out.meanA = i;
-  out.acRmsA = base * lk.acRms;
-  out.dominantHarmonic = lk.dominant;
+  out.acRmsA = base * scratch.acRms;
+  out.dominantHarmonic = scratch.dominant;
   out.dcV = vth + rth * i;
   return out;
 }
