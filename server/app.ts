@@ -9,7 +9,7 @@ import type { AppContext } from './context.ts';
 import { apiNotFound, errorHandler } from './http/errors.ts';
 import type { RouteSpec } from './http/route-table.ts';
 import { allRouteGroups } from './routes/all.ts';
-import { liveBusFor } from './services/live-bus.ts';
+import { sessionBusFor } from './services/live-bus.ts';
 
 export interface CreatedApp {
   app: express.Express;
@@ -47,7 +47,7 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
   app.use(
     '/api',
     express.json({ limit: '256kb' }),
-    sessionMiddleware({ pool: ctx.pool, secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY, bus: liveBusFor(ctx) }),
+    sessionMiddleware({ pool: ctx.pool, secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY, bus: sessionBusFor(ctx) }),
     csrfProtection,
     loadUser(ctx.db),
     (_req, res, next) => {

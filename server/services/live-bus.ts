@@ -24,7 +24,10 @@ export const SESSION_CHANNEL = 'loadline_session';
 /** user id: an account changed or was removed. */
 export const USER_CHANNEL = 'loadline_user';
 export type LiveChannel = typeof ATTEMPT_CHANNEL | typeof INJECTION_CHANNEL | typeof SESSION_CHANNEL | typeof USER_CHANNEL;
-const CHANNELS: readonly LiveChannel[] = [ATTEMPT_CHANNEL, INJECTION_CHANNEL, SESSION_CHANNEL, USER_CHANNEL];
+/** What the live board and the benches' injection streams hear. */
+export const LIVE_CHANNELS: readonly LiveChannel[] = [ATTEMPT_CHANNEL, INJECTION_CHANNEL];
+/** What the session cache hears: kept apart, so an always-open cache does not take every stored batch's notification too. */
+export const SESSION_CHANNELS: readonly LiveChannel[] = [SESSION_CHANNEL, USER_CHANNEL];
 
 type Listener = (payload: string) => void;
 
@@ -42,8 +45,9 @@ export interface LiveBus {
 const LINGER_MS = 5_000;
 const MAX_BACKOFF_MS = 5_000;
 
-export function createLiveBus(opts: { databaseUrl: string; pool: pg.Pool; log: AppContext['log'] }): LiveBus {
-  const listeners = new Map<LiveChannel, Set<Listener>>(CHANNELS.map((c) => [c, new Set<Listener>()]));
+export function createLiveBus(opts: { databaseUrl: string; pool: pg.Pool; log: AppContext['log']; channels?: readonly LiveChannel[] }): LiveBus {
+  const channels = opts.channels ?? LIVE_CHANNELS;
+  const listeners = new Map<LiveChannel, Set<Listener>>(channels.map((c) => [c, new Set<Listener>()]));
   const reconnectListeners = new Set<() => void>();
   let client: pg.Client | null = null;
   let connecting: Promise<void> | null = null;
@@ -98,7 +102,7 @@ export function createLiveBus(opts: { databaseUrl: string; pool: pg.Pool; log: A
     client = c;
     try {
       await c.connect();
-      for (const ch of CHANNELS) await c.query(`LISTEN ${ch}`);
+      for (const ch of channels) await c.query(`LISTEN ${ch}`);
     } catch (err) {
       opts.log('warn', 'live notification connection failed', err);
       drop(c);
@@ -189,25 +193,35 @@ export function createLiveBus(opts: { databaseUrl: string; pool: pg.Pool; log: A
 }
 
 const buses = new WeakMap<pg.Pool, LiveBus>();
+const sessionBuses = new WeakMap<pg.Pool, LiveBus>();
 
-/**
- * The process's bus for this app (one per database pool, made on first use).
- * It holds a connection only while someone subscribes; the session cache
- * subscribes for as long as the app runs, so closing the app's database
- * closes its bus too (closeLiveBus).
- */
-export function liveBusFor(ctx: Pick<AppContext, 'env' | 'pool' | 'log'>): LiveBus {
-  let bus = buses.get(ctx.pool);
+function busOf(store: WeakMap<pg.Pool, LiveBus>, ctx: Pick<AppContext, 'env' | 'pool' | 'log'>, channels: readonly LiveChannel[]): LiveBus {
+  let bus = store.get(ctx.pool);
   if (!bus) {
-    bus = createLiveBus({ databaseUrl: ctx.env.DATABASE_URL, pool: ctx.pool, log: ctx.log });
-    buses.set(ctx.pool, bus);
+    bus = createLiveBus({ databaseUrl: ctx.env.DATABASE_URL, pool: ctx.pool, log: ctx.log, channels });
+    store.set(ctx.pool, bus);
   }
   return bus;
 }
 
-/** Closes the bus of this pool, if one was made; the app's database close calls it. */
+/**
+ * The process's bus for this app's live board and injection streams (one per
+ * database pool, made on first use). It holds a connection only while
+ * someone subscribes.
+ */
+export function liveBusFor(ctx: Pick<AppContext, 'env' | 'pool' | 'log'>): LiveBus {
+  return busOf(buses, ctx, LIVE_CHANNELS);
+}
+
+/** The bus of this app's session cache, on a connection of its own that stays open while the app runs (closeLiveBus). */
+export function sessionBusFor(ctx: Pick<AppContext, 'env' | 'pool' | 'log'>): LiveBus {
+  return busOf(sessionBuses, ctx, SESSION_CHANNELS);
+}
+
+/** Closes the buses of this pool, if any were made; the app's database close calls it. */
 export async function closeLiveBus(pool: pg.Pool): Promise<void> {
-  const bus = buses.get(pool);
+  const made = [buses.get(pool), sessionBuses.get(pool)];
   buses.delete(pool);
-  await bus?.close();
+  sessionBuses.delete(pool);
+  await Promise.all(made.map((bus) => bus?.close()));
 }

@@ -11,7 +11,7 @@ import supertest from 'supertest';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { SESSION_KEPT_MS, SESSION_MAX_AGE_MS, throttledPgStore } from '../../server/auth/session.ts';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
-import { liveBusFor, SESSION_CHANNEL, USER_CHANNEL, type LiveBus } from '../../server/services/live-bus.ts';
+import { sessionBusFor, SESSION_CHANNEL, USER_CHANNEL, type LiveBus } from '../../server/services/live-bus.ts';
 import { signIn, startTestApp, type TestApp } from './support.ts';
 
 const student = DEMO_PEOPLE.find((p) => p.role === 'student')!;
@@ -187,9 +187,9 @@ describe('the session cache across server processes', () => {
     const here = await signIn(t.app, student.email);
     const me = await here.get('/api/auth/me').expect(200);
     const sid = decodeURIComponent(/loadline\.sid=([^;]+)/.exec(me.request.cookies)![1]!).replace(/^s:/, '').split('.')[0]!;
-    const bus = liveBusFor(t.ctx);
+    const bus = sessionBusFor(t.ctx);
     await vi.waitFor(() => expect(bus.connected()).toBe(true), { timeout: 2_000 });
-    await t.ctx.pool.query("select pg_terminate_backend(pid) from pg_stat_activity where datname = current_database() and query like 'LISTEN%' and pid <> pg_backend_pid()");
+    await t.ctx.pool.query("select pg_terminate_backend(pid) from pg_stat_activity where datname = current_database() and query like 'LISTEN loadline_user' and pid <> pg_backend_pid()");
     await vi.waitFor(() => expect(bus.connected()).toBe(false), { timeout: 2_000, interval: 5 });
     // Deleted by hand while nobody listens: no notification reaches this process, yet the next request is anonymous.
     await t.ctx.pool.query('delete from session where sid = $1', [sid]);
