@@ -21,6 +21,8 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
   const app = express();
   const production = ctx.env.NODE_ENV === 'production';
   app.disable('x-powered-by');
+  // API answers are no-store, so an ETag (a hash of every body) would never be used; the client's files keep theirs (express.static).
+  app.set('etag', false);
   if (ctx.env.TRUST_PROXY) app.set('trust proxy', 1);
 
   app.use(
