@@ -15,7 +15,7 @@
  *   starter   positive junction -> engine block (starter motor)
  */
 
-import type { BridgePoint, BridgeTable, DiodeShockley } from './bridge.ts';
+import type { BridgePoint, BridgePointInput, BridgeTable, DiodeShockley } from './bridge.ts';
 import { bridgeOperatingPoint } from './bridge.ts';
 
 export type NodeName = 'batteryPos' | 'junction' | 'bplus' | 'altCase' | 'engine' | 'chassis' | 'batteryNeg';
@@ -128,8 +128,13 @@ interface LinearResponses {
 const mat = new Float64Array(N * N);
 const rhs = new Float64Array(N * 2);
 const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0 };
+/**
+ * The responses of the last few sets of conductances, most recently used
+ * first. A pile stepped through a handful of settings comes back to each of
+ * them, so this keeps more than the two or three a single change needs.
+ */
 const recent: LinearResponses[] = [];
-const RECENT_MAX = 4;
+const RECENT_MAX = 8;
 const keyScratch = new Float64Array(CONDUCTANCES);
 
 function stamp(i: number, j: number, g: number): void {
@@ -181,7 +186,7 @@ function buildResponses(n: NetworkInput, key: Float64Array): LinearResponses {
     perBridgeA[k] = rhs[k * 2 + 1]!;
   }
   return {
-    key: Float64Array.from(key),
+    key: new Float64Array(key),
     perEmf,
     perBridgeA,
     rippleOhm: Object.freeze({
@@ -217,7 +222,13 @@ function responsesFor(n: NetworkInput): LinearResponses {
         break;
       }
     }
-    if (same) return cand;
+    if (same) {
+      if (r > 0) {
+        recent.splice(r, 1);
+        recent.unshift(cand);
+      }
+      return cand;
+    }
   }
   const built = buildResponses(n, key);
   recent.unshift(built);
@@ -231,23 +242,32 @@ function portVolts(n: NetworkInput, lr: LinearResponses, ifs: number, ib: number
   return n.batteryEmfV * (we[BPL]! - we[AC]!) + (ib - ifs) * (wb[BPL]! - wb[AC]!);
 }
 
+// Reused for every bridge solve (bridgeOperatingPoint keeps nothing of it).
+const bridgeInput: BridgePointInput = {
+  table: null as unknown as BridgeTable,
+  emfPeakV: 0,
+  reactanceOhm: 0,
+  phaseResistanceOhm: 0,
+  diode: { saturationCurrentA: 1e-7, emissionCoefficient: 1.6 },
+  dcTheveninV: 0,
+  dcResistanceOhm: 0,
+  guessA: 0,
+};
+
 /** The bridge's operating point against the network's Thevenin source, into `point`. */
 function solveBridge(n: NetworkInput, lr: LinearResponses, ifs: number): void {
   const we = lr.perEmf;
   const wb = lr.perBridgeA;
-  bridgeOperatingPoint(
-    {
-      table: n.table,
-      emfPeakV: n.emfPeakV,
-      reactanceOhm: n.reactanceOhm,
-      phaseResistanceOhm: n.phaseResistanceOhm,
-      diode: n.diode,
-      dcTheveninV: n.batteryEmfV * (we[BPL]! - we[AC]!) - ifs * (wb[BPL]! - wb[AC]!),
-      dcResistanceOhm: wb[BPL]! - wb[AC]!,
-      guessA: n.guessA,
-    },
-    point,
-  );
+  const b = bridgeInput;
+  b.table = n.table;
+  b.emfPeakV = n.emfPeakV;
+  b.reactanceOhm = n.reactanceOhm;
+  b.phaseResistanceOhm = n.phaseResistanceOhm;
+  b.diode = n.diode;
+  b.dcTheveninV = n.batteryEmfV * (we[BPL]! - we[AC]!) - ifs * (wb[BPL]! - wb[AC]!);
+  b.dcResistanceOhm = wb[BPL]! - wb[AC]!;
+  b.guessA = n.guessA;
+  bridgeOperatingPoint(b, point);
 }
 
 /**

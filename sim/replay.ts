@@ -63,11 +63,16 @@ export function advance(
   let state = point.state;
   let controls = point.controls;
   let next = point.nextEventIndex;
+  // The time of the next event, read once per event rather than once per step
+  // (events of different kinds have different shapes, which makes reading a
+  // field of "any event" slow); Infinity once the log is used up.
+  let nextAtMs = next < events.length ? events[next]!.atMs : Infinity;
   for (let i = 0; i < steps; i++) {
-    while (next < events.length && events[next]!.atMs <= state.timeMs) {
+    while (nextAtMs <= state.timeMs) {
       const ev = events[next]!;
       controls = applyInput(controls, ev, ev.kind === 'clamp-zero' ? rawClampReadingA(state, controls) : 0);
       next++;
+      nextAtMs = next < events.length ? events[next]!.atMs : Infinity;
     }
     state = step(params, state, controls, DT_MS);
   }
