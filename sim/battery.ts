@@ -51,10 +51,30 @@ function ageFactor(ageYears: number): number {
   return 1 + 0.08 * Math.max(0, ageYears);
 }
 
+/**
+ * The charge-independent part of the internal resistance, R25 x age x
+ * temperature, remembered for the last battery values asked: the step asks
+ * twice a step for the same battery. Keyed on the values, not the object, so
+ * it holds even if a caller edits the parameters in place.
+ */
+const fullResistanceMemo = { r25: NaN, ageYears: NaN, tempC: NaN, value: 0 };
+
+function fullChargeResistanceOhm(b: BatteryParams): number {
+  const memo = fullResistanceMemo;
+  if (memo.r25 !== b.internalResistanceOhmAt25C || memo.ageYears !== b.ageYears || memo.tempC !== b.tempC) {
+    memo.r25 = b.internalResistanceOhmAt25C;
+    memo.ageYears = b.ageYears;
+    memo.tempC = b.tempC;
+    // Multiplied in the order the formula reads, so the product is the same bits as in one expression.
+    memo.value = b.internalResistanceOhmAt25C * ageFactor(b.ageYears) * temperatureFactor(b.tempC);
+  }
+  return memo.value;
+}
+
 /** Ohmic internal resistance at the given charge. */
 export function internalResistanceOhm(b: BatteryParams, soc01: number): number {
   const empty = 1 - (soc01 < 0 ? 0 : soc01 > 1 ? 1 : soc01);
-  return b.internalResistanceOhmAt25C * ageFactor(b.ageYears) * temperatureFactor(b.tempC) * (1 + 0.6 * empty * empty);
+  return fullChargeResistanceOhm(b) * (1 + 0.6 * empty * empty);
 }
 
 /** Usable capacity in ampere-seconds. */

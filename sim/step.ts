@@ -177,27 +177,61 @@ const networkInput: NetworkInput = {
   guessA: 0,
 };
 
-function solveAt(n: NetworkInputs): NetworkSolution {
-  const m = n.model;
+/**
+ * The vehicle loads' conductance, remembered for the last model, key state,
+ * accessories switched on and module state: these change only with an event
+ * or a fault, while the step asks every 10 ms. The accessories are compared
+ * by content, so an array edited in place cannot be mistaken for the last.
+ */
+const loadMemo = {
+  model: null as Model | null,
+  keyOn: false,
+  modulesAwake: false,
+  accessoriesOn: [] as string[],
+  loadG: 0,
+};
+
+function sameIds(a: readonly string[], b: readonly string[]): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+// Loads between the junction and the body, all as conductances: a load
+// given in amperes draws that current at 12.6 V (so an open return path
+// carries nothing, as in the car).
+function loadConductanceS(m: Model, keyOn: boolean, accessoriesOn: readonly string[], modulesAwake: boolean): number {
+  const memo = loadMemo;
+  if (memo.model === m && memo.keyOn === keyOn && memo.modulesAwake === modulesAwake && sameIds(memo.accessoriesOn, accessoriesOn)) {
+    return memo.loadG;
+  }
   const p = m.p;
-  const c = n.controls;
-  const keyOn = c.key !== 'off';
-  // Loads between the junction and the body, all as conductances: a load
-  // given in amperes draws that current at 12.6 V (so an open return path
-  // carries nothing, as in the car).
   let loadG = 1e-6;
   let ratedA = 0;
   if (keyOn) {
     ratedA += p.loads.baseElectronicsA;
-    for (const id of c.accessoriesOn) {
+    for (const id of accessoriesOn) {
       loadG += m.accessoryG.get(id) ?? 0;
       ratedA += m.accessoryI.get(id) ?? 0;
     }
   } else {
-    ratedA += n.modulesAwake ? p.loads.keyOffAwakeA : p.loads.keyOffSleepA;
+    ratedA += modulesAwake ? p.loads.keyOffAwakeA : p.loads.keyOffSleepA;
   }
   ratedA += p.loads.stuckDrawA;
   loadG += ratedA / LOAD_RATING_V;
+  memo.model = m;
+  memo.keyOn = keyOn;
+  memo.modulesAwake = modulesAwake;
+  memo.accessoriesOn = [...accessoriesOn];
+  memo.loadG = loadG;
+  return loadG;
+}
+
+function solveAt(n: NetworkInputs): NetworkSolution {
+  const m = n.model;
+  const p = m.p;
+  const c = n.controls;
+  const loadG = loadConductanceS(m, c.key !== 'off', c.accessoriesOn, n.modulesAwake);
 
   // Resistance follows charge in steps of 0.1 % so the network's responses can be reused.
   const r0 = internalResistanceOhm(p.battery, Math.round(n.soc01 * 1000) / 1000);
@@ -301,6 +335,24 @@ export function initialState(params: VehicleParams, seed: number): SimState {
     net,
   };
 }
+
+// The step's operating point for solveAt, reused every step (solveAt keeps none of it).
+const stepInputs: NetworkInputs = {
+  model: null as unknown as Model,
+  controls: null as unknown as Controls,
+  engineStatus: 'off',
+  altRpm: 0,
+  alternatorTempC: 0,
+  fieldCurrentA: 0,
+  fieldDuty01: 0,
+  soc01: 0,
+  polarizationV: 0,
+  linkOpen: false,
+  pileOn: true,
+  ammeterFuseBlown: false,
+  modulesAwake: false,
+  guessBridgeA: 0,
+};
 
 export function step(params: VehicleParams, state: SimState, controls: Controls, dtMs: number = DT_MS): SimState {
   const dt = dtMs / 1000;
@@ -461,22 +513,22 @@ export function step(params: VehicleParams, state: SimState, controls: Controls,
   else awakeS = Math.max(0, awakeS - dt);
 
   // ---- The network at the new operating point -------------------------------
-  const net = solveAt({
-    model,
-    controls,
-    engineStatus: status,
-    altRpm,
-    alternatorTempC: altTempC,
-    fieldCurrentA,
-    fieldDuty01: duty,
-    soc01,
-    polarizationV,
-    linkOpen: linkBlown || p.wiring.fusibleLinkOpen,
-    pileOn: !pileTripped,
-    ammeterFuseBlown: fuseBlown,
-    modulesAwake: awakeS > 0,
-    guessBridgeA: prev.bridgeCurrentA,
-  });
+  const at = stepInputs;
+  at.model = model;
+  at.controls = controls;
+  at.engineStatus = status;
+  at.altRpm = altRpm;
+  at.alternatorTempC = altTempC;
+  at.fieldCurrentA = fieldCurrentA;
+  at.fieldDuty01 = duty;
+  at.soc01 = soc01;
+  at.polarizationV = polarizationV;
+  at.linkOpen = linkBlown || p.wiring.fusibleLinkOpen;
+  at.pileOn = !pileTripped;
+  at.ammeterFuseBlown = fuseBlown;
+  at.modulesAwake = awakeS > 0;
+  at.guessBridgeA = prev.bridgeCurrentA;
+  const net = solveAt(at);
 
   // Torque the alternator asks of the belt.
   const omegaAlt = (2 * Math.PI * altRpm) / 60;
