@@ -1,30 +1,20 @@
 import { createRequire } from 'node:module';
-import type { Browser } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
-import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
-import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { SCREENSHOT_DIR } from './browser.ts';
+import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
 import { holdRpm, openBench, reading, scenarioIdOf, startEngine } from './bench-helpers.ts';
 
-let browser: Browser;
-let app: E2eServer;
-
-beforeAll(async () => {
-  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
-});
-afterAll(async () => {
-  await browser?.close();
-  await app?.close();
-});
+const e2e = browserAndServerForFile();
 
 describe('the inductive clamp and the drawing', () => {
   it('hooks up by drag and by click in the drawing, and a reversed clamp reads negative', async () => {
-    const scenarioId = await scenarioIdOf(app, 'healthy-control-corvane-linden');
+    const scenarioId = await scenarioIdOf(e2e.app, 'healthy-control-corvane-linden');
     // bypassCSP only so the accessibility checker can be injected; the app itself runs under its CSP.
-    const page = await browser.newPage({ viewport: { width: 1360, height: 900 }, bypassCSP: true });
+    const page = await e2e.browser.newPage({ viewport: { width: 1360, height: 900 }, bypassCSP: true });
     const problems = watchConsole(page);
-    await signInAs(page, app.url, demoFirst('student').email);
-    await openBench(page, app.url, `scenarioId=${scenarioId}`);
+    await signInAs(page, e2e.app.url, demoFirst('student').email);
+    await openBench(page, e2e.app.url, `scenarioId=${scenarioId}`);
 
     const drawing = page.getByRole('img', { name: /Engine bay schematic/ });
     const box = (await drawing.boundingBox())!;

@@ -1,28 +1,18 @@
-import type { Browser } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
-import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
-import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { SCREENSHOT_DIR } from './browser.ts';
+import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
 import { diagnose, holdRpm, hookUp, openBench, reading, recordReading, scenarioIdOf, startEngine } from './bench-helpers.ts';
 
-let browser: Browser;
-let app: E2eServer;
-
-beforeAll(async () => {
-  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
-});
-afterAll(async () => {
-  await browser?.close();
-  await app?.close();
-});
+const e2e = browserAndServerForFile();
 
 describe('a faulted scenario, diagnosed in practice mode', () => {
   it('shows no charge with the engine running, and reveals the open fusible link after submission', async () => {
-    const scenarioId = await scenarioIdOf(app, 'fusible-link-open-westmark-drover');
-    const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
+    const scenarioId = await scenarioIdOf(e2e.app, 'fusible-link-open-westmark-drover');
+    const page = await e2e.browser.newPage({ viewport: { width: 1360, height: 900 } });
     const problems = watchConsole(page);
-    await signInAs(page, app.url, demoFirst('student').email);
-    await openBench(page, app.url, `scenarioId=${scenarioId}`);
+    await signInAs(page, e2e.app.url, demoFirst('student').email);
+    await openBench(page, e2e.app.url, `scenarioId=${scenarioId}`);
     // The bench must not give the fault away before submission: the drawing shows the link intact, nothing warns of it.
     const drawing = page.getByRole('img', { name: /Engine bay schematic/ });
     expect(await drawing.getAttribute('aria-label')).not.toMatch(/link/i);

@@ -1,20 +1,11 @@
-import type { Browser, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
-import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
-import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { SCREENSHOT_DIR } from './browser.ts';
+import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
 import { assignToStudent, diagnose, holdRpm, hookUp, loadDownTo, reading, recordReading, startEngine } from './bench-helpers.ts';
 
-let browser: Browser;
-let app: E2eServer;
-
-beforeAll(async () => {
-  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
-});
-afterAll(async () => {
-  await browser?.close();
-  await app?.close();
-});
+const e2e = browserAndServerForFile();
 
 const pileAmps = async (page: Page) => Number(await page.getByTestId('pile-amps').textContent());
 
@@ -22,11 +13,11 @@ describe('a whole diagnosis of an assigned scenario', () => {
   it('starts from the bench list, runs every test of the family, submits and gets a verified grade', async () => {
     const student = demoFirst('student');
     const title = 'Full check before sale';
-    await assignToStudent(app, 'healthy-control-corvane-linden', student.email, title);
-    const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
+    await assignToStudent(e2e.app, 'healthy-control-corvane-linden', student.email, title);
+    const page = await e2e.browser.newPage({ viewport: { width: 1360, height: 900 } });
     const problems = watchConsole(page);
-    await signInAs(page, app.url, student.email);
-    await page.goto(`${app.url}/bench`);
+    await signInAs(page, e2e.app.url, student.email);
+    await page.goto(`${e2e.app.url}/bench`);
     await page.getByRole('button', { name: `Start ${title}` }).click();
     await page.waitForURL(/\/bench\/\d+$/);
     const dial = page.getByRole('slider', { name: 'Carbon pile load' });

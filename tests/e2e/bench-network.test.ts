@@ -1,28 +1,18 @@
-import type { Browser } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
-import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
-import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { SCREENSHOT_DIR } from './browser.ts';
+import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
 import { openBench, scenarioIdOf, serverAttempt } from './bench-helpers.ts';
 
-let browser: Browser;
-let app: E2eServer;
-
-beforeAll(async () => {
-  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
-});
-afterAll(async () => {
-  await browser?.close();
-  await app?.close();
-});
+const e2e = browserAndServerForFile();
 
 describe('the network cut mid-attempt', () => {
   it('keeps running, keeps every event through a reload, and sends them all once the network is back', async () => {
-    const scenarioId = await scenarioIdOf(app, 'healthy-control-corvane-linden');
-    const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
+    const scenarioId = await scenarioIdOf(e2e.app, 'healthy-control-corvane-linden');
+    const page = await e2e.browser.newPage({ viewport: { width: 1360, height: 900 } });
     const problems = watchConsole(page);
-    await signInAs(page, app.url, demoFirst('student').email);
-    const attemptId = await openBench(page, app.url, `scenarioId=${scenarioId}`);
+    await signInAs(page, e2e.app.url, demoFirst('student').email);
+    const attemptId = await openBench(page, e2e.app.url, `scenarioId=${scenarioId}`);
     const status = page.getByTestId('connection-status');
 
     // Online: three events, saved.
@@ -46,7 +36,7 @@ describe('the network cut mid-attempt', () => {
     expect(await page.getByLabel(/^Bench time/).getAttribute('aria-label')).not.toBe(timeBefore);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-offline.png` });
 
-    // A reload while still cut off: the bench resumes from the server's events plus the ones kept in this browser.
+    // A reload while still cut off: the bench resumes from the server's events plus the ones kept in this e2e.browser.
     await page.reload();
     await dial.waitFor();
     for (const name of switches) expect(await page.getByRole('button', { name }).getAttribute('aria-pressed')).toBe('true');

@@ -1,29 +1,19 @@
-import type { Browser } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
-import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
-import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { SCREENSHOT_DIR } from './browser.ts';
+import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
 import { assignToStudent, diagnose, holdRpm, hookUp, loadDownTo, openBench, reading, recordReading, startEngine } from './bench-helpers.ts';
 
-let browser: Browser;
-let app: E2eServer;
-
-beforeAll(async () => {
-  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
-});
-afterAll(async () => {
-  await browser?.close();
-  await app?.close();
-});
+const e2e = browserAndServerForFile();
 
 describe('a healthy output test, end to end', () => {
   it('hooks up, starts, holds 2,000 rpm, loads to about 12 V, records, submits and is graded pass on the output test', async () => {
     const student = demoFirst('student');
-    const assignmentId = await assignToStudent(app, 'healthy-control-corvane-linden', student.email, 'Output test practice round');
-    const page = await browser.newPage({ viewport: { width: 1360, height: 900 } });
+    const assignmentId = await assignToStudent(e2e.app, 'healthy-control-corvane-linden', student.email, 'Output test practice round');
+    const page = await e2e.browser.newPage({ viewport: { width: 1360, height: 900 } });
     const problems = watchConsole(page);
-    await signInAs(page, app.url, student.email);
-    const attemptId = await openBench(page, app.url, `assignmentId=${assignmentId}`);
+    await signInAs(page, e2e.app.url, student.email);
+    const attemptId = await openBench(page, e2e.app.url, `assignmentId=${assignmentId}`);
     expect(attemptId).toBeGreaterThan(0);
 
     // Leads on the battery posts, clamp on B+ with its arrow toward the battery, zeroed with the engine off.

@@ -1,38 +1,28 @@
 import { and, eq } from 'drizzle-orm';
-import type { Browser } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
 import { assignments, attemptEvents } from '../../server/db/schema.ts';
-import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
-import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { SCREENSHOT_DIR } from './browser.ts';
+import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
 import { assignToStudent, holdRpm, hookUp, openBench, reading, startEngine } from './bench-helpers.ts';
 
-let browser: Browser;
-let app: E2eServer;
-
-beforeAll(async () => {
-  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
-});
-afterAll(async () => {
-  await browser?.close();
-  await app?.close();
-});
+const e2e = browserAndServerForFile();
 
 describe('live fault injection in the browser', () => {
   it('an instructor injects an open fusible link into a running demo attempt and the student’s meters show it', async () => {
     const student = demoFirst('student');
-    const assignmentId = await assignToStudent(app, 'healthy-control-corvane-linden', student.email, 'Live session: charging check');
-    const [assignment] = await app.server.ctx.db.select({ classId: assignments.classId }).from(assignments).where(eq(assignments.id, assignmentId));
+    const assignmentId = await assignToStudent(e2e.app, 'healthy-control-corvane-linden', student.email, 'Live session: charging check');
+    const [assignment] = await e2e.app.server.ctx.db.select({ classId: assignments.classId }).from(assignments).where(eq(assignments.id, assignmentId));
 
-    const studentCtx = await browser.newContext({ viewport: { width: 1360, height: 900 } });
-    const teacherCtx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const studentCtx = await e2e.browser.newContext({ viewport: { width: 1360, height: 900 } });
+    const teacherCtx = await e2e.browser.newContext({ viewport: { width: 1280, height: 900 } });
     const bench = await studentCtx.newPage();
     const board = await teacherCtx.newPage();
     const benchProblems = watchConsole(bench);
     const boardProblems = watchConsole(board);
 
-    await signInAs(bench, app.url, student.email);
-    const attemptId = await openBench(bench, app.url, `assignmentId=${assignmentId}`);
+    await signInAs(bench, e2e.app.url, student.email);
+    const attemptId = await openBench(bench, e2e.app.url, `assignmentId=${assignmentId}`);
     await hookUp(bench, { red: 'battery-pos', black: 'battery-neg', clamp: 'bplus-cable' });
     // Zero the clamp where it sits, engine off, before reading current (common practice, no source: an
     // inductive clamp carries an offset of its own, up to a couple of amps here, that would hide a "nothing flows").
@@ -44,8 +34,8 @@ describe('live fault injection in the browser', () => {
     await expect.poll(() => reading(bench, 'volts'), { timeout: 20_000 }).toBeGreaterThan(13.5);
     await expect.poll(() => reading(bench, 'amps'), { timeout: 20_000 }).toBeGreaterThan(2);
 
-    await signInAs(board, app.url, demoFirst('instructor').email);
-    await board.goto(`${app.url}/classes/${assignment!.classId}/live`);
+    await signInAs(board, e2e.app.url, demoFirst('instructor').email);
+    await board.goto(`${e2e.app.url}/classes/${assignment!.classId}/live`);
     const card = board.getByRole('listitem', { name: new RegExp(`^${student.name}`) });
     await card.waitFor({ timeout: 15_000 });
     await expect.poll(() => board.getByRole('status').filter({ hasText: 'Live' }).count(), { timeout: 10_000 }).toBeGreaterThan(0);
@@ -62,7 +52,7 @@ describe('live fault injection in the browser', () => {
     // The student is not told what happened.
     expect(await bench.getByText(/fusible link open/i).count()).toBe(0);
 
-    const logged = await app.server.ctx.db
+    const logged = await e2e.app.server.ctx.db
       .select({ kind: attemptEvents.kind, source: attemptEvents.source })
       .from(attemptEvents)
       .where(and(eq(attemptEvents.attemptId, attemptId), eq(attemptEvents.kind, 'fault-inject')));

@@ -1,6 +1,5 @@
 import { eq } from 'drizzle-orm';
-import type { Browser } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE, demoFirst } from '../../server/db/demo-people.ts';
 import type { Db } from '../../server/db/client.ts';
 import { assignments, attemptEvents, attempts, scenarioVersions, users } from '../../server/db/schema.ts';
@@ -8,20 +7,11 @@ import { restoreScenario } from '../../shared/scenario.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
 import { readMeters } from '../../sim/instruments.ts';
 import { stateAt } from '../../sim/replay.ts';
-import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
-import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { SCREENSHOT_DIR } from './browser.ts';
+import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
 import { assignToStudent } from './bench-helpers.ts';
 
-let browser: Browser;
-let app: E2eServer;
-
-beforeAll(async () => {
-  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
-});
-afterAll(async () => {
-  await browser?.close();
-  await app?.close();
-});
+const e2e = browserAndServerForFile();
 
 const SESSION: InputEvent[] = [
   { kind: 'lead', atMs: 1_000, which: 'red', point: 'battery-pos' },
@@ -66,16 +56,16 @@ describe('replay with comments, the class comparison and sign-offs', () => {
   it('an instructor comments on a moment; the student’s replay scrubbed to that comment shows the bench as it was then', async () => {
     const student = demoFirst('student');
     const classmate = DEMO_PEOPLE.filter((p) => p.role === 'student')[1]!;
-    const db = app.server.ctx.db;
-    const assignmentId = await assignToStudent(app, 'healthy-control-corvane-linden', student.email, 'Replay review: charging check');
+    const db = e2e.app.server.ctx.db;
+    const assignmentId = await assignToStudent(e2e.app, 'healthy-control-corvane-linden', student.email, 'Replay review: charging check');
     const attemptId = await submittedAttempt(db, student.email, assignmentId, 36_000, 88);
     await submittedAttempt(db, classmate.email, assignmentId, 52_000, 74);
 
-    const teacherCtx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const teacherCtx = await e2e.browser.newContext({ viewport: { width: 1280, height: 900 } });
     const teacher = await teacherCtx.newPage();
     const teacherProblems = watchConsole(teacher);
-    await signInAs(teacher, app.url, demoFirst('instructor').email);
-    await teacher.goto(`${app.url}/attempts/${attemptId}/replay`);
+    await signInAs(teacher, e2e.app.url, demoFirst('instructor').email);
+    await teacher.goto(`${e2e.app.url}/attempts/${attemptId}/replay`);
     const scrubber = teacher.getByRole('slider', { name: 'Replay position' });
     await scrubber.waitFor();
     await scrubber.fill('18000');
@@ -86,7 +76,7 @@ describe('replay with comments, the class comparison and sign-offs', () => {
     await teacher.screenshot({ path: `${SCREENSHOT_DIR}/replay-instructor-comment.png`, fullPage: true });
 
     // The class comparison, sorted by grade.
-    await teacher.goto(`${app.url}/assignments/${assignmentId}/compare`);
+    await teacher.goto(`${e2e.app.url}/assignments/${assignmentId}/compare`);
     const table = teacher.getByRole('table').last();
     await table.getByRole('cell', { name: student.name, exact: true }).waitFor();
     // Numbers sort highest first on the first press, lowest first on the second.
@@ -106,11 +96,11 @@ describe('replay with comments, the class comparison and sign-offs', () => {
     await teacher.screenshot({ path: `${SCREENSHOT_DIR}/compare-instructor.png`, fullPage: true });
     expect(teacherProblems).toEqual([]);
 
-    const studentCtx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const studentCtx = await e2e.browser.newContext({ viewport: { width: 1280, height: 900 } });
     const page = await studentCtx.newPage();
     const problems = watchConsole(page);
-    await signInAs(page, app.url, student.email);
-    await page.goto(`${app.url}/attempts/${attemptId}/replay`);
+    await signInAs(page, e2e.app.url, student.email);
+    await page.goto(`${e2e.app.url}/attempts/${attemptId}/replay`);
     await page.getByRole('slider', { name: 'Replay position' }).waitFor();
     expect(await page.getByLabel('Comment at 0:00.0').count()).toBe(0);
     await page.getByRole('button', { name: `Go to 0:18.0, comment by ${demoFirst('instructor').name}` }).click();
@@ -126,7 +116,7 @@ describe('replay with comments, the class comparison and sign-offs', () => {
     await page.screenshot({ path: `${SCREENSHOT_DIR}/replay-student-at-comment.png`, fullPage: true });
 
     // The student's comparison: their place, no classmate's name.
-    await page.goto(`${app.url}/assignments/${assignmentId}/compare`);
+    await page.goto(`${e2e.app.url}/assignments/${assignmentId}/compare`);
     await page.getByRole('img', { name: /Yours: 0\.6 minutes, place 1 of 2/ }).waitFor();
     expect(await page.getByText(classmate.name).count()).toBe(0);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/compare-student.png`, fullPage: true });

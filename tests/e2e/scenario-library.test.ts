@@ -2,29 +2,20 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { Browser, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
-import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
-import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { SCREENSHOT_DIR } from './browser.ts';
+import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
 
 /** The machine may be busy: give the page time to answer. */
 const POLL = { timeout: 15_000 };
 
-let browser: Browser;
-let app: E2eServer;
+const e2e = browserAndServerForFile();
 
 const rune = DEMO_PEOPLE.filter((p) => p.role === 'instructor')[0]!;
 // The first demo student is enrolled in the first instructor's section.
 const ada = DEMO_PEOPLE.filter((p) => p.role === 'student')[0]!;
-
-beforeAll(async () => {
-  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
-});
-afterAll(async () => {
-  await browser?.close();
-  await app?.close();
-});
 
 const axeSource = readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8');
 
@@ -41,7 +32,7 @@ async function accessibilityProblems(page: Page): Promise<string[]> {
 }
 
 async function newPage(): Promise<{ page: Page; problems: string[] }> {
-  const page = await browser.newPage({ viewport: { width: 1400, height: 900 } });
+  const page = await e2e.browser.newPage({ viewport: { width: 1400, height: 900 } });
   return { page, problems: watchConsole(page) };
 }
 
@@ -50,8 +41,8 @@ const title = 'Whine at idle on the test sedan';
 describe('the instructor builds, publishes and assigns a scenario that a student then sees', () => {
   it('searches and filters the library table', async () => {
     const { page, problems } = await newPage();
-    await signInAs(page, app.url, rune.email);
-    await page.goto(`${app.url}/scenarios`);
+    await signInAs(page, e2e.app.url, rune.email);
+    await page.goto(`${e2e.app.url}/scenarios`);
     await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), POLL).toBe('Scenario library');
     const rows = page.locator('tbody tr');
     await expect.poll(() => rows.count(), POLL).toBeGreaterThanOrEqual(14);
@@ -76,8 +67,8 @@ describe('the instructor builds, publishes and assigns a scenario that a student
 
   it('builds a scenario in the editor, sees the preview, publishes it and assigns it', async () => {
     const { page, problems } = await newPage();
-    await signInAs(page, app.url, rune.email);
-    await page.goto(`${app.url}/scenarios/new`);
+    await signInAs(page, e2e.app.url, rune.email);
+    await page.goto(`${e2e.app.url}/scenarios/new`);
     await page.getByLabel('Title').fill(title);
     await page.getByLabel('Customer’s complaint (what the student is told)').fill('The radio whines with the engine running and the lights flicker at idle.');
     await page.getByLabel('Vehicle name').fill('Lowmarsh Tally compact sedan');
@@ -109,7 +100,7 @@ describe('the instructor builds, publishes and assigns a scenario that a student
     await expect.poll(() => versions.getByRole('listitem').nth(1).textContent(), POLL).toContain('Published');
     await versions.screenshot({ path: `${SCREENSHOT_DIR}/scenario-editor-versions.png` });
 
-    await page.goto(`${app.url}/classes`);
+    await page.goto(`${e2e.app.url}/classes`);
     await page.getByRole('list', { name: 'Classes' }).getByRole('link').first().click();
     await page.waitForURL(/\/classes\/\d+$/);
     await page.getByLabel('Scenario (its published version)').selectOption({ label: `${title} (v1)` });
@@ -125,8 +116,8 @@ describe('the instructor builds, publishes and assigns a scenario that a student
 
   it('shows the assignment on the demo student’s list with its dates and attempts, and Start opens the bench', async () => {
     const { page, problems } = await newPage();
-    await signInAs(page, app.url, ada.email);
-    await page.goto(`${app.url}/bench`);
+    await signInAs(page, e2e.app.url, ada.email);
+    await page.goto(`${e2e.app.url}/bench`);
     const list = page.getByRole('list', { name: 'Your assignments' });
     await expect.poll(() => list.textContent(), POLL).toContain('Week 4: radio whine');
     const card = list.getByRole('listitem').filter({ hasText: 'Week 4: radio whine' });
@@ -145,8 +136,8 @@ describe('the instructor builds, publishes and assigns a scenario that a student
 describe('imports', () => {
   it('names each bad path of a scenario file and imports nothing', async () => {
     const { page } = await newPage();
-    await signInAs(page, app.url, rune.email);
-    await page.goto(`${app.url}/scenarios`);
+    await signInAs(page, e2e.app.url, rune.email);
+    await page.goto(`${e2e.app.url}/scenarios`);
     const rows = page.locator('tbody tr');
     await expect.poll(() => rows.count(), POLL).toBeGreaterThanOrEqual(14);
     const before = await rows.count();
@@ -163,8 +154,8 @@ describe('imports', () => {
 
   it('previews a roster with a bad line, refuses to import it, then imports a good one', async () => {
     const { page, problems } = await newPage();
-    await signInAs(page, app.url, rune.email);
-    await page.goto(`${app.url}/classes`);
+    await signInAs(page, e2e.app.url, rune.email);
+    await page.goto(`${e2e.app.url}/classes`);
     await page.getByRole('list', { name: 'Classes' }).getByRole('link').first().click();
     await page.waitForURL(/\/classes\/\d+$/);
     const bad = join(tmpdir(), `roster-bad-${process.pid}.csv`);

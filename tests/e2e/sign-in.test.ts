@@ -1,19 +1,9 @@
-import type { Browser } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
-import { launchBrowser, SCREENSHOT_DIR } from './browser.ts';
-import { signInAs, startE2eServer, watchConsole, type E2eServer } from './support.ts';
+import { SCREENSHOT_DIR } from './browser.ts';
+import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
 
-let browser: Browser;
-let app: E2eServer;
-
-beforeAll(async () => {
-  [browser, app] = await Promise.all([launchBrowser(), startE2eServer()]);
-});
-afterAll(async () => {
-  await browser?.close();
-  await app?.close();
-});
+const e2e = browserAndServerForFile();
 
 const expectedNav = {
   student: ['Bench', 'My attempts', 'Progress'],
@@ -27,9 +17,9 @@ describe('signing in as each role', () => {
   for (const role of ['student', 'instructor', 'admin'] as const) {
     it(`shows a ${role} their own navigation`, async () => {
       const person = DEMO_PEOPLE.find((p) => p.role === role)!;
-      const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+      const page = await e2e.browser.newPage({ viewport: { width: 1280, height: 800 } });
       const problems = watchConsole(page);
-      await signInAs(page, app.url, person.email);
+      await signInAs(page, e2e.app.url, person.email);
       const nav = page.getByRole('navigation', { name: 'Main' });
       await expect.poll(() => nav.getByRole('link').allTextContents(), { timeout: 20_000 }).toEqual([...expectedNav[role]]);
       await expect.poll(() => page.getByRole('heading', { level: 1 }).first().textContent(), { timeout: 20_000 }).toBe(startPageTitle[role]);
@@ -42,9 +32,9 @@ describe('signing in as each role', () => {
   }
 
   it('lets an admin open every class and the scenario library from the menu', async () => {
-    const page = await browser.newPage({ viewport: { width: 1280, height: 800 } });
+    const page = await e2e.browser.newPage({ viewport: { width: 1280, height: 800 } });
     const problems = watchConsole(page);
-    await signInAs(page, app.url, DEMO_PEOPLE.find((p) => p.role === 'admin')!.email);
+    await signInAs(page, e2e.app.url, DEMO_PEOPLE.find((p) => p.role === 'admin')!.email);
     const nav = page.getByRole('navigation', { name: 'Main' });
     await nav.getByRole('link', { name: 'Classes' }).click();
     await page.waitForURL(/\/classes$/);
@@ -59,8 +49,8 @@ describe('signing in as each role', () => {
   });
 
   it('shows an error for a wrong password and keeps the user on the sign-in page', async () => {
-    const page = await browser.newPage();
-    await page.goto(`${app.url}/sign-in`);
+    const page = await e2e.browser.newPage();
+    await page.goto(`${e2e.app.url}/sign-in`);
     await page.getByLabel('E-mail').fill(DEMO_PEOPLE[0]!.email);
     await page.getByLabel('Password').fill('definitely-wrong');
     await page.getByRole('button', { name: 'Sign in' }).click();
@@ -70,11 +60,11 @@ describe('signing in as each role', () => {
   });
 
   it('sends a signed-out visitor to sign-in and shows a 404 page for unknown addresses', async () => {
-    const page = await browser.newPage();
-    await page.goto(`${app.url}/admin/users`);
+    const page = await e2e.browser.newPage();
+    await page.goto(`${e2e.app.url}/admin/users`);
     await page.waitForURL(/\/sign-in\?next=/);
-    await signInAs(page, app.url, DEMO_PEOPLE.find((p) => p.role === 'student')!.email);
-    await page.goto(`${app.url}/no/such/page`);
+    await signInAs(page, e2e.app.url, DEMO_PEOPLE.find((p) => p.role === 'student')!.email);
+    await page.goto(`${e2e.app.url}/no/such/page`);
     await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toMatch(/nothing at this address/);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/not-found.png` });
     await page.close();

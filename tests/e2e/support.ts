@@ -1,11 +1,13 @@
 import { fileURLToPath } from 'node:url';
-import type { Page } from 'playwright-core';
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll } from 'vitest';
 import { readEnv } from '../../server/env.ts';
 import { startServer, type RunningServer } from '../../server/main.ts';
 import { startSmtpFake, type SmtpFake } from '../../server/services/smtp-fake.ts';
 import { connect } from '../../server/db/client.ts';
 import { DEMO_PASSWORD } from '../../server/db/demo-people.ts';
 import { createTestDatabase } from '../server/support.ts';
+import { launchBrowser } from './browser.ts';
 
 const distDir = fileURLToPath(new URL('../../dist', import.meta.url));
 
@@ -52,4 +54,26 @@ export async function signInAs(page: Page, baseUrl: string, email: string, passw
   await page.getByLabel('Password').fill(password);
   await page.getByRole('button', { name: 'Sign in' }).click();
   await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
+}
+
+/** A browser and a demo server for one test file: both start before its tests and close after them. */
+export function browserAndServerForFile(): { readonly browser: Browser; readonly app: E2eServer } {
+  const held: { browser?: Browser; app?: E2eServer } = {};
+  beforeAll(async () => {
+    [held.browser, held.app] = await Promise.all([launchBrowser(), startE2eServer()]);
+  });
+  afterAll(async () => {
+    await held.browser?.close();
+    await held.app?.close();
+  });
+  return {
+    get browser() {
+      if (!held.browser) throw new Error('the browser starts in beforeAll');
+      return held.browser;
+    },
+    get app() {
+      if (!held.app) throw new Error('the server starts in beforeAll');
+      return held.app;
+    },
+  };
 }
