@@ -278,6 +278,31 @@ function solveBridge(n: NetworkInput, lr: LinearResponses, ifs: number): void {
  * Deterministic: the cached responses are exactly what a fresh solve gives.
  */
 export function solveNetwork(n: NetworkInput): NetworkSolution {
+  return solveNetworkInto(n, blankSolution());
+}
+
+/** Zero ripple transfer, for a solution not yet written. */
+const NO_RIPPLE: NodeVoltages = Object.freeze({ batteryPos: 0, junction: 0, bplus: 0, altCase: 0, engine: 0, chassis: 0, batteryNeg: 0 });
+
+/** A solution for solveNetworkInto to fill: fresh objects, keys in the order JSON shows them. */
+export function blankSolution(): NetworkSolution {
+  return {
+    nodeV: { batteryPos: 0, junction: 0, bplus: 0, altCase: 0, engine: 0, chassis: 0, batteryNeg: 0 },
+    branchA: { battery: 0, pile: 0, posCable: 0, bplusCable: 0, alternator: 0, mount: 0, strap: 0, negCable: 0, loads: 0, starter: 0 },
+    rippleOhm: NO_RIPPLE,
+    bridgeCurrentA: 0,
+    fieldSupplyA: 0,
+    rippleCurrentRmsA: 0,
+    rippleHarmonic: 6,
+  };
+}
+
+/**
+ * solveNetwork written into `out` (its nodeV and branchA objects are
+ * overwritten): for the step, which keeps only the last of many solutions.
+ * `out` is written only after everything has been read from `n`.
+ */
+export function solveNetworkInto(n: NetworkInput, out: NetworkSolution): NetworkSolution {
   const lr = responsesFor(n);
   const we = lr.perEmf;
   const wb = lr.perBridgeA;
@@ -300,24 +325,29 @@ export function solveNetwork(n: NetworkInput): NetworkSolution {
   const vEn = e * we[EN]! + src * wb[EN]!;
   const vCh = e * we[CH]! + src * wb[CH]!;
   const gb = 1 / n.batteryR;
-  return {
-    nodeV: { batteryPos: vBp, junction: vJn, bplus: vBpl, altCase: vAc, engine: vEn, chassis: vCh, batteryNeg: 0 },
-    branchA: {
-      battery: (e - vBp) * gb,
-      pile: n.pileG * vBp,
-      posCable: n.posG * (vBp - vJn),
-      bplusCable: n.bplusG * (vBpl - vJn),
-      alternator: ib - ifs - n.internalG * (vBpl - vAc),
-      mount: n.mountG * (vEn - vAc),
-      strap: n.strapG * (vCh - vEn),
-      negCable: n.negG * vCh,
-      loads: n.loadG * (vJn - vCh),
-      starter: n.starterG * (vJn - vEn),
-    },
-    rippleOhm: lr.rippleOhm,
-    bridgeCurrentA: ib,
-    fieldSupplyA: ifs,
-    rippleCurrentRmsA: point.acRmsA,
-    rippleHarmonic: point.dominantHarmonic,
-  };
+  const v = out.nodeV;
+  v.batteryPos = vBp;
+  v.junction = vJn;
+  v.bplus = vBpl;
+  v.altCase = vAc;
+  v.engine = vEn;
+  v.chassis = vCh;
+  v.batteryNeg = 0;
+  const a = out.branchA;
+  a.battery = (e - vBp) * gb;
+  a.pile = n.pileG * vBp;
+  a.posCable = n.posG * (vBp - vJn);
+  a.bplusCable = n.bplusG * (vBpl - vJn);
+  a.alternator = ib - ifs - n.internalG * (vBpl - vAc);
+  a.mount = n.mountG * (vEn - vAc);
+  a.strap = n.strapG * (vCh - vEn);
+  a.negCable = n.negG * vCh;
+  a.loads = n.loadG * (vJn - vCh);
+  a.starter = n.starterG * (vJn - vEn);
+  out.rippleOhm = lr.rippleOhm;
+  out.bridgeCurrentA = ib;
+  out.fieldSupplyA = ifs;
+  out.rippleCurrentRmsA = point.acRmsA;
+  out.rippleHarmonic = point.dominantHarmonic;
+  return out;
 }

@@ -16,7 +16,7 @@ import type { VehicleParams } from './params.ts';
 import type { Controls, InputEvent } from './inputs.ts';
 import { applyInput } from './inputs.ts';
 import type { SimState } from './step.ts';
-import { DT_MS, initialState, step } from './step.ts';
+import { DT_MS, blankState, initialState, step, stepInto } from './step.ts';
 import { rawClampReadingA } from './instruments.ts';
 
 /** Everything needed to carry on from a moment. */
@@ -50,6 +50,13 @@ export function orderEvents(events: readonly InputEvent[]): readonly InputEvent[
 }
 
 /**
+ * The state the steps before the last of an `advance` are written into: only
+ * the last step makes the new state returned, so a long advance allocates
+ * one state, not one per step. Nothing outside `advance` ever sees it.
+ */
+const workingState: SimState = blankState();
+
+/**
  * Apply due events and step `steps` times (events must be in time order; the
  * client appends live events with atMs = the current sim time). Pure.
  */
@@ -74,7 +81,8 @@ export function advance(
       next++;
       nextAtMs = next < events.length ? events[next]!.atMs : Infinity;
     }
-    state = step(params, state, controls, DT_MS);
+    if (i === steps - 1) state = step(params, state, controls, DT_MS);
+    else state = stepInto(params, state, controls, DT_MS, state === point.state ? workingState : state);
   }
   return { state, controls, nextEventIndex: next };
 }

@@ -18,7 +18,7 @@ import type { VehicleParams } from './params.ts';
 import type { Controls, Conductor, KeyPosition } from './inputs.ts';
 import { initialControls } from './inputs.ts';
 import type { NetworkInput, NetworkSolution } from './network.ts';
-import { solveNetwork } from './network.ts';
+import { blankSolution, solveNetworkInto } from './network.ts';
 import type { Model } from './model.ts';
 import {
   ALTERNATOR_INERTIA_KGM2,
@@ -227,7 +227,8 @@ function loadConductanceS(m: Model, keyOn: boolean, accessoriesOn: readonly stri
   return loadG;
 }
 
-function solveAt(n: NetworkInputs): NetworkSolution {
+/** The network at an operating point, written into `out` (see solveNetworkInto). */
+function solveAt(n: NetworkInputs, out: NetworkSolution): NetworkSolution {
   const m = n.model;
   const p = m.p;
   const c = n.controls;
@@ -262,7 +263,7 @@ function solveAt(n: NetworkInputs): NetworkSolution {
   ni.phaseResistanceOhm = copperAt(a.statorResistanceOhmAt20C, n.alternatorTempC) + a.diodeSeriesResistanceOhm;
   ni.diode = m.diode;
   ni.guessA = n.guessBridgeA;
-  return solveNetwork(ni);
+  return solveNetworkInto(ni, out);
 }
 
 /** Volts at the sense point (against the case) per ampere from the bridge. */
@@ -299,7 +300,7 @@ export function initialState(params: VehicleParams, seed: number): SimState {
     ammeterFuseBlown: false,
     modulesAwake: false,
     guessBridgeA: 0,
-  });
+  }, blankSolution());
   return {
     timeMs: 0,
     rngState: rng,
@@ -354,7 +355,56 @@ const stepInputs: NetworkInputs = {
   guessBridgeA: 0,
 };
 
+/** A state for stepInto to fill: fresh objects, every field in the order the step writes (and JSON shows) them. */
+export function blankState(): SimState {
+  return {
+    timeMs: 0,
+    rngState: 0,
+    controls: null as unknown as Controls,
+    engineStatus: 'off',
+    engineRpm: 0,
+    crankProgress01: 0,
+    engineLowVoltageS: 0,
+    lastKey: 'off',
+    altRpm: 0,
+    beltSlipping: false,
+    altTorqueNm: 0,
+    alternatorTempC: 0,
+    fieldCurrentA: 0,
+    fieldDuty01: 0,
+    regulatorIntegral01: 0,
+    regulatorSetPointV: 0,
+    regulatorSenseV: 0,
+    batterySoc01: 0,
+    batteryPolarizationV: 0,
+    fusibleLinkHeat01: 0,
+    fusibleLinkBlown: false,
+    pileTempC: 0,
+    pileTripped: false,
+    ammeterFuseHeat01: 0,
+    ammeterFuseBlown: false,
+    lastAmmeterInSeries: false,
+    modulesAwakeS: 0,
+    chargeWarning: false,
+    lowChargeS: 0,
+    clampOffsetA: 0,
+    clampConductorSeen: null,
+    net: blankSolution(),
+  };
+}
+
 export function step(params: VehicleParams, state: SimState, controls: Controls, dtMs: number = DT_MS): SimState {
+  return stepInto(params, state, controls, dtMs, blankState());
+}
+
+/**
+ * The step written into `out` instead of a new state, for callers that keep
+ * only the last of many steps (replay's advance): `out` may be `state`
+ * itself. Everything is read from `state` (and its network) before anything
+ * of `out` is written: the network is solved into `out.net` once the
+ * previous solution has been read, and the other fields are written last.
+ */
+export function stepInto(params: VehicleParams, state: SimState, controls: Controls, dtMs: number, out: SimState): SimState {
   const dt = dtMs / 1000;
   const timeMs = state.timeMs + dtMs;
   const model = effectiveModel(params, controls.faults, timeMs / 1000);
@@ -528,7 +578,8 @@ export function step(params: VehicleParams, state: SimState, controls: Controls,
   at.ammeterFuseBlown = fuseBlown;
   at.modulesAwake = awakeS > 0;
   at.guessBridgeA = prev.bridgeCurrentA;
-  const net = solveAt(at);
+  // From here on `prev` (which may be out.net) is not read again.
+  const net = solveAt(at, out.net);
 
   // Torque the alternator asks of the belt.
   const omegaAlt = (2 * Math.PI * altRpm) / 60;
@@ -559,38 +610,37 @@ export function step(params: VehicleParams, state: SimState, controls: Controls,
     clampOffsetA = (rngValue(rng) - 0.5) * 4;
   }
 
-  return {
-    timeMs,
-    rngState: rng,
-    controls,
-    engineStatus: status,
-    engineRpm,
-    crankProgress01: crank,
-    engineLowVoltageS: lowV,
-    lastKey: key,
-    altRpm,
-    beltSlipping: slipping,
-    altTorqueNm,
-    alternatorTempC: altTempC,
-    fieldCurrentA,
-    fieldDuty01: duty,
-    regulatorIntegral01: integral,
-    regulatorSetPointV: setPointV,
-    regulatorSenseV: newSenseV,
-    batterySoc01: soc01,
-    batteryPolarizationV: polarizationV,
-    fusibleLinkHeat01: linkBlown ? Math.max(1, linkHeat) : linkHeat,
-    fusibleLinkBlown: linkBlown,
-    pileTempC,
-    pileTripped,
-    ammeterFuseHeat01: fuseHeat,
-    ammeterFuseBlown: fuseBlown,
-    lastAmmeterInSeries: controls.ammeterInSeries,
-    modulesAwakeS: awakeS,
-    chargeWarning: lamp,
-    lowChargeS,
-    clampOffsetA,
-    clampConductorSeen: controls.clamp.conductor,
-    net,
-  };
+  out.timeMs = timeMs;
+  out.rngState = rng;
+  out.controls = controls;
+  out.engineStatus = status;
+  out.engineRpm = engineRpm;
+  out.crankProgress01 = crank;
+  out.engineLowVoltageS = lowV;
+  out.lastKey = key;
+  out.altRpm = altRpm;
+  out.beltSlipping = slipping;
+  out.altTorqueNm = altTorqueNm;
+  out.alternatorTempC = altTempC;
+  out.fieldCurrentA = fieldCurrentA;
+  out.fieldDuty01 = duty;
+  out.regulatorIntegral01 = integral;
+  out.regulatorSetPointV = setPointV;
+  out.regulatorSenseV = newSenseV;
+  out.batterySoc01 = soc01;
+  out.batteryPolarizationV = polarizationV;
+  out.fusibleLinkHeat01 = linkBlown ? Math.max(1, linkHeat) : linkHeat;
+  out.fusibleLinkBlown = linkBlown;
+  out.pileTempC = pileTempC;
+  out.pileTripped = pileTripped;
+  out.ammeterFuseHeat01 = fuseHeat;
+  out.ammeterFuseBlown = fuseBlown;
+  out.lastAmmeterInSeries = controls.ammeterInSeries;
+  out.modulesAwakeS = awakeS;
+  out.chargeWarning = lamp;
+  out.lowChargeS = lowChargeS;
+  out.clampOffsetA = clampOffsetA;
+  out.clampConductorSeen = controls.clamp.conductor;
+  // out.net already holds `net` (solved into it above).
+  return out;
 }
