@@ -589,6 +589,25 @@ const scratch: TableLookup = { mean: 0, dMeanDu: 0, acRms: 0, dominant: 6 };
 const pointRow: RowPosition = { is: 0, ts: 0 };
 
 /**
+ * The diode drop at the last current asked. Each step's solve starts from
+ * the current the previous step's ended on, where that solve's last
+ * iteration already took the drop: remembering it (keyed on all three
+ * inputs) spares a logarithm per step and gives the very same value.
+ */
+const dropMemo = { currentA: NaN, saturationCurrentA: NaN, nvt: NaN, dropV: 0 };
+
+function diodeDropAt(currentA: number, saturationCurrentA: number, nvt: number): number {
+  const memo = dropMemo;
+  if (memo.currentA === currentA && memo.saturationCurrentA === saturationCurrentA && memo.nvt === nvt) return memo.dropV;
+  const v = nvt * detLog1p(currentA / saturationCurrentA);
+  memo.currentA = currentA;
+  memo.saturationCurrentA = saturationCurrentA;
+  memo.nvt = nvt;
+  memo.dropV = v;
+  return v;
+}
+
+/**
  * Mean bridge output against a stiff DC side: solves
  * I = (E/X) g((V_th + R_th I + 2 V_f(I)) / E, R/X) by safeguarded Newton.
  */
@@ -618,7 +637,7 @@ export function bridgeOperatingPoint(inp: BridgePointInput, out: BridgePoint): B
   // Whether `scratch` holds the lookup at the final i (the loop stopped on convergence).
   let lookedUpAtI = false;
   for (let iter = 0; iter < 30; iter++) {
-    const vf = nvt * detLog1p(i / is);
+    const vf = diodeDropAt(i, is, nvt);
     const lk = lookupPlaced(table, (vth + rth * i + 2 * vf) / e, row, vf / e, scratch);
     const f = i - base * lk.mean;
     if (f > 0) hi = i;
@@ -634,7 +653,7 @@ export function bridgeOperatingPoint(inp: BridgePointInput, out: BridgePoint): B
     i = nextI;
   }
   if (!lookedUpAtI) {
-    const vfEnd = nvt * detLog1p(i / is);
+    const vfEnd = diodeDropAt(i, is, nvt);
     lookupPlaced(table, (vth + rth * i + 2 * vfEnd) / e, row, vfEnd / e, scratch);
   }
   out.meanA = i;

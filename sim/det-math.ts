@@ -106,44 +106,27 @@ export function detLog(x: number): number {
     e -= 54;
   }
   wordsF64[0] = y;
-  const hi = wordsU32[HIGH_WORD]!;
-  e += ((hi >>> 20) & 0x7ff) - 1023;
-  // Mantissa in [1, 2).
-  wordsU32[HIGH_WORD] = (hi & 0x000fffff) | 0x3ff00000;
-  let m = wordsF64[0]!;
+  const biased = (wordsU32[HIGH_WORD]! >>> 20) & 0x7ff;
+  e += biased - 1023;
+  // Mantissa in [1, 2): y times 2^-(its exponent), exact since only the
+  // exponent changes (the same bits as rewriting the exponent field, without
+  // a store and reload of half a double). 2^-1023 is below the table, so the
+  // top binade is halved first, also exactly.
+  let m = biased === 2046 ? y * 0.5 * pow2(-1022) : y * pow2(1023 - biased);
   if (m > 2 * SQRT_HALF) {
     m /= 2;
     e += 1;
   }
-  // log m = 2 atanh(s), s = (m - 1)/(m + 1), |s| <= 0.1716: the series
-  // s + s^3/3 + ... + s^23/23, written out term by term (the same operations
-  // in the same order as a loop over n = 3, 5, ..., 23, without the loop).
+  // log m = 2 atanh(s), s = (m - 1)/(m + 1), |s| <= 0.1716. (Kept a loop:
+  // written out, the function grows past what the compiler will inline.)
   const s = (m - 1) / (m + 1);
   const s2 = s * s;
   let term = s;
   let sum = s;
-  term *= s2;
-  sum += term / 3;
-  term *= s2;
-  sum += term / 5;
-  term *= s2;
-  sum += term / 7;
-  term *= s2;
-  sum += term / 9;
-  term *= s2;
-  sum += term / 11;
-  term *= s2;
-  sum += term / 13;
-  term *= s2;
-  sum += term / 15;
-  term *= s2;
-  sum += term / 17;
-  term *= s2;
-  sum += term / 19;
-  term *= s2;
-  sum += term / 21;
-  term *= s2;
-  sum += term / 23;
+  for (let n = 3; n <= 23; n += 2) {
+    term *= s2;
+    sum += term / n;
+  }
   return 2 * sum + e * LN2_LO + e * LN2_HI;
 }
 
