@@ -15,6 +15,7 @@
  */
 
 import type { VehicleParams } from './params.ts';
+import type { Fault } from './faults.ts';
 import type { Controls, Conductor, KeyPosition } from './inputs.ts';
 import { initialControls } from './inputs.ts';
 import type { NetworkInput, NetworkSolution } from './network.ts';
@@ -138,9 +139,56 @@ export function regulatorSetPointV(p: VehicleParams, regulatorTempC: number): nu
   return p.regulator.setPointVAt25C + p.regulator.tempCoeffVPerC * (regulatorTempC - 25);
 }
 
+/**
+ * What the step reads of its controls, copied out once per controls object.
+ * Every event replaces the controls with a new object (applyInput; none is
+ * ever edited), and those objects differ in shape from one another, which
+ * makes reading their fields slow where the step reads them every 10 ms;
+ * this copy always has one shape. Kept for the last controls object seen.
+ */
+interface ControlsRead {
+  of: Controls | null;
+  key: KeyPosition;
+  heldRpm: number;
+  accessoriesOn: readonly string[];
+  pileDial01: number;
+  ammeterInSeries: boolean;
+  bplusConnected: boolean;
+  faults: readonly Fault[];
+  clampConductor: Conductor | null;
+}
+
+const controlsRead: ControlsRead = {
+  of: null,
+  key: 'off',
+  heldRpm: 0,
+  accessoriesOn: [],
+  pileDial01: 0,
+  ammeterInSeries: false,
+  bplusConnected: true,
+  faults: [],
+  clampConductor: null,
+};
+
+function readControls(controls: Controls): ControlsRead {
+  const r = controlsRead;
+  if (r.of !== controls) {
+    r.of = controls;
+    r.key = controls.key;
+    r.heldRpm = controls.heldRpm;
+    r.accessoriesOn = controls.accessoriesOn;
+    r.pileDial01 = controls.pileDial01;
+    r.ammeterInSeries = controls.ammeterInSeries;
+    r.bplusConnected = controls.bplusConnected;
+    r.faults = controls.faults;
+    r.clampConductor = controls.clamp.conductor;
+  }
+  return r;
+}
+
 interface NetworkInputs {
   model: Model;
-  controls: Controls;
+  controls: ControlsRead;
   engineStatus: EngineStatus;
   altRpm: number;
   alternatorTempC: number;
@@ -287,7 +335,7 @@ export function initialState(params: VehicleParams, seed: number): SimState {
   const rng = nextRngState(seed >>> 0);
   const net = solveAt({
     model,
-    controls,
+    controls: readControls(controls),
     engineStatus: 'off',
     altRpm: 0,
     alternatorTempC: p.alternator.initialTempC,
@@ -340,7 +388,7 @@ export function initialState(params: VehicleParams, seed: number): SimState {
 // The step's operating point for solveAt, reused every step (solveAt keeps none of it).
 const stepInputs: NetworkInputs = {
   model: null as unknown as Model,
-  controls: null as unknown as Controls,
+  controls: controlsRead,
   engineStatus: 'off',
   altRpm: 0,
   alternatorTempC: 0,
@@ -407,10 +455,11 @@ export function step(params: VehicleParams, state: SimState, controls: Controls,
 export function stepInto(params: VehicleParams, state: SimState, controls: Controls, dtMs: number, out: SimState): SimState {
   const dt = dtMs / 1000;
   const timeMs = state.timeMs + dtMs;
-  const model = effectiveModel(params, controls.faults, timeMs / 1000);
+  const c = readControls(controls);
+  const model = effectiveModel(params, c.faults, timeMs / 1000);
   const p = model.p;
   const prev = state.net;
-  const key = controls.key;
+  const key = c.key;
   const keyOn = key !== 'off';
   let rng = state.rngState;
 
@@ -456,7 +505,7 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
     } else lowV = 0;
   }
   let targetRpm = 0;
-  if (status === 'running') targetRpm = clamp(Math.max(p.engine.idleRpm, controls.heldRpm), p.engine.idleRpm, p.engine.maxHeldRpm);
+  if (status === 'running') targetRpm = clamp(Math.max(p.engine.idleRpm, c.heldRpm), p.engine.idleRpm, p.engine.maxHeldRpm);
   else if (status === 'cranking') targetRpm = clamp((p.engine.crankRpm * starterV) / 10, 0, 1.5 * p.engine.crankRpm);
   const decay = decaysFor(model, dt);
   const lag = 1 - decay.engine;
@@ -544,28 +593,28 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
   const linkHeat = linkTarget + (state.fusibleLinkHeat01 - linkTarget) * decay.link;
   const linkBlown = state.fusibleLinkBlown || linkHeat >= 1;
 
-  const ammeterA = controls.ammeterInSeries ? prev.branchA.negCable : 0;
+  const ammeterA = c.ammeterInSeries ? prev.branchA.negCable : 0;
   const fuseRatio = ammeterA / AMMETER_FUSE_A;
   const fuseTarget = fuseRatio * fuseRatio;
   const fuseHeat = fuseTarget + (state.ammeterFuseHeat01 - fuseTarget) * decay.ammeterFuse;
-  const fuseBlown = state.ammeterFuseBlown || (controls.ammeterInSeries && fuseHeat >= 1);
+  const fuseBlown = state.ammeterFuseBlown || (c.ammeterInSeries && fuseHeat >= 1);
 
   const pileW = prev.nodeV.batteryPos * prev.branchA.pile;
   const pileTempC =
     state.pileTempC + (dt * (pileW - p.pile.coolingWPerC * (state.pileTempC - p.ambientC))) / p.pile.heatCapacityJPerC;
   let pileTripped = state.pileTripped;
   if (!pileTripped && pileTempC > p.pile.tripC) pileTripped = true;
-  else if (pileTripped && controls.pileDial01 === 0 && pileTempC < p.pile.resetC) pileTripped = false;
+  else if (pileTripped && c.pileDial01 === 0 && pileTempC < p.pile.resetC) pileTripped = false;
 
   // Modules wake with the key on, or when the battery circuit is broken and remade.
   let awakeS = state.modulesAwakeS;
-  if (keyOn || controls.ammeterInSeries !== state.lastAmmeterInSeries) awakeS = p.loads.moduleSleepDelayS;
+  if (keyOn || c.ammeterInSeries !== state.lastAmmeterInSeries) awakeS = p.loads.moduleSleepDelayS;
   else awakeS = Math.max(0, awakeS - dt);
 
   // ---- The network at the new operating point -------------------------------
   const at = stepInputs;
   at.model = model;
-  at.controls = controls;
+  at.controls = c;
   at.engineStatus = status;
   at.altRpm = altRpm;
   at.alternatorTempC = altTempC;
@@ -605,7 +654,7 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
 
   // ---- Clamp offset: moving the clamp disturbs its hall sensor ---------------
   let clampOffsetA = state.clampOffsetA;
-  if (controls.clamp.conductor !== state.clampConductorSeen) {
+  if (c.clampConductor !== state.clampConductorSeen) {
     rng = nextRngState(rng);
     clampOffsetA = (rngValue(rng) - 0.5) * 4;
   }
@@ -635,12 +684,12 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
   out.pileTripped = pileTripped;
   out.ammeterFuseHeat01 = fuseHeat;
   out.ammeterFuseBlown = fuseBlown;
-  out.lastAmmeterInSeries = controls.ammeterInSeries;
+  out.lastAmmeterInSeries = c.ammeterInSeries;
   out.modulesAwakeS = awakeS;
   out.chargeWarning = lamp;
   out.lowChargeS = lowChargeS;
   out.clampOffsetA = clampOffsetA;
-  out.clampConductorSeen = controls.clamp.conductor;
+  out.clampConductorSeen = c.clampConductor;
   // out.net already holds `net` (solved into it above).
   return out;
 }
