@@ -60,6 +60,21 @@ export interface Model {
   capacityAs: number;
   leakageG: number;
   diode: { saturationCurrentA: number; emissionCoefficient: number };
+  /** Conductances of the fixed paths, 1 / the resistances above (the negative cable with and without the series ammeter). */
+  posG: number;
+  bplusG: number;
+  mountG: number;
+  strapG: number;
+  negG: number;
+  negGWithAmmeter: number;
+  /** Inside the alternator, B+ to case: the regulator's electronics and any leakage. */
+  internalG: number;
+  /** Air under the hood, toward which the alternator cools. */
+  underhoodC: number;
+  /** The regulator reads the battery through a working sense line (else its own B+ stud). */
+  sensesBattery: boolean;
+  /** 2 pi x pole pairs: the electrical rad/s is this x alternator rpm / 60. */
+  twoPiPolePairs: number;
   /** e^(-dt/tau) of the fixed time constants, for the last dt asked (see decaysFor). */
   decays: Decays | null;
 }
@@ -113,6 +128,17 @@ export function compile(p: VehicleParams): Model {
   const joint = 2 * w.connectionResistanceOhm;
   // A path of exactly zero resistance would make the network singular.
   const floor = (r: number) => (r > MIN_PATH_OHM ? r : MIN_PATH_OHM);
+  const rPosOhm = floor(w.postClampPosOhm + copperResistanceOhm(w.batteryPosCableAwg, w.batteryPosCableLengthM) + joint);
+  const rBplusOhm = floor(
+    copperResistanceOhm(w.bplusCableAwg, w.bplusCableLengthM) +
+      copperResistanceOhm(w.fusibleLinkAwg, w.fusibleLinkLengthM) +
+      w.bplusExtraOhm +
+      joint,
+  );
+  const rNegOhm = floor(w.postClampNegOhm + copperResistanceOhm(w.batteryNegCableAwg, w.batteryNegCableLengthM) + joint);
+  const rStrapOhm = floor(copperResistanceOhm(w.groundStrapAwg, w.groundStrapLengthM) + joint);
+  const rMountOhm = floor(joint + w.groundExtraOhm);
+  const leakageG = a.keyOffLeakageA / 12.6;
   return {
     p,
     topology,
@@ -120,24 +146,29 @@ export function compile(p: VehicleParams): Model {
     emfConstantVsPerRad: emfConstant,
     fieldKneeA: a.fieldKneeCurrentA,
     tanhReference: detTanh(referenceFieldA / a.fieldKneeCurrentA),
-    rPosOhm: floor(w.postClampPosOhm + copperResistanceOhm(w.batteryPosCableAwg, w.batteryPosCableLengthM) + joint),
-    rBplusOhm: floor(
-      copperResistanceOhm(w.bplusCableAwg, w.bplusCableLengthM) +
-        copperResistanceOhm(w.fusibleLinkAwg, w.fusibleLinkLengthM) +
-        w.bplusExtraOhm +
-        joint,
-    ),
-    rNegOhm: floor(w.postClampNegOhm + copperResistanceOhm(w.batteryNegCableAwg, w.batteryNegCableLengthM) + joint),
-    rStrapOhm: floor(copperResistanceOhm(w.groundStrapAwg, w.groundStrapLengthM) + joint),
-    rMountOhm: floor(joint + w.groundExtraOhm),
+    rPosOhm,
+    rBplusOhm,
+    rNegOhm,
+    rStrapOhm,
+    rMountOhm,
     gPileMaxS: p.pile.maxCurrentAAt12V / 12,
     accessoryG,
     accessoryI,
     linkTimeConstantS: w.fusibleLinkI2tA2s / (w.fusibleLinkRatingA * w.fusibleLinkRatingA),
     starterG: p.engine.crankCurrentA / 10,
     capacityAs: capacityAs(p.battery),
-    leakageG: a.keyOffLeakageA / 12.6,
+    leakageG,
     diode: { saturationCurrentA: a.diodeSaturationCurrentA, emissionCoefficient: a.diodeEmissionCoefficient },
+    posG: 1 / rPosOhm,
+    bplusG: 1 / rBplusOhm,
+    mountG: 1 / rMountOhm,
+    strapG: 1 / rStrapOhm,
+    negG: 1 / rNegOhm,
+    negGWithAmmeter: 1 / (rNegOhm + AMMETER_RESISTANCE_OHM),
+    internalG: REGULATOR_SELF_CONDUCTANCE_S + leakageG,
+    underhoodC: p.ambientC + 0.4 * (p.engineTempC - p.ambientC),
+    sensesBattery: p.regulator.sense === 'battery' && !(w.senseLineOhm > 1000),
+    twoPiPolePairs: 2 * Math.PI * a.polePairs,
     decays: null,
   };
 }

@@ -24,11 +24,9 @@ import type { Model } from './model.ts';
 import {
   ALTERNATOR_INERTIA_KGM2,
   AMMETER_FUSE_A,
-  AMMETER_RESISTANCE_OHM,
   FIELD_DRIVER_DROP_V,
   FIELD_FREEWHEEL_V,
   effectiveModel,
-  REGULATOR_SELF_CONDUCTANCE_S,
   copperAt,
   decaysFor,
   fieldResistanceOhm,
@@ -128,10 +126,6 @@ const ALT_FRICTION_NM = 0.15;
 
 function clamp(x: number, lo: number, hi: number): number {
   return x < lo ? lo : x > hi ? hi : x;
-}
-
-function underhoodC(p: VehicleParams): number {
-  return p.ambientC + 0.4 * (p.engineTempC - p.ambientC);
 }
 
 /** Regulator set point at its temperature. */
@@ -285,10 +279,9 @@ function solveAt(n: NetworkInputs, out: NetworkSolution): NetworkSolution {
   // Resistance follows charge in steps of 0.1 % so the network's responses can be reused.
   const r0 = internalResistanceOhm(p.battery, Math.round(n.soc01 * 1000) / 1000);
   const emf = openCircuitVoltageV(n.soc01, p.battery.tempC) + n.polarizationV;
-  const negR = m.rNegOhm + (c.ammeterInSeries ? AMMETER_RESISTANCE_OHM : 0);
   const cranking = c.key === 'start' && (n.engineStatus === 'cranking' || n.engineStatus === 'stalled');
 
-  const omegaE = (2 * Math.PI * p.alternator.polePairs * n.altRpm) / 60;
+  const omegaE = (m.twoPiPolePairs * n.altRpm) / 60;
   const flux = relativeFlux(m, n.fieldCurrentA);
 
   const a = p.alternator;
@@ -296,12 +289,12 @@ function solveAt(n: NetworkInputs, out: NetworkSolution): NetworkSolution {
   ni.batteryEmfV = emf;
   ni.batteryR = r0;
   ni.pileG = n.pileOn ? m.gPileMaxS * c.pileDial01 * c.pileDial01 : 0;
-  ni.posG = 1 / m.rPosOhm;
-  ni.bplusG = n.linkOpen || !c.bplusConnected ? 0 : 1 / m.rBplusOhm;
-  ni.internalG = REGULATOR_SELF_CONDUCTANCE_S + m.leakageG;
-  ni.mountG = 1 / m.rMountOhm;
-  ni.strapG = 1 / m.rStrapOhm;
-  ni.negG = c.ammeterInSeries && n.ammeterFuseBlown ? 0 : 1 / negR;
+  ni.posG = m.posG;
+  ni.bplusG = n.linkOpen || !c.bplusConnected ? 0 : m.bplusG;
+  ni.internalG = m.internalG;
+  ni.mountG = m.mountG;
+  ni.strapG = m.strapG;
+  ni.negG = !c.ammeterInSeries ? m.negG : n.ammeterFuseBlown ? 0 : m.negGWithAmmeter;
   ni.loadG = loadG;
   ni.starterG = cranking ? m.starterG : 0;
   ni.fieldSupplyA = n.fieldDuty01 * n.fieldCurrentA;
@@ -315,16 +308,14 @@ function solveAt(n: NetworkInputs, out: NetworkSolution): NetworkSolution {
 }
 
 /** Volts at the sense point (against the case) per ampere from the bridge. */
-function senseTransferOhm(p: VehicleParams, net: NetworkSolution): number {
-  const senseOpen = p.wiring.senseLineOhm > 1000;
-  const z = p.regulator.sense === 'battery' && !senseOpen ? net.rippleOhm.batteryPos : net.rippleOhm.bplus;
+function senseTransferOhm(m: Model, net: NetworkSolution): number {
+  const z = m.sensesBattery ? net.rippleOhm.batteryPos : net.rippleOhm.bplus;
   return z - net.rippleOhm.altCase;
 }
 
 /** The regulator's reading of its sense point (relative to its own ground, the case). */
-function senseVoltage(p: VehicleParams, net: NetworkSolution): number {
-  const senseOpen = p.wiring.senseLineOhm > 1000;
-  const point = p.regulator.sense === 'battery' && !senseOpen ? net.nodeV.batteryPos : net.nodeV.bplus;
+function senseVoltage(m: Model, net: NetworkSolution): number {
+  const point = m.sensesBattery ? net.nodeV.batteryPos : net.nodeV.bplus;
   return point - net.nodeV.altCase;
 }
 
@@ -366,7 +357,7 @@ export function initialState(params: VehicleParams, seed: number): SimState {
     fieldDuty01: 0,
     regulatorIntegral01: 0,
     regulatorSetPointV: regulatorSetPointV(p, p.alternator.initialTempC),
-    regulatorSenseV: senseVoltage(p, net),
+    regulatorSenseV: senseVoltage(model, net),
     batterySoc01: clamp(p.battery.initialSoc01, 0, 1),
     batteryPolarizationV: p.battery.initialSurfaceChargeV,
     fusibleLinkHeat01: 0,
@@ -554,7 +545,7 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
     // are scaled by that (known from the last solution) to keep it stable with
     // a stiff battery, a resistive cable or an open B+ alike.
     const err = setPointV - senseV;
-    const sensitivityOhm = Math.max(1e-3, senseTransferOhm(p, prev));
+    const sensitivityOhm = Math.max(1e-3, senseTransferOhm(model, prev));
     const scale = Math.min(1, REGULATOR_REFERENCE_OHM / sensitivityOhm);
     integral = clamp(integral + REGULATOR_KI_PER_VS * scale * err * dt, 0, 1);
     duty = clamp(integral + REGULATOR_KP_PER_V * scale * err, 0, 1);
@@ -575,7 +566,7 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
   // ---- Temperatures, battery charge, fuses ---------------------------------
   const bridgeA = prev.bridgeCurrentA;
   const loadFraction = bridgeA / p.alternator.ratedCurrentA;
-  const altHotC = underhoodC(p) + p.alternator.fullLoadTempRiseC * loadFraction * loadFraction;
+  const altHotC = model.underhoodC + p.alternator.fullLoadTempRiseC * loadFraction * loadFraction;
   const altTempC = altHotC + (state.alternatorTempC - altHotC) * decay.alternatorThermal;
 
   const dischargeA = prev.branchA.battery;
@@ -637,7 +628,7 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
     omegaAlt > 1 ? (Math.max(0, portV * net.bridgeCurrentA) / p.alternator.efficiency01) / omegaAlt + ALT_FRICTION_NM : 0;
 
   // ---- Warning lamp ---------------------------------------------------------
-  const newSenseV = senseVoltage(p, net);
+  const newSenseV = senseVoltage(model, net);
   let lowChargeS = state.lowChargeS;
   let lamp = false;
   if (keyOn) {
