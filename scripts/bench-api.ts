@@ -305,7 +305,9 @@ async function main() {
         return { ms: performance.now() - t0, status: res.status };
       };
       const firstGrade = await gradeIdle();
-      const idleGrade = await gradeIdle();
+      // Idle: the median of the next three (the second grading in a server process has taken about twice the others; why is not pinned down yet).
+      const idleGrades = [await gradeIdle(), await gradeIdle(), await gradeIdle()];
+      const idleGrade = { ms: idleGrades.map((g) => g.ms).sort((a, b) => a - b)[1]!, status: idleGrades.every((g) => g.status === 200) ? 200 : idleGrades.find((g) => g.status !== 200)!.status };
       const idleGradingMs = idleGrade.ms;
 
       const results: RoundResult[] = [];
@@ -407,7 +409,7 @@ async function main() {
       console.log(`    p50          ${fmt(mean(p50s))} ms   noise ±${((spread(p50s) * 100) / 2).toFixed(0)} %`);
       console.log(`    p99          ${fmt(mean(p99s))} ms   goal < 50 ms: ratio ${(mean(p99s) / 50).toFixed(2)} ${mean(p99s) < 50 ? '(met)' : '(NOT met)'}   noise ±${((spread(p99s) * 100) / 2).toFixed(0)} %`);
       console.log(`    errors       ${errors}   goal 0 ${errors === 0 ? '(met)' : '(NOT met)'}`);
-      console.log(`    grading      ${fmt(mean(gradings))} ms under load, ${fmt(idleGradingMs)} ms idle (status ${idleGrade.status}; the scenario's first grading, with its reference procedures: ${fmt(firstGrade.ms)} ms)   goal < 100 ms: ratio ${(mean(gradings) / 100).toFixed(2)} ${mean(gradings) < 100 ? '(met)' : '(NOT met)'}   noise ±${((spread(gradings) * 100) / 2).toFixed(0)} %`);
+      console.log(`    grading      ${fmt(mean(gradings))} ms under load, ${fmt(idleGradingMs)} ms idle (median of 3; status ${idleGrade.status}; the scenario's first grading, with its reference procedures: ${fmt(firstGrade.ms)} ms)   goal < 100 ms: ratio ${(mean(gradings) / 100).toFixed(2)} ${mean(gradings) < 100 ? '(met)' : '(NOT met)'}   noise ±${((spread(gradings) * 100) / 2).toFixed(0)} %`);
       console.log(`    live board   stream status ${boardStatus}, ${boardMessages} messages received`);
     } finally {
       agent.destroy();
