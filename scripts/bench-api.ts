@@ -24,6 +24,8 @@ const DURATION_MS = Number(process.env.BENCH_SECONDS ?? 15) * 1000;
 const BATCH_EVERY_MS = 1000;
 const READ_EVERY_MS = 2000;
 const ROUNDS = 2;
+/** Gradings per round, spread over it (at a quarter, half and three quarters of the round). */
+const PROBES_PER_ROUND = 3;
 /** A first round of the same load, not counted: new connections, the board's first snapshot and cold code paths settle in it. */
 const WARM_UP_MS = Number(process.env.BENCH_WARM_UP_SECONDS ?? 5) * 1000;
 const SECRET = 'bench-secret-bench-secret-bench-secret';
@@ -49,8 +51,8 @@ interface RoundResult {
   all: Figures;
   post: Figures;
   read: Figures;
-  gradingMs: number;
-  gradingStatus: number;
+  gradingMs: number[];
+  gradingStatus: number[];
 }
 
 /** CPU seconds used so far by a process and its children (`tree`), or by every process of a command name (`comm`); Linux /proc, 0 elsewhere. */
@@ -286,7 +288,7 @@ async function main() {
       // Submitted at the ten-minute mark, after the last event of the script.
       const submitAtMs = Math.max(600_000, ...script.map((e) => e.atMs as number));
       const probeAttempts: number[] = [];
-      for (let round = 0; round < ROUNDS; round++) {
+      for (let probeIndex = 0; probeIndex < ROUNDS * PROBES_PER_ROUND; probeIndex++) {
         const started = await call(probe, 'POST', '/api/attempts', { scenarioId, mode: 'practice' });
         if (started.status !== 201) throw new Error(`starting the probe attempt answered ${started.status}: ${JSON.stringify(started.body)}`);
         const id = (started.body as { attempt: { id: number } }).attempt.id;
@@ -320,8 +322,8 @@ async function main() {
         const cpu0 = { server: cpuSeconds({ tree: server.child.pid }), postgres: cpuSeconds({ comm: 'postgres' }), load: process.cpuUsage() };
         const started = performance.now();
         const until = started + (warmUp ? WARM_UP_MS : DURATION_MS);
-        let gradingMs = Number.NaN;
-        let gradingStatus = 0;
+        const gradingMs: number[] = [];
+        const gradingStatus: number[] = [];
 
         const studentLoop = async (index: number) => {
           const who = students[index]!;
@@ -349,16 +351,19 @@ async function main() {
 
         const grading = (async () => {
           if (warmUp) return;
-          await new Promise((r) => setTimeout(r, DURATION_MS / 2));
-          const t0 = performance.now();
-          const res = await call(probe, 'POST', `/api/attempts/${probeAttempts[round]!}/submit`, {
-            atMs: submitAtMs,
-            readings: [],
-            diagnosis: { verdicts: [], faultKind: 'none', notes: '' },
-          });
-          gradingMs = performance.now() - t0;
-          gradingStatus = res.status;
-          if (res.status !== 200) console.log(`  grading probe answered ${res.status}: ${JSON.stringify(res.body)}`);
+          for (let k = 0; k < PROBES_PER_ROUND; k++) {
+            const at = started + (DURATION_MS * (k + 1)) / (PROBES_PER_ROUND + 1);
+            await new Promise((r) => setTimeout(r, Math.max(0, at - performance.now())));
+            const t0 = performance.now();
+            const res = await call(probe, 'POST', `/api/attempts/${probeAttempts[round * PROBES_PER_ROUND + k]!}/submit`, {
+              atMs: submitAtMs,
+              readings: [],
+              diagnosis: { verdicts: [], faultKind: 'none', notes: '' },
+            });
+            gradingMs.push(performance.now() - t0);
+            gradingStatus.push(res.status);
+            if (res.status !== 200) console.log(`  grading probe answered ${res.status}: ${JSON.stringify(res.body)}`);
+          }
         })();
 
         await Promise.all([...Array.from({ length: STUDENTS }, (_, i) => studentLoop(i)), grading]);
@@ -393,7 +398,7 @@ async function main() {
         for (const [name, x] of [['post-events', r.post], ['read-attempt', r.read], ['all', r.all]] as const) {
           console.log(`    ${name.padEnd(13)} n=${x.count}  p50 ${fmt(x.p50)} ms  p99 ${fmt(x.p99)} ms  max ${fmt(x.max)} ms  errors ${x.errors}`);
         }
-        console.log(`    grading a 10-minute attempt under load: ${fmt(r.gradingMs)} ms (status ${r.gradingStatus})`);
+        console.log(`    grading a 10-minute attempt under load: ${r.gradingMs.map(fmt).join(', ')} ms (status ${[...new Set(r.gradingStatus)].join(', ')})`);
       });
       console.log('  CPU time per request (20 in flight, no other load):');
       for (const c of costs) console.log(`    ${c.label.padEnd(13)} server ${c.serverMs.toFixed(2)} ms   PostgreSQL ${c.postgresMs.toFixed(2)} ms   (n=${c.n})`);
@@ -402,14 +407,18 @@ async function main() {
       const p99s = results.map((r) => r.all.p99);
       const p50s = results.map((r) => r.all.p50);
       const rates = results.map((r) => r.all.count / r.elapsedS);
-      const gradings = results.map((r) => r.gradingMs);
-      const errors = results.reduce((n, r) => n + r.all.errors + (r.gradingStatus === 200 ? 0 : 1), 0);
+      const gradings = results.flatMap((r) => r.gradingMs).sort((a, b) => a - b);
+      const gradingMedian = percentile(gradings, 50);
+      const gradingMax = gradings.at(-1)!;
+      const errors = results.reduce((n, r) => n + r.all.errors + r.gradingStatus.filter((st) => st !== 200).length, 0);
       console.log('  summary (mean of the rounds; noise = spread between rounds, (max - min) / mean):');
       console.log(`    throughput   ${mean(rates).toFixed(0)} requests/s   noise ±${((spread(rates) * 100) / 2).toFixed(0)} %`);
       console.log(`    p50          ${fmt(mean(p50s))} ms   noise ±${((spread(p50s) * 100) / 2).toFixed(0)} %`);
       console.log(`    p99          ${fmt(mean(p99s))} ms   goal < 50 ms: ratio ${(mean(p99s) / 50).toFixed(2)} ${mean(p99s) < 50 ? '(met)' : '(NOT met)'}   noise ±${((spread(p99s) * 100) / 2).toFixed(0)} %`);
       console.log(`    errors       ${errors}   goal 0 ${errors === 0 ? '(met)' : '(NOT met)'}`);
-      console.log(`    grading      ${fmt(mean(gradings))} ms under load, ${fmt(idleGradingMs)} ms idle (median of 3; status ${idleGrade.status}; the scenario's first grading, with its reference procedures: ${fmt(firstGrade.ms)} ms)   goal < 100 ms: ratio ${(mean(gradings) / 100).toFixed(2)} ${mean(gradings) < 100 ? '(met)' : '(NOT met)'}   noise ±${((spread(gradings) * 100) / 2).toFixed(0)} %`);
+      console.log(
+        `    grading      median ${fmt(gradingMedian)} ms, slowest ${fmt(gradingMax)} ms of ${gradings.length} under load; ${fmt(idleGradingMs)} ms idle (median of 3; status ${idleGrade.status}; the scenario's first grading, with its reference procedures: ${fmt(firstGrade.ms)} ms)   goal: every one < 100 ms: slowest ratio ${(gradingMax / 100).toFixed(2)} ${gradingMax < 100 ? '(met)' : '(NOT met)'}`,
+      );
       console.log(`    live board   stream status ${boardStatus}, ${boardMessages} messages received`);
     } finally {
       agent.destroy();
