@@ -121,7 +121,8 @@ async function setupThrough(
 /** The attempt's owner and scenario version (neither ever changes), kept per database. */
 const owners = scopedCache<number, { userId: number; scenarioVersionId: number }>(10_000);
 
-async function ownerOf(ctx: { db: Db; pool: pg.Pool }, attemptId: number): Promise<{ userId: number; scenarioVersionId: number }> {
+/** The attempt's owner and scenario version, from this process's memory after the first read (404 when there is no such attempt). */
+export async function attemptOwner(ctx: { db: Db; pool: pg.Pool }, attemptId: number): Promise<{ userId: number; scenarioVersionId: number }> {
   const hit = owners.of(ctx.db)?.get(attemptId);
   if (hit) return hit;
   const { rows } = await ctx.pool.query<{ userId: number; scenarioVersionId: number }>({
@@ -177,7 +178,7 @@ function predictMoveOn(
  * it on; submission checks the stored log itself for gaps.
  */
 export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUser, attemptId: number, body: unknown): Promise<PostEventsResponse> {
-  const owner = await ownerOf(ctx, attemptId);
+  const owner = await attemptOwner(ctx, attemptId);
   if (owner.userId !== user.id) throw forbidden('This attempt is not yours');
   const input = parseValue(postEventsSchema, body, 'body');
 

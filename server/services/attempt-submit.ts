@@ -21,7 +21,8 @@ export async function submitAttempt(db: Db, attemptId: number, input: SubmitInpu
     const attempt = await loadAttempt(tx, attemptId, { lock: true });
     if (attempt.status === 'submitted') throw conflict('This attempt has already been submitted');
 
-    const run = await loadAttemptRun(tx, attemptId);
+    // A running attempt has no diagnosis yet: that is what this stores.
+    const run = await loadAttemptRun(tx, attemptId, { ...attempt, diagnosis: null });
     const seqs = run.stored.map((s) => s.seq);
     const missing = seqs.findIndex((seq, i) => seq !== i + 1);
     if (missing !== -1) {

@@ -54,11 +54,21 @@ export function scenarioFaultEvents(def: Pick<ScenarioDefinition, 'faults'>): In
   }));
 }
 
-export async function loadAttemptRun(db: DbOrTx, attemptId: number): Promise<AttemptRunInputs> {
-  const [a] = await db
-    .select({ seed: attempts.seed, status: attempts.status, scenarioVersionId: attempts.scenarioVersionId, diagnosis: attempts.diagnosis, result: attempts.result })
-    .from(attempts)
-    .where(eq(attempts.id, attemptId));
+/**
+ * What re-runs an attempt: its row (read here unless the caller has it),
+ * definition and stored log.
+ */
+export async function loadAttemptRun(
+  db: DbOrTx,
+  attemptId: number,
+  known?: { seed: number; status: string; scenarioVersionId: number; diagnosis: unknown; result: unknown },
+): Promise<AttemptRunInputs> {
+  const [a] = known
+    ? [known]
+    : await db
+        .select({ seed: attempts.seed, status: attempts.status, scenarioVersionId: attempts.scenarioVersionId, diagnosis: attempts.diagnosis, result: attempts.result })
+        .from(attempts)
+        .where(eq(attempts.id, attemptId));
   if (!a) throw notFound('No such attempt');
   const definition = await loadDefinition(db, a.scenarioVersionId);
   const rows = await db
