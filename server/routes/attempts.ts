@@ -6,10 +6,9 @@ import { attemptIdParamsSchema, startAttemptSchema, submitSchema } from '../../s
 import { attemptReaderAccess } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
-import { forbidden } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
-import { attemptOwner, postEvents } from '../services/attempt-events.ts';
+import { postEvents, requireOwnAttempt } from '../services/attempt-events.ts';
 import { attemptBootstrap, loadAttemptWithEvents, myAttempts, startAttempt } from '../services/attempt-store.ts';
 import { submitAttempt } from '../services/attempt-submit.ts';
 
@@ -34,16 +33,16 @@ export function attemptRoutes(ctx: AppContext) {
     res.json(await attemptBootstrap(ctx, ctx.env.SESSION_SECRET, read));
   });
 
-  // The ownership check is made on the row the batch locks (see postEvents).
+  // The owner is checked from memory (requireOwnAttempt), and again by the statement that stores the batch.
   g.post('/:id/events', ['student'], async (req, res) => {
     const { id } = parseParams(attemptIdParamsSchema, req);
     res.json(await postEvents(ctx, currentUser(req), id, req.body ?? {}));
   });
 
-  // The owner never changes, so it is checked from memory (attemptOwner); the submission itself runs on the locked row.
+  // The owner never changes, so it is checked from memory (requireOwnAttempt); the submission itself runs on the locked row.
   g.post('/:id/submit', ['student'], async (req, res) => {
     const { id } = parseParams(attemptIdParamsSchema, req);
-    if ((await attemptOwner(ctx, id)).userId !== currentUser(req).id) throw forbidden('This attempt is not yours');
+    await requireOwnAttempt(ctx, currentUser(req), id);
     const input = parseBody(submitSchema, req);
     res.json(await submitAttempt(ctx.db, id, input));
   });

@@ -122,7 +122,7 @@ async function setupThrough(
 const owners = scopedCache<number, { userId: number; scenarioVersionId: number }>(10_000);
 
 /** The attempt's owner and scenario version, from this process's memory after the first read (404 when there is no such attempt). */
-export async function attemptOwner(ctx: { db: Db; pool: pg.Pool }, attemptId: number): Promise<{ userId: number; scenarioVersionId: number }> {
+async function attemptOwner(ctx: { db: Db; pool: pg.Pool }, attemptId: number): Promise<{ userId: number; scenarioVersionId: number }> {
   const hit = owners.of(ctx.db)?.get(attemptId);
   if (hit) return hit;
   const { rows } = await ctx.pool.query<{ userId: number; scenarioVersionId: number }>({
@@ -134,6 +134,13 @@ export async function attemptOwner(ctx: { db: Db; pool: pg.Pool }, attemptId: nu
   if (!row) throw notFound('No such attempt');
   owners.of(ctx.db)?.set(attemptId, row);
   return row;
+}
+
+/** The signed-in student's own attempt (its owner and scenario version), else 404 or 403. */
+export async function requireOwnAttempt(ctx: { db: Db; pool: pg.Pool }, user: SessionUser, attemptId: number): Promise<{ userId: number; scenarioVersionId: number }> {
+  const owner = await attemptOwner(ctx, attemptId);
+  if (owner.userId !== user.id) throw forbidden('This attempt is not yours');
+  return owner;
 }
 
 /**
@@ -178,8 +185,7 @@ function predictMoveOn(
  * it on; submission checks the stored log itself for gaps.
  */
 export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUser, attemptId: number, body: unknown): Promise<PostEventsResponse> {
-  const owner = await attemptOwner(ctx, attemptId);
-  if (owner.userId !== user.id) throw forbidden('This attempt is not yours');
+  const owner = await requireOwnAttempt(ctx, user, attemptId);
   const input = parseValue(postEventsSchema, body, 'body');
 
   const def = await loadDefinition(ctx.db, owner.scenarioVersionId);
