@@ -73,6 +73,11 @@ export function setupAfter(events: readonly InputEvent[]): Setup {
   return foldSetup(initialSetup(), events);
 }
 
+/** The set-up after `base` and then `added`, when it can be carried on: none of `added` is earlier in sim time than the events folded into `base`. */
+function carryOn(base: Setup, added: readonly InputEvent[]): Setup | null {
+  return added.every((e) => e.atMs >= base.maxAtMs) ? foldSetup(base, added) : null;
+}
+
 /**
  * The set-up after events 1..lastSeq of each attempt this process has
  * stored events for. An entry is used only when its lastSeq is the one in
@@ -106,9 +111,8 @@ async function setupThrough(
       if (!e) break;
       added.push(e);
     }
-    if (added.length === newLastSeq - oldLastSeq && added.every((e) => e.atMs >= cached.setup.maxAtMs)) {
-      return foldSetup(cached.setup, added);
-    }
+    const carried = added.length === newLastSeq - oldLastSeq ? carryOn(cached.setup, added) : null;
+    if (carried) return carried;
   }
   const { rows } = await ctx.pool.query<{ kind: string; simTimeMs: number; payload: unknown }>({
     name: 'events-prefix',
@@ -156,11 +160,9 @@ function predictMoveOn(
 ): { fromSeq: number; lastSeq: number; setup: Setup; simTimeMs: number } | null {
   const base = cached ?? (events[0]?.seq === 1 ? { lastSeq: 0, setup: initialSetup() } : undefined);
   if (!base || events.length === 0) return null;
-  for (let i = 0; i < events.length; i++) {
-    const { seq, event } = events[i]!;
-    if (seq !== base.lastSeq + i + 1 || event.atMs < base.setup.maxAtMs) return null;
-  }
-  const setup = foldSetup(base.setup, events.map((e) => e.event));
+  if (events.some((e, i) => e.seq !== base.lastSeq + i + 1)) return null;
+  const setup = carryOn(base.setup, events.map((e) => e.event));
+  if (!setup) return null;
   return { fromSeq: base.lastSeq, lastSeq: base.lastSeq + events.length, setup, simTimeMs: setup.maxAtMs };
 }
 
