@@ -77,7 +77,7 @@ interface KeptSession {
 export class SessionCache {
   private readonly kept: Lru<string, KeptSession>;
   private epoch = 0;
-  private listening: Promise<unknown> | null = null;
+  private listening = false;
 
   constructor(
     private readonly bus: LiveBus,
@@ -90,11 +90,12 @@ export class SessionCache {
   /** Starts listening (once); until the LISTEN is in place nothing is kept. */
   private listen(): void {
     if (this.listening) return;
+    this.listening = true;
     this.bus.onReconnect(() => {
       this.epoch++;
       this.kept.clear();
     });
-    this.listening = Promise.all([
+    void Promise.all([
       this.bus.subscribe(SESSION_CHANNEL, (sid) => this.kept.delete(sid)),
       this.bus.subscribe(USER_CHANNEL, (id) => this.forgetUser(Number(id))),
     ]).catch(() => undefined);
@@ -128,10 +129,6 @@ export class SessionCache {
 
   forgetUser(userId: number): void {
     this.kept.deleteWhere((k) => k.user.id === userId);
-  }
-
-  get size(): number {
-    return this.kept.size;
   }
 }
 

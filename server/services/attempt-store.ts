@@ -47,11 +47,16 @@ const attemptColumns = {
   startedAt: attempts.startedAt,
 };
 
+/** A stored row with its mode and status narrowed to the values the product knows. */
+function asAttemptRow(row: Omit<AttemptRow, 'mode' | 'status'> & { mode: string; status: string }): AttemptRow {
+  return { ...row, mode: row.mode === 'practice' ? 'practice' : 'assigned', status: row.status === 'submitted' ? 'submitted' : 'running' };
+}
+
 export async function loadAttempt(db: DbOrTx, attemptId: number, opts: { lock?: boolean } = {}): Promise<AttemptRow> {
   const q = db.select(attemptColumns).from(attempts).where(eq(attempts.id, attemptId));
   const [row] = opts.lock ? await q.for('update') : await q;
   if (!row) throw notFound('No such attempt');
-  return { ...row, mode: row.mode === 'practice' ? 'practice' : 'assigned', status: row.status === 'submitted' ? 'submitted' : 'running' };
+  return asAttemptRow(row);
 }
 
 /** What the assignment shows after submission (practice shows everything). */
@@ -122,7 +127,7 @@ export async function loadAttemptWithEvents(ctx: { db: Db; pool: pg.Pool }, atte
   const row = rows[0];
   if (!row) throw notFound('No such attempt');
   const { after, ...rest } = row;
-  const attempt: AttemptRow = { ...rest, mode: row.mode === 'practice' ? 'practice' : 'assigned', status: row.status === 'submitted' ? 'submitted' : 'running' };
+  const attempt = asAttemptRow(rest);
   const fresh = after.flatMap(([seq, kind, simTimeMs, payload]) => {
     const event = rowToInput({ kind, simTimeMs, payload });
     return event ? [{ seq, event }] : [];
