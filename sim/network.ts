@@ -270,17 +270,6 @@ function solveBridge(n: NetworkInput, lr: LinearResponses, ifs: number): void {
   bridgeOperatingPoint(b, point);
 }
 
-/**
- * Nodal analysis of the car's network. By superposition the node voltages
- * are v = E_b w_emf + (I_bridge - I_field) w_bridge; the
- * bridge sees the Thevenin source that gives, its nonlinear output is solved
- * against it, and every branch current follows from the node voltages.
- * Deterministic: the cached responses are exactly what a fresh solve gives.
- */
-export function solveNetwork(n: NetworkInput): NetworkSolution {
-  return solveNetworkInto(n, blankSolution());
-}
-
 /** Zero ripple transfer, for a solution not yet written. */
 const NO_RIPPLE: NodeVoltages = Object.freeze({ batteryPos: 0, junction: 0, bplus: 0, altCase: 0, engine: 0, chassis: 0, batteryNeg: 0 });
 
@@ -298,9 +287,16 @@ export function blankSolution(): NetworkSolution {
 }
 
 /**
- * solveNetwork written into `out` (its nodeV and branchA objects are
- * overwritten): for the step, which keeps only the last of many solutions.
- * `out` is written only after everything has been read from `n`.
+ * Nodal analysis of the car's network. By superposition the node voltages
+ * are v = E_b w_emf + (I_bridge - I_field) w_bridge; the
+ * bridge sees the Thevenin source that gives, its nonlinear output is solved
+ * against it, and every branch current follows from the node voltages.
+ * Deterministic: the cached responses are exactly what a fresh solve gives.
+ *
+ * The solution is written into `out` (its nodeV and branchA objects are
+ * overwritten; a fresh one comes from blankSolution): the step keeps only the
+ * last of many solutions. `out` is written only after everything has been
+ * read from `n`.
  */
 export function solveNetworkInto(n: NetworkInput, out: NetworkSolution): NetworkSolution {
   const lr = responsesFor(n);
