@@ -13,11 +13,8 @@
  * Units are in the names: V, Vac (rms), A, rpm, s, ms.
  */
 import type { DiagnosticTest, Fault } from '../sim/faults.ts';
-import type { ClampArrow, Conductor, ConnectionPoint, InputEvent, KeyPosition } from '../sim/inputs.ts';
-import { readMeters, type Readings } from '../sim/instruments.ts';
 import type { VehicleParams } from '../sim/params.ts';
-import { advance, startPoint, type ReplayPoint } from '../sim/replay.ts';
-import { DT_MS } from '../sim/step.ts';
+import { ScriptedBench } from '../sim/scripted-bench.ts';
 import { DIAGNOSTIC_TESTS, outputPassMarkA, type PassRules, type ScenarioDefinition } from './scenario.ts';
 
 export interface ReferenceMeasurement {
@@ -59,61 +56,14 @@ export const CRANKING_MIN_V = 9.6;
 /** Display tick: the grid on which the bench shows readings and the server samples them. */
 const TICK_MS = 100;
 
-/** A scripted bench: a growing event log stepped in sim time. */
-class Script {
-  private readonly events: InputEvent[];
-  private point: ReplayPoint;
-
-  constructor(
-    private readonly params: VehicleParams,
-    faults: readonly Fault[],
-  ) {
-    this.point = startPoint(params, REFERENCE_SEED);
-    this.events = faults.map((f, i) => ({ kind: 'fault-inject', atMs: 0, fault: { ...f, id: f.id || `fault-${i}`, onsetS: 0, intermittent: null } }));
-  }
-
-  private get timeMs(): number {
-    return this.point.state.timeMs;
-  }
-
-  private push(e: InputEvent): this {
-    this.events.push(e);
-    return this;
-  }
-
-  key(position: KeyPosition): this {
-    return this.push({ kind: 'key', atMs: this.timeMs, position });
-  }
-  rpm(rpm: number): this {
-    return this.push({ kind: 'rpm', atMs: this.timeMs, rpm });
-  }
-  pile(dial01: number): this {
-    return this.push({ kind: 'pile', atMs: this.timeMs, dial01 });
-  }
-  leads(red: ConnectionPoint, black: ConnectionPoint): this {
-    this.push({ kind: 'lead', atMs: this.timeMs, which: 'red', point: red });
-    return this.push({ kind: 'lead', atMs: this.timeMs, which: 'black', point: black });
-  }
-  clamp(conductor: Conductor | null, arrow: ClampArrow = 'toward-battery'): this {
-    return this.push({ kind: 'clamp', atMs: this.timeMs, conductor, arrow });
-  }
-  zeroClamp(): this {
-    return this.push({ kind: 'clamp-zero', atMs: this.timeMs });
-  }
-  accessory(id: string, on: boolean): this {
-    return this.push({ kind: 'accessory', atMs: this.timeMs, id, on });
-  }
-  ammeter(inSeries: boolean): this {
-    return this.push({ kind: 'ammeter', atMs: this.timeMs, inSeries });
-  }
-
-  wait(seconds: number): this {
-    this.point = advance(this.params, this.point, this.events, Math.max(1, Math.round((seconds * 1000) / DT_MS)));
-    return this;
-  }
-
-  read(): Readings {
-    return readMeters(this.params, this.point.state, this.point.controls);
+/** The scripted bench of a reference run: the scenario's faults in the log from the start, the reference seed, every wait at least one step. */
+class Script extends ScriptedBench {
+  constructor(params: VehicleParams, faults: readonly Fault[]) {
+    super(params, {
+      seed: REFERENCE_SEED,
+      events: faults.map((f, i) => ({ kind: 'fault-inject', atMs: 0, fault: { ...f, id: f.id || `fault-${i}`, onsetS: 0, intermittent: null } })),
+      atLeastOneStep: true,
+    });
   }
 
   /** Crank until the engine fires (or for `CRANK_MAX_S`), release, and return the lowest voltmeter reading seen on the display ticks. */
@@ -128,16 +78,6 @@ class Script {
     const started = this.point.state.engineStatus === 'running';
     this.key(started ? 'on' : 'off').wait(0.2);
     return { lowestV, started };
-  }
-
-  /** Turn the pile up in small steps until the voltmeter reads `targetV` or less, as the output procedure says. */
-  loadTo(targetV: number): void {
-    for (let d = 0.2; d <= 1.0001; d += 0.02) {
-      this.pile(Math.min(1, d)).wait(TICK_MS / 1000);
-      const v = this.read().voltmeterV;
-      if (v !== null && v <= targetV) break;
-    }
-    this.wait(0.5);
   }
 
   /** Set the pile so it draws about `targetA`, correcting the dial a few times. */
