@@ -14,11 +14,17 @@ import type { DiagnosisChoice } from '../../shared/scenario.ts';
 import type { ReferenceMeasurements } from '../../shared/reference-procedures.ts';
 import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, NO_FAULT_LABEL } from '../../shared/scenario.ts';
 
-/** One moment of the re-run. */
+/** The meters grading reads at a moment of the re-run. */
+export type SampleReadings = Pick<
+  Readings,
+  'voltmeterV' | 'rippleVac' | 'clampA' | 'ammeterA' | 'pileA' | 'tachRpm' | 'batterySoc01' | 'engine' | 'pileOverheated'
+>;
+
+/** One moment of the re-run: what the reading and mistake checks read of it. */
 export interface RunSample {
   atMs: number;
-  readings: Readings;
-  controls: Controls;
+  readings: SampleReadings;
+  controls: { clamp: Pick<Controls['clamp'], 'conductor'> };
   /** The link burnt open by current in this run (not a fault that came with the car). */
   linkBurnt: boolean;
 }
@@ -38,7 +44,7 @@ type MeterName = 'voltmeter' | 'ripple' | 'clamp' | 'pile ammeter' | 'series amm
 interface Meter {
   name: MeterName;
   /** In the base unit of the quantity: V, V AC, A or rpm. */
-  read: (r: Readings) => number | null;
+  read: (r: SampleReadings) => number | null;
 }
 
 const METERS: Readonly<Record<RecordedReading['quantity'], readonly Meter[]>> = {
