@@ -24,6 +24,12 @@ const envSchema = z.object({
    */
   GRADING_WORKERS: z.coerce.number().int().min(0).max(8).default(1),
   /**
+   * Memory each grading worker may hold for attempts it runs ahead while
+   * students work (server/services/run-ahead.ts), in MB: about 0.4 MB per
+   * 10 minutes of sim time. 0 runs nothing ahead.
+   */
+  GRADING_AHEAD_MB: z.coerce.number().min(0).max(4096).default(128),
+  /**
    * PostgreSQL connections this process keeps at most. Each busy bench holds
    * one for a few milliseconds a second; with several processes, keep the sum
    * under the server's max_connections.

@@ -42,7 +42,7 @@ export async function startServer(opts: { env?: Env; staticDir?: string; logLeve
   const env = opts.env ?? readEnv();
   const ctx = buildContext(env, opts.logLevel);
   // Submissions are graded on worker threads; they load before the server listens and warm up meanwhile.
-  const gradingReady = openSharedGradingPool({ workers: env.GRADING_WORKERS, log: ctx.log });
+  const gradingReady = openSharedGradingPool({ workers: env.GRADING_WORKERS, log: ctx.log, aheadBudgetBytes: env.GRADING_AHEAD_MB * 1024 * 1024 });
   // Build the rectifier characteristics of every fault topology now, so the first
   // grading or live injection of a diode or phase fault does not stall a request.
   prepareBridgeTables();

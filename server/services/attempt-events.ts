@@ -16,12 +16,14 @@ import { orderEvents } from '../../sim/replay.ts';
 import { postEventsSchema, type PostEventsResponse } from '../../shared/api/attempts.ts';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import { pendingActionSchema, type PendingAction } from '../../shared/api/live.ts';
+import type { ScenarioDefinition } from '../../shared/scenario.ts';
 import type { Db } from '../db/client.ts';
 import { scopedCache } from '../db/scoped-cache.ts';
 import { badRequest, conflict, forbidden, notFound } from '../http/errors.ts';
 import { parseValue } from '../http/validate.ts';
 import { loadDefinition } from './definitions.ts';
-import { rowToInput } from './live-attempt-run.ts';
+import { sendAhead } from './grading-pool.ts';
+import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
 import { testOfSetup } from './live-board.ts';
 
 async function pendingActions(pool: pg.Pool, attemptId: number): Promise<PendingAction[]> {
@@ -122,16 +124,23 @@ async function setupThrough(
   return setupAfter(rows.flatMap((r) => rowToInput(r) ?? []));
 }
 
-/** The attempt's owner and scenario version (neither ever changes), kept per database. */
-const owners = scopedCache<number, { userId: number; scenarioVersionId: number }>(10_000);
+/** What never changes of an attempt: its owner, scenario version and seed. */
+export interface AttemptOwner {
+  userId: number;
+  scenarioVersionId: number;
+  seed: number;
+}
 
-/** The attempt's owner and scenario version, from this process's memory after the first read (404 when there is no such attempt). */
-async function attemptOwner(ctx: { db: Db; pool: pg.Pool }, attemptId: number): Promise<{ userId: number; scenarioVersionId: number }> {
+/** The attempt's owner, scenario version and seed, kept per database. */
+const owners = scopedCache<number, AttemptOwner>(10_000);
+
+/** The attempt's owner, scenario version and seed, from this process's memory after the first read (404 when there is no such attempt). */
+async function attemptOwner(ctx: { db: Db; pool: pg.Pool }, attemptId: number): Promise<AttemptOwner> {
   const hit = owners.of(ctx.db)?.get(attemptId);
   if (hit) return hit;
-  const { rows } = await ctx.pool.query<{ userId: number; scenarioVersionId: number }>({
-    name: 'events-attempt-owner',
-    text: 'select user_id as "userId", scenario_version_id as "scenarioVersionId" from attempts where id = $1',
+  const { rows } = await ctx.pool.query<AttemptOwner>({
+    name: 'events-attempt-owner-seed',
+    text: 'select user_id as "userId", scenario_version_id as "scenarioVersionId", seed from attempts where id = $1',
     values: [attemptId],
   });
   const row = rows[0];
@@ -140,8 +149,8 @@ async function attemptOwner(ctx: { db: Db; pool: pg.Pool }, attemptId: number): 
   return row;
 }
 
-/** The signed-in student's own attempt (its owner and scenario version), else 404 or 403. */
-export async function requireOwnAttempt(ctx: { db: Db; pool: pg.Pool }, user: SessionUser, attemptId: number): Promise<{ userId: number; scenarioVersionId: number }> {
+/** The signed-in student's own attempt (its owner, scenario version and seed), else 404 or 403. */
+export async function requireOwnAttempt(ctx: { db: Db; pool: pg.Pool }, user: SessionUser, attemptId: number): Promise<AttemptOwner> {
   const owner = await attemptOwner(ctx, attemptId);
   if (owner.userId !== user.id) throw forbidden('This attempt is not yours');
   return owner;
@@ -164,6 +173,21 @@ function predictMoveOn(
   const setup = carryOn(base.setup, events.map((e) => e.event));
   if (!setup) return null;
   return { fromSeq: base.lastSeq, lastSeq: base.lastSeq + events.length, setup, simTimeMs: setup.maxAtMs };
+}
+
+/**
+ * Sends events fromSeq+1.. of the stored log to the grading worker, which
+ * runs the attempt ahead so that its submission re-runs only the tail
+ * (run-ahead.ts checks them against the submission's own log).
+ */
+function runAhead(attemptId: number, owner: AttemptOwner, def: ScenarioDefinition, fromSeq: number, events: InputEvent[]): void {
+  sendAhead({
+    attemptId,
+    seed: owner.seed,
+    fromSeq,
+    events,
+    ...(fromSeq === 0 ? { start: { params: def.vehicle.params, scenarioEvents: scenarioFaultEvents(def) } } : {}),
+  });
 }
 
 /**
@@ -249,6 +273,7 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
   if (attempt.status === 'submitted') throw conflict('This attempt has been submitted; it takes no more events');
   if (predicted && attempt.movedOn) {
     setups.of(ctx.db)?.set(attemptId, { lastSeq: predicted.lastSeq, setup: predicted.setup });
+    runAhead(attemptId, owner, def, predicted.fromSeq, input.events.map((e) => e.event));
     return { lastSeq: predicted.lastSeq, stored: input.events.length };
   }
 
@@ -276,7 +301,12 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
       values: [attemptId, lastSeq, currentTest, simTimeMs],
     });
     // The same lastSeq, whoever wrote it, means the same stored prefix and so the same set-up.
-    if (setup && moved.rows[0]?.lastSeq === lastSeq) setups.of(ctx.db)?.set(attemptId, { lastSeq, setup });
+    if (setup && moved.rows[0]?.lastSeq === lastSeq) {
+      setups.of(ctx.db)?.set(attemptId, { lastSeq, setup });
+      const added: InputEvent[] = [];
+      for (let seq = attempt.lastSeq + 1; seq <= lastSeq && fresh.has(seq); seq++) added.push(fresh.get(seq)!);
+      if (added.length === lastSeq - attempt.lastSeq) runAhead(attemptId, owner, def, attempt.lastSeq, added);
+    }
   }
   return { lastSeq, stored: insertedSeqs.size };
 }

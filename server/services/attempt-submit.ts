@@ -35,6 +35,7 @@ export async function submitAttempt(db: Db, attemptId: number, input: SubmitInpu
 
     const show = await showAfter(tx, attempt.assignmentId);
     const result = await gradeSubmission({
+      attemptId,
       definition: run.definition,
       seed: run.seed,
       events: run.events,

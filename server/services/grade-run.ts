@@ -13,12 +13,14 @@ import { healthyVehicle } from '../../shared/sealed-faults.ts';
 import type { Fault } from '../../sim/faults.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
 import { outputCurve } from '../../sim/instruments.ts';
-import { rerunAttempt } from './attempt-replay.ts';
+import { finishRerun, rerunAttempt, type RerunCursor } from './attempt-replay.ts';
 import { correctVerdicts, gradeAttempt } from './grading.ts';
 import { Lru } from '../db/scoped-cache.ts';
 
 /** One submission to grade: structured-clonable, so it can be posted to a worker. */
 export interface GradeJob {
+  /** The attempt, so that a re-run carried ahead for it (run-ahead.ts) can be checked against this job and used. */
+  attemptId?: number;
   definition: ScenarioDefinition;
   seed: number;
   /** The scenario's faults at 0 ms, then the stored log in seq order. */
@@ -42,10 +44,15 @@ export function verdictsFor(def: ScenarioDefinition, faults: readonly Fault[]): 
   return verdicts;
 }
 
-export function gradeRun(job: GradeJob): AttemptResult {
+/**
+ * Grades a job. `ahead`, when given, is the attempt's re-run carried ahead
+ * and checked against this job (RunAhead.take): it is carried on to the
+ * submission instead of re-running from the start.
+ */
+export function gradeRun(job: GradeJob, ahead: RerunCursor | null = null): AttemptResult {
   const { definition, submission } = job;
   const params = definition.vehicle.params;
-  const rerun = rerunAttempt(params, job.seed, job.events, submission.atMs);
+  const rerun = ahead ? finishRerun(ahead, submission.atMs) : rerunAttempt(params, job.seed, job.events, submission.atMs);
   const faults = rerun.final.controls.faults;
   const curve = job.showCurve
     ? {

@@ -15,6 +15,10 @@
  *   in the log; a replacement that cannot start is not retried.
  *   GRADING_WORKERS=0 grades there from the start.
  * - `close` stops the workers and fails what is still waiting with a 503.
+ * - `ahead` sends a stored batch to the worker that will grade the attempt
+ *   (chosen by attempt id), which runs the attempt ahead between jobs
+ *   (run-ahead.ts); that attempt's job waits for that worker. Grading in the
+ *   request's thread always re-runs from the start.
  *
  * Workers are a resource of the process, so `startServer` opens one shared
  * pool per process (counted, for tests that start several servers) and
@@ -25,7 +29,8 @@ import type { AttemptResult } from '../../shared/api/attempts.ts';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/errors.ts';
 import { gradeRun, type GradeJob } from './grade-run.ts';
-import type { FromWorker, ToWorker } from './grading-worker.ts';
+import type { FromWorker, ToWorker, WorkerOptions } from './grading-worker.ts';
+import type { AheadFeed } from './run-ahead.ts';
 
 export interface GradingPoolOptions {
   /** Worker threads; 0 grades in the request's thread. */
@@ -39,6 +44,8 @@ export interface GradingPoolOptions {
   startTimeoutMs?: number;
   /** The worker's module (tests swap in one that misbehaves). */
   workerUrl?: URL;
+  /** Memory each worker may hold for attempts run ahead, in bytes (0 runs none ahead). */
+  aheadBudgetBytes?: number;
 }
 
 export interface GradingStats {
@@ -52,10 +59,17 @@ export interface GradingStats {
   inThreadBecause: string | null;
   /** How long the last job took inside its worker, in ms. */
   lastWorkerMs: number | null;
+  /** Jobs graded from a re-run carried ahead, and batches sent ahead. */
+  gradedAhead: number;
+  batchesAhead: number;
+  /** The sim time the last job's attempt had been run ahead to (null when it was re-run from the start). */
+  lastAheadToMs: number | null;
 }
 
 export interface GradingPool {
   grade(job: GradeJob): Promise<AttemptResult>;
+  /** A batch just stored: the worker that will grade its attempt runs the attempt ahead. */
+  ahead(feed: AheadFeed): void;
   stats(): GradingStats;
   close(): Promise<void>;
 }
@@ -88,7 +102,8 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
   const slots: Slot[] = [];
   const queue: Pending[] = [];
   const startWaiters = new Set<() => void>();
-  const counts = { gradedInWorker: 0, gradedInThread: 0, replaced: 0, lastWorkerMs: null as number | null };
+  const counts = { gradedInWorker: 0, gradedInThread: 0, replaced: 0, lastWorkerMs: null as number | null, gradedAhead: 0, batchesAhead: 0, lastAheadToMs: null as number | null };
+  const aheadBudgetBytes = opts.aheadBudgetBytes ?? 0;
   let inThreadBecause: string | null = opts.workers > 0 ? null : 'GRADING_WORKERS is 0';
   let closing = false;
   let nextId = 1;
@@ -114,17 +129,24 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
       }
       return;
     }
-    for (const slot of slots) {
-      if (!slot.ready || slot.job) continue;
-      const p = queue.shift();
-      if (!p) return;
-      assign(slot, p);
+    // In queue order, each job to its attempt's worker (when that one is ready), else to any free one.
+    for (let i = 0; i < queue.length; ) {
+      const p = queue[i]!;
+      const own = p.job.attemptId !== undefined ? slotOf(p.job.attemptId) : null;
+      const slot = own?.ready ? (own.job ? null : own) : slots.find((s) => s.ready && !s.job);
+      if (slot) {
+        queue.splice(i, 1);
+        assign(slot, p);
+      } else i++;
     }
   };
 
+  /** The worker an attempt's batches and its job go to. */
+  const slotOf = (attemptId: number): Slot | null => (slots.length ? slots[attemptId % slots.length]! : null);
+
   const assign = (slot: Slot, p: Pending) => {
     try {
-      slot.worker.postMessage({ id: p.id, job: p.job } satisfies ToWorker);
+      slot.worker.postMessage({ kind: 'grade', id: p.id, job: p.job } satisfies ToWorker);
     } catch (err) {
       // The job could not be copied to the worker (not plain data): the same error as in-thread would be a bug too.
       p.reject(err);
@@ -152,7 +174,8 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
   const spawn = () => {
     let worker: Worker;
     try {
-      worker = new Worker(opts.workerUrl ?? DEFAULT_WORKER_URL, opts.execArgv ? { execArgv: opts.execArgv } : {});
+      const workerData: WorkerOptions = { aheadBudgetBytes };
+      worker = new Worker(opts.workerUrl ?? DEFAULT_WORKER_URL, { workerData, ...(opts.execArgv ? { execArgv: opts.execArgv } : {}) });
     } catch (err) {
       cannotStart(err instanceof Error ? err.message : String(err));
       return;
@@ -180,6 +203,8 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
         if (p) {
           counts.gradedInWorker++;
           counts.lastWorkerMs = msg.ms;
+          counts.lastAheadToMs = msg.aheadToMs ?? null;
+          if (msg.aheadToMs !== null && msg.aheadToMs !== undefined) counts.gradedAhead++;
           p.resolve(msg.result);
         }
         pump();
@@ -235,6 +260,17 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
         pump();
       });
     },
+    ahead(feed) {
+      if (closing || aheadBudgetBytes <= 0) return;
+      const slot = slotOf(feed.attemptId);
+      if (!slot) return;
+      try {
+        slot.worker.postMessage({ kind: 'ahead', feed } satisfies ToWorker);
+        counts.batchesAhead++;
+      } catch {
+        // Not plain data: nothing is run ahead, and the submission re-runs from the start.
+      }
+    },
     stats: () => ({ workers: slots.length, ...counts, inThreadBecause }),
     async close() {
       if (closing) return;
@@ -256,14 +292,15 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
 // ---------------------------------------------------------------------------
 // The process's pool
 
-let shared: { pool: Promise<GradingPool>; users: number } | null = null;
+let shared: { pool: Promise<GradingPool>; users: number; started: GradingPool | null } | null = null;
 
 /** Opens the process's pool (or joins the one open); release once per open. */
 export async function openSharedGradingPool(opts: GradingPoolOptions): Promise<{ pool: GradingPool; release(): Promise<void> }> {
-  if (!shared) shared = { pool: startGradingPool(opts), users: 0 };
+  if (!shared) shared = { pool: startGradingPool(opts), users: 0, started: null };
   const entry = shared;
   entry.users++;
   const pool = await entry.pool;
+  entry.started = pool;
   let released = false;
   return {
     pool,
@@ -277,6 +314,11 @@ export async function openSharedGradingPool(opts: GradingPoolOptions): Promise<{
       }
     },
   };
+}
+
+/** Sends a stored batch ahead to the process's pool, when one is open and has started. */
+export function sendAhead(feed: AheadFeed): void {
+  shared?.started?.ahead(feed);
 }
 
 /** Grades on the process's pool, or in this thread when none is open. */
