@@ -17,8 +17,10 @@
  * - `close` stops the workers and fails what is still waiting with a 503.
  * - `ahead` sends a stored batch to the worker that will grade the attempt
  *   (chosen by attempt id), which runs the attempt ahead between jobs
- *   (run-ahead.ts); that attempt's job waits for that worker. Grading in the
- *   request's thread always re-runs from the start.
+ *   (run-ahead.ts); that attempt's job waits for that worker. Batches are
+ *   sent a few times a second in one message, not one message each (a
+ *   message wakes the worker), and always before a job for that worker.
+ *   Grading in the request's thread always re-runs from the start.
  *
  * Workers are a resource of the process, so `startServer` opens one shared
  * pool per process (counted, for tests that start several servers) and
@@ -83,6 +85,8 @@ interface Pending {
 
 interface Slot {
   worker: Worker;
+  /** Batches waiting to be sent ahead to this worker. */
+  feeds: AheadFeed[];
   /** Its module loaded: it can grade, once warmed up. */
   loaded: boolean;
   /** Warmed up and taking jobs. */
@@ -93,6 +97,9 @@ interface Slot {
 }
 
 const DEFAULT_WORKER_URL = new URL('./grading-worker-entry.mjs', import.meta.url);
+
+/** How long a stored batch waits to be sent ahead with others. */
+const AHEAD_EVERY_MS = 200;
 
 const unavailable = (message: string) => new HttpError(503, message);
 
@@ -144,7 +151,30 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
   /** The worker an attempt's batches and its job go to. */
   const slotOf = (attemptId: number): Slot | null => (slots.length ? slots[attemptId % slots.length]! : null);
 
+  /** Sends the batches waiting for a worker (before a job, so that it sees every batch stored before the submission). */
+  const sendFeeds = (slot: Slot) => {
+    if (slot.feeds.length === 0) return;
+    const feeds = slot.feeds;
+    slot.feeds = [];
+    try {
+      slot.worker.postMessage({ kind: 'ahead', feeds } satisfies ToWorker);
+      counts.batchesAhead += feeds.length;
+    } catch {
+      // Not plain data: nothing is run ahead, and those submissions re-run from the start.
+    }
+  };
+  let feedTimer: NodeJS.Timeout | null = null;
+  const sendFeedsSoon = () => {
+    if (feedTimer) return;
+    feedTimer = setTimeout(() => {
+      feedTimer = null;
+      for (const slot of slots) sendFeeds(slot);
+    }, AHEAD_EVERY_MS);
+    feedTimer.unref();
+  };
+
   const assign = (slot: Slot, p: Pending) => {
+    sendFeeds(slot);
     try {
       slot.worker.postMessage({ kind: 'grade', id: p.id, job: p.job } satisfies ToWorker);
     } catch (err) {
@@ -180,7 +210,7 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
       cannotStart(err instanceof Error ? err.message : String(err));
       return;
     }
-    const slot: Slot = { worker, loaded: false, ready: false, job: null, timer: null, lastError: null };
+    const slot: Slot = { worker, feeds: [], loaded: false, ready: false, job: null, timer: null, lastError: null };
     slots.push(slot);
     const startTimer = setTimeout(() => {
       slot.lastError = new Error(`not ready within ${startTimeoutMs} ms`);
@@ -264,17 +294,14 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
       if (closing || aheadBudgetBytes <= 0) return;
       const slot = slotOf(feed.attemptId);
       if (!slot) return;
-      try {
-        slot.worker.postMessage({ kind: 'ahead', feed } satisfies ToWorker);
-        counts.batchesAhead++;
-      } catch {
-        // Not plain data: nothing is run ahead, and the submission re-runs from the start.
-      }
+      slot.feeds.push(feed);
+      sendFeedsSoon();
     },
     stats: () => ({ workers: slots.length, ...counts, inThreadBecause }),
     async close() {
       if (closing) return;
       closing = true;
+      if (feedTimer) clearTimeout(feedTimer);
       const stopped = unavailable('The server is shutting down');
       for (const p of queue.splice(0)) p.reject(stopped);
       for (const slot of [...slots]) {

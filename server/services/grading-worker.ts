@@ -16,7 +16,7 @@ import { prepareBridgeTables } from '../../sim/bridge.ts';
 import { gradeRun, warmUpJob, type GradeJob } from './grade-run.ts';
 import { RunAhead, type AheadFeed } from './run-ahead.ts';
 
-export type ToWorker = { kind: 'grade'; id: number; job: GradeJob } | { kind: 'ahead'; feed: AheadFeed };
+export type ToWorker = { kind: 'grade'; id: number; job: GradeJob } | { kind: 'ahead'; feeds: AheadFeed[] };
 export type FromWorker =
   | { kind: 'loaded' }
   | { kind: 'ready'; warmUpMs: number }
@@ -71,7 +71,7 @@ if (parentPort) {
 
   port.on('message', (msg: ToWorker) => {
     if (msg.kind === 'ahead') {
-      ahead.feed(msg.feed);
+      for (const feed of msg.feeds) ahead.feed(feed);
       if (ahead.pending) schedule();
       return;
     }
