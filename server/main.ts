@@ -38,6 +38,9 @@ export function buildContext(env: Env, logLevel: 'info' | 'warn' | 'error' | 'si
   };
 }
 
+/** How long an idle keep-alive connection stays open. */
+export const KEEP_ALIVE_MS = 65_000;
+
 export async function startServer(opts: { env?: Env; staticDir?: string; logLevel?: 'info' | 'warn' | 'error' | 'silent' } = {}): Promise<RunningServer> {
   const env = opts.env ?? readEnv();
   const ctx = buildContext(env, opts.logLevel);
@@ -57,6 +60,11 @@ export async function startServer(opts: { env?: Env; staticDir?: string; logLeve
     await grading.release();
     throw err;
   }
+  // An idle keep-alive connection is kept longer than the usual 60 s of a load balancer or a browser, so
+  // that it is the client that closes it, not this server just as the client sends on it (the client then
+  // sees a reset). Headers must be allowed a little longer still.
+  server.keepAliveTimeout = KEEP_ALIVE_MS;
+  server.headersTimeout = KEEP_ALIVE_MS + 1000;
   const port = (server.address() as AddressInfo).port;
   return {
     url: `http://${env.HOST}:${port}`,
