@@ -12,9 +12,30 @@ import type { AttemptResult, SubmitInput } from '../../shared/api/attempts.ts';
 import type { Db } from '../db/client.ts';
 import { attempts } from '../db/schema.ts';
 import { badRequest, conflict } from '../http/errors.ts';
-import { loadAttempt, showAfter } from './attempt-store.ts';
+import { loadAttempt, showAfter, type AttemptRow } from './attempt-store.ts';
+import type { GradeJob } from './grade-run.ts';
 import { gradeSubmission } from './grading-pool.ts';
-import { loadAttemptRun } from './live-attempt-run.ts';
+import { loadAttemptRun, type AttemptRunInputs } from './live-attempt-run.ts';
+
+/** The grading job of a submission: the attempt's stored log re-run to the submission, graded as its assignment says. */
+export function gradeJobOf(
+  attemptId: number,
+  attempt: Pick<AttemptRow, 'mode'>,
+  run: Pick<AttemptRunInputs, 'definition' | 'seed' | 'events'>,
+  show: { showCurveAfter: boolean; showFeedbackAfter: boolean },
+  submission: SubmitInput,
+): GradeJob {
+  return {
+    attemptId,
+    definition: run.definition,
+    seed: run.seed,
+    events: run.events,
+    submission,
+    mode: attempt.mode,
+    showFeedback: show.showFeedbackAfter,
+    showCurve: show.showCurveAfter,
+  };
+}
 
 export async function submitAttempt(db: Db, attemptId: number, input: SubmitInput): Promise<AttemptResult> {
   return db.transaction(async (tx) => {
@@ -33,17 +54,7 @@ export async function submitAttempt(db: Db, attemptId: number, input: SubmitInpu
       throw badRequest(`atMs: the submission (${input.atMs} ms) is earlier than the last stored event (${lastAtMs} ms)`, { field: 'atMs' });
     }
 
-    const show = await showAfter(tx, attempt.assignmentId);
-    const result = await gradeSubmission({
-      attemptId,
-      definition: run.definition,
-      seed: run.seed,
-      events: run.events,
-      submission: input,
-      mode: attempt.mode,
-      showFeedback: show.showFeedbackAfter,
-      showCurve: show.showCurveAfter,
-    });
+    const result = await gradeSubmission(gradeJobOf(attemptId, attempt, run, await showAfter(tx, attempt.assignmentId), input));
 
     await tx
       .update(attempts)

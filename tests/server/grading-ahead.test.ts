@@ -12,6 +12,7 @@ import { gradeRun } from '../../server/services/grade-run.ts';
 import { openSharedGradingPool, type GradingPool } from '../../server/services/grading-pool.ts';
 import { loadAttemptRun } from '../../server/services/live-attempt-run.ts';
 import { loadAttempt, showAfter } from '../../server/services/attempt-store.ts';
+import { gradeJobOf } from '../../server/services/attempt-submit.ts';
 import { assignmentId, leads, numbered, pileRamp, startEngine } from './attempts-bench.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
 
@@ -57,17 +58,8 @@ async function begin(email: string): Promise<{ agent: Agent; id: number }> {
 /** What grading the stored log from the start, in this thread, gives. */
 async function gradedFromStart(id: number, input: SubmitInput): Promise<AttemptResult> {
   const attempt = await loadAttempt(t.ctx.db, id);
-  const run = await loadAttemptRun(t.ctx.db, id);
-  const show = await showAfter(t.ctx.db, attempt.assignmentId);
-  return gradeRun({
-    definition: run.definition,
-    seed: run.seed,
-    events: run.events,
-    submission: input,
-    mode: attempt.mode,
-    showFeedback: show.showFeedbackAfter,
-    showCurve: show.showCurveAfter,
-  });
+  const job = gradeJobOf(id, attempt, await loadAttemptRun(t.ctx.db, id), await showAfter(t.ctx.db, attempt.assignmentId), input);
+  return gradeRun(job);
 }
 
 describe('an attempt run ahead while the student works', () => {
