@@ -15,7 +15,7 @@ import type { Readings } from '../../sim/instruments.ts';
 import { readMeters } from '../../sim/instruments.ts';
 import type { VehicleParams } from '../../sim/params.ts';
 import type { ReplayPoint } from '../../sim/replay.ts';
-import { advance, startPoint, stateAt } from '../../sim/replay.ts';
+import { advance, orderEvents, startPoint } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
 import type { BoardAttempt, LiveReadings } from '../../shared/api/live.ts';
 import type { DbOrTx } from '../db/client.ts';
@@ -27,6 +27,29 @@ import { injectionsByAttempt, injectionViews, type InjectionRow } from './live-i
 
 /** A re-run longer than this many steps is not made for the board (it would hold the process). */
 const MAX_BOARD_STEPS = 400_000;
+
+/**
+ * The board's re-runs share the event loop with every bench's requests, so
+ * they go in slices: after this many ms of work, other requests run before
+ * the next slice (a bench back after minutes offline, or a new watcher of a
+ * long attempt, would otherwise hold every request up for tens of ms).
+ */
+const BOARD_SLICE_MS = 4;
+/** Steps carried between looks at the clock: about half a millisecond. */
+const BOARD_CHUNK_STEPS = 500;
+
+/** A clock for slicing work: `pace` lets other work run once the slice is used up. */
+function slicer(stats: { yields: number }): { pace(): Promise<void> } {
+  let since = performance.now();
+  return {
+    async pace() {
+      if (performance.now() - since < BOARD_SLICE_MS) return;
+      stats.yields++;
+      await new Promise<void>((resolve) => setImmediate(resolve));
+      since = performance.now();
+    },
+  };
+}
 
 const boardColumns = {
   attemptId: attempts.id,
@@ -201,6 +224,8 @@ export interface BoardRunStats {
   carried: number;
   /** Stored events read (each read once, except those past a gap until it fills). */
   eventsLoaded: number;
+  /** Times a refresh let other work run between slices of its re-runs. */
+  yields: number;
 }
 
 /** The per-process cache of the board's re-runs (one entry per running attempt watched). */
@@ -288,7 +313,7 @@ function takeIn(entry: RunCacheEntry, fresh: RunItem[]): boolean {
 
 export function createBoardRuns(log: (message: string, err: unknown) => void): BoardRuns {
   const cache = new Map<number, RunCacheEntry>();
-  const stats: BoardRunStats = { fullRuns: 0, carried: 0, eventsLoaded: 0 };
+  const stats: BoardRunStats = { fullRuns: 0, carried: 0, eventsLoaded: 0, yields: 0 };
   // One refresh at a time per process, so two streams never take in the same events twice.
   let queue: Promise<unknown> = Promise.resolve();
 
@@ -317,6 +342,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
       if (list) list.push(r);
       else byAttempt.set(r.attemptId, [r]);
     }
+    const slices = slicer(stats);
     for (const row of rows) {
       try {
         let entry = cache.get(row.attemptId);
@@ -333,28 +359,38 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
         }
         if (!takeIn(entry, fresh)) entry.point = startPoint(entry.params, entry.seed);
         entry.through = Math.max(entry.through, row.lastSeq);
-        views.set(row.attemptId, carryTo(entry, row.simTimeMs));
+        views.set(row.attemptId, await carryTo(entry, row.simTimeMs, slices));
       } catch (err) {
         log('board re-run failed', err);
         views.set(row.attemptId, null);
       }
+      await slices.pace();
     }
     return views;
   }
 
-  /** The view at the attempt's sim time: carried forward from the kept moment, or run from the start. */
-  function carryTo(entry: RunCacheEntry, simTimeMs: number): LiveView | null {
+  /**
+   * The view at the attempt's sim time: carried forward from the kept moment,
+   * or run from the start, in chunks with other requests let in between
+   * slices (refreshes run one at a time, so nothing else touches the entry
+   * meanwhile). Stepping in chunks gives the states of stepping in one go.
+   */
+  async function carryTo(entry: RunCacheEntry, simTimeMs: number, slices: { pace(): Promise<void> }): Promise<LiveView | null> {
     const targetMs = Math.ceil(Math.max(simTimeMs, entry.lastAtMs) / DT_MS) * DT_MS;
     if (targetMs / DT_MS > MAX_BOARD_STEPS) return null;
-    const from = entry.point;
-    if (from.state.timeMs === 0 || from.state.timeMs > targetMs) {
-      entry.point = stateAt(entry.params, entry.seed, entry.events, targetMs);
+    let point = entry.point;
+    if (point.state.timeMs === 0 || point.state.timeMs > targetMs) {
+      point = startPoint(entry.params, entry.seed);
       stats.fullRuns++;
-    } else {
-      const steps = Math.round((targetMs - from.state.timeMs) / DT_MS);
-      entry.point = advance(entry.params, from, entry.events, steps);
-      stats.carried++;
+    } else stats.carried++;
+    const events = orderEvents(entry.events);
+    for (let steps = Math.round((targetMs - point.state.timeMs) / DT_MS); steps > 0; ) {
+      const n = Math.min(steps, BOARD_CHUNK_STEPS);
+      point = advance(entry.params, point, events, n);
+      steps -= n;
+      if (steps > 0) await slices.pace();
     }
+    entry.point = point;
     const readings = readMeters(entry.params, entry.point.state);
     return { currentTest: testOfSetup(entry.point.controls, readings), readings: liveReadings(readings) };
   }

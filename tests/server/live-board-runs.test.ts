@@ -154,6 +154,26 @@ describe('the board re-run cache', () => {
     expect(failures).toEqual([]);
   });
 
+  it('lets other work run while it carries a long stretch, and still equals a re-run from the start', async () => {
+    const runs = newRuns();
+    const a = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!, 23);
+    await store(a, [
+      { seq: 1, event: lead(0, 'red', 'battery-pos') },
+      { seq: 2, event: lead(0, 'black', 'battery-neg') },
+      { seq: 3, event: { kind: 'key', atMs: 1_000, position: 'start' } },
+      { seq: 4, event: { kind: 'key', atMs: 3_000, position: 'on' } },
+    ]);
+    await expectSameAsFromTheStart(runs, [a]);
+    const before = runs.stats.yields;
+    // Twenty minutes later (a bench back after being offline): a long carry forward, about 0.1 s of stepping.
+    await store(a, [{ seq: 5, event: { kind: 'pile', atMs: 1_200_000, dial01: 0.3 } }]);
+    await expectSameAsFromTheStart(runs, [a]);
+    // It let other requests in several times on the way (every few ms of stepping), not once at the end.
+    expect(runs.stats.yields - before).toBeGreaterThanOrEqual(5);
+    expect(runs.stats).toMatchObject({ fullRuns: 1, carried: 1 });
+    expect(failures).toEqual([]);
+  });
+
   it('costs three queries per refresh however many attempts are due, and none for events once no attempt is running', async () => {
     const runs = newRuns();
     const ids = await Promise.all([0, 1, 0, 1, 0].map((i, k) => makeAttempt(t.ctx.db, fx, fx.studentIds[i]!, 30 + k)));
