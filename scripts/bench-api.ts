@@ -57,7 +57,7 @@ interface Figures {
 interface RoundResult {
   elapsedS: number;
   /** Share of one core each used over the round. */
-  cpu: { server: number; postgres: number; load: number; machineBusy: number };
+  cpu: { server: number; postgres: number; load: number; machineBusy: number; waitedForCpu: number };
   all: Figures;
   post: Figures;
   read: Figures;
@@ -114,6 +114,27 @@ function machineTicks(): { busy: number; total: number } {
   }
 }
 
+/**
+ * Microseconds that some runnable task has waited for a CPU so far (Linux pressure stall information;
+ * NaN where the kernel does not report it). On a virtual machine this includes waiting for the host.
+ */
+function cpuWaitedUs(): number {
+  try {
+    const some = readFileSync('/proc/pressure/cpu', 'utf8').split('\n').find((l) => l.startsWith('some'));
+    return Number(/total=(\d+)/.exec(some ?? '')?.[1] ?? Number.NaN);
+  } catch {
+    return Number.NaN;
+  }
+}
+
+/** The share of the wall time `during` takes over which some task waited for a CPU. */
+async function cpuWaitShare(during: () => Promise<unknown>): Promise<number> {
+  const w0 = cpuWaitedUs();
+  const t0 = performance.now();
+  await during();
+  return (cpuWaitedUs() - w0) / 1000 / (performance.now() - t0);
+}
+
 function percentile(sorted: number[], p: number): number {
   if (sorted.length === 0) return Number.NaN;
   const i = Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1));
@@ -149,6 +170,8 @@ async function startServerProcess(databaseUrl: string): Promise<{ url: string; c
 async function main() {
   // Other work on the machine (or its host) slows every figure: say how busy it was before starting.
   const loadBefore = loadavg()[0]!;
+  // And how much tasks wait for a CPU with nothing of ours running (on a shared host, not always 0).
+  const idleWait = await cpuWaitShare(() => new Promise((r) => setTimeout(r, 3000)));
   await withTestCluster(async (env) => {
     const base = env.LOADLINE_TEST_PG!;
     const dbName = `bench_${randomBytes(4).toString('hex')}`;
@@ -366,6 +389,7 @@ async function main() {
         const warmUp = round < 0;
         const samples: Sample[] = [];
         const machine0 = machineTicks();
+        const waited0 = cpuWaitedUs();
         const cpu0 = { server: cpuSeconds({ tree: server.child.pid }), postgres: cpuSeconds({ comm: 'postgres' }), load: process.cpuUsage() };
         const started = performance.now();
         const until = started + (warmUp ? WARM_UP_MS : DURATION_MS);
@@ -430,6 +454,7 @@ async function main() {
             const m = machineTicks();
             return m.total > machine0.total ? (m.busy - machine0.busy) / (m.total - machine0.total) : Number.NaN;
           })(),
+          waitedForCpu: (cpuWaitedUs() - waited0) / 1e6 / elapsedS,
         };
         const report = (kind: Sample['kind'] | 'all') => {
           const chosen = samples.filter((x) => kind === 'all' || x.kind === kind);
@@ -442,10 +467,10 @@ async function main() {
 
       const fmt = (x: number) => x.toFixed(1);
       console.log(`API under load: ${STUDENTS} students on loopback, ${ROUNDS} rounds of ${DURATION_MS / 1000} s after a ${WARM_UP_MS / 1000} s warm-up under the same load, ${PROCESSES} server process${PROCESSES === 1 ? '' : 'es'} on one port; load generator, server and PostgreSQL share this ${cpus().length}-core machine`);
-      console.log(`  machine before starting: load average ${loadBefore.toFixed(1)} on ${cpus().length} cores (a benchmark just before, or other work, raises it and slows the figures)`);
+      console.log(`  machine before starting: load average ${loadBefore.toFixed(1)} on ${cpus().length} cores (a benchmark just before, or other work, raises it and slows the figures); with nothing of ours running, some task waited for a CPU ${(idleWait * 100).toFixed(0)} % of 3 s (the host's other work, on a virtual machine)`);
       results.forEach((r, i) => {
         console.log(
-          `  round ${i + 1}: ${(r.all.count / r.elapsedS).toFixed(0)} requests/s; cores used: server ${r.cpu.server.toFixed(2)}, PostgreSQL ${r.cpu.postgres.toFixed(2)}, load generator ${r.cpu.load.toFixed(2)}; machine ${(r.cpu.machineBusy * 100).toFixed(0)} % busy`,
+          `  round ${i + 1}: ${(r.all.count / r.elapsedS).toFixed(0)} requests/s; cores used: server ${r.cpu.server.toFixed(2)}, PostgreSQL ${r.cpu.postgres.toFixed(2)}, load generator ${r.cpu.load.toFixed(2)}; machine ${(r.cpu.machineBusy * 100).toFixed(0)} % busy, some task waiting for a CPU ${(r.cpu.waitedForCpu * 100).toFixed(0)} % of the time`,
         );
         for (const [name, x] of [['post-events', r.post], ['read-attempt', r.read], ['all', r.all]] as const) {
           console.log(`    ${name.padEnd(13)} n=${x.count}  p50 ${fmt(x.p50)} ms  p99 ${fmt(x.p99)} ms  max ${fmt(x.max)} ms  errors ${x.errors}`);
