@@ -340,40 +340,19 @@ export function initialState(params: VehicleParams, seed: number): SimState {
     modulesAwake: false,
     guessBridgeA: 0,
   }, blankSolution());
-  return {
-    timeMs: 0,
+  // The blank state fixes the fields and their order (one shape for every state); these are the ones not zero at the start.
+  return Object.assign(blankState(), {
     rngState: rng,
     controls,
-    engineStatus: 'off',
-    engineRpm: 0,
-    crankProgress01: 0,
-    engineLowVoltageS: 0,
-    lastKey: 'off',
-    altRpm: 0,
-    beltSlipping: false,
-    altTorqueNm: 0,
     alternatorTempC: p.alternator.initialTempC,
-    fieldCurrentA: 0,
-    fieldDuty01: 0,
-    regulatorIntegral01: 0,
     regulatorSetPointV: regulatorSetPointV(p, p.alternator.initialTempC),
     regulatorSenseV: senseVoltage(model, net),
     batterySoc01: clamp(p.battery.initialSoc01, 0, 1),
     batteryPolarizationV: p.battery.initialSurfaceChargeV,
-    fusibleLinkHeat01: 0,
-    fusibleLinkBlown: false,
     pileTempC: p.ambientC,
-    pileTripped: false,
-    ammeterFuseHeat01: 0,
-    ammeterFuseBlown: false,
-    lastAmmeterInSeries: false,
-    modulesAwakeS: 0,
-    chargeWarning: false,
-    lowChargeS: 0,
     clampOffsetA: (rngValue(rng) - 0.5) * 4,
-    clampConductorSeen: null,
     net,
-  };
+  });
 }
 
 // The step's operating point for solveAt, reused every step (solveAt keeps none of it).
