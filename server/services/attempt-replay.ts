@@ -82,11 +82,6 @@ export class SampleLog {
     this.conductor[i] = conductor === null ? 0 : CONDUCTORS.indexOf(conductor) + 1;
   }
 
-  /** The time of the last sample (-1 when there is none). */
-  get lastAtMs(): number {
-    return this.length === 0 ? -1 : this.floats[(this.length - 1) * FLOAT_COLUMNS]!;
-  }
-
   /** The samples as the objects grading reads. */
   toSamples(): RunSample[] {
     const out: RunSample[] = new Array(this.length);
