@@ -34,7 +34,7 @@ const envSchema = z.object({
    * one for a few milliseconds a second; with several processes, keep the sum
    * under the server's max_connections.
    */
-  DATABASE_POOL_SIZE: z.coerce.number().int().min(2).max(200).default(40),
+  DATABASE_POOL_SIZE: z.coerce.number().int().min(2).max(200).default(10),
 });
 
 export type Env = z.infer<typeof envSchema>;

@@ -22,7 +22,7 @@ export interface RunningServer {
   close(): Promise<void>;
 }
 
-export function buildContext(env: Env, logLevel: 'info' | 'warn' | 'error' | 'silent' = 'info'): AppContext & { closeDb(): Promise<void> } {
+export function buildContext(env: Env, logLevel: 'info' | 'warn' | 'error' | 'silent' = 'info'): AppContext & { openDb(): Promise<boolean>; closeDb(): Promise<void> } {
   const database = connect(env.DATABASE_URL, env.DATABASE_POOL_SIZE);
   return {
     env,
@@ -30,6 +30,7 @@ export function buildContext(env: Env, logLevel: 'info' | 'warn' | 'error' | 'si
     pool: database.pool,
     mailer: smtpMailer({ host: env.SMTP_HOST, port: env.SMTP_PORT, from: env.MAIL_FROM }),
     log: makeLogger(logLevel),
+    openDb: () => database.openAll(),
     // The live bus (made on first use) listens on a connection of its own: it goes with the pool.
     closeDb: async () => {
       await closeLiveBus(database.pool);
@@ -49,7 +50,13 @@ export async function startServer(opts: { env?: Env; staticDir?: string; logLeve
   // Build the rectifier characteristics of every fault topology now, so the first
   // grading or live injection of a diode or phase fault does not stall a request.
   prepareBridgeTables();
+  // The pool's connections are opened now, not when the first burst of requests wants them.
+  // A database that cannot be reached yet is no reason not to start: requests answer 503 until it is.
+  const dbReady = ctx.openDb().then((all) => {
+    if (!all) ctx.log('warn', 'could not open every database connection at start; they open as requests need them');
+  });
   const grading = await gradingReady;
+  await dbReady;
   const { app } = createApp(ctx, { staticDir: opts.staticDir });
   let server: Server;
   try {
