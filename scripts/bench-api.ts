@@ -214,14 +214,22 @@ async function main() {
 
     const server = await startServerProcess(databaseUrl);
     // node:http with kept-alive sockets: far cheaper per request than fetch, so the load generator takes less of the cores it shares with the server.
-    const agent = new http.Agent({ keepAlive: true, maxSockets: STUDENTS + 8 });
+    // Each student is a browser of their own, with its own kept-alive connections (up to six, as a browser opens to one host)
+    // used request after request. One agent shared by all would keep a few sockets busy, let the rest idle out, and open new
+    // ones all at once whenever latency rose, which no class of browsers does.
+    const agents = new Map<string, http.Agent>();
+    const agentOf = (who: { cookie: string }) => {
+      let a = agents.get(who.cookie);
+      if (!a) agents.set(who.cookie, (a = new http.Agent({ keepAlive: true, maxSockets: 6 })));
+      return a;
+    };
     const target = new URL(server.url);
     const call = (who: { cookie: string; csrf: string }, method: string, path: string, body?: unknown) =>
       new Promise<{ status: number; body: unknown }>((resolve, reject) => {
         const payload = body === undefined ? undefined : JSON.stringify(body);
         const req = http.request(
           {
-            agent,
+            agent: agentOf(who),
             host: target.hostname,
             port: target.port,
             method,
@@ -504,7 +512,7 @@ async function main() {
       );
       console.log(`    live board   stream status ${boardStatus}, ${boardMessages} messages received`);
     } finally {
-      agent.destroy();
+      for (const a of agents.values()) a.destroy();
       server.child.kill('SIGTERM');
       await db.end();
     }
