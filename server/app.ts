@@ -8,6 +8,7 @@ import { sessionMiddleware } from './auth/session.ts';
 import type { AppContext } from './context.ts';
 import { apiNotFound, errorHandler } from './http/errors.ts';
 import type { RouteSpec } from './http/route-table.ts';
+import { markReceived } from './http/server-timing.ts';
 import { allRouteGroups } from './routes/all.ts';
 import { sessionBusFor } from './services/live-bus.ts';
 
@@ -48,6 +49,7 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
 
   app.use(
     '/api',
+    markReceived,
     express.json({ limit: '256kb' }),
     sessionMiddleware({ pool: ctx.pool, secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY, bus: sessionBusFor(ctx) }),
     csrfProtection,

@@ -7,6 +7,7 @@ import { attemptReaderAccess } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
 import { routeGroup } from '../http/route-table.ts';
+import { receivedAt, ServerTiming } from '../http/server-timing.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
 import { postEvents, requireOwnAttempt } from '../services/attempt-events.ts';
 import { attemptBootstrap, loadAttemptWithEvents, myAttempts, startAttempt } from '../services/attempt-store.ts';
@@ -40,11 +41,18 @@ export function attemptRoutes(ctx: AppContext) {
   });
 
   // The owner never changes, so it is checked from memory (requireOwnAttempt); the submission itself runs on the locked row.
+  // Its answer says how long reading, grading and storing took (Server-Timing), as grading is what a class waits for at the end of a lab.
   g.post('/:id/submit', ['student'], async (req, res) => {
+    const arrived = receivedAt(res);
+    const timing = new ServerTiming(arrived);
+    // Reading the body, the session and the user.
+    timing.add('before', performance.now() - arrived);
     const { id } = parseParams(attemptIdParamsSchema, req);
     await requireOwnAttempt(ctx, currentUser(req), id);
     const input = parseBody(submitSchema, req);
-    res.json(await submitAttempt(ctx.db, id, input));
+    const result = await submitAttempt(ctx.db, id, input, { timing });
+    res.setHeader('Server-Timing', timing.header());
+    res.json(result);
   });
 
   return g;

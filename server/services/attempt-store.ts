@@ -69,6 +69,22 @@ export async function showAfter(db: DbOrTx, assignmentId: number | null): Promis
   return row ?? { showCurveAfter: true, showFeedbackAfter: true };
 }
 
+/** An attempt's row and what its assignment shows after submission (as `showAfter`), in one query. */
+export async function loadAttemptShowing(db: DbOrTx, attemptId: number): Promise<{ attempt: AttemptRow; show: { showCurveAfter: boolean; showFeedbackAfter: boolean } }> {
+  const [row] = await db
+    .select({
+      ...attemptColumns,
+      showCurveAfter: sql<boolean>`coalesce(${assignments.showCurveAfter}, true)`,
+      showFeedbackAfter: sql<boolean>`coalesce(${assignments.showFeedbackAfter}, true)`,
+    })
+    .from(attempts)
+    .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
+    .where(eq(attempts.id, attemptId));
+  if (!row) throw notFound('No such attempt');
+  const { showCurveAfter, showFeedbackAfter, ...attempt } = row;
+  return { attempt: asAttemptRow(attempt), show: { showCurveAfter, showFeedbackAfter } };
+}
+
 /** A random 31-bit seed for the model's generator. */
 export const newSeed = (): number => randomInt(0, 2 ** 31);
 

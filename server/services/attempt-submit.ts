@@ -7,22 +7,29 @@
  *
  * The grading runs with no transaction open and no row locked, so a queue of
  * submissions waiting for the grading workers holds no database connection
- * and stalls no other request. The result is stored in a short transaction
- * that locks the attempt (a batch of events takes the same lock and stores
- * nothing once the attempt is submitted) and first checks that the attempt
- * is still running and its stored log is the one graded. Events are never
- * changed once stored, so the same seqs mean the same log. When a batch
- * arrived meanwhile, the submission is graded again from the new log.
+ * and stalls no other request. The result is stored by one database call
+ * (one round trip: under load each round trip waits its turn on the event
+ * loop) that locks the attempt (a batch of events takes the same lock and
+ * stores nothing once the attempt is submitted) and first checks that the
+ * attempt is still running and its stored log is the one graded. Events are
+ * never changed once stored, so the same seqs mean the same log. When a
+ * batch arrived meanwhile, the submission is graded again from the new log.
+ * The attempt and its log are read at once, for the same reason.
+ *
+ * With a `ServerTiming`, the parts are timed: `read` (the attempt and its
+ * log), `grade` (waiting for a grading worker and grading), `worker` (the
+ * grading itself, inside the worker) and `store`.
  */
-import { eq, sql } from 'drizzle-orm';
+import { sql } from 'drizzle-orm';
 import type { AttemptResult, SubmitInput } from '../../shared/api/attempts.ts';
 import type { Db } from '../db/client.ts';
-import { attemptEvents, attempts } from '../db/schema.ts';
-import { badRequest, conflict } from '../http/errors.ts';
-import { loadAttempt, showAfter, type AttemptRow } from './attempt-store.ts';
+import { badRequest, conflict, notFound } from '../http/errors.ts';
+import type { ServerTiming } from '../http/server-timing.ts';
+import { loadAttemptShowing, type AttemptRow } from './attempt-store.ts';
+import { loadDefinition } from './definitions.ts';
 import type { GradeJob } from './grade-run.ts';
-import { gradeSubmission } from './grading-pool.ts';
-import { loadAttemptRun, type AttemptRunInputs } from './live-attempt-run.ts';
+import { gradeSubmission, type OnWorkerMs } from './grading-pool.ts';
+import { attemptRunOf, loadStoredInputs, type AttemptRunInputs } from './live-attempt-run.ts';
 
 /** The grading job of a submission: the attempt's stored log re-run to the submission, graded as its assignment says. */
 export function gradeJobOf(
@@ -48,23 +55,31 @@ export function gradeJobOf(
 const SUBMIT_TRIES = 3;
 
 /** Grades a job: the grading pool's, or (tests) one that does something meanwhile. */
-export type Grader = (job: GradeJob) => Promise<AttemptResult>;
+export type Grader = (job: GradeJob, onWorkerMs?: OnWorkerMs) => Promise<AttemptResult>;
 
-export async function submitAttempt(db: Db, attemptId: number, input: SubmitInput, grade: Grader = gradeSubmission): Promise<AttemptResult> {
+export interface SubmitOptions {
+  grade?: Grader;
+  timing?: ServerTiming;
+}
+
+export async function submitAttempt(db: Db, attemptId: number, input: SubmitInput, opts: SubmitOptions = {}): Promise<AttemptResult> {
+  const grade = opts.grade ?? gradeSubmission;
   for (let tries = 1; ; tries++) {
-    const stored = await tryStore(db, attemptId, input, grade);
+    const stored = await tryStore(db, attemptId, input, grade, opts.timing);
     if (stored) return stored;
     if (tries >= SUBMIT_TRIES) throw conflict('Events are still arriving for this attempt; submit again once they are sent', 'events');
   }
 }
 
 /** Grades the attempt's log as it is now and stores the result; null when the log changed while grading. */
-async function tryStore(db: Db, attemptId: number, input: SubmitInput, grade: Grader): Promise<AttemptResult | null> {
-  const attempt = await loadAttempt(db, attemptId);
+async function tryStore(db: Db, attemptId: number, input: SubmitInput, grade: Grader, timing: ServerTiming | undefined): Promise<AttemptResult | null> {
+  // The attempt (with what its assignment shows) and its log at once; the definition is kept in memory.
+  const readStarted = performance.now();
+  const [{ attempt, show }, stored] = await Promise.all([loadAttemptShowing(db, attemptId), loadStoredInputs(db, attemptId)]);
   if (attempt.status === 'submitted') throw conflict('This attempt has already been submitted');
-
   // A running attempt has no diagnosis yet: that is what this stores.
-  const run = await loadAttemptRun(db, attemptId, { ...attempt, diagnosis: null });
+  const run = attemptRunOf(attemptId, { ...attempt, diagnosis: null }, await loadDefinition(db, attempt.scenarioVersionId), stored);
+  timing?.add('read', performance.now() - readStarted);
   const seqs = run.stored.map((s) => s.seq);
   const missing = seqs.findIndex((seq, i) => seq !== i + 1);
   if (missing !== -1) {
@@ -75,30 +90,35 @@ async function tryStore(db: Db, attemptId: number, input: SubmitInput, grade: Gr
     throw badRequest(`atMs: the submission (${input.atMs} ms) is earlier than the last stored event (${lastAtMs} ms)`, { field: 'atMs' });
   }
 
-  const result = await grade(gradeJobOf(attemptId, attempt, run, await showAfter(db, attempt.assignmentId), input));
+  const job = gradeJobOf(attemptId, attempt, run, show, input);
+  const gradeStarted = performance.now();
+  const result = await grade(job, (ms) => timing?.add('worker', ms));
+  timing?.add('grade', performance.now() - gradeStarted);
 
-  return db.transaction(async (tx) => {
-    const locked = await loadAttempt(tx, attemptId, { lock: true });
-    if (locked.status === 'submitted') throw conflict('This attempt has already been submitted');
-    const [log] = await tx
-      .select({ n: sql<number>`count(*)::int`, last: sql<number>`coalesce(max(${attemptEvents.seq}), 0)::int` })
-      .from(attemptEvents)
-      .where(eq(attemptEvents.attemptId, attemptId));
-    if (log!.n !== seqs.length || log!.last !== (seqs.at(-1) ?? 0)) return null;
-    await tx
-      .update(attempts)
-      .set({
-        status: 'submitted',
-        readings: input.readings,
-        diagnosis: { atMs: input.atMs, ...input.diagnosis },
-        result,
-        grade: result.grade,
-        verified: result.verified,
-        timeToDiagnosisMs: result.timeToDiagnosisMs,
-        simTimeMs: Math.max(locked.simTimeMs, input.atMs),
-        submittedAt: new Date(),
-      })
-      .where(eq(attempts.id, attemptId));
-    return result;
-  });
+  const storeStarted = performance.now();
+  try {
+    return await storeResult(db, attemptId, input, seqs, result);
+  } finally {
+    timing?.add('store', performance.now() - storeStarted);
+  }
+}
+
+/**
+ * Stores a graded result in one call (loadline_store_submission, migration
+ * 0005): it locks the attempt, and stores nothing when it was submitted
+ * meanwhile (409) or its log is no longer `seqs` (null: grade again).
+ */
+async function storeResult(db: Db, attemptId: number, input: SubmitInput, seqs: number[], result: AttemptResult): Promise<AttemptResult | null> {
+  const diagnosis = { atMs: input.atMs, ...input.diagnosis };
+  const { rows } = await db.execute<{ outcome: string }>(sql`
+    select loadline_store_submission(
+      ${attemptId}::integer, ${seqs.length}::integer, ${seqs.at(-1) ?? 0}::integer, ${input.atMs}::integer,
+      ${JSON.stringify(input.readings)}::jsonb, ${JSON.stringify(diagnosis)}::jsonb, ${JSON.stringify(result)}::jsonb,
+      ${result.grade}::real, ${result.verified}::boolean, ${result.timeToDiagnosisMs}::integer
+    ) as outcome`);
+  const outcome = rows[0]?.outcome;
+  if (outcome === 'stored') return result;
+  if (outcome === 'changed') return null;
+  if (outcome === 'submitted') throw conflict('This attempt has already been submitted');
+  throw notFound('No such attempt');
 }

@@ -68,8 +68,11 @@ export interface GradingStats {
   lastAheadToMs: number | null;
 }
 
+/** Told how long a job took inside its worker, in ms (not called when it was graded in the request's thread). */
+export type OnWorkerMs = (ms: number) => void;
+
 export interface GradingPool {
-  grade(job: GradeJob): Promise<AttemptResult>;
+  grade(job: GradeJob, onWorkerMs?: OnWorkerMs): Promise<AttemptResult>;
   /** A batch just stored: the worker that will grade its attempt runs the attempt ahead. */
   ahead(feed: AheadFeed): void;
   stats(): GradingStats;
@@ -79,6 +82,7 @@ export interface GradingPool {
 interface Pending {
   id: number;
   job: GradeJob;
+  onWorkerMs: OnWorkerMs | undefined;
   resolve(result: AttemptResult): void;
   reject(err: unknown): void;
 }
@@ -235,6 +239,7 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
           counts.lastWorkerMs = msg.ms;
           counts.lastAheadToMs = msg.aheadToMs ?? null;
           if (msg.aheadToMs !== null && msg.aheadToMs !== undefined) counts.gradedAhead++;
+          p.onWorkerMs?.(msg.ms);
           p.resolve(msg.result);
         }
         pump();
@@ -282,11 +287,11 @@ export async function startGradingPool(opts: GradingPoolOptions): Promise<Gradin
   await ready;
 
   return {
-    async grade(job) {
+    async grade(job, onWorkerMs) {
       if (closing) throw unavailable('The server is shutting down');
       if (slots.length === 0) return inThread(job);
       return new Promise<AttemptResult>((resolve, reject) => {
-        queue.push({ id: nextId++, job, resolve, reject });
+        queue.push({ id: nextId++, job, onWorkerMs, resolve, reject });
         pump();
       });
     },
@@ -349,7 +354,7 @@ export function sendAhead(feed: AheadFeed): void {
 }
 
 /** Grades on the process's pool, or in this thread when none is open. */
-export async function gradeSubmission(job: GradeJob): Promise<AttemptResult> {
+export async function gradeSubmission(job: GradeJob, onWorkerMs?: OnWorkerMs): Promise<AttemptResult> {
   const pool = shared ? await shared.pool : null;
-  return pool ? pool.grade(job) : gradeRun(job);
+  return pool ? pool.grade(job, onWorkerMs) : gradeRun(job);
 }

@@ -61,7 +61,7 @@ export function scenarioFaultEvents(def: Pick<ScenarioDefinition, 'faults'>): In
 export async function loadAttemptRun(
   db: DbOrTx,
   attemptId: number,
-  known?: { seed: number; status: string; scenarioVersionId: number; diagnosis: unknown; result: unknown },
+  known?: AttemptRunRow,
 ): Promise<AttemptRunInputs> {
   const [a] = known
     ? [known]
@@ -70,16 +70,34 @@ export async function loadAttemptRun(
         .from(attempts)
         .where(eq(attempts.id, attemptId));
   if (!a) throw notFound('No such attempt');
-  const definition = await loadDefinition(db, a.scenarioVersionId);
+  const [definition, stored] = await Promise.all([loadDefinition(db, a.scenarioVersionId), loadStoredInputs(db, attemptId)]);
+  return attemptRunOf(attemptId, a, definition, stored);
+}
+
+/** What of an attempt's row a re-run needs. */
+export interface AttemptRunRow {
+  seed: number;
+  status: string;
+  scenarioVersionId: number;
+  diagnosis: unknown;
+  result: unknown;
+}
+
+/** The attempt's stored log, by seq (rows that are not an event the model knows are left out). */
+export async function loadStoredInputs(db: DbOrTx, attemptId: number): Promise<StoredInput[]> {
   const rows = await db
     .select({ seq: attemptEvents.seq, kind: attemptEvents.kind, simTimeMs: attemptEvents.simTimeMs, payload: attemptEvents.payload, source: attemptEvents.source })
     .from(attemptEvents)
     .where(eq(attemptEvents.attemptId, attemptId))
     .orderBy(asc(attemptEvents.seq));
-  const stored = rows.flatMap((r) => {
+  return rows.flatMap((r) => {
     const event = rowToInput(r);
     return event ? [{ seq: r.seq, source: r.source, event }] : [];
   });
+}
+
+/** What re-runs an attempt, from its row, its definition and its stored log. */
+export function attemptRunOf(attemptId: number, a: AttemptRunRow, definition: ScenarioDefinition, stored: StoredInput[]): AttemptRunInputs {
   const scenarioEvents = scenarioFaultEvents(definition);
   return {
     attemptId,

@@ -13,6 +13,7 @@ import { openSharedGradingPool, type GradingPool } from '../../server/services/g
 import { loadAttemptRun } from '../../server/services/live-attempt-run.ts';
 import { loadAttempt, showAfter } from '../../server/services/attempt-store.ts';
 import { gradeJobOf } from '../../server/services/attempt-submit.ts';
+import { parseServerTiming } from '../../server/http/server-timing.ts';
 import { assignmentId, leads, numbered, pileRamp, startEngine } from './attempts-bench.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
 
@@ -79,6 +80,13 @@ describe('an attempt run ahead while the student works', () => {
     expect(result).toEqual(await gradedFromStart(id, submission(SUBMIT_MS)));
     expect(result.readings).toHaveLength(1);
     expect(result.outputCurve?.fitted.length).toBeGreaterThan(10);
+    // The answer says how long its parts took: the grading in the worker is part of the grading, and every part of the whole.
+    const timing = parseServerTiming(res.headers['server-timing']);
+    expect(Object.keys(timing)).toEqual(['before', 'read', 'worker', 'grade', 'store', 'total']);
+    expect(Math.abs(timing.worker! - after.lastWorkerMs!)).toBeLessThanOrEqual(0.05 + 1e-9);
+    expect(timing.worker).toBeLessThanOrEqual(timing.grade! + 0.1);
+    // Each part is rounded to 0.1 ms, so the parts may sum to a little more than the whole.
+    expect(timing.before! + timing.read! + timing.grade! + timing.store!).toBeLessThanOrEqual(timing.total! + 0.2);
   });
 
   it('stays exact when batches come out of order and twice', async () => {

@@ -67,13 +67,15 @@ describe('a submission while it is graded', () => {
     const other = new pg.Client({ connectionString: t.databaseUrl });
     await other.connect();
     try {
-      const result = await submitAttempt(t.ctx.db, id, SUBMIT, async (job) => {
-        // Another session can take the attempt's row lock at once: no one holds it.
-        await other.query('begin');
-        const locked = await other.query<{ id: number }>('select id from attempts where id = $1 for update nowait', [id]);
-        await other.query('rollback');
-        seen.push({ checkedOut: t.ctx.pool.totalCount - t.ctx.pool.idleCount, lockedBy: locked.rows[0] ? null : 'someone' });
-        return gradeRun(job);
+      const result = await submitAttempt(t.ctx.db, id, SUBMIT, {
+        grade: async (job) => {
+          // Another session can take the attempt's row lock at once: no one holds it.
+          await other.query('begin');
+          const locked = await other.query<{ id: number }>('select id from attempts where id = $1 for update nowait', [id]);
+          await other.query('rollback');
+          seen.push({ checkedOut: t.ctx.pool.totalCount - t.ctx.pool.idleCount, lockedBy: locked.rows[0] ? null : 'someone' });
+          return gradeRun(job);
+        },
       });
       expect(seen).toEqual([{ checkedOut: 0, lockedBy: null }]);
       expect(result).toEqual(await gradedNow(id));
@@ -86,11 +88,13 @@ describe('a submission while it is graded', () => {
   it('takes in a batch stored meanwhile: graded again, with it', async () => {
     const id = await attemptWith(LOG);
     const jobs: GradeJob[] = [];
-    const result = await submitAttempt(t.ctx.db, id, SUBMIT, async (job) => {
-      jobs.push(job);
-      // The bench's last batch lands while the first grading runs (through the route, which takes the row lock).
-      if (jobs.length === 1) await agent.post(`/api/attempts/${id}/events`).send({ events: numbered(LATE, LOG.length + 1) }).expect(200);
-      return gradeRun(job);
+    const result = await submitAttempt(t.ctx.db, id, SUBMIT, {
+      grade: async (job) => {
+        jobs.push(job);
+        // The bench's last batch lands while the first grading runs (through the route, which takes the row lock).
+        if (jobs.length === 1) await agent.post(`/api/attempts/${id}/events`).send({ events: numbered(LATE, LOG.length + 1) }).expect(200);
+        return gradeRun(job);
+      },
     });
     expect(jobs).toHaveLength(2);
     expect(jobs[1]!.events.length - jobs[0]!.events.length).toBe(LATE.length);
@@ -99,13 +103,59 @@ describe('a submission while it is graded', () => {
     expect((await storedRow(id)).result).toEqual(result);
   });
 
+  it('takes in a batch whose transaction held the attempt when the store began, committing only while the store waited', async () => {
+    const id = await attemptWith(LOG);
+    const batch = new pg.Client({ connectionString: t.databaseUrl });
+    const watcher = new pg.Client({ connectionString: t.databaseUrl });
+    await Promise.all([batch.connect(), watcher.connect()]);
+    const late: InputEvent = { kind: 'pile', atMs: 16_000, dial01: 0.4 };
+    const jobs: GradeJob[] = [];
+    let committed: Promise<unknown> = Promise.resolve();
+    try {
+      const result = await submitAttempt(t.ctx.db, id, SUBMIT, {
+        grade: async (job) => {
+          jobs.push(job);
+          if (jobs.length === 1) {
+            // A batch being stored, as the events statement does it: the row locked, the event in, not yet committed.
+            await batch.query('begin');
+            await batch.query('select 1 from attempts where id = $1 for update', [id]);
+            await batch.query('insert into attempt_events (attempt_id, seq, sim_time_ms, kind, payload) values ($1, $2, $3, $4, $5)', [id, LOG.length + 1, late.atMs, late.kind, JSON.stringify(late)]);
+            // It commits once the store is waiting for the row, after the store's call has begun.
+            committed = (async () => {
+              for (let tries = 0; ; tries++) {
+                const { rows } = await watcher.query<{ n: number }>(
+                  "select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock' and query like '%loadline_store_submission%'",
+                );
+                if (rows[0]!.n > 0) break;
+                if (tries > 500) throw new Error('the store never waited for the row');
+                await new Promise((r) => setTimeout(r, 10));
+              }
+              await batch.query('commit');
+            })();
+          }
+          return gradeRun(job);
+        },
+      });
+      await committed;
+      // The store saw the batch committed while it waited, so the submission was graded again with it.
+      expect(jobs).toHaveLength(2);
+      expect(jobs[1]!.events.length - jobs[0]!.events.length).toBe(1);
+      expect(result).toEqual(await gradedNow(id));
+      expect((await storedRow(id)).result).toEqual(result);
+    } finally {
+      await Promise.all([batch.end(), watcher.end()]);
+    }
+  });
+
   it('gives up with 409 naming the events when batches keep arriving, and stores nothing', async () => {
     const id = await attemptWith(LOG);
     let next = LOG.length + 1;
-    const failure = await submitAttempt(t.ctx.db, id, SUBMIT, async (job) => {
-      await agent.post(`/api/attempts/${id}/events`).send({ events: numbered([{ kind: 'pile', atMs: 15_000 + next, dial01: 0.1 }], next) }).expect(200);
-      next++;
-      return gradeRun(job);
+    const failure = await submitAttempt(t.ctx.db, id, SUBMIT, {
+      grade: async (job) => {
+        await agent.post(`/api/attempts/${id}/events`).send({ events: numbered([{ kind: 'pile', atMs: 15_000 + next, dial01: 0.1 }], next) }).expect(200);
+        next++;
+        return gradeRun(job);
+      },
     }).catch((err: unknown) => err);
     expect(failure).toBeInstanceOf(HttpError);
     expect((failure as HttpError).status).toBe(409);

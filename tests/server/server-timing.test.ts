@@ -1,0 +1,33 @@
+/**
+ * The Server-Timing header (W3C Server Timing, https://www.w3.org/TR/server-timing/):
+ * `name;dur=ms` entries separated by commas, as the submission's answer carries.
+ */
+import { describe, expect, it } from 'vitest';
+import { parseServerTiming, ServerTiming } from '../../server/http/server-timing.ts';
+
+describe('Server-Timing', () => {
+  it('writes each part once, in the order first timed, with the total last', async () => {
+    const timing = new ServerTiming(performance.now() - 50);
+    timing.add('read', 2.04);
+    await timing.time('grade', () => new Promise((r) => setTimeout(r, 20)));
+    timing.add('read', 1); // a retry reads again: counted in the same part
+    const header = timing.header();
+    expect(header).toMatch(/^read;dur=3\.0, grade;dur=\d+\.\d, total;dur=\d+\.\d$/);
+    const parsed = parseServerTiming(header);
+    expect(parsed.read).toBe(3);
+    // setTimeout may fire a little early or late; the total counts from the given start, 50 ms before.
+    expect(parsed.grade).toBeGreaterThanOrEqual(15);
+    expect(parsed.total).toBeGreaterThanOrEqual(50 + parsed.grade!);
+  });
+
+  it('times a part that fails as well', async () => {
+    const timing = new ServerTiming();
+    await expect(timing.time('store', Promise.reject(new Error('refused')))).rejects.toThrow('refused');
+    expect(Object.keys(parseServerTiming(timing.header()))).toEqual(['store', 'total']);
+  });
+
+  it('reads headers as the specification writes them: descriptions and spaces allowed, entries without a duration left out', () => {
+    expect(parseServerTiming('db;dur=53.2, app;desc="Application";dur=47.2 , cache;desc="Cache hit", miss')).toEqual({ db: 53.2, app: 47.2 });
+    expect(parseServerTiming(undefined)).toEqual({});
+  });
+});
