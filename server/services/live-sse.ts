@@ -5,8 +5,16 @@
  */
 import type { Request, Response } from 'express';
 
+export interface SseMessage {
+  event: string;
+  data: unknown;
+  id?: string | number;
+}
+
 export interface SseStream {
   send(event: string, data: unknown, id?: string | number): void;
+  /** Several messages in one write: one system call and one wake-up of the reader, not one per message. */
+  sendAll(messages: readonly SseMessage[]): void;
   comment(text: string): void;
   closed(): boolean;
   /** Runs once, when the client goes away or the server ends the stream. */
@@ -16,6 +24,11 @@ export interface SseStream {
 
 export const SSE_RETRY_MS = 1_000;
 const HEARTBEAT_MS = 15_000;
+
+/** One message as the event stream format writes it (data as one line of JSON). */
+function frame({ event, data, id }: SseMessage): string {
+  return `event: ${event}\n${id === undefined ? '' : `id: ${id}\n`}data: ${JSON.stringify(data)}\n\n`;
+}
 
 export function openSse(req: Request, res: Response): SseStream {
   res.status(200);
@@ -52,11 +65,10 @@ export function openSse(req: Request, res: Response): SseStream {
 
   return {
     send(event, data, id) {
-      if (isClosed) return;
-      const lines = [`event: ${event}`];
-      if (id !== undefined) lines.push(`id: ${id}`);
-      lines.push(`data: ${JSON.stringify(data)}`);
-      res.write(`${lines.join('\n')}\n\n`);
+      if (!isClosed) res.write(frame({ event, data, ...(id === undefined ? {} : { id }) }));
+    },
+    sendAll(messages) {
+      if (!isClosed && messages.length > 0) res.write(messages.map(frame).join(''));
     },
     comment(text) {
       if (!isClosed) res.write(`: ${text.replace(/\n/g, ' ')}\n\n`);
