@@ -35,6 +35,11 @@ const envSchema = z.object({
    * under the server's max_connections.
    */
   DATABASE_POOL_SIZE: z.coerce.number().int().min(2).max(200).default(10),
+  /**
+   * How often an open class board checks the database for changes its
+   * notifications may have missed (one light query), in seconds.
+   */
+  BOARD_RECHECK_SECONDS: z.coerce.number().min(0.2).max(3600).default(30),
 });
 
 export type Env = z.infer<typeof envSchema>;

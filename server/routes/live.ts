@@ -11,6 +11,7 @@ import {
   clearSchema,
   injectSchema,
   type BenchInjection,
+  type BoardAttempt,
   type BoardSnapshot,
 } from '../../shared/api/live.ts';
 import { requireAttemptInstructor, requireAttemptOwner, requireClassInstructor } from '../auth/access.ts';
@@ -20,7 +21,7 @@ import { attempts } from '../db/schema.ts';
 import { conflict } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
-import { boardAttempts, className, classBoard, createBoardRuns } from '../services/live-board.ts';
+import { boardAttempts, boardVersionOf, boardVersions, className, classBoard, createBoardRuns } from '../services/live-board.ts';
 import { ATTEMPT_CHANNEL, INJECTION_CHANNEL, liveBusFor } from '../services/live-bus.ts';
 import { benchKeyOf, createClear, createInjection, injectionViews, listInjections, toBenchMessage, unappliedInjections } from '../services/live-injections.ts';
 import { openSse } from '../services/live-sse.ts';
@@ -54,6 +55,14 @@ export function liveRoutes(ctx: AppContext) {
     const sse = openSse(req, res);
     const bus = liveBusFor(ctx);
 
+    // What the board was last sent of each running attempt, to tell what a check of the database finds changed.
+    const shown = new Map<number, string>();
+    const show = (entries: readonly BoardAttempt[]) => {
+      for (const e of entries) {
+        if (e.status === 'running') shown.set(e.attemptId, boardVersionOf(e));
+        else shown.delete(e.attemptId);
+      }
+    };
     const due = new Set<number>();
     let timer: NodeJS.Timeout | null = null;
     let running = false;
@@ -64,10 +73,14 @@ export function liveRoutes(ctx: AppContext) {
       const ids = [...due];
       due.clear();
       try {
-        for (const entry of await boardAttempts(ctx.db, classId, ids, runs)) {
-          if (entry.status !== 'running') runs.forget(entry.attemptId);
-          sse.send('attempt', entry);
-        }
+        const entries = await boardAttempts(ctx.db, classId, ids, runs);
+        for (const entry of entries) if (entry.status !== 'running') runs.forget(entry.attemptId);
+        // One write for the whole update: with a class at work, one per attempt would be hundreds of writes a second.
+        sse.sendAll(entries.map((entry) => ({ event: 'attempt', data: entry })));
+        show(entries);
+        // An attempt on the board that is no longer the class's (deleted, or its student moved): the board starts over.
+        const returned = new Set(entries.map((e) => e.attemptId));
+        if (ids.some((id) => shown.has(id) && !returned.has(id))) void resync();
       } catch (err) {
         // Kept for the next update, as if they had not been taken.
         for (const id of ids) due.add(id);
@@ -82,9 +95,22 @@ export function liveRoutes(ctx: AppContext) {
     }
     const resync = async () => {
       try {
-        sse.send('snapshot', await snapshot(classId));
+        const snap = await snapshot(classId);
+        shown.clear();
+        show(snap.attempts);
+        sse.send('snapshot', snap);
       } catch (err) {
         ctx.log('warn', 'board snapshot failed', err);
+      }
+    };
+    /** Every so often, what notifications may have missed: the attempts whose version differs from the one sent, through the usual update. */
+    const recheck = async () => {
+      try {
+        const now = await boardVersions(ctx.db, classId);
+        for (const [id, version] of now) if (shown.get(id) !== version) schedule(id);
+        for (const id of shown.keys()) if (!now.has(id)) schedule(id);
+      } catch (err) {
+        ctx.log('warn', 'board check failed', err);
       }
     };
 
@@ -93,18 +119,24 @@ export function liveRoutes(ctx: AppContext) {
       await bus.subscribe(INJECTION_CHANNEL, (p) => schedule(Number(p.split(':')[0]))),
       bus.onReconnect(() => void resync()),
     ];
-    let lastPollAt = Date.now();
+    // Without notifications, the whole board again every FALLBACK_POLL_MS; with them, a light check every BOARD_RECHECK_SECONDS.
+    let lastCheckAt = Date.now();
     const poll = setInterval(() => {
-      if (bus.connected() && Date.now() - lastPollAt < 30_000) return;
-      lastPollAt = Date.now();
-      void resync();
-    }, FALLBACK_POLL_MS);
+      if (!bus.connected()) {
+        void resync();
+        return;
+      }
+      if (Date.now() - lastCheckAt < ctx.env.BOARD_RECHECK_SECONDS * 1000) return;
+      lastCheckAt = Date.now();
+      void recheck();
+    }, Math.min(FALLBACK_POLL_MS, ctx.env.BOARD_RECHECK_SECONDS * 1000));
     poll.unref();
     sse.onClose(() => {
       for (const u of unsubscribe) u();
       clearInterval(poll);
       if (timer) clearTimeout(timer);
     });
+    show(first.attempts);
     sse.send('snapshot', first);
   });
 

@@ -19,7 +19,7 @@ import { advance, orderEvents, startPoint } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
 import type { BoardAttempt, LiveReadings } from '../../shared/api/live.ts';
 import type { DbOrTx } from '../db/client.ts';
-import { assignments, attemptEvents, attempts, classes, enrollments, scenarioVersions, users } from '../db/schema.ts';
+import { assignments, attemptEvents, attempts, classes, enrollments, pendingInjections, scenarioVersions, users } from '../db/schema.ts';
 import { notFound } from '../http/errors.ts';
 import { loadDefinition } from './definitions.ts';
 import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
@@ -96,6 +96,35 @@ async function boardRows(db: DbOrTx, classId: number, where: ReturnType<typeof a
     .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
     .where(and(inClass(classId), where))
     .orderBy(users.name, attempts.id);
+}
+
+/**
+ * What a board entry shows that can change: its log, its sim time and its
+ * injections (made and applied). Equal versions mean the entry sent is still
+ * the one the database would give.
+ */
+export function boardVersionOf(a: Pick<BoardAttempt, 'lastSeq' | 'simTimeMs' | 'injections'>): string {
+  return `${a.lastSeq}:${a.simTimeMs}:${a.injections.length}:${a.injections.filter((i) => i.appliedAt !== null).length}`;
+}
+
+/**
+ * The version (boardVersionOf) of each running attempt of the class, in one
+ * light query: how an open board finds what its notifications may have
+ * missed without rebuilding every entry.
+ */
+export async function boardVersions(db: DbOrTx, classId: number): Promise<Map<number, string>> {
+  const rows = await db
+    .select({
+      attemptId: attempts.id,
+      lastSeq: attempts.lastSeq,
+      simTimeMs: attempts.simTimeMs,
+      injections: sql<number>`(select count(*)::int from ${pendingInjections} p where p.attempt_id = ${attempts.id})`,
+      applied: sql<number>`(select count(*)::int from ${pendingInjections} p where p.attempt_id = ${attempts.id} and p.applied_at is not null)`,
+    })
+    .from(attempts)
+    .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
+    .where(and(inClass(classId), eq(attempts.status, 'running')));
+  return new Map(rows.map((r) => [r.attemptId, `${r.lastSeq}:${r.simTimeMs}:${r.injections}:${r.applied}`]));
 }
 
 /** The running attempts of the class, oldest student name first. */

@@ -216,3 +216,37 @@ describe('the class board', () => {
     stream.close();
   });
 });
+
+describe('the class board when a notification is missed', () => {
+  it('finds the change by its light check of the database and sends it as an update, not a new snapshot', async () => {
+    // A second process on the same database, checking every half second.
+    const checking = await startTestApp({ BOARD_RECHECK_SECONDS: '0.5' }, t.databaseUrl);
+    const other = await listen(checking);
+    const pg = await import('pg');
+    const raw = new pg.default.Client({ connectionString: t.databaseUrl });
+    await raw.connect();
+    try {
+      const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
+      const watcher = await httpSignIn(other.url, instructor.email);
+      const stream = await openStream(watcher, `/api/live/classes/${fx.classId}/stream`);
+      await stream.next((m) => m.event === 'snapshot');
+      // Stored with triggers off (replica mode), so no notification goes out: only the check can find it.
+      await raw.query('set session_replication_role = replica');
+      const event = { kind: 'lead', atMs: 1200, which: 'red', point: 'battery-pos' };
+      await raw.query('insert into attempt_events (attempt_id, seq, sim_time_ms, kind, payload) values ($1, 1, $2, $3, $4)', [attemptId, event.atMs, event.kind, JSON.stringify(event)]);
+      await raw.query('update attempts set last_seq = 1, sim_time_ms = $2 where id = $1', [attemptId, event.atMs]);
+      const update = await stream.next((m) => m.event === 'attempt' && (m.data as { attemptId: number }).attemptId === attemptId, 5_000);
+      expect(update.data).toMatchObject({ attemptId, lastSeq: 1, simTimeMs: 1200, status: 'running' });
+      // Submitted behind the board's back: the check sees it gone from the running list and the board is told.
+      await raw.query("update attempts set status = 'submitted' where id = $1", [attemptId]);
+      const gone = await stream.next((m) => m.event === 'attempt' && (m.data as { attemptId: number; status: string }).status === 'submitted', 5_000);
+      expect(gone.data).toMatchObject({ attemptId, status: 'submitted' });
+      expect(stream.messages.filter((m) => m.event === 'snapshot')).toHaveLength(1);
+      stream.close();
+    } finally {
+      await raw.end();
+      await other.close();
+      await checking.close();
+    }
+  });
+});
