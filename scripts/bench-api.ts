@@ -75,6 +75,8 @@ interface RoundResult {
   gradingStatus: number[];
   /** Graded with nothing run ahead. */
   fromStart: Graded[];
+  /** The mean size of a read-attempt answer (its whole log, sealed), in KB. */
+  readKb: number;
 }
 
 /** CPU seconds used so far by a process and its children (`tree`), or by every process of a command name (`comm`); Linux /proc, 0 elsewhere. */
@@ -234,7 +236,9 @@ async function main() {
       return a;
     };
     const target = new URL(server.url);
-    const call = (who: { cookie: string; csrf: string }, method: string, path: string, body?: unknown) =>
+    // `parse: false` leaves a 2xx body unparsed (the bytes are still read): the students' own load only needs the status, and
+    // parsing hundreds of answers a second would take cores the server shares. Every answer's size is counted, by kind.
+    const call = (who: { cookie: string; csrf: string }, method: string, path: string, body?: unknown, opts: { parse?: boolean; bytes?: (n: number) => void } = {}) =>
       new Promise<{ status: number; body: unknown; serverTiming?: string }>((resolve, reject) => {
         const payload = body === undefined ? undefined : JSON.stringify(body);
         const req = http.request(
@@ -255,7 +259,14 @@ async function main() {
             const chunks: Buffer[] = [];
             res.on('data', (c: Buffer) => chunks.push(c));
             res.on('end', () => {
-              const text = Buffer.concat(chunks).toString();
+              const data = Buffer.concat(chunks);
+              opts.bytes?.(data.length);
+              const status = res.statusCode ?? 0;
+              if (opts.parse === false && status >= 200 && status < 300) {
+                resolve({ status, body: null });
+                return;
+              }
+              const text = data.toString();
               try {
                 const header = res.headers['server-timing'];
                 const serverTiming = Array.isArray(header) ? header.join(', ') : header;
@@ -420,6 +431,7 @@ async function main() {
         const grading: Graded[] = [];
         const gradingStatus: number[] = [];
         const fromStart: Graded[] = [];
+        const readBytes: number[] = [];
 
         const studentLoop = async (index: number) => {
           const who = students[index]!;
@@ -430,13 +442,13 @@ async function main() {
           while (performance.now() < until) {
             const batch = batchFor(attemptId);
             const t0 = performance.now();
-            const res = await call(who, 'POST', `/api/attempts/${attemptId}/events`, batch).catch((err: unknown) => ({ status: 0, body: String(err) }));
+            const res = await call(who, 'POST', `/api/attempts/${attemptId}/events`, batch, { parse: false }).catch((err: unknown) => ({ status: 0, body: String(err) }));
             if (res.status !== 200 && errorsShown++ < 5) console.log(`  post-events answered ${res.status}: ${JSON.stringify(res.body).slice(0, 300)}`);
             samples.push({ kind: 'post-events', ms: performance.now() - t0, ok: res.status === 200 });
             if (performance.now() >= nextRead) {
               nextRead += READ_EVERY_MS;
               const t1 = performance.now();
-              const read = await call(who, 'GET', `/api/attempts/${attemptId}`).catch((err: unknown) => ({ status: 0, body: String(err) }));
+              const read = await call(who, 'GET', `/api/attempts/${attemptId}`, undefined, { parse: false, bytes: (n) => readBytes.push(n) }).catch((err: unknown) => ({ status: 0, body: String(err) }));
               if (read.status !== 200 && errorsShown++ < 5) console.log(`  read-attempt answered ${read.status}: ${JSON.stringify(read.body).slice(0, 300)}`);
               samples.push({ kind: 'read-attempt', ms: performance.now() - t1, ok: read.status === 200 });
             }
@@ -485,7 +497,7 @@ async function main() {
           const sorted = chosen.map((x) => x.ms).sort((a, b) => a - b);
           return { count: chosen.length, p50: percentile(sorted, 50), p99: percentile(sorted, 99), max: sorted.at(-1) ?? Number.NaN, errors: chosen.filter((x) => !x.ok).length };
         };
-        results.push({ elapsedS, cpu, all: report('all'), post: report('post-events'), read: report('read-attempt'), grading, gradingStatus, fromStart });
+        results.push({ elapsedS, cpu, all: report('all'), post: report('post-events'), read: report('read-attempt'), grading, gradingStatus, fromStart, readKb: readBytes.reduce((a, b) => a + b, 0) / Math.max(1, readBytes.length) / 1024 });
       }
       board.abort();
 
@@ -497,7 +509,7 @@ async function main() {
           `  round ${i + 1}: ${(r.all.count / r.elapsedS).toFixed(0)} requests/s; cores used: server ${r.cpu.server.toFixed(2)}, PostgreSQL ${r.cpu.postgres.toFixed(2)}, load generator ${r.cpu.load.toFixed(2)}; machine ${(r.cpu.machineBusy * 100).toFixed(0)} % busy, some task waiting for a CPU ${(r.cpu.waitedForCpu * 100).toFixed(0)} % of the time`,
         );
         for (const [name, x] of [['post-events', r.post], ['read-attempt', r.read], ['all', r.all]] as const) {
-          console.log(`    ${name.padEnd(13)} n=${x.count}  p50 ${fmt(x.p50)} ms  p99 ${fmt(x.p99)} ms  max ${fmt(x.max)} ms  errors ${x.errors}`);
+          console.log(`    ${name.padEnd(13)} n=${x.count}  p50 ${fmt(x.p50)} ms  p99 ${fmt(x.p99)} ms  max ${fmt(x.max)} ms  errors ${x.errors}${name === 'read-attempt' ? `  (answers of ${fmt(r.readKb)} KB on average)` : ''}`);
         }
         const shown = (gs: Graded[]) => gs.map((g) => `${fmt(g.ms)} (server ${fmt(g.serverMs)}, worker ${fmt(g.workerMs)})`).join(', ');
         console.log(
