@@ -104,8 +104,11 @@ async function boardRows(db: DbOrTx, classId: number, where: ReturnType<typeof a
  * the one the database would give.
  */
 export function boardVersionOf(a: Pick<BoardAttempt, 'lastSeq' | 'simTimeMs' | 'injections'>): string {
-  return `${a.lastSeq}:${a.simTimeMs}:${a.injections.length}:${a.injections.filter((i) => i.appliedAt !== null).length}`;
+  return versionOf(a.lastSeq, a.simTimeMs, a.injections.length, a.injections.filter((i) => i.appliedAt !== null).length);
 }
+
+/** The one spelling of a version, for an entry sent and for a row checked. */
+const versionOf = (lastSeq: number, simTimeMs: number, injections: number, applied: number) => `${lastSeq}:${simTimeMs}:${injections}:${applied}`;
 
 /**
  * The version (boardVersionOf) of each running attempt of the class, in one
@@ -124,7 +127,7 @@ export async function boardVersions(db: DbOrTx, classId: number): Promise<Map<nu
     .from(attempts)
     .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
     .where(and(inClass(classId), eq(attempts.status, 'running')));
-  return new Map(rows.map((r) => [r.attemptId, `${r.lastSeq}:${r.simTimeMs}:${r.injections}:${r.applied}`]));
+  return new Map(rows.map((r) => [r.attemptId, versionOf(r.lastSeq, r.simTimeMs, r.injections, r.applied)]));
 }
 
 /** The running attempts of the class, oldest student name first. */
