@@ -19,16 +19,6 @@ export class ServerTiming {
     else this.parts.push({ name, ms });
   }
 
-  /** Awaits `work`, adding the time it took to `name`. */
-  async time<T>(name: string, work: Promise<T> | (() => Promise<T>)): Promise<T> {
-    const t0 = performance.now();
-    try {
-      return await (typeof work === 'function' ? work() : work);
-    } finally {
-      this.add(name, performance.now() - t0);
-    }
-  }
-
   /** The header's value: every part, then `total` since this was made. */
   header(): string {
     const entries = [...this.parts, { name: 'total', ms: performance.now() - this.started }];
