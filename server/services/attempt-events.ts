@@ -22,6 +22,7 @@ import { scopedCache } from '../db/scoped-cache.ts';
 import { badRequest, conflict, forbidden, notFound } from '../http/errors.ts';
 import { parseValue } from '../http/validate.ts';
 import { loadDefinition } from './definitions.ts';
+import { batchWriterOf } from './event-batch-writer.ts';
 import { sendAhead } from './grading-pool.ts';
 import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
 import { testOfSetup } from './live-board.ts';
@@ -193,7 +194,8 @@ function runAhead(attemptId: number, owner: AttemptOwner, def: ScenarioDefinitio
 /**
  * Stores a batch for the signed-in student's own attempt. This is the
  * busiest write of the product (a batch a second from every bench), so it is
- * usually one named statement, with no open transaction:
+ * usually one statement, shared with the other batches of the same turn of the
+ * event loop (event-batch-writer.ts), with no open transaction:
  *
  * 1. The statement locks the attempt's row, inserts the batch only if the
  *    attempt is this student's and still running (so a batch racing a
@@ -229,46 +231,13 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
 
   const predicted = predictMoveOn(setups.of(ctx.db)?.get(attemptId), input.events);
   const currentTestPredicted: DiagnosticTest | null = predicted ? testOfSetup(predicted.setup.controls, { engine: predicted.setup.engineGuess }) : null;
-  // The rows this statement inserts, and the seqs after lastSeq stored before it (a statement does not see its own rows).
-  const { rows } = await ctx.pool.query<{ status: string; lastSeq: number; simTimeMs: number; inserted: number[]; earlier: number[]; movedOn: boolean }>({
-    name: 'events-store-batch',
-    text: `with a as (
-             select status, last_seq, sim_time_ms from attempts where id = $1 and user_id = $6 for update
-           ), ins as (
-             insert into attempt_events (attempt_id, seq, sim_time_ms, kind, payload)
-             select $1, e.seq, e.sim_time_ms, e.kind, e.payload
-               from unnest($2::int[], $3::int[], $4::text[], $5::jsonb[]) as e(seq, sim_time_ms, kind, payload)
-              where exists (select 1 from a where a.status = 'running')
-             on conflict (attempt_id, seq) do nothing
-             returning seq
-           ), predicted as (
-             update attempts t
-                set last_seq = $8, current_test = $9, sim_time_ms = greatest(t.sim_time_ms, $10)
-               from a
-              where t.id = $1 and $7::int is not null and a.status = 'running' and a.last_seq = $7
-                and (select count(*) from ins) = cardinality($2::int[])
-                and not exists (select 1 from attempt_events e where e.attempt_id = $1 and e.seq > $7)
-             returning t.id
-           )
-           select a.status, a.last_seq as "lastSeq", a.sim_time_ms as "simTimeMs",
-                  coalesce((select array_agg(seq) from ins), '{}') as inserted,
-                  coalesce((select array_agg(e.seq order by e.seq) from attempt_events e where e.attempt_id = $1 and e.seq > a.last_seq), '{}') as earlier,
-                  exists (select 1 from predicted) as "movedOn"
-             from a`,
-    values: [
-      attemptId,
-      input.events.map((e) => e.seq),
-      input.events.map((e) => e.event.atMs),
-      input.events.map((e) => e.event.kind),
-      input.events.map((e) => JSON.stringify(e.event)),
-      user.id,
-      predicted?.fromSeq ?? null,
-      predicted?.lastSeq ?? null,
-      currentTestPredicted,
-      predicted?.simTimeMs ?? null,
-    ],
+  // Stored with the other batches of this turn of the event loop, in one statement (event-batch-writer.ts).
+  const attempt = await batchWriterOf(ctx.pool).store({
+    attemptId,
+    userId: user.id,
+    events: input.events,
+    predicted: predicted ? { fromSeq: predicted.fromSeq, lastSeq: predicted.lastSeq, currentTest: currentTestPredicted, simTimeMs: predicted.simTimeMs } : null,
   });
-  const attempt = rows[0];
   if (!attempt) throw notFound('No such attempt');
   if (attempt.status === 'submitted') throw conflict('This attempt has been submitted; it takes no more events');
   if (predicted && attempt.movedOn) {

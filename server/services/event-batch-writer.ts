@@ -1,0 +1,202 @@
+/**
+ * Event batches are stored together: every batch handed in during one turn of
+ * the event loop goes to PostgreSQL in one statement, with one round trip,
+ * one commit and one wake-up of the listeners. A class of benches sends a
+ * batch a second each; under load, several arrive in the same turn, and one
+ * statement for them costs PostgreSQL about half of what two cost, a quarter
+ * of what four cost. Nothing waits for a group to fill: a lone batch is sent
+ * at the end of the turn it arrived in, as it would have been on its own.
+ *
+ * Within a statement each batch keeps the meaning of the statement it would
+ * have had alone (attempt-events.ts): its attempt's row is locked, its events
+ * are stored only when the attempt is the student's and still running, each
+ * once, and the attempt is moved on when its prediction holds. Rows are locked
+ * in attempt order, so two statements in flight never wait on each other in a
+ * circle. A group holds at most one batch per attempt (a second batch of the
+ * same attempt goes in the next statement), and at most MAX_GROUP batches.
+ *
+ * Should a statement fail on a value PostgreSQL cannot store (a data
+ * exception, SQLSTATE class 22, or a constraint, class 23), nothing of it was
+ * written; each of its batches is then sent again on its own, so only the
+ * batch at fault fails. Any other failure (the database away) fails every
+ * batch of the group, as it would have failed each alone.
+ */
+import type pg from 'pg';
+import type { DiagnosticTest } from '../../sim/faults.ts';
+import type { InputEvent } from '../../sim/inputs.ts';
+
+/** The most batches in one statement, so one statement stays short. */
+export const MAX_GROUP = 64;
+
+/** A batch to store, with where it moves the attempt on if the prediction holds. */
+export interface BatchToStore {
+  attemptId: number;
+  /** The signed-in student: the batch is stored only on an attempt of theirs. */
+  userId: number;
+  events: readonly { seq: number; event: InputEvent }[];
+  /** The lastSeq the batch follows on from and what it moves the attempt to, or null to store only. */
+  predicted: { fromSeq: number; lastSeq: number; currentTest: DiagnosticTest | null; simTimeMs: number } | null;
+}
+
+/** The attempt's row as the batch found it once locked, what the batch stored, and what it moved on. */
+export interface StoredBatch {
+  status: string;
+  lastSeq: number;
+  simTimeMs: number;
+  /** The seqs this batch stored (those already stored are left out). */
+  inserted: number[];
+  /** The seqs after lastSeq stored before this batch, in order. */
+  earlier: number[];
+  /** Whether the prediction held and the attempt was moved on. */
+  movedOn: boolean;
+}
+
+/** Counts since the writer was made, for tests and the benchmarks. */
+export interface BatchWriterStats {
+  statements: number;
+  batches: number;
+  /** Groups sent again one batch at a time after a data or constraint error. */
+  retriedAlone: number;
+}
+
+export interface BatchWriter {
+  /** Stores the batch with the others of this turn; null when there is no such attempt of this student. */
+  store(batch: BatchToStore): Promise<StoredBatch | null>;
+  readonly stats: BatchWriterStats;
+}
+
+interface Member {
+  batch: BatchToStore;
+  resolve(row: StoredBatch | null): void;
+  reject(err: unknown): void;
+}
+
+type Row = StoredBatch & { attemptId: number };
+
+/**
+ * One statement for many batches, one per attempt. The parameters are
+ * columns: per batch ($1-$7), then per event ($8-$12, tagged with its
+ * batch's attempt). `a` locks the attempts in id order; `ins` stores the
+ * events of those still running, each seq once; `predicted` moves on each
+ * attempt whose batch was wholly new and followed on from its lastSeq, with
+ * nothing stored after it before (a statement does not see its own rows, so
+ * `earlier` and that check see only what was there before it).
+ */
+const STORE_BATCHES = `with b as (
+    select * from unnest($1::int[], $2::int[], $3::int[], $4::int[], $5::text[], $6::int[], $7::int[])
+      as b(attempt_id, user_id, from_seq, last_seq, current_test, sim_time_ms, n)
+  ), a as (
+    select t.id, t.status, t.last_seq, t.sim_time_ms
+      from attempts t join b on b.attempt_id = t.id and b.user_id = t.user_id
+     order by t.id
+       for update of t
+  ), ins as (
+    insert into attempt_events (attempt_id, seq, sim_time_ms, kind, payload)
+    select e.attempt_id, e.seq, e.sim_time_ms, e.kind, e.payload
+      from unnest($8::int[], $9::int[], $10::int[], $11::text[], $12::jsonb[]) as e(attempt_id, seq, sim_time_ms, kind, payload)
+      join a on a.id = e.attempt_id and a.status = 'running'
+    on conflict (attempt_id, seq) do nothing
+    returning attempt_id, seq
+  ), stored as (
+    select attempt_id, count(*)::int as n, array_agg(seq) as seqs from ins group by attempt_id
+  ), predicted as (
+    update attempts t
+       set last_seq = b.last_seq, current_test = b.current_test, sim_time_ms = greatest(t.sim_time_ms, b.sim_time_ms)
+      from a join b on b.attempt_id = a.id join stored s on s.attempt_id = a.id
+     where t.id = a.id and b.from_seq is not null and a.status = 'running' and a.last_seq = b.from_seq and s.n = b.n
+       and not exists (select 1 from attempt_events e where e.attempt_id = a.id and e.seq > b.from_seq)
+    returning t.id
+  )
+  select a.id as "attemptId", a.status, a.last_seq as "lastSeq", a.sim_time_ms as "simTimeMs",
+         coalesce((select s.seqs from stored s where s.attempt_id = a.id), '{}') as inserted,
+         coalesce((select array_agg(e.seq order by e.seq) from attempt_events e where e.attempt_id = a.id and e.seq > a.last_seq), '{}') as earlier,
+         exists (select 1 from predicted p where p.id = a.id) as "movedOn"
+    from a`;
+
+function columnsOf(batches: readonly BatchToStore[]): unknown[] {
+  const cols: unknown[][] = Array.from({ length: 12 }, () => []);
+  const [attemptIds, userIds, fromSeqs, lastSeqs, tests, simTimes, counts, eAttempts, eSeqs, eTimes, eKinds, ePayloads] = cols as [
+    unknown[], unknown[], unknown[], unknown[], unknown[], unknown[], unknown[], unknown[], unknown[], unknown[], unknown[], unknown[],
+  ];
+  for (const b of batches) {
+    attemptIds.push(b.attemptId);
+    userIds.push(b.userId);
+    fromSeqs.push(b.predicted?.fromSeq ?? null);
+    lastSeqs.push(b.predicted?.lastSeq ?? null);
+    tests.push(b.predicted?.currentTest ?? null);
+    simTimes.push(b.predicted?.simTimeMs ?? null);
+    counts.push(b.events.length);
+    for (const { seq, event } of b.events) {
+      eAttempts.push(b.attemptId);
+      eSeqs.push(seq);
+      eTimes.push(event.atMs);
+      eKinds.push(event.kind);
+      ePayloads.push(JSON.stringify(event));
+    }
+  }
+  return cols;
+}
+
+/** A data exception or a constraint violation: the statement wrote nothing, and some value in it is at fault. */
+function isValueError(err: unknown): boolean {
+  const code = (err as { code?: unknown } | null)?.code;
+  return typeof code === 'string' && (code.startsWith('22') || code.startsWith('23'));
+}
+
+export function createBatchWriter(pool: pg.Pool): BatchWriter {
+  const stats: BatchWriterStats = { statements: 0, batches: 0, retriedAlone: 0 };
+  /** The groups of this turn, each at most one batch per attempt. */
+  let open: Map<number, Member>[] = [];
+  let scheduled = false;
+
+  async function send(members: readonly Member[]): Promise<void> {
+    stats.statements++;
+    stats.batches += members.length;
+    let rows: Row[];
+    try {
+      ({ rows } = await pool.query<Row>({ name: 'events-store-batches', text: STORE_BATCHES, values: columnsOf(members.map((m) => m.batch)) }));
+    } catch (err) {
+      if (members.length > 1 && isValueError(err)) {
+        stats.retriedAlone++;
+        await Promise.all(members.map((m) => send([m])));
+      } else for (const m of members) m.reject(err);
+      return;
+    }
+    const byAttempt = new Map(rows.map((r) => [r.attemptId, r]));
+    for (const m of members) {
+      const row = byAttempt.get(m.batch.attemptId);
+      m.resolve(row ? { status: row.status, lastSeq: row.lastSeq, simTimeMs: row.simTimeMs, inserted: row.inserted, earlier: row.earlier, movedOn: row.movedOn } : null);
+    }
+  }
+
+  function flush(): void {
+    scheduled = false;
+    const groups = open;
+    open = [];
+    for (const group of groups) void send([...group.values()]);
+  }
+
+  return {
+    stats,
+    store(batch) {
+      return new Promise<StoredBatch | null>((resolve, reject) => {
+        let group = open.find((g) => g.size < MAX_GROUP && !g.has(batch.attemptId));
+        if (!group) open.push((group = new Map()));
+        group.set(batch.attemptId, { batch, resolve, reject });
+        if (!scheduled) {
+          scheduled = true;
+          setImmediate(flush);
+        }
+      });
+    },
+  };
+}
+
+const writers = new WeakMap<pg.Pool, BatchWriter>();
+
+/** The batch writer of this pool's database (one per pool, made on first use). */
+export function batchWriterOf(pool: pg.Pool): BatchWriter {
+  let writer = writers.get(pool);
+  if (!writer) writers.set(pool, (writer = createBatchWriter(pool)));
+  return writer;
+}
