@@ -132,6 +132,18 @@ export class SessionCache {
   }
 }
 
+/**
+ * A failed session read as express-session must take it. It reads an error
+ * coded ENOENT as "no such session" and carries on signed out; but ENOENT is
+ * also what connecting to a stopped PostgreSQL through its Unix socket gives
+ * (the socket file is gone). That is the database being away, not the session:
+ * the request must fail (503), not lose its sign-in.
+ */
+function unavailable(err: unknown): unknown {
+  if ((err as { code?: unknown } | null)?.code !== 'ENOENT') return err;
+  return Object.assign(new Error(`The database is unavailable: ${(err as Error).message}`, { cause: err }), { code: 'ECONNREFUSED' });
+}
+
 /** The session cache of each app's store, by the app's pool, so account changes can reach it. */
 const cachesByPool = new WeakMap<pg.Pool, SessionCache>();
 
@@ -189,7 +201,7 @@ export function throttledPgStore(opts: { pool: pg.Pool; touchEveryMs?: number; n
             }
             fn(null, sess);
           },
-          (err: unknown) => fn(err),
+          (err: unknown) => fn(unavailable(err)),
         );
     }
     takeUser(sid: string): PreloadedUser | null {
