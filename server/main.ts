@@ -6,6 +6,7 @@ import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import { prepareBridgeTables } from '../sim/bridge.ts';
 import { createApp } from './app.ts';
+import { createAppServer, listen } from './http/app-server.ts';
 import type { AppContext } from './context.ts';
 import { connect } from './db/client.ts';
 import { readEnv, type Env } from './env.ts';
@@ -60,9 +61,7 @@ export async function startServer(opts: { env?: Env; staticDir?: string; logLeve
   const { app } = createApp(ctx, { staticDir: opts.staticDir });
   let server: Server;
   try {
-    server = await new Promise<Server>((resolve, reject) => {
-      const s = app.listen(env.PORT, env.HOST, (err?: Error) => (err ? reject(err) : resolve(s)));
-    });
+    server = await listen(createAppServer(app), env.PORT, env.HOST);
   } catch (err) {
     await grading.release();
     throw err;

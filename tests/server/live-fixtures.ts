@@ -13,6 +13,7 @@ import type { Db } from '../../server/db/client.ts';
 import { DEMO_PASSWORD, DEMO_PEOPLE } from '../../server/db/demo-people.ts';
 import { assignments, attempts, classes, classInstructors, enrollments, scenarios, scenarioVersions, users } from '../../server/db/schema.ts';
 import { blankScenario, type ScenarioDefinition } from '../../shared/scenario.ts';
+import { createAppServer, listen as listenApp } from '../../server/http/app-server.ts';
 import type { TestApp } from './support.ts';
 
 export const instructor = DEMO_PEOPLE.filter((p) => p.role === 'instructor')[0]!;
@@ -233,8 +234,8 @@ export async function openStream(client: HttpClient, path: string, lastEventId?:
 
 /** The test app on a real port (SSE needs a connection that stays open). */
 export async function listen(t: TestApp): Promise<{ url: string; close(): Promise<void> }> {
-  const server: Server = t.app.listen(0, '127.0.0.1');
-  await once(server, 'listening');
+  // As the server listens (server/main.ts).
+  const server: Server = await listenApp(createAppServer(t.app), 0, '127.0.0.1');
   const port = (server.address() as AddressInfo).port;
   return {
     url: `http://127.0.0.1:${port}`,
