@@ -44,6 +44,8 @@ const SECRET = 'bench-secret-bench-secret-bench-secret';
 interface Sample {
   kind: 'post-events' | 'read-attempt';
   ms: number;
+  /** The server's own time for it (its Server-Timing total), NaN when the answer had none. */
+  serverMs: number;
   ok: boolean;
 }
 
@@ -51,6 +53,8 @@ interface Figures {
   count: number;
   p50: number;
   p99: number;
+  /** p99 of the server's own times (Server-Timing totals). */
+  serverP99: number;
   max: number;
   errors: number;
 }
@@ -160,9 +164,11 @@ function signedCookie(sid: string): string {
 }
 
 async function startServerProcess(databaseUrl: string): Promise<{ url: string; child: ChildProcess }> {
-  // Node itself with tsx's loader, so the pid held is the server's; BENCH_PROFILE_DIR writes a CPU profile there.
+  // Node itself with tsx's loader, so the pid held is the server's; BENCH_PROFILE_DIR writes a CPU profile there, and
+  // BENCH_NODE_FLAGS (space-separated) are given to the server's Node, to try a V8 setting (--max-semi-space-size=32, say).
   const profile = process.env.BENCH_PROFILE_DIR ? ['--cpu-prof', `--cpu-prof-dir=${process.env.BENCH_PROFILE_DIR}`] : [];
-  const child = spawn(process.execPath, ['--import', 'tsx', ...profile, 'server/serve.ts'], {
+  const flags = (process.env.BENCH_NODE_FLAGS ?? '').split(' ').filter(Boolean);
+  const child = spawn(process.execPath, [...flags, '--import', 'tsx', ...profile, 'server/serve.ts'], {
     cwd: root,
     env: { ...process.env, DATABASE_URL: databaseUrl, PORT: '0', NODE_ENV: 'production', SESSION_SECRET: SECRET, SIGN_IN_LIMIT: '100000', WEB_PROCESSES: String(PROCESSES) },
     stdio: ['ignore', 'pipe', 'inherit'],
@@ -239,7 +245,7 @@ async function main() {
     // `parse: false` leaves a 2xx body unparsed (the bytes are still read): the students' own load only needs the status, and
     // parsing hundreds of answers a second would take cores the server shares. Every answer's size is counted, by kind.
     const call = (who: { cookie: string; csrf: string }, method: string, path: string, body?: unknown, opts: { parse?: boolean; bytes?: (n: number) => void } = {}) =>
-      new Promise<{ status: number; body: unknown; serverTiming?: string }>((resolve, reject) => {
+      new Promise<{ status: number; body: unknown; serverTiming?: string; serverMs: number }>((resolve, reject) => {
         const payload = body === undefined ? undefined : JSON.stringify(body);
         const req = http.request(
           {
@@ -262,15 +268,17 @@ async function main() {
               const data = Buffer.concat(chunks);
               opts.bytes?.(data.length);
               const status = res.statusCode ?? 0;
+              const header = res.headers['server-timing'];
+              const serverTiming = Array.isArray(header) ? header.join(', ') : header;
+              // Every API answer carries the server's own total (server/http/server-timing.ts).
+              const serverMs = Number(/(?:^|,)\s*total;dur=([\d.]+)/.exec(serverTiming ?? '')?.[1] ?? Number.NaN);
               if (opts.parse === false && status >= 200 && status < 300) {
-                resolve({ status, body: null });
+                resolve({ status, body: null, serverMs });
                 return;
               }
               const text = data.toString();
               try {
-                const header = res.headers['server-timing'];
-                const serverTiming = Array.isArray(header) ? header.join(', ') : header;
-                resolve({ status: res.statusCode ?? 0, body: text ? (JSON.parse(text) as unknown) : null, ...(serverTiming ? { serverTiming } : {}) });
+                resolve({ status, body: text ? (JSON.parse(text) as unknown) : null, serverMs, ...(serverTiming ? { serverTiming } : {}) });
               } catch (err) {
                 reject(err instanceof Error ? err : new Error(String(err)));
               }
@@ -442,15 +450,15 @@ async function main() {
           while (performance.now() < until) {
             const batch = batchFor(attemptId);
             const t0 = performance.now();
-            const res = await call(who, 'POST', `/api/attempts/${attemptId}/events`, batch, { parse: false }).catch((err: unknown) => ({ status: 0, body: String(err) }));
+            const res = await call(who, 'POST', `/api/attempts/${attemptId}/events`, batch, { parse: false }).catch((err: unknown) => ({ status: 0, body: String(err), serverMs: Number.NaN }));
             if (res.status !== 200 && errorsShown++ < 5) console.log(`  post-events answered ${res.status}: ${JSON.stringify(res.body).slice(0, 300)}`);
-            samples.push({ kind: 'post-events', ms: performance.now() - t0, ok: res.status === 200 });
+            samples.push({ kind: 'post-events', ms: performance.now() - t0, serverMs: res.serverMs, ok: res.status === 200 });
             if (performance.now() >= nextRead) {
               nextRead += READ_EVERY_MS;
               const t1 = performance.now();
-              const read = await call(who, 'GET', `/api/attempts/${attemptId}`, undefined, { parse: false, bytes: (n) => readBytes.push(n) }).catch((err: unknown) => ({ status: 0, body: String(err) }));
+              const read = await call(who, 'GET', `/api/attempts/${attemptId}`, undefined, { parse: false, bytes: (n) => readBytes.push(n) }).catch((err: unknown) => ({ status: 0, body: String(err), serverMs: Number.NaN }));
               if (read.status !== 200 && errorsShown++ < 5) console.log(`  read-attempt answered ${read.status}: ${JSON.stringify(read.body).slice(0, 300)}`);
-              samples.push({ kind: 'read-attempt', ms: performance.now() - t1, ok: read.status === 200 });
+              samples.push({ kind: 'read-attempt', ms: performance.now() - t1, serverMs: read.serverMs, ok: read.status === 200 });
             }
             const wait = BATCH_EVERY_MS - (performance.now() - t0);
             if (wait > 0) await new Promise((r) => setTimeout(r, wait));
@@ -495,7 +503,8 @@ async function main() {
         const report = (kind: Sample['kind'] | 'all') => {
           const chosen = samples.filter((x) => kind === 'all' || x.kind === kind);
           const sorted = chosen.map((x) => x.ms).sort((a, b) => a - b);
-          return { count: chosen.length, p50: percentile(sorted, 50), p99: percentile(sorted, 99), max: sorted.at(-1) ?? Number.NaN, errors: chosen.filter((x) => !x.ok).length };
+          const onServer = chosen.map((x) => x.serverMs).filter((x) => !Number.isNaN(x)).sort((a, b) => a - b);
+          return { count: chosen.length, p50: percentile(sorted, 50), p99: percentile(sorted, 99), serverP99: percentile(onServer, 99), max: sorted.at(-1) ?? Number.NaN, errors: chosen.filter((x) => !x.ok).length };
         };
         results.push({ elapsedS, cpu, all: report('all'), post: report('post-events'), read: report('read-attempt'), grading, gradingStatus, fromStart, readKb: readBytes.reduce((a, b) => a + b, 0) / Math.max(1, readBytes.length) / 1024 });
       }
@@ -509,7 +518,7 @@ async function main() {
           `  round ${i + 1}: ${(r.all.count / r.elapsedS).toFixed(0)} requests/s; cores used: server ${r.cpu.server.toFixed(2)}, PostgreSQL ${r.cpu.postgres.toFixed(2)}, load generator ${r.cpu.load.toFixed(2)}; machine ${(r.cpu.machineBusy * 100).toFixed(0)} % busy, some task waiting for a CPU ${(r.cpu.waitedForCpu * 100).toFixed(0)} % of the time`,
         );
         for (const [name, x] of [['post-events', r.post], ['read-attempt', r.read], ['all', r.all]] as const) {
-          console.log(`    ${name.padEnd(13)} n=${x.count}  p50 ${fmt(x.p50)} ms  p99 ${fmt(x.p99)} ms  max ${fmt(x.max)} ms  errors ${x.errors}${name === 'read-attempt' ? `  (answers of ${fmt(r.readKb)} KB on average)` : ''}`);
+          console.log(`    ${name.padEnd(13)} n=${x.count}  p50 ${fmt(x.p50)} ms  p99 ${fmt(x.p99)} ms (on the server ${fmt(x.serverP99)} ms)  max ${fmt(x.max)} ms  errors ${x.errors}${name === 'read-attempt' ? `  (answers of ${fmt(r.readKb)} KB on average)` : ''}`);
         }
         const shown = (gs: Graded[]) => gs.map((g) => `${fmt(g.ms)} (server ${fmt(g.serverMs)}, worker ${fmt(g.workerMs)})`).join(', ');
         console.log(
@@ -535,6 +544,10 @@ async function main() {
       console.log(`    throughput   ${mean(rates).toFixed(0)} requests/s   noise ±${((spread(rates) * 100) / 2).toFixed(0)} %`);
       console.log(`    p50          ${fmt(mean(p50s))} ms   noise ±${((spread(p50s) * 100) / 2).toFixed(0)} %`);
       console.log(`    p99          ${fmt(mean(p99s))} ms   goal < 50 ms: ratio ${(mean(p99s) / 50).toFixed(2)} ${mean(p99s) < 50 ? '(met)' : '(NOT met)'}   noise ±${((spread(p99s) * 100) / 2).toFixed(0)} %`);
+      // The part of the round trip that is the server's own work and waiting (its first middleware to the answer's head, by its
+      // Server-Timing total); the rest is the kernel, the wait for a turn of the server's event loop before that, and the load
+      // generator's own, on the cores it shares.
+      console.log(`                 on the server (Server-Timing total) ${fmt(mean(results.map((r) => r.all.serverP99)))} ms; the rest of the round trip is the kernel, the wait for the server's event loop to take the request, and the load generator`);
       console.log(`    errors       ${errors}   goal 0 ${errors === 0 ? '(met)' : '(NOT met)'}`);
       // The goal is the server's grading (the issue's words): from the request reaching the server to its answer, as its Server-Timing says.
       // The round trip adds the kernel's and the load generator's queueing; it is shown beside it.

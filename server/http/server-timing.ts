@@ -37,9 +37,21 @@ export function parseServerTiming(header: string | null | undefined): Record<str
   return out;
 }
 
-/** First of the API's middleware: notes when the request reached the server, for `receivedAt`. */
+/**
+ * First of the API's middleware: notes when the request reached the server,
+ * for `receivedAt`, and gives every answer a `Server-Timing` header with its
+ * `total` (unless the route wrote its own): how long the server took from
+ * here to the answer's head, as a load test or a browser's network panel
+ * reads it beside the time the whole round trip took.
+ */
 export function markReceived(_req: Request, res: Response, next: NextFunction): void {
-  res.locals.receivedAt = performance.now();
+  const at = performance.now();
+  res.locals.receivedAt = at;
+  const writeHead = res.writeHead;
+  res.writeHead = function (this: Response, ...args: unknown[]) {
+    if (!this.hasHeader('Server-Timing')) this.setHeader('Server-Timing', `total;dur=${(performance.now() - at).toFixed(1)}`);
+    return Reflect.apply(writeHead, this, args) as Response;
+  } as Response['writeHead'];
   next();
 }
 
