@@ -140,7 +140,7 @@ export class SessionCache {
  * the request must fail (503), not lose its sign-in.
  */
 function unavailable(err: unknown): unknown {
-  if ((err as { code?: unknown } | null)?.code !== 'ENOENT') return err;
+  if ((err as { code?: unknown } | null)?.code !== 'ENOENT' || !/\.s\.PGSQL\./.test((err as Error).message)) return err;
   return Object.assign(new Error(`The database is unavailable: ${(err as Error).message}`, { cause: err }), { code: 'ECONNREFUSED' });
 }
 

@@ -35,7 +35,7 @@ function isDatabaseDown(err: unknown): boolean {
   return (
     code === 'ECONNREFUSED' ||
     code === 'ECONNRESET' ||
-    code === 'ENOENT' || // a Unix socket whose server is stopped (it removes the socket file)
+    (code === 'ENOENT' && /\.s\.PGSQL\./.test(err.message)) || // PostgreSQL's Unix socket, gone while the server is stopped
     code === '57P01' || // admin_shutdown
     code === '57P03' || // cannot_connect_now
     /timeout exceeded when trying to connect|Connection terminated|the database system is (starting up|shutting down)/i.test(err.message)
