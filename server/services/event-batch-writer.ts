@@ -79,11 +79,11 @@ type Row = StoredBatch & { attemptId: number };
  * `{attempt_id, seq, payload}`, the payload being the event itself (its kind
  * and sim time are read from it): one JSON text is far cheaper to send than a
  * column of JSON texts, each escaped as an array element. `a` locks the
- * attempts in id order; `ins` stores the
- * events of those still running, each seq once; `predicted` moves on each
- * attempt whose batch was wholly new and followed on from its lastSeq, with
- * nothing stored after it before (a statement does not see its own rows, so
- * `earlier` and that check see only what was there before it).
+ * attempts in id order; `ins` stores the events of those still running, each
+ * seq once; `predicted` moves on each attempt whose batch was wholly new and
+ * followed on from its lastSeq, with nothing stored after it before (a
+ * statement does not see its own rows, so `earlier` and that check see only
+ * what was there before it).
  */
 const STORE_BATCHES = `with b as (
     select * from unnest($1::int[], $2::int[], $3::int[], $4::int[], $5::text[], $6::int[], $7::int[])
