@@ -117,8 +117,13 @@ const STORE_BATCHES = `with b as (
     from a`;
 
 function parametersOf(batches: readonly BatchToStore[]): unknown[] {
-  const cols: unknown[][] = [[], [], [], [], [], [], []];
-  const [attemptIds, userIds, fromSeqs, lastSeqs, tests, simTimes, counts] = cols as [unknown[], unknown[], unknown[], unknown[], unknown[], unknown[], unknown[]];
+  const attemptIds: number[] = [];
+  const userIds: number[] = [];
+  const fromSeqs: (number | null)[] = [];
+  const lastSeqs: (number | null)[] = [];
+  const tests: (DiagnosticTest | null)[] = [];
+  const simTimes: (number | null)[] = [];
+  const counts: number[] = [];
   const events: { attempt_id: number; seq: number; payload: InputEvent }[] = [];
   for (const b of batches) {
     attemptIds.push(b.attemptId);
@@ -130,7 +135,7 @@ function parametersOf(batches: readonly BatchToStore[]): unknown[] {
     counts.push(b.events.length);
     for (const { seq, event } of b.events) events.push({ attempt_id: b.attemptId, seq, payload: event });
   }
-  return [...cols, JSON.stringify(events)];
+  return [attemptIds, userIds, fromSeqs, lastSeqs, tests, simTimes, counts, JSON.stringify(events)];
 }
 
 /** A data exception or a constraint violation: the statement wrote nothing, and some value in it is at fault. */
@@ -141,9 +146,8 @@ function isValueError(err: unknown): boolean {
 
 export function createBatchWriter(pool: pg.Pool): BatchWriter {
   const stats: BatchWriterStats = { statements: 0, batches: 0, retriedAlone: 0 };
-  /** The groups of this turn, each at most one batch per attempt. */
+  /** The groups of this turn, each at most one batch per attempt; a flush is due at the end of the turn whenever there are any. */
   let open: Map<number, Member>[] = [];
-  let scheduled = false;
 
   async function send(members: readonly Member[]): Promise<void> {
     stats.statements++;
@@ -166,7 +170,6 @@ export function createBatchWriter(pool: pg.Pool): BatchWriter {
   }
 
   function flush(): void {
-    scheduled = false;
     const groups = open;
     open = [];
     for (const group of groups) void send([...group.values()]);
@@ -176,13 +179,10 @@ export function createBatchWriter(pool: pg.Pool): BatchWriter {
     stats,
     store(batch) {
       return new Promise<StoredBatch | null>((resolve, reject) => {
+        if (open.length === 0) setImmediate(flush);
         let group = open.find((g) => g.size < MAX_GROUP && !g.has(batch.attemptId));
         if (!group) open.push((group = new Map()));
         group.set(batch.attemptId, { batch, resolve, reject });
-        if (!scheduled) {
-          scheduled = true;
-          setImmediate(flush);
-        }
       });
     },
   };
