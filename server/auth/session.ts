@@ -4,6 +4,7 @@ import type { RequestHandler } from 'express';
 import type pg from 'pg';
 import type { Role } from '../../shared/api/auth.ts';
 import { Lru } from '../db/scoped-cache.ts';
+import { isMissingDatabaseSocket } from '../http/errors.ts';
 import { SESSION_CHANNEL, USER_CHANNEL, type LiveBus } from '../services/live-bus.ts';
 
 declare module 'express-session' {
@@ -140,7 +141,7 @@ export class SessionCache {
  * the request must fail (503), not lose its sign-in.
  */
 function unavailable(err: unknown): unknown {
-  if ((err as { code?: unknown } | null)?.code !== 'ENOENT' || !/\.s\.PGSQL\./.test((err as Error).message)) return err;
+  if (!isMissingDatabaseSocket(err)) return err;
   return Object.assign(new Error(`The database is unavailable: ${(err as Error).message}`, { cause: err }), { code: 'ECONNREFUSED' });
 }
 

@@ -29,13 +29,21 @@ export const apiNotFound: RequestHandler = (req, _res, next) => {
   next(new HttpError(404, `No API route for ${req.method} ${req.path}`));
 };
 
+/**
+ * A connection to PostgreSQL through its Unix socket while the server is
+ * stopped: it removes the socket file, so connecting fails with ENOENT.
+ */
+export function isMissingDatabaseSocket(err: unknown): boolean {
+  return (err as { code?: unknown } | null)?.code === 'ENOENT' && /\.s\.PGSQL\./.test((err as Error).message);
+}
+
 function isDatabaseDown(err: unknown): boolean {
   if (!(err instanceof Error)) return false;
   const code = (err as { code?: string }).code;
   return (
     code === 'ECONNREFUSED' ||
     code === 'ECONNRESET' ||
-    (code === 'ENOENT' && /\.s\.PGSQL\./.test(err.message)) || // PostgreSQL's Unix socket, gone while the server is stopped
+    isMissingDatabaseSocket(err) ||
     code === '57P01' || // admin_shutdown
     code === '57P03' || // cannot_connect_now
     /timeout exceeded when trying to connect|Connection terminated|the database system is (starting up|shutting down)/i.test(err.message)
