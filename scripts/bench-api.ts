@@ -271,7 +271,7 @@ async function main() {
               const header = res.headers['server-timing'];
               const serverTiming = Array.isArray(header) ? header.join(', ') : header;
               // Every API answer carries the server's own total (server/http/server-timing.ts).
-              const serverMs = Number(/(?:^|,)\s*total;dur=([\d.]+)/.exec(serverTiming ?? '')?.[1] ?? Number.NaN);
+              const serverMs = parseServerTiming(serverTiming).total ?? Number.NaN;
               if (opts.parse === false && status >= 200 && status < 300) {
                 resolve({ status, body: null, serverMs });
                 return;
