@@ -6,6 +6,7 @@ export default defineConfig({
   test: {
     include: ['tests/sim/**/*.test.ts', 'tests/shared/**/*.test.ts', 'tests/reference/**/*.test.ts', 'tests/client/**/*.test.{ts,tsx}', 'tests/lint/**/*.test.ts'],
     environment: 'node',
+    setupFiles: ['tests/support/fast-check-setup.ts'],
     testTimeout: 60_000,
   },
 });

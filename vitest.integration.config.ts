@@ -5,6 +5,7 @@ export default defineConfig({
   test: {
     include: ['tests/server/**/*.test.ts'],
     environment: 'node',
+    setupFiles: ['tests/support/fast-check-setup.ts'],
     testTimeout: 60_000,
     hookTimeout: 120_000,
     pool: 'forks',

@@ -7,6 +7,7 @@ export default defineConfig({
   test: {
     include: ['tests/resilience/**/*.test.ts'],
     environment: 'node',
+    setupFiles: ['tests/support/fast-check-setup.ts'],
     testTimeout: 180_000,
     hookTimeout: 120_000,
     pool: 'forks',
