@@ -58,6 +58,8 @@ export type InputEvent =
   | { kind: 'clamp'; atMs: number; conductor: Conductor | null; arrow: ClampArrow }
   | { kind: 'clamp-zero'; atMs: number }
   | { kind: 'ammeter'; atMs: number; inSeries: boolean }
+  /** A new fuse in the series ammeter (its 10 A range fuse blew). */
+  | { kind: 'ammeter-fuse'; atMs: number }
   | { kind: 'bplus-disconnect'; atMs: number; connected: boolean }
   | { kind: 'fault-inject'; atMs: number; fault: Fault }
   | { kind: 'fault-clear'; atMs: number; faultId: string };
@@ -77,6 +79,8 @@ export interface Controls {
   clampZeroA: number;
   /** Series ammeter between the battery negative post and its cable. */
   ammeterInSeries: boolean;
+  /** How many times the ammeter's fuse has been replaced (each replacement fits a good fuse). */
+  ammeterFusesFitted: number;
   /** The B+ lead at the alternator stud (false: removed to isolate a drain). */
   bplusConnected: boolean;
   faults: Fault[];
@@ -92,6 +96,7 @@ export function initialControls(): Controls {
     clamp: { conductor: null, arrow: 'toward-battery' },
     clampZeroA: 0,
     ammeterInSeries: false,
+    ammeterFusesFitted: 0,
     bplusConnected: true,
     faults: [],
   };
@@ -126,6 +131,8 @@ export function applyInput(controls: Controls, event: InputEvent, rawClampA: num
       return { ...controls, clampZeroA: rawClampA };
     case 'ammeter':
       return { ...controls, ammeterInSeries: event.inSeries };
+    case 'ammeter-fuse':
+      return { ...controls, ammeterFusesFitted: controls.ammeterFusesFitted + 1 };
     case 'bplus-disconnect':
       return { ...controls, bplusConnected: event.connected };
     case 'fault-inject':

@@ -14,7 +14,7 @@ import { copperResistanceOhm } from './params.ts';
 import type { Fault } from './faults.ts';
 import { activeFaultMask, applyFaults } from './faults.ts';
 import type { BridgeTable, BridgeTopology } from './bridge.ts';
-import { bridgeTable, diodeDropV } from './bridge.ts';
+import { bridgeTable, diodeDropV, openCircuitRippleRatio } from './bridge.ts';
 import { capacityAs } from './battery.ts';
 
 /** Copper's temperature coefficient of resistance near 20 C. */
@@ -42,6 +42,8 @@ export interface Model {
   p: VehicleParams;
   topology: BridgeTopology;
   table: BridgeTable;
+  /** AC rms of the bridge's unloaded output per volt of phase EMF peak. */
+  openRippleRatio: number;
   /** Phase EMF peak per electrical rad/s at reference flux. */
   emfConstantVsPerRad: number;
   fieldKneeA: number;
@@ -55,6 +57,8 @@ export interface Model {
   /** Accessories by id: conductance (S) and constant current (A). */
   accessoryG: Map<string, number>;
   accessoryI: Map<string, number>;
+  /** Accessories fed straight from the battery (they work with the key off). */
+  accessoryKeyOff: Set<string>;
   linkTimeConstantS: number;
   starterG: number;
   capacityAs: number;
@@ -121,7 +125,9 @@ export function compile(p: VehicleParams): Model {
   const referenceFieldA = (REFERENCE_FIELD_V - FIELD_DRIVER_DROP_V) / a.fieldResistanceOhmAt20C;
   const accessoryG = new Map<string, number>();
   const accessoryI = new Map<string, number>();
+  const accessoryKeyOff = new Set<string>();
   for (const acc of p.loads.accessories) {
+    if (acc.keyOff) accessoryKeyOff.add(acc.id);
     if ('resistanceOhm' in acc) accessoryG.set(acc.id, acc.resistanceOhm > 0 ? 1 / acc.resistanceOhm : 0);
     else accessoryI.set(acc.id, Math.max(0, acc.currentA));
   }
@@ -143,6 +149,7 @@ export function compile(p: VehicleParams): Model {
     p,
     topology,
     table: bridgeTable(topology),
+    openRippleRatio: openCircuitRippleRatio(topology),
     emfConstantVsPerRad: emfConstant,
     fieldKneeA: a.fieldKneeCurrentA,
     tanhReference: detTanh(referenceFieldA / a.fieldKneeCurrentA),
@@ -154,6 +161,7 @@ export function compile(p: VehicleParams): Model {
     gPileMaxS: p.pile.maxCurrentAAt12V / 12,
     accessoryG,
     accessoryI,
+    accessoryKeyOff,
     linkTimeConstantS: w.fusibleLinkI2tA2s / (w.fusibleLinkRatingA * w.fusibleLinkRatingA),
     starterG: p.engine.crankCurrentA / 10,
     capacityAs: capacityAs(p.battery),

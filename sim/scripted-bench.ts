@@ -72,6 +72,10 @@ export class ScriptedBench {
   ammeter(inSeries: boolean): this {
     return this.push({ kind: 'ammeter', atMs: this.timeMs, inSeries });
   }
+  /** Fit a new fuse in the series ammeter. */
+  replaceAmmeterFuse(): this {
+    return this.push({ kind: 'ammeter-fuse', atMs: this.timeMs });
+  }
   bplus(connected: boolean): this {
     return this.push({ kind: 'bplus-disconnect', atMs: this.timeMs, connected });
   }

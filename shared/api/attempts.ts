@@ -50,6 +50,7 @@ export const inputEventSchema = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('clamp'), atMs: simTimeMsSchema, conductor: conductorSchema.nullable(), arrow: clampArrowSchema }),
   z.object({ kind: z.literal('clamp-zero'), atMs: simTimeMsSchema }),
   z.object({ kind: z.literal('ammeter'), atMs: simTimeMsSchema, inSeries: z.boolean() }),
+  z.object({ kind: z.literal('ammeter-fuse'), atMs: simTimeMsSchema }),
   z.object({ kind: z.literal('bplus-disconnect'), atMs: simTimeMsSchema, connected: z.boolean() }),
   z.object({ kind: z.literal('fault-inject'), atMs: simTimeMsSchema, fault: faultSchema }),
   z.object({ kind: z.literal('fault-clear'), atMs: simTimeMsSchema, faultId: idSchema }),

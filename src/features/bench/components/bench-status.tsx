@@ -4,8 +4,21 @@
  */
 import { shallowEqual, useBench } from '../hooks/use-bench.ts';
 
-const selectStatus = (s: { linkBlownHere: boolean; readings: { engine: string; chargeWarning: boolean; pileOverheated: boolean; pileHot: boolean; voltmeterV: number | null; batterySoc01: number }; controls: { key: string } ; timeMs: number }) => ({
+import type { Readings } from '../../../../sim/instruments.ts';
+import type { EngineStopCause } from '../../../../sim/step.ts';
+
+type StatusReadings = Pick<
+  Readings,
+  'engine' | 'engineStopCause' | 'ammeterFuseBlown' | 'ammeterOverRange' | 'beltSquealing' | 'batteryGassing' | 'chargeWarning' | 'pileOverheated' | 'pileHot' | 'voltmeterV' | 'batterySoc01'
+>;
+
+const selectStatus = (s: { linkBlownHere: boolean; readings: StatusReadings; controls: { key: string; ammeterInSeries: boolean }; timeMs: number }) => ({
   engine: s.readings.engine,
+  cause: s.readings.engineStopCause,
+  fuse: s.readings.ammeterFuseBlown && s.controls.ammeterInSeries,
+  overRange: s.readings.ammeterOverRange,
+  squeal: s.readings.beltSquealing,
+  gassing: s.readings.batteryGassing,
   lamp: s.readings.chargeWarning,
   link: s.linkBlownHere,
   over: s.readings.pileOverheated,
@@ -16,7 +29,15 @@ const selectStatus = (s: { linkBlownHere: boolean; readings: { engine: string; c
   seconds: Math.floor((s.timeMs % 60_000) / 1000),
 });
 
-const ENGINE_WORDS: Record<string, string> = { off: 'Engine stopped', cranking: 'Cranking', running: 'Engine running', stalled: 'Engine stalled — will not crank' };
+const ENGINE_WORDS: Record<string, string> = { off: 'Engine stopped', cranking: 'Cranking', running: 'Engine running', stalled: 'Engine stalled' };
+
+/** What stopped the engine, in the words a technician would use, with what to check. */
+export const STOP_CAUSE_WORDS: Readonly<Record<EngineStopCause, string>> = {
+  'starter-circuit-open':
+    'The starter gets no current: the battery circuit is open. If the series ammeter is fitted, its fuse has blown — cranking through the ammeter is more than its 10 A range takes.',
+  'starter-voltage-low': 'The starter gets too little voltage to turn the engine fast enough: check the battery’s charge and the cable connections (voltage drop while cranking).',
+  'supply-lost': 'The engine died: its supply voltage collapsed.',
+};
 
 export function BenchStatus() {
   const s = useBench(selectStatus, shallowEqual);
@@ -36,9 +57,29 @@ export function BenchStatus() {
           The fusible link has burnt open: the load was held over its rating too long. The alternator no longer reaches the battery.
         </span>
       )}
-      {s.engine === 'stalled' && (
+      {s.engine === 'stalled' && s.cause && (
         <span role="alert" className="rounded-full bg-warn-100 px-2.5 py-1 text-warn-700 ring-1 ring-warn-500/40">
-          Battery too low to crank
+          {STOP_CAUSE_WORDS[s.cause]} Turn the key off before trying again.
+        </span>
+      )}
+      {s.fuse && (
+        <span role="alert" className="rounded-full bg-warn-100 px-2.5 py-1 text-warn-700 ring-1 ring-warn-500/40">
+          The series ammeter’s fuse has blown: it reads nothing and the battery circuit is open until you fit a new fuse.
+        </span>
+      )}
+      {s.overRange && !s.fuse && (
+        <span role="alert" className="rounded-full bg-warn-100 px-2.5 py-1 text-warn-700 ring-1 ring-warn-500/40">
+          The series ammeter is over its 10 A range: its fuse is about to blow.
+        </span>
+      )}
+      {s.squeal && (
+        <span className="rounded-full bg-warn-100 px-2.5 py-1 text-warn-700 ring-1 ring-warn-500/40">
+          The belt squeals: it is slipping under this load.
+        </span>
+      )}
+      {s.gassing && (
+        <span role="alert" className="rounded-full bg-warn-100 px-2.5 py-1 text-warn-700 ring-1 ring-warn-500/40">
+          The battery is gassing (overcharged): hydrogen and oxygen can explode — keep sparks and flames away and ventilate.
         </span>
       )}
       {s.key !== 'off' && s.engine !== 'running' && s.engine !== 'cranking' && (
