@@ -132,15 +132,16 @@ function restWeight(currentA: number): number {
   return detExp(-Math.abs(currentA) / 2);
 }
 
-export function fastTimeConstantS(b: BatteryParams, dischargeA: number): number {
+/** The fast branch's time constant, under load or charge, at a rest weight w. */
+function fastTimeConstantS(b: BatteryParams, dischargeA: number, w: number): number {
   const underLoad = dischargeA >= 0 ? b.surfaceChargeTimeConstantS : FAST_CHARGE_FACTOR * b.surfaceChargeTimeConstantS;
-  return underLoad + (FAST_REST_TIME_CONSTANT_S - underLoad) * restWeight(dischargeA);
+  return underLoad + (FAST_REST_TIME_CONSTANT_S - underLoad) * w;
 }
 
-/** Time constant of the surface charge: slow to build on charge, quick to use up under a load, hours at rest. */
-export function surfaceTimeConstantS(b: BatteryParams, dischargeA: number): number {
+/** Time constant of the surface charge at a rest weight w: slow to build on charge, quick to use up under a load, hours at rest. */
+function surfaceTimeConstantS(b: BatteryParams, dischargeA: number, w: number): number {
   const underLoad = dischargeA >= 0 ? b.surfaceChargeTimeConstantS : SLOW_CHARGE_FACTOR * b.surfaceChargeTimeConstantS;
-  return underLoad + (SLOW_REST_TIME_CONSTANT_S - underLoad) * restWeight(dischargeA);
+  return underLoad + (SLOW_REST_TIME_CONSTANT_S - underLoad) * w;
 }
 
 /**
@@ -164,6 +165,7 @@ const GASSING_SHARE_OF_AH = 1 / 60;
 const LN10 = 2.302585092994046;
 /** Above this many volts over the gassing voltage the law stops growing (far past anything a charging system drives). */
 const GASSING_MAX_OVER_V = 4;
+const GASSING_NEGLIGIBLE_BELOW_V = -4 * GASSING_V_PER_DECADE;
 
 export function gassingVoltageV(b: BatteryParams): number {
   return GASSING_V_AT_25C + GASSING_TEMP_COEFF_V_PER_C * (b.tempC - 25);
@@ -181,6 +183,12 @@ export function gassingCurrentA(b: BatteryParams, internalV: number, out: { curr
     memo.v0 = gassingVoltageV(b);
   }
   let over = internalV - memo.v0;
+  if (over < GASSING_NEGLIGIBLE_BELOW_V) {
+    // Four decades below its onset the gassing current is a fraction of a milliampere: none.
+    out.currentA = 0;
+    out.slopeSPerV = 0;
+    return;
+  }
   if (over > GASSING_MAX_OVER_V) over = GASSING_MAX_OVER_V;
   const i = memo.i0 * detExp((over * LN10) / GASSING_V_PER_DECADE);
   out.currentA = i;
@@ -222,7 +230,8 @@ export function stepBattery(
   gassingCurrentA(b, internalV, gas);
   const chargeA = -dischargeA;
   const rFast = polarizationResistanceOhm(b, from.soc01, dischargeA, r0Ohm);
-  const a = dtS / fastTimeConstantS(b, dischargeA);
+  const w = restWeight(dischargeA);
+  const a = dtS / fastTimeConstantS(b, dischargeA, w);
   // tau dVf/dt = (I_charge - I_gas(V)) R - Vf, implicit Euler with I_gas linearised.
   const g0 = gas.currentA;
   const g1 = gas.slopeSPerV;
@@ -230,7 +239,7 @@ export function stepBattery(
   const gassingA = g0 + g1 * (fastV - from.fastV);
   const reactionA = chargeA - (gassingA > 0 ? gassingA : 0);
   const surfaceTarget = reactionA > 0 ? SURFACE_SHARE * (fastV > 0 ? fastV : 0) : 0;
-  const surfaceV = surfaceTarget + (from.surfaceV - surfaceTarget) * detExp(-dtS / surfaceTimeConstantS(b, dischargeA));
+  const surfaceV = surfaceTarget + (from.surfaceV - surfaceTarget) * detExp(-dtS / surfaceTimeConstantS(b, dischargeA, w));
   const dq = reactionA > 0 ? reactionA * CHARGE_EFFICIENCY * dtS : reactionA * dtS;
   let soc = from.soc01 + dq / capacityAs;
   soc = soc < 0 ? 0 : soc > 1 ? 1 : soc;

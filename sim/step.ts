@@ -609,7 +609,8 @@ function stepBelt(p: VehicleParams, syncRpm: number, altRpm: number, loadTorqueN
     const df = inertia + (grip / ws) * ((1 - th * th) / creep * grow + th * BELT_SLIDE_GAIN * (slip > 0 ? 1 : -1));
     let next = w - f / df;
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    if (Math.abs(next - w) < 1e-7 * ws) {
+    // Newton converges quadratically from last step's speed: a correction this small leaves an error far smaller.
+    if (Math.abs(next - w) < 1e-5 * ws) {
       w = next;
       break;
     }
@@ -626,6 +627,12 @@ interface FieldOut {
   fromIgnition: boolean;
 }
 const fieldOut: FieldOut = { duty: 0, integral: 0, setPointV: 0, currentA: 0, fromIgnition: false };
+
+/** The field current a supply drives through a resistance at a duty: the driver switches the supply onto the field (the average over its cycle). */
+function fieldDrive(duty: number, supplyV: number, freewheelV: number, rOhm: number): number {
+  const v = duty * (supplyV > FIELD_DRIVER_DROP_V ? supplyV - FIELD_DRIVER_DROP_V : 0) - (1 - duty) * freewheelV;
+  return v > 0 ? v / rOhm : 0;
+}
 
 /**
  * The regulator and the field winding. The regulator holds its sense point
@@ -675,13 +682,11 @@ function stepRegulatorAndField(model: Model, state: SimState, keyOn: boolean, al
   if (keyOn) duty = Math.max(duty, p.regulator.dutyFloor01);
   const rField = fieldResistanceOhm(model, state.alternatorTempC);
   const freewheel = state.fieldCurrentA > 0.01 ? FIELD_FREEWHEEL_V : 0;
-  // The driver switches its supply onto the field (the average over its cycle).
-  const drive = (supplyV: number, r: number) => Math.max(0, (duty * Math.max(0, supplyV - FIELD_DRIVER_DROP_V) - (1 - duty) * freewheel) / r);
   const batterySideV = keyOn ? prev.nodeV.junction - prev.nodeV.altCase : 0;
-  const fromBplus = model.sensesBattery ? 0 : drive(bplusV, rField);
+  const fromBplus = model.sensesBattery ? 0 : fieldDrive(duty, bplusV, freewheel, rField);
   // Battery-fed units take the field straight from the battery side; B+-fed units only through the lamp circuit.
   const rIgnition = model.sensesBattery ? rField : rField + LAMP_CIRCUIT_OHM;
-  const fromIgnition = drive(batterySideV, rIgnition);
+  const fromIgnition = fieldDrive(duty, batterySideV, freewheel, rIgnition);
   const useIgnition = fromIgnition > fromBplus || model.sensesBattery;
   const r = useIgnition ? rIgnition : rField;
   const quench = keyOn && bplusV > REGULATOR_BPLUS_LIMIT_V + REGULATOR_QUENCH_MARGIN_V && p.regulator.dutyFloor01 < 1;
