@@ -53,11 +53,11 @@ export function gradeRun(job: GradeJob, ahead: RerunCursor | null = null): Attem
   const { definition, submission } = job;
   const params = definition.vehicle.params;
   const rerun = ahead ? finishRerun(ahead, submission.atMs) : rerunAttempt(params, job.seed, job.events, submission.atMs);
-  const faults = rerun.final.controls.faults;
+  const faults = [...definition.faults, ...injectedFaults(job.events)];
   const curve = job.showCurve
     ? {
         healthy: outputCurve(healthyVehicle(params, definition.vehicle.name).healthy, [], { hot: false }),
-        fitted: outputCurve(params, faults, { hot: false }),
+        fitted: outputCurve(params, rerun.final.controls.changes, { hot: false }),
       }
     : null;
   return gradeAttempt({
@@ -75,6 +75,16 @@ export function gradeRun(job: GradeJob, ahead: RerunCursor | null = null): Attem
     curve,
     pulleyRatio: params.belt.pulleyRatio,
   });
+}
+
+/** The faults injected by events of the log (and not cleared since). */
+function injectedFaults(events: readonly InputEvent[]): Fault[] {
+  const live = new Map<string, Fault>();
+  for (const e of events) {
+    if (e.kind === 'fault-inject') live.set(e.fault.id, e.fault);
+    else if (e.kind === 'fault-clear') live.delete(e.faultId);
+  }
+  return [...live.values()];
 }
 
 /**

@@ -9,6 +9,7 @@ import type { ClampArrow, Conductor, ConnectionPoint, InputEvent, KeyPosition, L
 import { CONDUCTORS, CONNECTION_POINTS } from '../../sim/inputs.ts';
 import type { OutputCurvePoint } from '../../sim/instruments.ts';
 import type { VehicleParams } from '../../sim/params.ts';
+import { carChangeSchema } from '../car.ts';
 import type { DiagnosisChoice, StudentScenarioView } from '../scenario.ts';
 import { DIAGNOSTIC_TESTS, diagnosisChoiceSchema, diagnosticTestSchema, faultSchema } from '../scenario.ts';
 
@@ -51,6 +52,8 @@ export const inputEventSchema = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('clamp-zero'), atMs: simTimeMsSchema }),
   z.object({ kind: z.literal('ammeter'), atMs: simTimeMsSchema, inSeries: z.boolean() }),
   z.object({ kind: z.literal('bplus-disconnect'), atMs: simTimeMsSchema, connected: z.boolean() }),
+  z.object({ kind: z.literal('change-apply'), atMs: simTimeMsSchema, change: carChangeSchema }),
+  z.object({ kind: z.literal('change-clear'), atMs: simTimeMsSchema, changeId: idSchema }),
   z.object({ kind: z.literal('fault-inject'), atMs: simTimeMsSchema, fault: faultSchema }),
   z.object({ kind: z.literal('fault-clear'), atMs: simTimeMsSchema, faultId: idSchema }),
 ]) satisfies z.ZodType<InputEvent>;

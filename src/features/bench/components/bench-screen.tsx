@@ -6,6 +6,7 @@
 import { useMemo, useState } from 'react';
 import { Link } from 'react-router-dom';
 import type { DiagnosticTest } from '../../../../sim/faults.ts';
+import { faultChange } from '../../../../sim/faults.ts';
 import { outputCurve } from '../../../../sim/instruments.ts';
 import type { AttemptBootstrap, AttemptResult } from '../../../../shared/api/attempts.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../../../shared/scenario.ts';
@@ -75,7 +76,7 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
   const tests = scenario.tests;
   const testIds = tests.map((t) => t.test);
   const practice = boot.attempt.mode === 'practice';
-  const curve = useMemo(() => (practice ? outputCurve(vehicle, faults, { hot: false }) : null), [practice, vehicle, faults]);
+  const curve = useMemo(() => (practice ? outputCurve(vehicle, faults.map((f) => faultChange(f)), { hot: false }) : null), [practice, vehicle, faults]);
 
   const onSubmit = async (d: DiagnosisValues) => {
     setSubmitError(null);

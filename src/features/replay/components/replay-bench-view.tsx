@@ -3,7 +3,6 @@
  * the leads and the clamp are, the key, the engine, the pile, and the meters.
  * Everything is read from the replayed model state; nothing here is a control.
  */
-import { FAULT_CATALOG } from '../../../../sim/faults.ts';
 import type { ConnectionPoint, Conductor } from '../../../../sim/inputs.ts';
 import type { ReplayFrame } from '../hooks/use-replay-player.ts';
 
@@ -47,7 +46,6 @@ export function ReplayBenchView({ frame }: { frame: ReplayFrame }) {
   const red = controls.leads.red ? POINTS[controls.leads.red] : null;
   const black = controls.leads.black ? POINTS[controls.leads.black] : null;
   const clamp = controls.clamp.conductor ? CONDUCTORS[controls.clamp.conductor] : null;
-  const activeFaults = controls.faults.filter((f) => frame.point.state.timeMs / 1000 >= f.onsetS);
   return (
     <div className="space-y-3">
       <svg viewBox="0 0 600 250" className="w-full rounded-lg bg-stone-50 ring-1 ring-slate-200" role="img" aria-label={`Bench at this moment: red lead ${red?.label ?? 'parked'}, black lead ${black?.label ?? 'parked'}, clamp ${clamp?.label ?? 'off'}, engine ${r.engine}`}>
@@ -107,7 +105,6 @@ export function ReplayBenchView({ frame }: { frame: ReplayFrame }) {
         {!controls.bplusConnected ? ' · B+ lead off' : ''}
         {r.fusibleLinkOpen ? ' · fusible link open' : ''}
       </p>
-      {activeFaults.length > 0 && <p className="text-sm text-slate-600">Faults present: {activeFaults.map((f) => FAULT_CATALOG[f.kind].label).join('; ')}</p>}
     </div>
   );
 }
