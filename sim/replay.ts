@@ -42,7 +42,7 @@ export function startPoint(params: VehicleParams, seed: number, changes: readonl
 }
 
 /** Events in time order; a stable sort keeps the order of equal times. */
-export function orderEvents(events: readonly InputEvent[]): readonly InputEvent[] {
+export function orderEvents<E extends { atMs: number }>(events: readonly E[]): readonly E[] {
   for (let i = 1; i < events.length; i++) {
     if (events[i]!.atMs < events[i - 1]!.atMs) {
       return events.map((e, k) => ({ e, k })).sort((a, b) => a.e.atMs - b.e.atMs || a.k - b.k).map((x) => x.e);
