@@ -124,6 +124,8 @@ export const SETTLED_AFTER_START_S = 45;
  */
 export const RIPPLE_RPM = 2000;
 export const RIPPLE_LOAD_SHARE = 0.5;
+/** Battery discharge above which the alternator is giving all it can (the battery supplies the rest). */
+export const ALTERNATOR_AT_LIMIT_BATTERY_A = 1;
 
 /** Key-off draw: read once the modules have slept (OEM: Ford 2023 Edge, 25-50 mA after they sleep). */
 export const DRAW_MARGIN_S = 10;
@@ -173,12 +175,18 @@ class Script extends ScriptedBench {
     this.pile(dial);
   }
 
-  /** Turn the pile until the clamp (zeroed, on B+) reads about `targetA` from the alternator. */
+  /**
+   * Turn the pile until the clamp (zeroed, on B+) reads about `targetA` from
+   * the alternator, or until the battery starts to supply the rest (the
+   * alternator then gives all it can).
+   */
   alternatorCurrent(targetA: number): void {
     let dial = 0;
-    for (let i = 0; i < 40; i++) {
+    for (let i = 0; i < 100; i++) {
       const a = this.read().clampA ?? 0;
       if (a >= targetA) break;
+      // Each turn of the dial draws on the battery until the regulator answers: only a discharge that lasts means the limit.
+      if (this.point.state.net.branchA.battery > ALTERNATOR_AT_LIMIT_BATTERY_A && this.wait(1).point.state.net.branchA.battery > ALTERNATOR_AT_LIMIT_BATTERY_A) break;
       dial = Math.min(1, dial + 0.01);
       this.pile(dial).wait(0.2);
     }

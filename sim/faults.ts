@@ -1,15 +1,22 @@
 /**
  * Faults as transforms of component parameters. A fault has a kind, a
  * severity 0..1, an onset in sim seconds and an optional intermittent
- * pattern; `applyFaults` turns the healthy parameters into the effective ones
- * at a moment. Several faults combine: each transform is applied in turn, so
- * two resistive faults add and a weak battery with a stuck draw is both.
+ * pattern; `faultOps` writes its transform as operations on the parameters
+ * (car-changes.ts) and `applyFaults` turns the healthy parameters into the
+ * effective ones at a moment. Several faults combine: each transform is
+ * applied in turn, so two resistive faults add and a weak battery with a
+ * stuck draw is both.
  *
- * Scenario faults and faults injected live use the same type and the same
- * event (`fault-inject`), so a replay reproduces both.
+ * The model itself runs changes, not faults: a fault becomes a change
+ * (`faultChange`) with its operations and schedule but no kind, so a car can
+ * be handed to the bench without its fault list (compiled-car.ts).
  */
 
 import type { VehicleParams } from './params.ts';
+import type { CarChange, IntermittentPattern, ParamOp } from './car-changes.ts';
+import { applyOps, isScheduledActive } from './car-changes.ts';
+
+export type { IntermittentPattern };
 
 export type FaultKind =
   | 'fusible-link-open'
@@ -27,13 +34,6 @@ export type FaultKind =
   | 'key-off-draw'
   | 'wrong-rating'
   | 'post-corroded';
-
-export interface IntermittentPattern {
-  /** One on/off cycle. */
-  periodS: number;
-  /** Fraction of each period during which the fault is present, starting at the onset. */
-  onFraction01: number;
-}
 
 export interface Fault {
   id: string;
@@ -228,87 +228,81 @@ export const FAULT_CATALOG: Readonly<Record<FaultKind, FaultCatalogEntry>> = {
 
 /** Whether a fault is present at the given sim time. */
 export function isFaultActive(fault: Fault, timeS: number): boolean {
-  if (timeS < fault.onsetS) return false;
-  const pattern = fault.intermittent;
-  if (!pattern || pattern.periodS <= 0) return true;
-  const phase = ((timeS - fault.onsetS) % pattern.periodS) / pattern.periodS;
-  return phase < pattern.onFraction01;
+  return isScheduledActive(fault, timeS);
 }
 
 function clamp01(x: number): number {
   return x < 0 ? 0 : x > 1 ? 1 : x;
 }
 
-function withIndex(list: readonly number[], index: number): number[] {
-  return list.includes(index) ? [...list] : [...list, index].sort((a, b) => a - b);
-}
-
-/** One fault's transform of the parameters (returns a new object; `p` is not changed). */
-function applyOne(p: VehicleParams, fault: Fault): VehicleParams {
+/**
+ * One fault's transform as operations on the parameters (applied in order;
+ * see car-changes.ts). Written term by term as the arithmetic of the
+ * transform, so the parameters come out bit for bit the same.
+ */
+export function faultOps(fault: Pick<Fault, 'kind' | 'severity01'>): ParamOp[] {
   const s = clamp01(fault.severity01);
   switch (fault.kind) {
     case 'fusible-link-open':
-      return { ...p, wiring: { ...p.wiring, fusibleLinkOpen: true } };
+      return [{ path: 'wiring.fusibleLinkOpen', op: 'set', value: true }];
     case 'diode-open':
-      return { ...p, alternator: { ...p.alternator, openDiodes: withIndex(p.alternator.openDiodes, 0) } };
+      return [{ path: 'alternator.openDiodes', op: 'include', value: 0 }];
     case 'diode-shorted':
-      return {
-        ...p,
-        alternator: {
-          ...p.alternator,
-          shortedDiodes: withIndex(p.alternator.shortedDiodes, 0),
-          keyOffLeakageA: p.alternator.keyOffLeakageA + 0.1 + 1.9 * s,
-        },
-      };
+      return [
+        { path: 'alternator.shortedDiodes', op: 'include', value: 0 },
+        { path: 'alternator.keyOffLeakageA', op: 'add', value: 0.1 },
+        { path: 'alternator.keyOffLeakageA', op: 'add', value: 1.9 * s },
+      ];
     case 'stator-phase-open':
-      return { ...p, alternator: { ...p.alternator, openPhases: withIndex(p.alternator.openPhases, 0) } };
-    case 'field-open': {
-      const extra = s >= 1 ? 1e6 : 2 + 240 * s * s;
-      return { ...p, alternator: { ...p.alternator, brushResistanceOhm: p.alternator.brushResistanceOhm + extra } };
-    }
+      return [{ path: 'alternator.openPhases', op: 'include', value: 0 }];
+    case 'field-open':
+      return [{ path: 'alternator.brushResistanceOhm', op: 'add', value: s >= 1 ? 1e6 : 2 + 240 * s * s }];
     case 'regulator-set-high':
-      return { ...p, regulator: { ...p.regulator, setPointVAt25C: p.regulator.setPointVAt25C + 0.3 + 1.7 * s } };
+      return [
+        { path: 'regulator.setPointVAt25C', op: 'add', value: 0.3 },
+        { path: 'regulator.setPointVAt25C', op: 'add', value: 1.7 * s },
+      ];
     case 'regulator-set-low':
-      return { ...p, regulator: { ...p.regulator, setPointVAt25C: p.regulator.setPointVAt25C - (0.3 + 1.2 * s) } };
+      // x - y is x + (-y) exactly.
+      return [{ path: 'regulator.setPointVAt25C', op: 'add', value: -(0.3 + 1.2 * s) }];
     case 'regulator-full-field':
-      return { ...p, regulator: { ...p.regulator, dutyFloor01: Math.max(p.regulator.dutyFloor01, 0.5 + 0.5 * s) } };
+      return [{ path: 'regulator.dutyFloor01', op: 'max', value: 0.5 + 0.5 * s }];
     case 'belt-slip':
       // A glazed, stretched or loose belt: less grip, more creep under load (see docs/model.md, "Belt").
-      return { ...p, belt: { ...p.belt, gripNm: p.belt.gripNm * (1 - 0.9 * s), creep01: p.belt.creep01 * (1 + 14 * s) } };
+      return [
+        { path: 'belt.gripNm', op: 'mul', value: 1 - 0.9 * s },
+        { path: 'belt.creep01', op: 'mul', value: 1 + 14 * s },
+      ];
     case 'bplus-high-resistance':
-      return { ...p, wiring: { ...p.wiring, bplusExtraOhm: p.wiring.bplusExtraOhm + 0.05 * s } };
+      return [{ path: 'wiring.bplusExtraOhm', op: 'add', value: 0.05 * s }];
     case 'ground-high-resistance':
-      return { ...p, wiring: { ...p.wiring, groundExtraOhm: p.wiring.groundExtraOhm + 0.05 * s } };
+      return [{ path: 'wiring.groundExtraOhm', op: 'add', value: 0.05 * s }];
     case 'battery-weak':
       // Sulfation: resistance up enough to fail the half-CCA load test at any severity, capacity down, acid locked in the plates.
-      return {
-        ...p,
-        battery: {
-          ...p.battery,
-          internalResistanceOhmAt25C: p.battery.internalResistanceOhmAt25C * (2.8 + 4 * s),
-          capacityAh: p.battery.capacityAh * (1 - 0.6 * s),
-          sulfation01: Math.min(1, p.battery.sulfation01 + 0.2 + 0.6 * s),
-        },
-      };
+      return [
+        { path: 'battery.internalResistanceOhmAt25C', op: 'mul', value: 2.8 + 4 * s },
+        { path: 'battery.capacityAh', op: 'mul', value: 1 - 0.6 * s },
+        { path: 'battery.sulfation01', op: 'add', value: 0.2 },
+        { path: 'battery.sulfation01', op: 'add', value: 0.6 * s },
+        { path: 'battery.sulfation01', op: 'min', value: 1 },
+      ];
     case 'key-off-draw':
-      return { ...p, loads: { ...p.loads, stuckDrawA: p.loads.stuckDrawA + 0.05 + 0.95 * s } };
+      return [
+        { path: 'loads.stuckDrawA', op: 'add', value: 0.05 },
+        { path: 'loads.stuckDrawA', op: 'add', value: 0.95 * s },
+      ];
     case 'wrong-rating': {
       // A smaller unit of the same family: less copper and iron, so higher
       // impedance in proportion (output limit ~ EMF / reactance).
       const k = 1 - 0.5 * s;
-      const a = p.alternator;
-      return {
-        ...p,
-        alternator: {
-          ...a,
-          ratedCurrentA: a.ratedCurrentA * k,
-          synchronousInductanceH: a.synchronousInductanceH / k,
-          statorResistanceOhmAt20C: a.statorResistanceOhmAt20C / k,
-        },
-      };
+      return [
+        { path: 'alternator.ratedCurrentA', op: 'mul', value: k },
+        { path: 'alternator.synchronousInductanceH', op: 'div', value: k },
+        { path: 'alternator.statorResistanceOhmAt20C', op: 'div', value: k },
+      ];
     }
     case 'post-corroded':
-      return { ...p, wiring: { ...p.wiring, postClampPosOhm: p.wiring.postClampPosOhm + 0.1 * s } };
+      return [{ path: 'wiring.postClampPosOhm', op: 'add', value: 0.1 * s }];
     default:
       return assertNever(fault.kind);
   }
@@ -318,6 +312,11 @@ function assertNever(x: never): never {
   throw new Error(`Unknown fault kind: ${String(x)}`);
 }
 
+/** A fault as a change of the car: its schedule and its operations, under the given (opaque) id. */
+export function faultChange(fault: Fault, id: string = fault.id): CarChange {
+  return { id, onsetS: fault.onsetS, intermittent: fault.intermittent ?? null, ops: faultOps(fault) };
+}
+
 /**
  * The effective parameters at `timeS` with every fault that is present then.
  * Pure: returns `params` itself when no fault is active.
@@ -325,19 +324,7 @@ function assertNever(x: never): never {
 export function applyFaults(params: VehicleParams, faults: readonly Fault[], timeS: number): VehicleParams {
   let p = params;
   for (const fault of faults) {
-    if (isFaultActive(fault, timeS)) p = applyOne(p, fault);
+    if (isFaultActive(fault, timeS)) p = applyOps(p, faultOps(fault));
   }
   return p;
-}
-
-/**
- * A small integer that changes exactly when the set of active faults changes
- * (bit i = faults[i] active). The step uses it to reuse effective parameters.
- */
-export function activeFaultMask(faults: readonly Fault[], timeS: number): number {
-  let mask = 0;
-  for (let i = 0; i < faults.length && i < 30; i++) {
-    if (isFaultActive(faults[i]!, timeS)) mask |= 1 << i;
-  }
-  return mask;
 }

@@ -12,7 +12,7 @@
  */
 
 import type { VehicleParams } from './params.ts';
-import type { Fault } from './faults.ts';
+import type { CarChange } from './car-changes.ts';
 import type { SimState, EngineStatus, EngineStopCause } from './step.ts';
 import type { Controls, Conductor, ConnectionPoint } from './inputs.ts';
 import type { NodeName, NetworkSolution } from './network.ts';
@@ -165,12 +165,12 @@ export function readMeters(params: VehicleParams, state: SimState, controls: Con
 
 /** A link that a fault (or the scenario) has open at this moment. */
 function linkOpenByFault(params: VehicleParams, state: SimState): boolean {
-  return effectiveModel(params, state.controls.faults, state.timeMs / 1000).p.wiring.fusibleLinkOpen;
+  return effectiveModel(params, state.controls.changes, state.timeMs / 1000).p.wiring.fusibleLinkOpen;
 }
 
 /** The electrical operating point of the bridge in a state (shared with the rectifier circuit). */
 export function bridgeOperatingInputs(params: VehicleParams, state: SimState) {
-  const m = effectiveModel(params, state.controls.faults, state.timeMs / 1000);
+  const m = effectiveModel(params, state.controls.changes, state.timeMs / 1000);
   const a = m.p.alternator;
   const omegaE = (2 * Math.PI * a.polePairs * state.altRpm) / 60;
   const emfPeakV = m.emfConstantVsPerRad * omegaE * relativeFlux(m, state.fieldCurrentA);
@@ -236,10 +236,11 @@ const CURVE_TEST_V = 13.5;
 /**
  * The output available at 13.5 V held at the B+ stud against alternator
  * speed, full field, net of the field's own supply: what an output-curve
- * test stand measures. Faults apply in full (onsets and intermittency aside).
+ * test stand measures. The changes (faults.ts `faultChange` of a car's
+ * faults) apply in full, onsets and intermittency aside.
  */
-export function outputCurve(params: VehicleParams, faults: readonly Fault[], options: { hot: boolean }): OutputCurvePoint[] {
-  const at = outputAtSpeed(params, faults, options);
+export function outputCurve(params: VehicleParams, changes: readonly CarChange[], options: { hot: boolean }): OutputCurvePoint[] {
+  const at = outputAtSpeed(params, changes, options);
   const points: OutputCurvePoint[] = [];
   for (let rpm = 0; rpm <= CURVE_MAX_ALT_RPM; rpm += CURVE_STEP_ALT_RPM) points.push({ altRpm: rpm, currentA: at(rpm) });
   return points;
@@ -250,8 +251,8 @@ export function outputCurve(params: VehicleParams, faults: readonly Fault[], opt
  * function of the speed; successive calls at nearby speeds start from the
  * last answer.
  */
-export function outputAtSpeed(params: VehicleParams, faults: readonly Fault[], options: { hot: boolean }): (altRpm: number) => number {
-  const steady = faults.map((f) => ({ ...f, onsetS: 0, intermittent: null }));
+export function outputAtSpeed(params: VehicleParams, changes: readonly CarChange[], options: { hot: boolean }): (altRpm: number) => number {
+  const steady = changes.map((c) => ({ ...c, onsetS: 0, intermittent: null }));
   const m = effectiveModel(params, steady, 0);
   const a = m.p.alternator;
   const tempC = options.hot ? HOT_ALTERNATOR_C : COLD_ALTERNATOR_C;

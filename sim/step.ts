@@ -15,7 +15,7 @@
  */
 
 import type { VehicleParams } from './params.ts';
-import type { Fault } from './faults.ts';
+import type { CarChange } from './car-changes.ts';
 import type { Controls, Conductor, KeyPosition } from './inputs.ts';
 import { initialControls } from './inputs.ts';
 import type { NetworkInput, NetworkSolution } from './network.ts';
@@ -201,7 +201,7 @@ interface ControlsRead {
   ammeterInSeries: boolean;
   ammeterFusesFitted: number;
   bplusConnected: boolean;
-  faults: readonly Fault[];
+  changes: readonly CarChange[];
   clampConductor: Conductor | null;
 }
 
@@ -214,7 +214,7 @@ const controlsRead: ControlsRead = {
   ammeterInSeries: false,
   ammeterFusesFitted: 0,
   bplusConnected: true,
-  faults: [],
+  changes: [],
   clampConductor: null,
 };
 
@@ -229,7 +229,7 @@ function readControls(controls: Controls): ControlsRead {
     r.ammeterInSeries = controls.ammeterInSeries;
     r.ammeterFusesFitted = controls.ammeterFusesFitted ?? 0;
     r.bplusConnected = controls.bplusConnected;
-    r.faults = controls.faults;
+    r.changes = controls.changes;
     r.clampConductor = controls.clamp.conductor;
   }
   return r;
@@ -380,9 +380,14 @@ function senseVoltage(m: Model, net: NetworkSolution): number {
   return point - net.nodeV.altCase;
 }
 
-export function initialState(params: VehicleParams, seed: number): SimState {
-  const controls = initialControls();
-  const model = effectiveModel(params, controls.faults, 0);
+/**
+ * The state at 0 ms. `changes` is the car's schedule (compiled-car.ts): in
+ * the controls from the first state, so a change active at 0 ms is in force
+ * in this state already.
+ */
+export function initialState(params: VehicleParams, seed: number, changes: readonly CarChange[] = []): SimState {
+  const controls = changes.length ? { ...initialControls(), changes: [...changes] } : initialControls();
+  const model = effectiveModel(params, controls.changes, 0);
   const p = model.p;
   const rng = nextRngState(seed >>> 0);
   const net = solveAt({
@@ -715,7 +720,7 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
   const dt = dtMs / 1000;
   const timeMs = state.timeMs + dtMs;
   const c = readControls(controls);
-  const model = effectiveModel(params, c.faults, timeMs / 1000);
+  const model = effectiveModel(params, c.changes, timeMs / 1000);
   const p = model.p;
   const prev = state.net;
   const key = c.key;

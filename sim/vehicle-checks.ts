@@ -8,7 +8,7 @@
  *
  * Units are in the names: A, V, H, rpm, s.
  */
-import type { Fault } from './faults.ts';
+import { faultChange, type Fault } from './faults.ts';
 import type { VehicleParams } from './params.ts';
 import type { EngineStopCause } from './step.ts';
 import { outputAtSpeed } from './instruments.ts';
@@ -16,7 +16,7 @@ import { ScriptedBench } from './scripted-bench.ts';
 
 /** Output at the speed of the nameplate rating, cold, 13.5 V held at B+ (SAE J56 conditions). */
 export function deliveredAtRatingA(params: VehicleParams, faults: readonly Fault[] = []): number {
-  return outputAtSpeed(params, faults, { hot: false })(params.alternator.ratedAltRpm);
+  return outputAtSpeed(params, faults.map((f) => faultChange(f)), { hot: false })(params.alternator.ratedAltRpm);
 }
 
 /**

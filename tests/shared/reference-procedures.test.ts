@@ -10,11 +10,10 @@ import { describe, expect, it } from 'vitest';
 import type { DiagnosticTest } from '../../sim/faults.ts';
 import type { RecordedReading } from '../../shared/api/attempts.ts';
 import { CRANKING_MIN_V, RUNNING_TESTS, referenceMeasurements, type ReferenceMeasurements } from '../../shared/reference-procedures.ts';
-import { FAULT_CATALOG } from '../../sim/faults.ts';
+import { FAULT_CATALOG, FAULT_KINDS } from '../../sim/faults.ts';
 import { DIAGNOSTIC_TESTS, defaultPassRules, outputPassMarkA, restoreScenario, type ScenarioDefinition } from '../../shared/scenario.ts';
 import { defaultVehicleParams } from '../../sim/params.ts';
-import { FAULT_KINDS } from '../../sim/faults.ts';
-import { toleranceFor } from '../../server/services/grading.ts';
+import { meterShows } from '../../shared/meter-display.ts';
 
 const dir = new URL('../../scenarios/', import.meta.url);
 const files = readdirSync(dir).filter((f) => f.endsWith('.json')).sort();
@@ -33,7 +32,7 @@ const SOURCE: Readonly<Record<DiagnosticTest, string>> = {
   cranking: 'common practice, no source (9.6 V while cranking)',
 };
 
-/** The quantity a student records for each test, for the grader's tolerance. */
+/** The quantity a student records for each test, for the display's resolution. */
 const QUANTITY: Readonly<Record<DiagnosticTest, RecordedReading['quantity']>> = {
   'battery-ocv': 'voltage',
   'battery-load': 'voltage',
@@ -45,6 +44,15 @@ const QUANTITY: Readonly<Record<DiagnosticTest, RecordedReading['quantity']>> = 
   'key-off-draw': 'draw',
   cranking: 'voltage',
 };
+
+/** One step of the display's last digit for a quantity at a value, in the reference's unit (V, V AC, A). */
+function displayStep(quantity: RecordedReading['quantity'], value: number): number {
+  const meters = { voltmeterV: value, rippleVac: value, clampA: value, ammeterA: value, tachRpm: value };
+  const shown = meterShows(quantity, meters)!;
+  const perUnit = shown.unit === 'mV' || shown.unit === 'mA' ? 0.001 : 1;
+  const decimals = shown.text.includes('.') ? shown.text.split('.')[1]!.length : 0;
+  return 10 ** -decimals * perUnit;
+}
 
 const cache = new Map<string, ReferenceMeasurements>();
 function measured(file: string): ReferenceMeasurements {
@@ -109,9 +117,8 @@ describe('reference procedures on the demo library', () => {
         const m = measured(file);
         for (const test of def.testsExpected) {
           const x = m[test];
-          // Definite: further from the limit than the grader accepts a written reading to be from the meter
-          // (the grader's own tolerance; common practice, no source).
-          const tol = toleranceFor(QUANTITY[test], x.value);
+          // Definite: further from the limit than the display's last digit (half a step either way; common practice, no source).
+          const tol = displayStep(QUANTITY[test], x.value);
           expect(Math.abs(x.marginToLimit), `${test}: ${x.value} ${x.unit}, ${x.marginToLimit} from the limit; ${x.conditions}`).toBeGreaterThan(tol);
         }
         if (def.faults.length > 0) {

@@ -7,7 +7,7 @@ import { describe, it } from 'vitest';
 import fc from 'fast-check';
 import { VEHICLE_PARAM_BOUNDS, defaultVehicleParams } from '../../sim/params';
 import type { VehicleParams } from '../../sim/params';
-import { FAULT_KINDS } from '../../sim/faults';
+import { FAULT_KINDS, faultChange } from '../../sim/faults';
 import type { Fault } from '../../sim/faults';
 import type { InputEvent } from '../../sim/inputs';
 import { CONNECTION_POINTS } from '../../sim/inputs';
@@ -147,7 +147,7 @@ describe('properties of the model', () => {
           const q: VehicleParams = defaultVehicleParams();
           Object.assign(q.alternator, { synchronousInductanceH: l, statorResistanceOhmAt20C: r, cutInAltRpm: cutIn, polePairs: pairs, fieldKneeCurrentA: knee });
           const faults: Fault[] = kind ? [{ id: 'x', kind, severity01: 0.5, onsetS: 0 }] : [];
-          const curve = outputCurve(q, faults, { hot });
+          const curve = outputCurve(q, faults.map((f) => faultChange(f)), { hot });
           return curve.every((pt, i) => i === 0 || pt.currentA >= curve[i - 1]!.currentA - 1e-6);
         },
       ),
@@ -161,7 +161,7 @@ describe('properties of the model', () => {
       fc.property(fc.double({ min: 20e-6, max: 400e-6, noNaN: true }), fc.integer({ min: 4, max: 9 }), (l, pairs) => {
         const q: VehicleParams = defaultVehicleParams();
         Object.assign(q.alternator, { synchronousInductanceH: l, polePairs: pairs });
-        const curve = outputCurve(q, [{ id: 'x', kind: 'diode-shorted', severity01: 0.5, onsetS: 0 }], { hot: false });
+        const curve = outputCurve(q, [faultChange({ id: 'x', kind: 'diode-shorted', severity01: 0.5, onsetS: 0 })], { hot: false });
         let peak = 0;
         return curve.every((pt) => {
           peak = Math.max(peak, pt.currentA);

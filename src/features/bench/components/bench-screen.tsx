@@ -3,19 +3,16 @@
  * the controls and the dial, the charts, the procedure for each test, the
  * readings and the diagnosis; after submission, the graded result.
  */
-import { useMemo, useState } from 'react';
+import { useState } from 'react';
 import { Link } from 'react-router-dom';
 import type { DiagnosticTest } from '../../../../sim/faults.ts';
-import { outputCurve } from '../../../../sim/instruments.ts';
 import type { AttemptBootstrap, AttemptResult } from '../../../../shared/api/attempts.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../../../shared/scenario.ts';
 import { paths } from '../../../config/paths.ts';
 import { ErrorState, PageHeader, Panel, Spinner } from '../../../components/ui/states.tsx';
 import { useSubmitAttempt } from '../api/submit-attempt.ts';
 import { BenchEngineContext } from '../hooks/use-bench.ts';
-import { useBenchSession, type BenchSession } from '../hooks/use-bench-session.ts';
-import { useLiveInjections } from '../hooks/use-live-injections.ts';
-import { useLocalReadings } from '../hooks/use-local-readings.ts';
+import { useBenchSession, useLoggedReadings, type BenchSession } from '../hooks/use-bench-session.ts';
 import { AttemptResultView } from './attempt-result.tsx';
 import { BenchSchematic } from './bench-schematic.tsx';
 import { BenchStatus } from './bench-status.tsx';
@@ -23,11 +20,9 @@ import { LiveConnectionStatus } from './connection-status.tsx';
 import { DiagnosisForm, type DiagnosisValues } from './diagnosis-form.tsx';
 import { AccessorySwitches, KeySwitch, RpmControl } from './engine-controls.tsx';
 import { HookupPanel } from './hookup-panel.tsx';
-import { OutputCurveChart } from './output-curve-chart.tsx';
 import { PileControl } from './pile-control.tsx';
 import { GENERAL_CAUTIONS } from './procedure-content.ts';
 import { ProcedurePanel } from './procedure-panel.tsx';
-import { toRecorded, type LocalReading } from './reading-capture.ts';
 import { ReadingStrip } from './reading-strip.tsx';
 import { ReadingsPanel } from './readings-panel.tsx';
 import { RippleScope } from './ripple-scope.tsx';
@@ -36,16 +31,18 @@ import { TimeControls } from './time-controls.tsx';
 
 const testLabel = (t: DiagnosticTest) => DIAGNOSTIC_TEST_LABELS[t];
 
-function measuredPoints(readings: LocalReading[], pulleyRatio: number) {
-  return readings.filter((r) => r.test === 'output' && r.quantity === 'current').map((r) => ({ altRpm: r.tachRpm * pulleyRatio, currentA: r.value }));
-}
-
 function SubmittedView({ boot, result }: { boot: AttemptBootstrap; result: AttemptResult }) {
   return (
     <>
       <PageHeader
         title={boot.scenario.title}
-        description={boot.attempt.mode === 'practice' ? 'Practice run — submitted. The fault is revealed below.' : 'Submitted and graded.'}
+        description={
+          boot.attempt.mode === 'practice'
+            ? 'Practice run — submitted. How each reading was taken is below; the fault is not revealed, so the scenario can be practised again.'
+            : result.hidden
+              ? 'Submitted. This assignment shows results when it closes.'
+              : 'Submitted and graded.'
+        }
         actions={
           <>
             <Link to={paths.bench.href()} className="rounded-md bg-white px-3 py-2 text-sm font-medium ring-1 ring-slate-300 hover:bg-slate-50">
@@ -58,15 +55,15 @@ function SubmittedView({ boot, result }: { boot: AttemptBootstrap; result: Attem
         }
       />
       <Panel title="Result">
-        <AttemptResultView result={result} testLabel={testLabel} ratedA={boot.scenario.vehicle.alternatorRatedA} />
+        <AttemptResultView result={result} testLabel={testLabel} ratedA={boot.scenario.vehicle.alternatorRatedA} attemptId={boot.attempt.id} />
       </Panel>
     </>
   );
 }
 
 function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; session: BenchSession; onResult: (r: AttemptResult) => void }) {
-  const { engine, outbox, faults } = session;
-  const { readings, add, remove, clear } = useLocalReadings(boot.attempt.id);
+  const { engine, outbox } = session;
+  const readings = useLoggedReadings(session.readings);
   const submit = useSubmitAttempt(boot.attempt.id);
   const [submitError, setSubmitError] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
@@ -75,13 +72,12 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
   const tests = scenario.tests;
   const testIds = tests.map((t) => t.test);
   const practice = boot.attempt.mode === 'practice';
-  const curve = useMemo(() => (practice ? outputCurve(vehicle, faults, { hot: false }) : null), [practice, vehicle, faults]);
 
   const onSubmit = async (d: DiagnosisValues) => {
     setSubmitError(null);
     setBusy(true);
     engine.stop();
-    const atMs = engine.readNow().atMs;
+    const atMs = engine.getSnapshot().timeMs;
     const sent = await outbox.flush();
     if (!sent) {
       setBusy(false);
@@ -90,11 +86,10 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
       return;
     }
     submit.mutate(
-      { atMs, readings: readings.map(toRecorded), diagnosis: d },
+      { atMs, diagnosis: d },
       {
         onSuccess: (result) => {
           outbox.clear();
-          clear();
           onResult(result);
         },
         onError: (err) => {
@@ -160,19 +155,19 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
             <ProcedurePanel tests={testIds} rules={scenario.passRules} ratedA={scenario.vehicle.alternatorRatedA} cca={scenario.vehicle.batteryCca} />
           </Panel>
           <Panel title="Readings">
-            <ReadingsPanel tests={tests} readings={readings} onAdd={add} onRemove={remove} disabled={busy} />
+            <ReadingsPanel tests={tests} readings={readings} onRecord={session.readings.record} onRemove={session.readings.remove} disabled={busy} />
           </Panel>
         </div>
-        {curve && (
-          <Panel title="Output curve (practice)">
-            <p className="mb-2 text-xs text-slate-500">The fitted unit’s output at 13.5 V against alternator speed; dots are your output readings.</p>
-            <div className="max-w-2xl">
-              <OutputCurveChart fitted={curve} measured={measuredPoints(readings, vehicle.belt.pulleyRatio)} ratedA={scenario.vehicle.alternatorRatedA} />
-            </div>
-          </Panel>
-        )}
         <Panel title="Diagnosis">
-          <DiagnosisForm tests={tests} choices={scenario.diagnosisChoices} readingCount={readings.length} submitting={busy || submit.isPending} error={submitError} onSubmit={(d) => void onSubmit(d)} />
+          <DiagnosisForm
+            tests={tests}
+            choices={scenario.diagnosisChoices}
+            readingCount={readings.length}
+            resultsAt={boot.attempt.resultsAt}
+            submitting={busy || submit.isPending}
+            error={submitError}
+            onSubmit={(d) => void onSubmit(d)}
+          />
         </Panel>
         <aside aria-label="Safety" className="rounded-xl bg-white p-4 text-xs text-slate-600 ring-1 ring-slate-200">
           <p className="mb-1 font-semibold text-slate-800">Safety on a real car</p>
@@ -192,7 +187,6 @@ export function BenchScreen({ boot }: { boot: AttemptBootstrap }) {
   const [result, setResult] = useState<AttemptResult | null>(boot.result);
   const submitted = boot.attempt.status === 'submitted' || result !== null;
   const { session, error } = useBenchSession(boot, !submitted);
-  useLiveInjections(boot.attempt.id, session?.engine ?? null, boot.benchKey);
   if (submitted && result) return <SubmittedView boot={boot} result={result} />;
   if (submitted) return <PageHeader title={boot.scenario.title} description="This attempt was submitted." />;
   if (error) return <ErrorState error={error} />;

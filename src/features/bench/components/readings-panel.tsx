@@ -1,24 +1,28 @@
 /**
- * Recording readings: pick the test and the quantity, and "Record this
- * reading" writes down what the meter shows now, with the sim time and the
- * hook-up in words. The list can be pruned before submitting.
+ * Recording readings: pick the test; the panel says whether its set-up holds
+ * now and, if not, what is missing (shared/test-setups.ts, the same check the
+ * grader makes); "Record this reading" writes down what the meter shows at
+ * this display tick. A reading taken outside its set-up is kept, marked with
+ * the reason, and earns nothing. Each reading goes into the attempt's log and
+ * shows "saved" once the server has stored it.
  */
 import { useEffect } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
 import type { DiagnosticTest } from '../../../../sim/faults.ts';
-import { readingQuantitySchema } from '../../../../shared/api/attempts.ts';
+import { MAX_READINGS, type RecordedReading } from '../../../../shared/api/attempts.ts';
+import { shownWithUnit } from '../../../../shared/meter-display.ts';
 import { diagnosticTestSchema } from '../../../../shared/scenario.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { SelectField, TextField } from '../../../components/ui/field.tsx';
-import { useBenchEngine } from '../hooks/use-bench.ts';
+import { useBench, useBenchEngine } from '../hooks/use-bench.ts';
+import type { LoggedReading } from '../hooks/use-bench-session.ts';
 import { useBenchUi } from '../stores/bench-ui-store.ts';
-import { DEFAULT_QUANTITY, QUANTITY_LABELS, describeSetup, meterValue, type LocalReading } from './reading-capture.ts';
+import { QUANTITY_LABELS, TEST_QUANTITY, describeSetup, valueToRecord } from './reading-capture.ts';
 
 const recordFormSchema = z.object({
   test: diagnosticTestSchema,
-  quantity: readingQuantitySchema,
   note: z.string().max(120, 'Keep the note under 120 characters'),
 });
 type RecordForm = z.infer<typeof recordFormSchema>;
@@ -29,16 +33,41 @@ function newId(): string {
 
 const formatTime = (ms: number) => `${String(Math.floor(ms / 60_000)).padStart(2, '0')}:${String(Math.floor((ms % 60_000) / 1000)).padStart(2, '0')}`;
 
+/** Whether the chosen test's set-up holds at this display tick, and what is missing. */
+function SetupStatusNote({ test }: { test: DiagnosticTest }) {
+  const status = useBench(
+    (s) => s.display.setups[test],
+    (a, b) => a.holds === b.holds && a.unmet.join('|') === b.unmet.join('|'),
+  );
+  if (status.holds) {
+    return (
+      <p data-testid="setup-status" className="rounded-md bg-live-50 px-3 py-2 text-sm text-live-700">
+        The set-up for this test holds: a reading now counts as evidence.
+      </p>
+    );
+  }
+  return (
+    <div data-testid="setup-status" className="rounded-md bg-warn-100 px-3 py-2 text-sm text-warn-700">
+      <p className="font-medium">Not yet the test’s set-up: a reading now is kept but earns nothing.</p>
+      <ul className="mt-1 list-disc pl-5">
+        {status.unmet.map((u) => (
+          <li key={u}>{u}</li>
+        ))}
+      </ul>
+    </div>
+  );
+}
+
 export function ReadingsPanel({
   tests,
   readings,
-  onAdd,
+  onRecord,
   onRemove,
   disabled,
 }: {
   tests: { test: DiagnosticTest; label: string }[];
-  readings: LocalReading[];
-  onAdd: (r: LocalReading) => void;
+  readings: readonly LoggedReading[];
+  onRecord: (r: RecordedReading) => void;
   onRemove: (id: string) => void;
   disabled?: boolean;
 }) {
@@ -46,33 +75,36 @@ export function ReadingsPanel({
   const procedure = useBenchUi((s) => s.procedure);
   const form = useForm<RecordForm>({
     resolver: zodResolver(recordFormSchema),
-    defaultValues: { test: procedure, quantity: DEFAULT_QUANTITY[procedure], note: '' },
+    defaultValues: { test: procedure, note: '' },
   });
-  const { register, handleSubmit, setValue, setError, formState } = form;
+  const { register, handleSubmit, setValue, setError, formState, watch } = form;
+  const test = watch('test');
 
   // Follow the procedure tab the student has open.
   useEffect(() => {
     setValue('test', procedure);
-    setValue('quantity', DEFAULT_QUANTITY[procedure]);
   }, [procedure, setValue]);
 
   const record = handleSubmit((values) => {
-    const { atMs, readings: meters } = engine.readNow();
-    const taken = meterValue(values.quantity, meters);
+    const { atMs, readings: meters, setups } = engine.readNow();
+    const taken = valueToRecord(values.test, meters, setups[values.test]);
     if (!taken) {
-      setError('quantity', { message: 'That meter shows no reading now: check the hook-up.' });
+      setError('test', { message: values.test === 'cranking' ? 'No crank yet: crank the engine with the leads on the battery posts.' : 'That meter shows no reading now: check the hook-up.' });
+      return;
+    }
+    if (readings.length >= MAX_READINGS) {
+      setError('test', { message: `At most ${MAX_READINGS} readings: remove one first.` });
       return;
     }
     const setup = describeSetup(engine.getSnapshot().controls, meters);
-    onAdd({
+    onRecord({
       id: newId(),
       test: values.test,
-      quantity: values.quantity,
+      quantity: TEST_QUANTITY[values.test],
       value: taken.value,
       unit: taken.unit,
       atMs,
       where: (values.note ? `${values.note} — ${setup}` : setup).slice(0, 200),
-      tachRpm: meters.tachRpm,
     });
     setValue('note', '');
   });
@@ -87,13 +119,10 @@ export function ReadingsPanel({
             </option>
           ))}
         </SelectField>
-        <SelectField label="What was measured" {...register('quantity')} error={formState.errors.quantity?.message}>
-          {(Object.keys(QUANTITY_LABELS) as (keyof typeof QUANTITY_LABELS)[]).map((q) => (
-            <option key={q} value={q}>
-              {QUANTITY_LABELS[q]}
-            </option>
-          ))}
-        </SelectField>
+        <p className="self-end pb-2 text-sm text-slate-600">Reads: {QUANTITY_LABELS[TEST_QUANTITY[test] ?? 'voltage']}</p>
+        <div className="sm:col-span-2">
+          <SetupStatusNote test={test} />
+        </div>
         <div className="sm:col-span-2">
           <TextField label="Note (optional)" placeholder="e.g. after 15 s at half CCA" {...register('note')} error={formState.errors.note?.message} />
         </div>
@@ -113,24 +142,30 @@ export function ReadingsPanel({
               <th className="py-1 font-medium">Test</th>
               <th className="py-1 text-right font-medium">Value</th>
               <th className="py-1 pl-3 font-medium">Where</th>
+              <th className="py-1 font-medium">
+                <span className="sr-only">Saved</span>
+              </th>
               <th className="py-1">
                 <span className="sr-only">Remove</span>
               </th>
             </tr>
           </thead>
           <tbody className="divide-y divide-slate-100">
-            {readings.map((r) => (
+            {readings.map(({ reading: r, stored }) => (
               <tr key={r.id} data-testid="recorded-reading">
                 <td className="py-1.5 font-mono text-xs text-slate-500">{formatTime(r.atMs)}</td>
                 <td className="py-1.5 text-slate-700">{tests.find((t) => t.test === r.test)?.label ?? r.test}</td>
-                <td className="whitespace-nowrap py-1.5 text-right font-mono font-semibold text-slate-900">
-                  {r.value} {r.unit}
+                <td className="whitespace-nowrap py-1.5 text-right font-mono font-semibold text-slate-900" data-testid="recorded-value">
+                  {shownWithUnit(r.value, r.unit)}
                 </td>
                 <td className="max-w-56 truncate py-1.5 pl-3 text-xs text-slate-500" title={r.where}>
                   {r.where}
                 </td>
+                <td className="py-1.5 pl-2 text-xs text-slate-500" data-testid="reading-saved">
+                  {stored ? 'saved' : 'saving…'}
+                </td>
                 <td className="py-1.5 text-right">
-                  <Button variant="ghost" size="sm" disabled={disabled} onClick={() => onRemove(r.id)} aria-label={`Remove reading ${r.value} ${r.unit}`}>
+                  <Button variant="ghost" size="sm" disabled={disabled} onClick={() => onRemove(r.id)} aria-label={`Remove reading ${shownWithUnit(r.value, r.unit)}`}>
                     Remove
                   </Button>
                 </td>

@@ -3,8 +3,9 @@
  * the leads and the clamp are, the key, the engine, the pile, and the meters.
  * Everything is read from the replayed model state; nothing here is a control.
  */
-import { FAULT_CATALOG } from '../../../../sim/faults.ts';
 import type { ConnectionPoint, Conductor } from '../../../../sim/inputs.ts';
+import { isScheduledActive } from '../../../../sim/car-changes.ts';
+import { NO_READING, meterShows, type MeterQuantity } from '../../../../shared/meter-display.ts';
 import type { ReplayFrame } from '../hooks/use-replay-player.ts';
 
 type Pt = [number, number];
@@ -30,24 +31,34 @@ const CONDUCTORS: Record<Conductor, { from: Pt; to: Pt; label: string }> = {
 
 const METER: Pt = [300, 220];
 const mid = (a: Pt, b: Pt): Pt => [(a[0] + b[0]) / 2, (a[1] + b[1]) / 2];
-const fmt = (v: number | null, digits: number, unit: string) => (v === null ? '—' : `${v.toFixed(digits)} ${unit}`);
-
-function Readout({ label, value }: { label: string; value: string }) {
+function Readout({ label, value, testId }: { label: string; value: string; testId?: string }) {
   return (
     <div className="rounded-md bg-slate-900 px-2.5 py-1.5">
       <dt className="text-[10px] uppercase tracking-wide text-slate-400">{label}</dt>
-      <dd className="font-mono text-base font-semibold text-live-300">{value}</dd>
+      <dd className="font-mono text-base font-semibold text-live-300" data-testid={testId}>
+        {value}
+      </dd>
     </div>
   );
 }
 
-export function ReplayBenchView({ frame }: { frame: ReplayFrame }) {
+/** A readout as the bench's display showed it (shared/meter-display.ts). */
+function shown(q: MeterQuantity, d: ReplayFrame['display']['readings']): string {
+  const s = meterShows(q, d);
+  return s ? `${s.text} ${s.unit}` : NO_READING;
+}
+
+export function ReplayBenchView({ frame, faultLabels = [], changeLabels = {} }: { frame: ReplayFrame; faultLabels?: readonly string[]; changeLabels?: Readonly<Record<string, string>> }) {
   const { controls } = frame.point;
   const r = frame.readings;
+  const d = frame.display.readings;
+  const timeS = frame.point.state.timeMs / 1000;
+  const scheduled = new Set(Object.keys(changeLabels));
+  const permanent = faultLabels.filter((l) => !Object.values(changeLabels).includes(l));
+  const present = [...permanent, ...controls.changes.filter((c) => scheduled.has(c.id) && isScheduledActive(c, timeS)).map((c) => changeLabels[c.id]!)];
   const red = controls.leads.red ? POINTS[controls.leads.red] : null;
   const black = controls.leads.black ? POINTS[controls.leads.black] : null;
   const clamp = controls.clamp.conductor ? CONDUCTORS[controls.clamp.conductor] : null;
-  const activeFaults = controls.faults.filter((f) => frame.point.state.timeMs / 1000 >= f.onsetS);
   return (
     <div className="space-y-3">
       <svg viewBox="0 0 600 250" className="w-full rounded-lg bg-stone-50 ring-1 ring-slate-200" role="img" aria-label={`Bench at this moment: red lead ${red?.label ?? 'parked'}, black lead ${black?.label ?? 'parked'}, clamp ${clamp?.label ?? 'off'}, engine ${r.engine}`}>
@@ -77,7 +88,7 @@ export function ReplayBenchView({ frame }: { frame: ReplayFrame }) {
         ))}
         <rect x={METER[0] - 34} y={METER[1] - 12} width={68} height={24} rx={4} className="fill-slate-900" />
         <text x={METER[0]} y={METER[1] + 5} textAnchor="middle" className="fill-live-300 font-mono text-[12px]">
-          {r.voltmeterV === null ? '-- V' : `${r.voltmeterV.toFixed(2)} V`}
+          {shown('voltage', d)}
         </text>
         {red && <line x1={METER[0] - 12} y1={METER[1] - 12} x2={red.at[0]} y2={red.at[1]} className="stroke-stop-600" strokeWidth={2.5} />}
         {black && <line x1={METER[0] + 12} y1={METER[1] - 12} x2={black.at[0]} y2={black.at[1]} className="stroke-slate-900" strokeWidth={2.5} />}
@@ -90,12 +101,12 @@ export function ReplayBenchView({ frame }: { frame: ReplayFrame }) {
           </g>
         )}
       </svg>
-      <dl className="grid grid-cols-2 gap-2 sm:grid-cols-4" aria-live="off">
-        <Readout label="Volts" value={fmt(r.voltmeterV, 2, 'V')} />
-        <Readout label="Ripple" value={fmt(r.rippleVac, 2, 'V AC')} />
-        <Readout label="Clamp" value={fmt(r.clampA, 1, 'A')} />
-        <Readout label="Engine" value={`${Math.round(r.tachRpm)} rpm`} />
-        <Readout label="Ammeter" value={fmt(r.ammeterA, 3, 'A')} />
+      <dl className="grid grid-cols-2 gap-2 sm:grid-cols-4" aria-live="off" data-testid="replay-readouts" data-at-ms={frame.display.atMs}>
+        <Readout label="Volts" value={shown('voltage', d)} testId="replay-volts" />
+        <Readout label="Ripple" value={shown('ripple', d)} testId="replay-ripple" />
+        <Readout label="Clamp" value={shown('current', d)} testId="replay-amps" />
+        <Readout label="Engine" value={shown('rpm', d)} testId="replay-rpm" />
+        <Readout label="Draw" value={shown('draw', d)} testId="replay-draw" />
         <Readout label="Pile" value={`${r.pileA.toFixed(0)} A`} />
         <Readout label="Battery" value={`${Math.round(r.batterySoc01 * 100)} %`} />
         <Readout label="Key" value={controls.key} />
@@ -107,7 +118,7 @@ export function ReplayBenchView({ frame }: { frame: ReplayFrame }) {
         {!controls.bplusConnected ? ' · B+ lead off' : ''}
         {r.fusibleLinkOpen ? ' · fusible link open' : ''}
       </p>
-      {activeFaults.length > 0 && <p className="text-sm text-slate-600">Faults present: {activeFaults.map((f) => FAULT_CATALOG[f.kind].label).join('; ')}</p>}
+      {present.length > 0 && <p className="text-sm text-slate-600">Faults present: {present.join('; ')}</p>}
     </div>
   );
 }
