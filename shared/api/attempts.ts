@@ -11,6 +11,7 @@ import type { OutputCurvePoint } from '../../sim/instruments.ts';
 import type { VehicleParams } from '../../sim/params.ts';
 import type { DiagnosisChoice, StudentScenarioView } from '../scenario.ts';
 import { DIAGNOSTIC_TESTS, diagnosisChoiceSchema, diagnosticTestSchema, faultSchema } from '../scenario.ts';
+import { idField, idParam } from './ids.ts';
 
 // Imported from here by the live-session contract; the list itself lives with the scenario document.
 export { DIAGNOSTIC_TESTS };
@@ -151,8 +152,7 @@ export const submitSchema = z
   });
 export type SubmitInput = z.infer<typeof submitSchema>;
 
-const positiveIdField = (field: string) =>
-  z.number({ error: `${field} must be a number` }).int(`${field} must be a whole number`).positive(`${field} must be a positive whole number`);
+const positiveIdField = idField;
 
 /** POST /api/attempts: `{ assignmentId }` for an assignment, or `{ scenarioId, mode: 'practice' }`. */
 export const startAttemptSchema = z
@@ -176,7 +176,7 @@ export const startAttemptSchema = z
   );
 export type StartAttemptInput = z.output<typeof startAttemptSchema>;
 
-export const attemptIdParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
+export const attemptIdParamsSchema = z.object({ id: idParam('id') });
 
 export const MISTAKE_KINDS = [
   'reversed-clamp',

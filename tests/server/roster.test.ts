@@ -63,14 +63,16 @@ describe('roster preview', () => {
     expect(res.body).toMatchObject({ errorCount: 4, newCount: 2, existingCount: 1, alreadyEnrolledCount: 1, fileName: 'section-a.csv' });
   });
 
-  it('counts file lines, not records, when a quoted field spans lines', async () => {
+  it('counts file lines, not records, when a quoted field spans lines (and refuses the line break in the name, as every name does)', async () => {
     const file = csv(['name,email', '"Nell', 'Quarry",nell.quarry@cindervalley.example', 'Broken Line,broken@', 'Otto Vance,otto.vance@cindervalley.example']);
     const res = await asRune.post(`/api/classes/${classId}/roster/preview`).attach('file', file, 'multiline.csv').expect(200);
-    expect((res.body.rows as { line: number; status: string }[]).map((r) => [r.line, r.status])).toEqual([
-      [2, 'new'],
+    const rows = res.body.rows as { line: number; status: string; message?: string }[];
+    expect(rows.map((r) => [r.line, r.status])).toEqual([
+      [2, 'error'],
       [4, 'error'],
       [5, 'new'],
     ]);
+    expect(rows[0]!.message).toMatch(/line breaks/);
   });
 
   it('accepts first and last name columns', async () => {
