@@ -2,7 +2,7 @@ import { existsSync } from 'node:fs';
 import { resolve } from 'node:path';
 import express from 'express';
 import helmet from 'helmet';
-import { csrfProtection } from './auth/csrf.ts';
+import { csrf } from './auth/csrf.ts';
 import { loadUser } from './auth/guard.ts';
 import { sessionMiddleware } from './auth/session.ts';
 import type { AppContext } from './context.ts';
@@ -52,7 +52,7 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
     markReceived,
     express.json({ limit: '256kb' }),
     sessionMiddleware({ pool: ctx.pool, secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY, bus: sessionBusFor(ctx) }),
-    csrfProtection,
+    csrf({ secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY }).protect,
     loadUser(ctx.db),
     (_req, res, next) => {
       res.setHeader('Cache-Control', 'no-store');

@@ -148,7 +148,7 @@ export function classRoutes(ctx: AppContext) {
     });
     let invited = false;
     if (outcome.created) {
-      await sendPasswordLink(ctx, req, outcome.student, 'invite');
+      await sendPasswordLink(ctx, outcome.student, 'invite');
       invited = true;
     }
     const student = (await classStudents(ctx.db, id)).find((s) => s.id === outcome.student.id);
@@ -175,7 +175,7 @@ export function classRoutes(ctx: AppContext) {
     const student = (await classStudents(ctx.db, id)).find((s) => s.id === userId);
     if (!student) throw notFound('That student is not in this class');
     if (student.hasPassword) throw conflict(`${student.email} has already set a password`, 'userId');
-    await sendPasswordLink(ctx, req, student, 'invite');
+    await sendPasswordLink(ctx, student, 'invite');
     res.status(202).json({ message: `Invitation sent to ${student.email}` });
   });
 

@@ -198,7 +198,7 @@ export function rosterRoutes(ctx: AppContext) {
     let invited = 0;
     for (const student of result.created) {
       try {
-        await sendPasswordLink(ctx, req, student, 'invite');
+        await sendPasswordLink(ctx, student, 'invite');
         invited++;
       } catch (err) {
         ctx.log('warn', `invitation to ${student.email} was not sent`, err);

@@ -1,9 +1,13 @@
-import type { Request } from 'express';
+/**
+ * Mail about an account: invitation and reset links. Links are built from the configured public
+ * address (PUBLIC_URL) only, never from anything in a request: a forged Host
+ * header would otherwise send a working token to the forger's site.
+ */
 import type { AppContext } from '../context.ts';
 import { issueToken, type TokenPurpose } from './tokens.ts';
 
-export function appUrl(ctx: AppContext, req: Request): string {
-  return ctx.env.APP_URL ?? `${req.protocol}://${req.get('host')}`;
+export function appUrl(ctx: Pick<AppContext, 'env'>): string {
+  return ctx.env.PUBLIC_URL;
 }
 
 const copy: Record<TokenPurpose, { subject: string; intro: string }> = {
@@ -17,15 +21,10 @@ const copy: Record<TokenPurpose, { subject: string; intro: string }> = {
   },
 };
 
-/** Issues a token and e-mails its link. The link works once and expires. */
-export async function sendPasswordLink(
-  ctx: AppContext,
-  req: Request,
-  user: { id: number; email: string; name: string },
-  purpose: TokenPurpose,
-): Promise<void> {
+/** Issues a token and e-mails its link. The link works once, expires, and ends any earlier link of the user. */
+export async function sendPasswordLink(ctx: AppContext, user: { id: number; email: string; name: string }, purpose: TokenPurpose): Promise<void> {
   const token = await issueToken(ctx.db, user.id, purpose);
-  const link = `${appUrl(ctx, req)}/set-password?token=${encodeURIComponent(token)}`;
+  const link = `${appUrl(ctx)}/set-password?token=${encodeURIComponent(token)}`;
   const hours = purpose === 'invite' ? '7 days' : '1 hour';
   await ctx.mailer.send({
     to: user.email,
