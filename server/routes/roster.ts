@@ -18,7 +18,8 @@ import { badRequest, conflict, HttpError } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { singleFileUpload, storedFileName } from '../http/uploads.ts';
 import { parseParams } from '../http/validate.ts';
-import { sendPasswordLink } from '../services/invitations.ts';
+import { sendEnrolmentNotice, sendPasswordLink } from '../services/invitations.ts';
+import { NOT_A_STUDENT } from './classes.ts';
 
 const STAFF = ['instructor', 'admin'] as const;
 
@@ -120,7 +121,7 @@ export async function checkRoster(db: DbOrTx, classId: number, fileName: string,
     if (row.status === 'error') continue;
     const account = accounts.find((a) => a.email.toLowerCase() === row.email);
     if (!account) continue;
-    if (account.role !== 'student') Object.assign(row, { status: 'error', message: `This e-mail belongs to an ${account.role} account, not a student` });
+    if (account.role !== 'student') Object.assign(row, { status: 'error', message: NOT_A_STUDENT });
     else Object.assign(row, { status: enrolled.has(account.id) ? 'enrolled' : 'existing', userId: account.id });
   }
 
@@ -163,7 +164,7 @@ export function rosterRoutes(ctx: AppContext) {
     let result;
     try {
       result = await ctx.db.transaction(async (tx) => {
-        await assertCanManageClass(tx, user, id);
+        const cls = await assertCanManageClass(tx, user, id);
         const { rows, preview } = await checkRoster(tx, id, file.name, file.buffer);
         const bad = rows.filter((r) => r.status === 'error');
         if (bad.length) {
@@ -181,14 +182,16 @@ export function rosterRoutes(ctx: AppContext) {
               .values(fresh.map((r) => ({ email: r.email, name: r.name, role: 'student' as const })))
               .returning({ id: users.id, email: users.email, name: users.name })
           : [];
-        const toEnrol = [...created.map((c) => c.id), ...rows.filter((r) => r.status === 'existing').map((r) => r.userId!)];
+        const existingIds = rows.filter((r) => r.status === 'existing').map((r) => r.userId!);
+        const existing = existingIds.length ? await tx.select({ id: users.id, email: users.email, name: users.name }).from(users).where(inArray(users.id, existingIds)) : [];
+        const toEnrol = [...created.map((c) => c.id), ...existingIds];
         if (toEnrol.length) await tx.insert(enrollments).values(toEnrol.map((userId) => ({ classId: id, userId }))).onConflictDoNothing();
         const [imp] = await tx
           .insert(rosterImports)
           .values({ classId: id, importedBy: user.id, fileName: file.name, rowCount: rows.length, createdCount: created.length, enrolledCount: toEnrol.length })
           .returning({ id: rosterImports.id });
         if (!imp) throw new HttpError(500, 'Roster import was not recorded');
-        return { importId: imp.id, created, enrolled: toEnrol.length, preview };
+        return { importId: imp.id, created, existing, cls, enrolled: toEnrol.length, preview };
       });
     } catch (err) {
       if (isUniqueViolation(err)) throw conflict('Another import added one of these e-mails at the same moment; preview the file again', 'file');
@@ -202,6 +205,14 @@ export function rosterRoutes(ctx: AppContext) {
         invited++;
       } catch (err) {
         ctx.log('warn', `invitation to ${student.email} was not sent`, err);
+      }
+    }
+    // Students who had an account are told they were added, as with a single enrolment.
+    for (const student of result.existing) {
+      try {
+        await sendEnrolmentNotice(ctx, student, result.cls, user);
+      } catch (err) {
+        ctx.log('warn', `enrolment notice to ${student.email} was not sent`, err);
       }
     }
     res.status(201).json({ importId: result.importId, created: result.created.length, enrolled: result.enrolled, invited });
