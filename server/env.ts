@@ -59,6 +59,10 @@ const envSchema = z.object({
   RESET_REQUESTS_PER_EMAIL: count(3),
   /** Links that did not work (unknown, used or expired) per network address in 15 minutes, on the page that sets a password. */
   SET_PASSWORD_FAILURES_PER_ADDRESS: count(30),
+  /** Practice attempts a student may start in an hour. */
+  PRACTICE_STARTS_PER_HOUR: count(30),
+  /** Submissions a student may send in an hour (each attempt is graded by a re-run of the model). */
+  SUBMISSIONS_PER_HOUR: count(60),
   /**
    * Worker threads that grade submissions (server/services/grading-pool.ts), so a
    * re-run does not hold up other requests; 0 grades in the request's own thread.

@@ -38,9 +38,13 @@ export async function requireAssignmentInstructor(db: DbOrTx, user: SessionUser,
   return { assignmentId, classId: row.classId };
 }
 
-/** The assignment, when the user is enrolled in its class (students) or teaches it. */
-export async function requireAssignmentMember(db: DbOrTx, user: SessionUser, assignmentId: number): Promise<AssignmentAccess & { teaches: boolean }> {
-  const [row] = await db.select({ classId: assignments.classId }).from(assignments).where(eq(assignments.id, assignmentId));
+/**
+ * The assignment, when the user teaches its class, or is enrolled in it
+ * (students) and it has opened: before then a student learns nothing of it,
+ * its title included.
+ */
+export async function requireAssignmentMember(db: DbOrTx, user: SessionUser, assignmentId: number, now = new Date()): Promise<AssignmentAccess & { teaches: boolean }> {
+  const [row] = await db.select({ classId: assignments.classId, opensAt: assignments.opensAt }).from(assignments).where(eq(assignments.id, assignmentId));
   if (!row) throw notFound('No such assignment');
   if (await teachesClass(db, user, row.classId)) return { assignmentId, classId: row.classId, teaches: true };
   if (user.role === 'student') {
@@ -48,6 +52,7 @@ export async function requireAssignmentMember(db: DbOrTx, user: SessionUser, ass
       .select({ userId: enrollments.userId })
       .from(enrollments)
       .where(and(eq(enrollments.classId, row.classId), eq(enrollments.userId, user.id)));
+    if (enrolled && row.opensAt > now) throw forbidden('This assignment has not opened yet');
     if (enrolled) return { assignmentId, classId: row.classId, teaches: false };
   }
   throw forbidden('You are not in the class of this assignment');
