@@ -170,7 +170,18 @@ async function startServerProcess(databaseUrl: string): Promise<{ url: string; c
   const flags = (process.env.BENCH_NODE_FLAGS ?? '').split(' ').filter(Boolean);
   const child = spawn(process.execPath, [...flags, '--import', 'tsx', ...profile, 'server/serve.ts'], {
     cwd: root,
-    env: { ...process.env, DATABASE_URL: databaseUrl, PORT: '0', NODE_ENV: 'production', SESSION_SECRET: SECRET, SIGN_IN_LIMIT: '100000', WEB_PROCESSES: String(PROCESSES) },
+    // The probe student starts and submits more practice runs in a few minutes than any student would: their limits are lifted.
+    env: {
+      ...process.env,
+      DATABASE_URL: databaseUrl,
+      PORT: '0',
+      NODE_ENV: 'production',
+      PUBLIC_URL: 'http://localhost',
+      SESSION_SECRET: SECRET,
+      PRACTICE_STARTS_PER_HOUR: '100000',
+      SUBMISSIONS_PER_HOUR: '100000',
+      WEB_PROCESSES: String(PROCESSES),
+    },
     stdio: ['ignore', 'pipe', 'inherit'],
   });
   const url = await new Promise<string>((resolve, reject) => {

@@ -1,8 +1,8 @@
 import { existsSync } from 'node:fs';
-import { join } from 'node:path';
+import { resolve } from 'node:path';
 import express from 'express';
 import helmet from 'helmet';
-import { csrfProtection } from './auth/csrf.ts';
+import { csrf } from './auth/csrf.ts';
 import { loadUser } from './auth/guard.ts';
 import { sessionMiddleware } from './auth/session.ts';
 import type { AppContext } from './context.ts';
@@ -52,7 +52,7 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
     markReceived,
     express.json({ limit: '256kb' }),
     sessionMiddleware({ pool: ctx.pool, secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY, bus: sessionBusFor(ctx) }),
-    csrfProtection,
+    csrf({ secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY }).protect,
     loadUser(ctx.db),
     (_req, res, next) => {
       res.setHeader('Cache-Control', 'no-store');
@@ -68,10 +68,12 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
   app.use('/api', apiNotFound);
 
   if (opts.staticDir && existsSync(opts.staticDir)) {
-    const dir = opts.staticDir;
+    const dir = resolve(opts.staticDir);
     app.use(express.static(dir, { index: false, maxAge: '1h', immutable: false }));
+    // Named relative to `root`: Express's file sender refuses a dot-folder anywhere in the path it is given, so an
+    // absolute path would fail for a checkout under, say, ~/.projects. Only the name's own parts are checked this way.
     app.get('/{*splat}', (_req, res) => {
-      res.sendFile(join(dir, 'index.html'));
+      res.sendFile('index.html', { root: dir });
     });
   }
 

@@ -11,6 +11,7 @@ import type { AppContext } from './context.ts';
 import { connect } from './db/client.ts';
 import { readEnv, type Env } from './env.ts';
 import { makeLogger } from './logger.ts';
+import { backgroundTasks } from './services/background.ts';
 import { openSharedGradingPool } from './services/grading-pool.ts';
 import { closeLiveBus } from './services/live-bus.ts';
 import { smtpMailer } from './services/mailer.ts';
@@ -25,15 +26,19 @@ export interface RunningServer {
 
 export function buildContext(env: Env, logLevel: 'info' | 'warn' | 'error' | 'silent' = 'info'): AppContext & { openDb(): Promise<boolean>; closeDb(): Promise<void> } {
   const database = connect(env.DATABASE_URL, env.DATABASE_POOL_SIZE);
+  const log = makeLogger(logLevel);
+  const background = backgroundTasks(log);
   return {
     env,
     db: database.db,
     pool: database.pool,
     mailer: smtpMailer({ host: env.SMTP_HOST, port: env.SMTP_PORT, from: env.MAIL_FROM }),
-    log: makeLogger(logLevel),
+    log,
+    background,
     openDb: () => database.openAll(),
-    // The live bus (made on first use) listens on a connection of its own: it goes with the pool.
+    // Mail still being sent needs the database; the live bus (made on first use) listens on a connection of its own: it goes with the pool.
     closeDb: async () => {
+      await background.settled();
       await closeLiveBus(database.pool);
       await database.close();
     },

@@ -11,6 +11,7 @@ import { FAULT_CATALOG, FAULT_KINDS, type DiagnosticTest, type FaultKind } from 
 import { defaultVehicleParams, VEHICLE_PARAM_BOUNDS, type NumericParamPath, type VehicleParams } from '../sim/params.ts';
 import { vehicleDesignErrors } from './vehicle-rules.ts';
 import { crankTrial, inductanceForRatingH } from '../sim/vehicle-checks.ts';
+import { nameText } from './names.ts';
 
 export const SCENARIO_FORMAT = 'loadline.scenario';
 export const SCENARIO_FORMAT_VERSION = 1;
@@ -336,7 +337,7 @@ export const scenarioDocumentSchema = z
     formatVersion: z.literal(SCENARIO_FORMAT_VERSION, {
       error: `formatVersion must be ${SCENARIO_FORMAT_VERSION} (a file from a newer version of Loadline cannot be read here)`,
     }),
-    title: text('Title', 3, 120),
+    title: nameText('Title', 3, 120),
     summary: text('Summary (the customer’s complaint)', 10, 2000),
     difficulty: z.enum(DIFFICULTIES, { error: `Difficulty must be one of: ${DIFFICULTIES.join(', ')}` }),
     vehicle: z.strictObject({

@@ -38,9 +38,13 @@ export async function requireAssignmentInstructor(db: DbOrTx, user: SessionUser,
   return { assignmentId, classId: row.classId };
 }
 
-/** The assignment, when the user is enrolled in its class (students) or teaches it. */
-export async function requireAssignmentMember(db: DbOrTx, user: SessionUser, assignmentId: number): Promise<AssignmentAccess & { teaches: boolean }> {
-  const [row] = await db.select({ classId: assignments.classId }).from(assignments).where(eq(assignments.id, assignmentId));
+/**
+ * The assignment, when the user teaches its class, or is enrolled in it
+ * (students) and it has opened: before then a student learns nothing of it,
+ * its title included.
+ */
+export async function requireAssignmentMember(db: DbOrTx, user: SessionUser, assignmentId: number, now = new Date()): Promise<AssignmentAccess & { teaches: boolean }> {
+  const [row] = await db.select({ classId: assignments.classId, opensAt: assignments.opensAt }).from(assignments).where(eq(assignments.id, assignmentId));
   if (!row) throw notFound('No such assignment');
   if (await teachesClass(db, user, row.classId)) return { assignmentId, classId: row.classId, teaches: true };
   if (user.role === 'student') {
@@ -48,6 +52,7 @@ export async function requireAssignmentMember(db: DbOrTx, user: SessionUser, ass
       .select({ userId: enrollments.userId })
       .from(enrollments)
       .where(and(eq(enrollments.classId, row.classId), eq(enrollments.userId, user.id)));
+    if (enrolled && row.opensAt > now) throw forbidden('This assignment has not opened yet');
     if (enrolled) return { assignmentId, classId: row.classId, teaches: false };
   }
   throw forbidden('You are not in the class of this assignment');
@@ -60,24 +65,22 @@ export interface AttemptAccess {
   status: string;
   /** The user is the attempt's student. */
   isOwner: boolean;
-  /** The user teaches the attempt's class (or a class of its student, for practice). */
+  /** The user teaches the class of the attempt's assignment (admins: every attempt). */
   teaches: boolean;
 }
 
 /**
- * The classes whose instructors may see an attempt: the assignment's class,
- * or for practice attempts every class the student is enrolled in.
+ * The class whose instructors may see an attempt: its assignment's class.
+ * A practice attempt belongs to no class, whatever classes its student is
+ * in: it is the student's own (and an admin's to see), never an instructor's.
  */
 export async function classesOfAttempt(db: DbOrTx, attempt: { ownerId: number; assignmentId: number | null }): Promise<number[]> {
-  if (attempt.assignmentId !== null) {
-    const [row] = await db.select({ classId: assignments.classId }).from(assignments).where(eq(assignments.id, attempt.assignmentId));
-    return row ? [row.classId] : [];
-  }
-  const rows = await db.select({ classId: enrollments.classId }).from(enrollments).where(eq(enrollments.userId, attempt.ownerId));
-  return rows.map((r) => r.classId);
+  if (attempt.assignmentId === null) return [];
+  const [row] = await db.select({ classId: assignments.classId }).from(assignments).where(eq(assignments.id, attempt.assignmentId));
+  return row ? [row.classId] : [];
 }
 
-/** Whether the user teaches the student's class for this attempt. */
+/** Whether the user teaches the class this attempt was done for. */
 async function teachesAttempt(db: DbOrTx, user: SessionUser, attempt: { ownerId: number; assignmentId: number | null }): Promise<boolean> {
   if (user.role === 'admin') return true;
   if (user.role !== 'instructor') return false;
@@ -371,9 +374,24 @@ export async function teachesStudent(db: DbOrTx, user: SessionUser, studentId: n
   return row !== undefined;
 }
 
-/** The student themselves, or an instructor of one of their classes. */
-export async function requireStudentReader(db: DbOrTx, user: SessionUser, studentId: number): Promise<{ self: boolean }> {
-  if (user.id === studentId) return { self: true };
-  if (await teachesStudent(db, user, studentId)) return { self: false };
-  throw forbidden('You do not teach this student');
+/**
+ * What of a student's work the reader may see: `null` for all of it (the
+ * student, an admin), else the ids of the classes the instructor teaches,
+ * whose assignments' attempts are all an instructor sees of a student: not
+ * their practice, not other classes' work.
+ */
+export type StudentScope = { self: boolean; classIds: number[] | null };
+
+/** The student themselves, an admin, or an instructor of one of their classes (who sees that class's work only). */
+export async function requireStudentReader(db: DbOrTx, user: SessionUser, studentId: number): Promise<StudentScope> {
+  if (user.id === studentId) return { self: true, classIds: null };
+  if (user.role === 'admin') return { self: false, classIds: null };
+  if (!(await teachesStudent(db, user, studentId))) throw forbidden('You do not teach this student');
+  const rows = await db.select({ classId: classInstructors.classId }).from(classInstructors).where(eq(classInstructors.userId, user.id));
+  return { self: false, classIds: rows.map((r) => r.classId) };
+}
+
+/** A sign-off is withdrawn by the instructor who made it, or by an admin. */
+export function canWithdrawSignOff(user: SessionUser, signOff: { signedBy: number | null }): boolean {
+  return user.role === 'admin' || (user.role === 'instructor' && signOff.signedBy === user.id);
 }

@@ -1,5 +1,6 @@
 import connectPgSimple from 'connect-pg-simple';
 import session from 'express-session';
+import { sql, type SQL } from 'drizzle-orm';
 import type { RequestHandler } from 'express';
 import type pg from 'pg';
 import type { Role } from '../../shared/api/auth.ts';
@@ -151,6 +152,18 @@ const cachesByPool = new WeakMap<pg.Pool, SessionCache>();
 /** Forgets this process's kept sessions of a user whose account just changed (other processes hear of it from the database). */
 export function forgetSessionsOf(pool: pg.Pool, userId: number): void {
   cachesByPool.get(pool)?.forgetUser(userId);
+}
+
+/**
+ * Ends every session of the user but `keepSid` (the request's own, when it
+ * is theirs): after their password is set, a session someone else holds
+ * must not outlive the old password. Run it in the transaction that sets the
+ * password; each deleted row notifies every process (migration
+ * `session-notify`), and the caller forgets this process's at once
+ * (`forgetSessionsOf`) after the commit.
+ */
+export async function endSessionsOf(db: { execute(query: SQL): Promise<unknown> }, userId: number, keepSid: string | null): Promise<void> {
+  await db.execute(sql`delete from session where sess->>'userId' = ${String(userId)} and sid <> ${keepSid ?? ''}`);
 }
 
 /**

@@ -2,10 +2,13 @@
  * /api/attempts: start an attempt, read its bootstrap, post its events,
  * submit it, and a student's own list.
  */
+import type { Request } from 'express';
+import { rateLimit } from 'express-rate-limit';
 import { attemptIdParamsSchema, startAttemptSchema, submitSchema } from '../../shared/api/attempts.ts';
 import { attemptReaderAccess } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
+import { PgRateLimitStore } from '../http/rate-limit-store.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { receivedAt, ServerTiming } from '../http/server-timing.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
@@ -13,10 +16,35 @@ import { postEvents, requireOwnAttempt } from '../services/attempt-events.ts';
 import { attemptBootstrap, loadAttemptWithEvents, myAttempts, startAttempt } from '../services/attempt-store.ts';
 import { submitAttempt } from '../services/attempt-submit.ts';
 
+/** Per student, so a class behind one address shares nothing; counted in PostgreSQL like the sign-in limits. */
+function perStudent(ctx: AppContext, name: string, limit: number, message: string, skip?: (req: Request) => boolean) {
+  return rateLimit({
+    store: new PgRateLimitStore(ctx.pool, `${name}:`),
+    windowMs: 60 * 60 * 1000,
+    limit,
+    keyGenerator: (req) => `user-${currentUser(req).id}`,
+    skip,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    handler: (_req, res) => {
+      res.status(429).json({ error: { message } });
+    },
+  });
+}
+
 export function attemptRoutes(ctx: AppContext) {
   const g = routeGroup('/api/attempts');
+  // Each attempt is graded by a re-run of the model: a student does not get to choose how much of that the server does.
+  const practiceStarts = perStudent(
+    ctx,
+    'practice-start',
+    ctx.env.PRACTICE_STARTS_PER_HOUR,
+    `You have started ${ctx.env.PRACTICE_STARTS_PER_HOUR} practice runs in the last hour; finish one of them, or wait a while`,
+    (req) => (req.body as { mode?: unknown } | undefined)?.mode !== 'practice',
+  );
+  const submissions = perStudent(ctx, 'submit', ctx.env.SUBMISSIONS_PER_HOUR, `You have sent ${ctx.env.SUBMISSIONS_PER_HOUR} submissions in the last hour; wait a while before the next`);
 
-  g.post('/', ['student'], async (req, res) => {
+  g.post('/', ['student'], practiceStarts, async (req, res) => {
     const input = parseBody(startAttemptSchema, req);
     const id = await startAttempt(ctx.db, currentUser(req), input);
     res.status(201).json(await attemptBootstrap(ctx, id));
@@ -42,7 +70,7 @@ export function attemptRoutes(ctx: AppContext) {
 
   // The owner never changes, so it is checked from memory (requireOwnAttempt); the submission itself runs on the locked row.
   // Its answer says how long reading, grading and storing took (Server-Timing), as grading is what a class waits for at the end of a lab.
-  g.post('/:id/submit', ['student'], async (req, res) => {
+  g.post('/:id/submit', ['student'], submissions, async (req, res) => {
     const arrived = receivedAt(res);
     const timing = new ServerTiming(arrived);
     // Reading the body, the session and the user.

@@ -18,9 +18,12 @@ import { assignments, classes, classInstructors, enrollments, users } from '../d
 import { badRequest, conflict, HttpError, notFound } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
-import { sendPasswordLink } from '../services/invitations.ts';
+import { sendEnrolmentNotice, sendPasswordLink } from '../services/invitations.ts';
 
 const STAFF = ['instructor', 'admin'] as const;
+
+/** The answer for an e-mail that is not a student's: it names no role, so enrolling tells nobody what an address is. */
+export const NOT_A_STUDENT = 'This e-mail cannot be enrolled as a student; ask your program admin';
 
 /** Summaries of the given classes (or, with null, of every class). */
 export async function classSummaries(db: DbOrTx, classIds: number[] | null): Promise<ClassSummary[]> {
@@ -118,13 +121,14 @@ export function classRoutes(ctx: AppContext) {
     res.status(201).json(await classDetail(ctx.db, classId));
   });
 
-  // Enrol one student by e-mail: an existing student account, or a new one that is invited.
+  // Enrol one student by e-mail: an existing student account (who is told by e-mail), or a new one that is invited.
+  // An e-mail of a staff account is refused without saying whose it is or what role it has.
   g.post('/:id/students', STAFF, async (req, res) => {
     const user = currentUser(req);
     const { id } = parseParams(classIdParamsSchema, req);
     const input = parseBody(addStudentSchema, req);
     const outcome = await ctx.db.transaction(async (tx) => {
-      await assertCanManageClass(tx, user, id);
+      const cls = await assertCanManageClass(tx, user, id);
       const [existing] = await tx
         .select({ id: users.id, name: users.name, email: users.email, role: users.role })
         .from(users)
@@ -132,7 +136,7 @@ export function classRoutes(ctx: AppContext) {
       let student = existing;
       let created = false;
       if (existing) {
-        if (existing.role !== 'student') throw conflict(`${input.email} belongs to an ${existing.role} account, not a student`, 'email');
+        if (existing.role !== 'student') throw conflict(NOT_A_STUDENT, 'email');
       } else {
         if (!input.name) throw badRequest('name: Give the new student’s name', { field: 'name' });
         [student] = await tx
@@ -144,12 +148,19 @@ export function classRoutes(ctx: AppContext) {
       if (!student) throw new HttpError(500, 'Student was not created');
       const inserted = await tx.insert(enrollments).values({ classId: id, userId: student.id }).onConflictDoNothing().returning({ userId: enrollments.userId });
       if (!inserted.length) throw conflict(`${student.email} is already in this class`, 'email');
-      return { student, created };
+      return { student, created, cls };
     });
     let invited = false;
     if (outcome.created) {
-      await sendPasswordLink(ctx, req, outcome.student, 'invite');
+      await sendPasswordLink(ctx, outcome.student, 'invite');
       invited = true;
+    } else {
+      // The enrolment stands even if the notice cannot be sent now; it is logged.
+      try {
+        await sendEnrolmentNotice(ctx, outcome.student, outcome.cls, user);
+      } catch (err) {
+        ctx.log('warn', `enrolment notice to ${outcome.student.email} was not sent`, err);
+      }
     }
     const student = (await classStudents(ctx.db, id)).find((s) => s.id === outcome.student.id);
     res.status(201).json({ student, created: outcome.created, invited });
@@ -175,7 +186,7 @@ export function classRoutes(ctx: AppContext) {
     const student = (await classStudents(ctx.db, id)).find((s) => s.id === userId);
     if (!student) throw notFound('That student is not in this class');
     if (student.hasPassword) throw conflict(`${student.email} has already set a password`, 'userId');
-    await sendPasswordLink(ctx, req, student, 'invite');
+    await sendPasswordLink(ctx, student, 'invite');
     res.status(202).json({ message: `Invitation sent to ${student.email}` });
   });
 

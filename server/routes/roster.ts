@@ -4,10 +4,10 @@
  * and is named), and each new student is e-mailed an invitation.
  */
 import { and, eq, inArray, sql } from 'drizzle-orm';
-import type { Request, RequestHandler } from 'express';
-import multer from 'multer';
+import type { Request } from 'express';
 import Papa from 'papaparse';
 import { emailSchema } from '../../shared/api/auth.ts';
+import { nameSchema } from '../../shared/api/users.ts';
 import { classIdParamsSchema, ROSTER_MAX_BYTES, ROSTER_MAX_ROWS, type RosterPreview, type RosterRow } from '../../shared/api/classes.ts';
 import { assertCanManageClass } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
@@ -16,23 +16,14 @@ import type { DbOrTx } from '../db/client.ts';
 import { enrollments, rosterImports, users } from '../db/schema.ts';
 import { badRequest, conflict, HttpError } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
+import { singleFileUpload, storedFileName } from '../http/uploads.ts';
 import { parseParams } from '../http/validate.ts';
-import { sendPasswordLink } from '../services/invitations.ts';
+import { sendEnrolmentNotice, sendPasswordLink } from '../services/invitations.ts';
+import { NOT_A_STUDENT } from './classes.ts';
 
 const STAFF = ['instructor', 'admin'] as const;
 
-const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: ROSTER_MAX_BYTES, files: 1 } });
-
-const rosterFile: RequestHandler = (req, res, next) => {
-  upload.single('file')(req, res, (err: unknown) => {
-    if (!err) return next();
-    if (err instanceof multer.MulterError) {
-      const message = err.code === 'LIMIT_FILE_SIZE' ? `The roster file is larger than ${ROSTER_MAX_BYTES / 1024} KB` : `Upload refused: ${err.message}`;
-      return next(badRequest(message, { field: err.field ?? 'file' }));
-    }
-    next(err);
-  });
-};
+const rosterFile = singleFileUpload('file', { maxBytes: ROSTER_MAX_BYTES, what: 'The roster file' });
 
 interface ParsedLine {
   line: number;
@@ -92,15 +83,12 @@ export async function checkRoster(db: DbOrTx, classId: number, fileName: string,
 
   const rows: CheckedRow[] = records.map((r) => {
     const cell = (i: number) => (i >= 0 ? (r.cells[i] ?? '').trim() : '');
-    const name = (nameCol >= 0 ? cell(nameCol) : `${cell(firstCol)} ${cell(lastCol)}`).replace(/\s+/g, ' ').trim();
+    const name = (nameCol >= 0 ? cell(nameCol) : `${cell(firstCol)} ${cell(lastCol)}`).replace(/ {2,}/g, ' ').trim();
     const rawEmail = cell(emailCol);
     const row: CheckedRow = { line: r.line, name, email: rawEmail.toLowerCase(), status: 'new' };
-    if (!name) return { ...row, status: 'error', message: 'The name is missing' };
-    if (name.length > 120) return { ...row, status: 'error', message: 'The name is longer than 120 characters' };
-    // eslint-disable-next-line no-control-regex -- control characters are what this refuses
-    if (/[\u0000-\u001f\u007f]/.test(name)) return { ...row, status: 'error', message: 'The name holds control characters' };
-    // A cell starting with one of these is a formula to a spreadsheet (CSV injection).
-    if (/^[=+\-@]/.test(name)) return { ...row, status: 'error', message: 'The name starts with = + - or @, which a spreadsheet would run as a formula' };
+    // The same rule as every other name (shared/api/users.ts): the first thing wrong with it is the line's message.
+    const checked = nameSchema.safeParse(name);
+    if (!checked.success) return { ...row, status: 'error', message: checked.error.issues[0]?.message ?? 'The name is not valid' };
     if (!rawEmail) return { ...row, status: 'error', message: 'The e-mail is missing' };
     const email = emailSchema.safeParse(rawEmail);
     if (!email.success) return { ...row, status: 'error', message: `“${rawEmail}” is not a valid e-mail address` };
@@ -133,7 +121,7 @@ export async function checkRoster(db: DbOrTx, classId: number, fileName: string,
     if (row.status === 'error') continue;
     const account = accounts.find((a) => a.email.toLowerCase() === row.email);
     if (!account) continue;
-    if (account.role !== 'student') Object.assign(row, { status: 'error', message: `This e-mail belongs to an ${account.role} account, not a student` });
+    if (account.role !== 'student') Object.assign(row, { status: 'error', message: NOT_A_STUDENT });
     else Object.assign(row, { status: enrolled.has(account.id) ? 'enrolled' : 'existing', userId: account.id });
   }
 
@@ -151,9 +139,9 @@ export async function checkRoster(db: DbOrTx, classId: number, fileName: string,
   };
 }
 
-function requireFile(req: Request): Express.Multer.File {
+function requireFile(req: Request): { name: string; buffer: Buffer } {
   if (!req.file) throw badRequest('Attach the roster as a CSV file in the "file" field', { field: 'file' });
-  return req.file;
+  return { name: storedFileName(req, 'file'), buffer: req.file.buffer };
 }
 
 const isUniqueViolation = (err: unknown) => (err as { code?: string }).code === '23505' || (err as { cause?: { code?: string } }).cause?.code === '23505';
@@ -165,7 +153,7 @@ export function rosterRoutes(ctx: AppContext) {
     const { id } = parseParams(classIdParamsSchema, req);
     await assertCanManageClass(ctx.db, currentUser(req), id);
     const file = requireFile(req);
-    const { preview } = await checkRoster(ctx.db, id, file.originalname, file.buffer);
+    const { preview } = await checkRoster(ctx.db, id, file.name, file.buffer);
     res.json(preview);
   });
 
@@ -176,8 +164,8 @@ export function rosterRoutes(ctx: AppContext) {
     let result;
     try {
       result = await ctx.db.transaction(async (tx) => {
-        await assertCanManageClass(tx, user, id);
-        const { rows, preview } = await checkRoster(tx, id, file.originalname, file.buffer);
+        const cls = await assertCanManageClass(tx, user, id);
+        const { rows, preview } = await checkRoster(tx, id, file.name, file.buffer);
         const bad = rows.filter((r) => r.status === 'error');
         if (bad.length) {
           const first = bad[0]!;
@@ -194,14 +182,16 @@ export function rosterRoutes(ctx: AppContext) {
               .values(fresh.map((r) => ({ email: r.email, name: r.name, role: 'student' as const })))
               .returning({ id: users.id, email: users.email, name: users.name })
           : [];
-        const toEnrol = [...created.map((c) => c.id), ...rows.filter((r) => r.status === 'existing').map((r) => r.userId!)];
+        const existingIds = rows.filter((r) => r.status === 'existing').map((r) => r.userId!);
+        const existing = existingIds.length ? await tx.select({ id: users.id, email: users.email, name: users.name }).from(users).where(inArray(users.id, existingIds)) : [];
+        const toEnrol = [...created.map((c) => c.id), ...existingIds];
         if (toEnrol.length) await tx.insert(enrollments).values(toEnrol.map((userId) => ({ classId: id, userId }))).onConflictDoNothing();
         const [imp] = await tx
           .insert(rosterImports)
-          .values({ classId: id, importedBy: user.id, fileName: file.originalname.slice(0, 200), rowCount: rows.length, createdCount: created.length, enrolledCount: toEnrol.length })
+          .values({ classId: id, importedBy: user.id, fileName: file.name, rowCount: rows.length, createdCount: created.length, enrolledCount: toEnrol.length })
           .returning({ id: rosterImports.id });
         if (!imp) throw new HttpError(500, 'Roster import was not recorded');
-        return { importId: imp.id, created, enrolled: toEnrol.length, preview };
+        return { importId: imp.id, created, existing, cls, enrolled: toEnrol.length, preview };
       });
     } catch (err) {
       if (isUniqueViolation(err)) throw conflict('Another import added one of these e-mails at the same moment; preview the file again', 'file');
@@ -211,10 +201,18 @@ export function rosterRoutes(ctx: AppContext) {
     let invited = 0;
     for (const student of result.created) {
       try {
-        await sendPasswordLink(ctx, req, student, 'invite');
+        await sendPasswordLink(ctx, student, 'invite');
         invited++;
       } catch (err) {
         ctx.log('warn', `invitation to ${student.email} was not sent`, err);
+      }
+    }
+    // Students who had an account are told they were added, as with a single enrolment.
+    for (const student of result.existing) {
+      try {
+        await sendEnrolmentNotice(ctx, student, result.cls, user);
+      } catch (err) {
+        ctx.log('warn', `enrolment notice to ${student.email} was not sent`, err);
       }
     }
     res.status(201).json({ importId: result.importId, created: result.created.length, enrolled: result.enrolled, invited });

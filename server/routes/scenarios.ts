@@ -1,7 +1,5 @@
 /** The scenario library: list, read, create, version, publish, restore, duplicate, import and export. */
 import { and, asc, eq, isNotNull, type SQL } from 'drizzle-orm';
-import type { RequestHandler } from 'express';
-import multer from 'multer';
 import {
   createScenarioSchema,
   duplicateScenarioSchema,
@@ -22,25 +20,15 @@ import type { AppContext } from '../context.ts';
 import { scenarios, scenarioVersions, users } from '../db/schema.ts';
 import { badRequest, conflict, HttpError, notFound } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
+import { singleFileUpload, storedFileName } from '../http/uploads.ts';
 import { parseBody, parseParams, parseQuery } from '../http/validate.ts';
 import { appendVersion, exportFileName, insertScenario, listScenarios, parseScenarioDocument, scenarioDetail, versionColumns, versionSummary, visibleTo } from '../services/scenario-store.ts';
 
 const STAFF = ['instructor', 'admin'] as const;
 export const SCENARIO_FILE_MAX_BYTES = 512 * 1024;
 
-const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: SCENARIO_FILE_MAX_BYTES, files: 1 } });
-
-/** One optional file in the `file` field; multer's own errors become a 400 naming the field. */
-const scenarioFile: RequestHandler = (req, res, next) => {
-  upload.single('file')(req, res, (err: unknown) => {
-    if (!err) return next();
-    if (err instanceof multer.MulterError) {
-      const message = err.code === 'LIMIT_FILE_SIZE' ? `The file is larger than ${SCENARIO_FILE_MAX_BYTES / 1024} KB` : `Upload refused: ${err.message}`;
-      return next(badRequest(message, { field: err.field ?? 'file' }));
-    }
-    next(err);
-  });
-};
+/** One optional file in the `file` field; a malformed upload is a 400 naming the field. */
+const scenarioFile = singleFileUpload('file', { maxBytes: SCENARIO_FILE_MAX_BYTES, what: 'The file' });
 
 function parseJsonFile(buffer: Buffer): unknown {
   const text = buffer.toString('utf8').replace(/^\uFEFF/, '');
@@ -108,8 +96,8 @@ export function scenarioRoutes(ctx: AppContext) {
     let raw: unknown;
     let fileName = 'request body';
     if (req.file) {
+      fileName = storedFileName(req, 'file');
       raw = parseJsonFile(req.file.buffer);
-      fileName = req.file.originalname;
     } else if (req.is('application/json')) {
       raw = req.body;
     } else {

@@ -3,7 +3,7 @@
  * the family for a student, from a graded attempt whose scenario expected it;
  * the student's progress page reads them; the class's sign-offs export as CSV.
  */
-import { and, asc, desc, eq, inArray } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import {
   SIGN_OFFS_CSV_COLUMNS,
@@ -16,11 +16,11 @@ import {
   type SignOff,
 } from '../../shared/api/compare.ts';
 import { COMPETENCIES, COMPETENCY_LABELS, type Competency } from '../../shared/competencies.ts';
-import { requireAttemptInstructor, requireClassInstructor, requireStudentReader, teachesStudent } from '../auth/access.ts';
+import { canWithdrawSignOff, requireAttemptInstructor, requireClassInstructor, requireStudentReader, teachesStudent, type StudentScope } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
 import type { DbOrTx } from '../db/client.ts';
-import { assignments, attempts, enrollments, scenarioVersions, signOffs, users } from '../db/schema.ts';
+import { assignments, attempts, classInstructors, enrollments, scenarioVersions, signOffs, users } from '../db/schema.ts';
 import { badRequest, conflict, forbidden, notFound } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
@@ -57,19 +57,35 @@ function testsExpectedOf(definition: unknown): Competency[] {
 const isUniqueViolation = (err: unknown) => (err as { code?: string }).code === '23505' || (err as { cause?: { code?: string } }).cause?.code === '23505';
 
 /**
- * A student's progress by competency. Read by the student themselves
- * (`forStudent`), it leaves out attempts whose results are still hidden (an
- * assignment that shows results when it closes): which tests were expected,
- * and whether the verdicts were right, are part of its answer key.
+/**
+ * A student's progress as the viewer may see it. An instructor (`scope`
+ * with class ids) sees as evidence only attempts of their classes'
+ * assignments; every sign-off shows (the competency is the student's, and
+ * signed once), but the attempt and note behind one made from another class's
+ * work stay with that class. Read by the student themselves (`scope.self`),
+ * it leaves out attempts whose results are still hidden (an assignment that
+ * shows results when it closes): which tests were expected, and whether the
+ * verdicts were right, are part of its answer key.
  */
-async function progressOf(db: DbOrTx, studentId: number, forStudent = false): Promise<ProgressResponse> {
+async function progressOf(db: DbOrTx, studentId: number, scope: StudentScope, viewerId: number): Promise<ProgressResponse> {
   const [student] = await db.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, studentId));
   if (!student) throw notFound('No such student');
-  const signed = await db
-    .select(signOffColumns)
+  const classIds = scope.classIds;
+  const inScope = (classId: number | null) => classIds === null || (classId !== null && classIds.includes(classId));
+  const signedRows = await db
+    .select({ ...signOffColumns, attemptClassId: assignments.classId })
     .from(signOffs)
     .leftJoin(signer, eq(signer.id, signOffs.signedBy))
+    .leftJoin(attempts, eq(attempts.id, signOffs.attemptId))
+    .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
     .where(eq(signOffs.userId, studentId));
+  const signed = signedRows.map(({ attemptClassId, ...r }) => (inScope(attemptClassId) || r.signedById === viewerId ? r : { ...r, attemptId: null, note: '' }));
+  const ofClasses =
+    classIds === null
+      ? undefined
+      : classIds.length
+        ? inArray(attempts.assignmentId, db.select({ id: assignments.id }).from(assignments).where(inArray(assignments.classId, classIds)))
+        : sql`false`;
   const graded = await db
     .select({
       attemptId: attempts.id,
@@ -85,10 +101,10 @@ async function progressOf(db: DbOrTx, studentId: number, forStudent = false): Pr
     .from(attempts)
     .innerJoin(scenarioVersions, eq(scenarioVersions.id, attempts.scenarioVersionId))
     .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
-    .where(and(eq(attempts.userId, studentId), eq(attempts.status, 'submitted')))
+    .where(and(eq(attempts.userId, studentId), eq(attempts.status, 'submitted'), ofClasses))
     .orderBy(desc(attempts.submittedAt), desc(attempts.id))
     .then((rows) =>
-      forStudent ? rows.filter((a) => !hiddenFor({ mode: a.mode === 'practice' ? 'practice' : 'assigned', showFeedbackAfter: a.showFeedbackAfter ?? true, dueAt: a.dueAt })) : rows,
+      scope.self ? rows.filter((a) => !hiddenFor({ mode: a.mode === 'practice' ? 'practice' : 'assigned', showFeedbackAfter: a.showFeedbackAfter ?? true, dueAt: a.dueAt })) : rows,
     );
   const competencies: CompetencyProgress[] = COMPETENCIES.map((competency) => {
     const row = signed.find((s) => s.competency === competency);
@@ -124,13 +140,15 @@ export function signOffRoutes(ctx: AppContext) {
   const g = routeGroup('/api/sign-offs');
 
   g.get('/me', ['student'], async (req, res) => {
-    res.json(await progressOf(ctx.db, currentUser(req).id, true));
+    const me = currentUser(req);
+    res.json(await progressOf(ctx.db, me.id, { self: true, classIds: null }, me.id));
   });
 
   g.get('/students/:userId', ['student', 'instructor', 'admin'], async (req, res) => {
     const { userId } = parseParams(studentParamsSchema, req);
-    const { self } = await requireStudentReader(ctx.db, currentUser(req), userId);
-    res.json(await progressOf(ctx.db, userId, self));
+    const user = currentUser(req);
+    const scope = await requireStudentReader(ctx.db, user, userId);
+    res.json(await progressOf(ctx.db, userId, scope, user.id));
   });
 
   g.post('/', ['instructor', 'admin'], async (req, res) => {
@@ -161,18 +179,22 @@ export function signOffRoutes(ctx: AppContext) {
     }
   });
 
+  // Withdrawn only by the instructor who signed it, or an admin: another instructor of the student cannot undo it.
   g.delete('/:id', ['instructor', 'admin'], async (req, res) => {
     const { id } = parseParams(signOffParamsSchema, req);
-    const [row] = await ctx.db.select({ userId: signOffs.userId }).from(signOffs).where(eq(signOffs.id, id));
+    const user = currentUser(req);
+    const [row] = await ctx.db.select({ userId: signOffs.userId, signedBy: signOffs.signedBy }).from(signOffs).where(eq(signOffs.id, id));
     if (!row) throw notFound('No such sign-off');
-    if (!(await teachesStudent(ctx.db, currentUser(req), row.userId))) throw forbidden('You do not teach this student');
+    if (!(await teachesStudent(ctx.db, user, row.userId))) throw forbidden('You do not teach this student');
+    if (!canWithdrawSignOff(user, row)) throw forbidden('Only the instructor who signed this off, or an admin, can withdraw it');
     await ctx.db.delete(signOffs).where(eq(signOffs.id, id));
     res.status(204).end();
   });
 
   g.get('/classes/:classId/sign-offs.csv', ['instructor', 'admin'], async (req, res) => {
     const { classId } = parseParams(classParamsSchema, req);
-    await requireClassInstructor(ctx.db, currentUser(req), classId);
+    const user = currentUser(req);
+    await requireClassInstructor(ctx.db, user, classId);
     const enrolled = await ctx.db.select({ userId: enrollments.userId }).from(enrollments).where(eq(enrollments.classId, classId));
     const ids = enrolled.map((e) => e.userId);
     const student = alias(users, 'student');
@@ -186,13 +208,20 @@ export function signOffRoutes(ctx: AppContext) {
             signedBy: signer.name,
             createdAt: signOffs.createdAt,
             note: signOffs.note,
+            signedById: signOffs.signedBy,
+            attemptClassId: assignments.classId,
           })
           .from(signOffs)
           .innerJoin(student, eq(student.id, signOffs.userId))
           .leftJoin(signer, eq(signer.id, signOffs.signedBy))
+          .leftJoin(attempts, eq(attempts.id, signOffs.attemptId))
+          .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
           .where(inArray(signOffs.userId, ids))
           .orderBy(asc(student.name), asc(signOffs.competency))
       : [];
+    // As on the progress page: a sign-off made from another class's work shows without its attempt and note.
+    const taught = user.role === 'admin' ? null : (await ctx.db.select({ classId: classInstructors.classId }).from(classInstructors).where(eq(classInstructors.userId, user.id))).map((c) => c.classId);
+    const own = (r: (typeof rows)[number]) => taught === null || (r.attemptClassId !== null && taught.includes(r.attemptClassId)) || r.signedById === user.id;
     const csv = toCsv(
       SIGN_OFFS_CSV_COLUMNS,
       rows.map((r) => [
@@ -200,10 +229,10 @@ export function signOffRoutes(ctx: AppContext) {
         r.studentEmail,
         r.competency,
         isCompetency(r.competency) ? COMPETENCY_LABELS[r.competency] : r.competency,
-        r.attemptId,
+        own(r) ? r.attemptId : null,
         r.signedBy,
         r.createdAt.toISOString(),
-        r.note,
+        own(r) ? r.note : '',
       ]),
     );
     res.setHeader('Content-Type', 'text/csv; charset=utf-8');

@@ -69,7 +69,7 @@ export function userRoutes(ctx: AppContext) {
     if (!row) throw new HttpError(500, 'User was not created');
     let invited = false;
     if (!passwordHash) {
-      await sendPasswordLink(ctx, req, row, 'invite');
+      await sendPasswordLink(ctx, row, 'invite');
       invited = true;
     }
     res.status(201).json({ user: toUser(row), invited });
@@ -97,7 +97,7 @@ export function userRoutes(ctx: AppContext) {
     const { id } = parseParams(userIdParamsSchema, req);
     const [row] = await ctx.db.select(userColumns).from(users).where(eq(users.id, id));
     if (!row) throw notFound('No such user');
-    await sendPasswordLink(ctx, req, row, 'invite');
+    await sendPasswordLink(ctx, row, 'invite');
     res.status(202).json({ message: `Invitation sent to ${row.email}` });
   });
 

@@ -1,16 +1,17 @@
 /**
- * The class board: every running attempt of a class (its assignments, and
- * practice by its students) with the student, scenario, sim time, the test the
- * bench is set up for, the meters as the server's own re-run of the stored
- * events shows them (on the attempt's compiled car, as the bench ran it), the
- * readings recorded so far, and each injection with what the server makes of
- * it (delivered, logged by the bench, or flagged). A refresh handles every changed attempt at once:
+ * The class board: every running attempt of a class's assignments (a
+ * student's practice is their own and never shows) with the student,
+ * scenario, sim time, the test the bench is set up for, the meters as the
+ * server's own re-run of the stored events shows them (on the attempt's
+ * compiled car, as the bench ran it), the readings recorded so far, and each
+ * injection with what the server makes of it (delivered, logged by the bench,
+ * or flagged). A refresh handles every changed attempt at once:
  * one query for their rows (with the time of each one's latest event), one
  * for the events the re-run cache has not seen yet, one for their injections.
  * The re-run is kept per attempt and carried forward as events arrive, so an
  * update costs only the new events and the new sim time.
  */
-import { and, eq, inArray, isNull, or, sql } from 'drizzle-orm';
+import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { DiagnosticTest } from '../../sim/faults.ts';
 import type { Controls, InputEvent } from '../../sim/inputs.ts';
 import type { Readings } from '../../sim/instruments.ts';
@@ -23,7 +24,7 @@ import type { CarChange } from '../../sim/car-changes.ts';
 import { readingsOfLog, type LogEvent } from '../../shared/api/attempts.ts';
 import type { BoardAttempt, LiveReadings } from '../../shared/api/live.ts';
 import type { DbOrTx } from '../db/client.ts';
-import { assignments, attemptEvents, attempts, classes, enrollments, pendingInjections, scenarioVersions, users } from '../db/schema.ts';
+import { assignments, attemptEvents, attempts, classes, pendingInjections, scenarioVersions, users } from '../db/schema.ts';
 import { notFound } from '../http/errors.ts';
 import { loadDefinition } from './definitions.ts';
 import type { LoggedEvent } from './injection-authority.ts';
@@ -76,12 +77,9 @@ const boardColumns = {
   ),
 };
 
-/** Attempts of the class: assigned through its assignments, or practice by its enrolled students. */
+/** Attempts of the class: those of its assignments (server/auth/access.ts: an instructor's reach ends there). */
 function inClass(classId: number) {
-  return or(
-    eq(assignments.classId, classId),
-    and(isNull(attempts.assignmentId), inArray(attempts.userId, sql`(select ${enrollments.userId} from ${enrollments} where ${enrollments.classId} = ${classId})`)),
-  );
+  return eq(assignments.classId, classId);
 }
 
 export async function className(db: DbOrTx, classId: number): Promise<string> {

@@ -1,4 +1,8 @@
-/** Single-use, expiring tokens for invitations and password resets. Only a SHA-256 of the token is stored. */
+/**
+ * Single-use, expiring tokens for invitations and password resets. Only a
+ * SHA-256 of the token is stored. A user has at most one token that works:
+ * a new one ends the ones before it, and setting a password ends them all.
+ */
 import { createHash, randomBytes } from 'node:crypto';
 import { and, eq, gt, isNull } from 'drizzle-orm';
 import type { DbOrTx } from '../db/client.ts';
@@ -13,8 +17,18 @@ export const TOKEN_TTL_MS: Record<TokenPurpose, number> = {
 
 const digest = (raw: string) => createHash('sha256').update(raw).digest('hex');
 
+/** Ends every token of the user that still works (marks it used). */
+export async function endTokensOf(db: DbOrTx, userId: number): Promise<void> {
+  await db
+    .update(passwordTokens)
+    .set({ usedAt: new Date() })
+    .where(and(eq(passwordTokens.userId, userId), isNull(passwordTokens.usedAt)));
+}
+
+/** A new token for the user; any earlier link of theirs stops working. */
 export async function issueToken(db: DbOrTx, userId: number, purpose: TokenPurpose): Promise<string> {
   const raw = randomBytes(32).toString('base64url');
+  await endTokensOf(db, userId);
   await db.insert(passwordTokens).values({
     userId,
     purpose,

@@ -1,19 +1,21 @@
 /** Payloads of the assignments API (/api/assignments). */
 import { z } from 'zod';
+import { nameText } from '../names.ts';
 import { DIFFICULTIES, VEHICLE_KINDS } from '../scenario.ts';
+import { idField, idParam } from './ids.ts';
 
-export const assignmentIdParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
+export const assignmentIdParamsSchema = z.object({ id: idParam('id') });
 
 const isoDate = (field: string) =>
   z.iso.datetime({ offset: true, error: `${field} must be a date and time (ISO 8601, e.g. 2026-12-01T09:00:00Z)` });
 
 export const createAssignmentSchema = z
   .strictObject({
-    classId: z.number({ error: 'classId is required' }).int().positive('classId must be a positive whole number'),
-    scenarioId: z.number({ error: 'scenarioId is required' }).int().positive('scenarioId must be a positive whole number'),
+    classId: idField('classId'),
+    scenarioId: idField('scenarioId'),
     /** A version of that scenario; without it, the published version. */
-    scenarioVersionId: z.number().int().positive('scenarioVersionId must be a positive whole number').optional(),
-    title: z.string().trim().min(3, 'title must be at least 3 characters').max(160, 'title must be at most 160 characters').optional(),
+    scenarioVersionId: idField('scenarioVersionId').optional(),
+    title: nameText('title', 3, 160).optional(),
     opensAt: isoDate('opensAt'),
     dueAt: isoDate('dueAt'),
     attemptsAllowed: z.number({ error: 'attemptsAllowed is required' }).int('attemptsAllowed must be a whole number').min(1, 'attemptsAllowed must be at least 1').max(20, 'attemptsAllowed must be at most 20'),
@@ -42,7 +44,7 @@ export const createAssignmentSchema = z
 export type CreateAssignmentInput = z.input<typeof createAssignmentSchema>;
 
 export const listAssignmentsQuerySchema = z.object({
-  classId: z.coerce.number({ error: 'classId is required' }).int().positive('classId must be a positive whole number'),
+  classId: idParam('classId'),
 });
 
 export const assignmentSchema = z.object({

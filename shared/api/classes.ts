@@ -1,13 +1,12 @@
 /** Payloads of the classes and roster API (/api/classes). */
 import { z } from 'zod';
+import { nameText } from '../names.ts';
 import { emailSchema } from './auth.ts';
+import { idField, idParam } from './ids.ts';
 import { nameSchema } from './users.ts';
 
-export const classIdParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
-export const classStudentParamsSchema = z.object({
-  id: z.coerce.number().int().positive('id must be a positive whole number'),
-  userId: z.coerce.number().int().positive('userId must be a positive whole number'),
-});
+export const classIdParamsSchema = z.object({ id: idParam('id') });
+export const classStudentParamsSchema = z.object({ id: idParam('id'), userId: idParam('userId') });
 
 export const personSchema = z.object({ id: z.number().int(), name: z.string(), email: z.string() });
 export type Person = z.infer<typeof personSchema>;
@@ -31,10 +30,10 @@ export const classDetailSchema = classSummarySchema.extend({ students: z.array(c
 export type ClassDetail = z.infer<typeof classDetailSchema>;
 
 export const createClassSchema = z.strictObject({
-  name: z.string().trim().min(2, 'name must be at least 2 characters').max(120, 'name must be at most 120 characters'),
-  term: z.string().trim().max(60, 'term must be at most 60 characters').default(''),
+  name: nameText('name', 2, 120),
+  term: nameText('term', 0, 60).default(''),
   /** Admins name the instructors; an instructor creating a class teaches it. */
-  instructorIds: z.array(z.number().int().positive()).max(10, 'at most 10 instructors').optional(),
+  instructorIds: z.array(idField('instructorId')).max(10, 'at most 10 instructors').optional(),
 });
 export type CreateClassInput = z.input<typeof createClassSchema>;
 

@@ -6,8 +6,9 @@
  */
 import { z } from 'zod';
 import { COMPETENCIES, competencySchema } from '../competencies.ts';
+import { idField, idParam } from './ids.ts';
 
-const id = (field: string) => z.coerce.number({ error: `${field} must be a number` }).int(`${field} must be a whole number`).positive(`${field} must be a positive whole number`);
+const id = idParam;
 
 export const assignmentParamsSchema = z.object({ id: id('id') });
 export const classParamsSchema = z.object({ classId: id('classId') });
@@ -98,7 +99,7 @@ export type CompareResponse = z.infer<typeof compareResponseSchema>;
 // Sign-offs
 
 export const createSignOffSchema = z.strictObject({
-  attemptId: z.number({ error: 'attemptId is required' }).int('attemptId must be a whole number').positive('attemptId must be a positive whole number'),
+  attemptId: idField('attemptId'),
   competency: competencySchema,
   note: z.string().trim().max(500, 'note must be at most 500 characters').default(''),
 });

@@ -16,6 +16,7 @@ import { FAULT_KINDS, type FaultKind } from '../../sim/faults.ts';
 import { INTEGRITY_FLAG_KINDS } from './attempts.ts';
 import { carChangeSchema } from '../car.ts';
 import { DIAGNOSTIC_TESTS } from '../scenario.ts';
+import { idField, idParam } from './ids.ts';
 
 export const LIVE_FAULT_PREFIX = 'live-';
 
@@ -50,8 +51,7 @@ export const intermittentSchema = z.strictObject({
 });
 export type LiveIntermittent = z.infer<typeof intermittentSchema>;
 
-const positiveId = (field: string) =>
-  z.number({ error: `${field} is required` }).int(`${field} must be a whole number`).positive(`${field} must be a positive whole number`);
+const positiveId = idField;
 
 /** POST /api/live/attempts/:id/inject */
 export const injectSchema = z.strictObject({
@@ -71,8 +71,8 @@ export type InjectInput = z.input<typeof injectSchema>;
 export const clearSchema = z.strictObject({ injectionId: positiveId('injectionId') });
 export type ClearInput = z.infer<typeof clearSchema>;
 
-export const attemptParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
-export const classParamsSchema = z.object({ classId: z.coerce.number().int().positive('classId must be a positive whole number') });
+export const attemptParamsSchema = z.object({ id: idParam('id') });
+export const classParamsSchema = z.object({ classId: idParam('classId') });
 
 /** The `action` column of pending_injections. */
 export const pendingActionSchema = z.discriminatedUnion('type', [

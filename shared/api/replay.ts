@@ -7,9 +7,10 @@
  */
 import { z } from 'zod';
 import type { CompiledCar } from '../../sim/compiled-car.ts';
-import { inputEventSchema, readingCheckSchema } from './attempts.ts';
+import { inputEventSchema, MAX_ATTEMPT_MS, readingCheckSchema } from './attempts.ts';
+import { idParam } from './ids.ts';
 
-export const replayParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
+export const replayParamsSchema = z.object({ id: idParam('id') });
 
 export const MARKER_KINDS = ['hook-up', 'start', 'load', 'fault', 'reading', 'submission'] as const;
 export type MarkerKind = (typeof MARKER_KINDS)[number];
@@ -43,7 +44,8 @@ export const createCommentSchema = z.strictObject({
   simTimeMs: z
     .number({ error: 'simTimeMs is required (the moment, in sim milliseconds)' })
     .int('simTimeMs must be a whole number of milliseconds')
-    .min(0, 'simTimeMs must not be negative'),
+    .min(0, 'simTimeMs must not be negative')
+    .max(MAX_ATTEMPT_MS, 'simTimeMs must be within the attempt'),
   body: z.string({ error: 'body is required' }).trim().min(1, 'body must not be empty').max(COMMENT_MAX, `body must be at most ${COMMENT_MAX} characters`),
 });
 export type CreateCommentInput = z.infer<typeof createCommentSchema>;

@@ -1,16 +1,15 @@
 /** Payloads of the scenario library API (/api/scenarios). */
 import { z } from 'zod';
+import { nameText } from '../names.ts';
 import { DIFFICULTIES, diagnosticTestSchema, faultKindSchema, scenarioDocumentSchema, VEHICLE_KINDS } from '../scenario.ts';
+import { idField, idParam } from './ids.ts';
 
 export const VISIBILITIES = ['private', 'shared'] as const;
 export const visibilitySchema = z.enum(VISIBILITIES, { error: 'Visibility must be "private" or "shared"' });
 export type Visibility = z.infer<typeof visibilitySchema>;
 
-export const scenarioIdParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
-export const scenarioVersionParamsSchema = z.object({
-  id: z.coerce.number().int().positive('id must be a positive whole number'),
-  versionId: z.coerce.number().int().positive('versionId must be a positive whole number'),
-});
+export const scenarioIdParamsSchema = z.object({ id: idParam('id') });
+export const scenarioVersionParamsSchema = z.object({ id: idParam('id'), versionId: idParam('versionId') });
 
 export const listScenariosQuerySchema = z.object({
   q: z.string().trim().max(120, 'q must be at most 120 characters').optional(),
@@ -97,7 +96,7 @@ export const updateScenarioSchema = z.strictObject({
   definition: z.unknown(),
   note: noteSchema,
   /** The version the edit started from; a newer one on the server answers 409. */
-  baseVersion: z.number().int().positive().optional(),
+  baseVersion: idField('baseVersion').optional(),
 });
 export type UpdateScenarioInput = z.input<typeof updateScenarioSchema>;
 
@@ -108,18 +107,18 @@ export const patchScenarioSchema = z.strictObject({
 export type PatchScenarioInput = z.infer<typeof patchScenarioSchema>;
 
 export const versionActionSchema = z.strictObject({
-  versionId: z.number({ error: 'versionId is required' }).int().positive('versionId must be a positive whole number'),
+  versionId: idField('versionId'),
 });
 export type VersionActionInput = z.infer<typeof versionActionSchema>;
 
 export const duplicateScenarioSchema = z.strictObject({
-  title: z.string().trim().min(3, 'title must be at least 3 characters').max(120, 'title must be at most 120 characters').optional(),
+  title: nameText('title', 3, 120).optional(),
 });
 export type DuplicateScenarioInput = z.infer<typeof duplicateScenarioSchema>;
 
 export const importQuerySchema = z.object({ visibility: visibilitySchema.default('private') });
 
-export const exportQuerySchema = z.object({ version: z.coerce.number().int().positive('version must be a positive whole number').optional() });
+export const exportQuerySchema = z.object({ version: idParam('version').optional() });
 
 /** What a student may list for practice: no faults, nothing that points at them. */
 export const practiceScenarioSchema = z.object({

@@ -1,5 +1,7 @@
 import { z } from 'zod';
+import { nameText } from '../names.ts';
 import { emailSchema, passwordSchema, roleSchema } from './auth.ts';
+import { idParam } from './ids.ts';
 
 export const userSchema = z.object({
   id: z.number().int(),
@@ -12,7 +14,8 @@ export const userSchema = z.object({
 });
 export type User = z.infer<typeof userSchema>;
 
-export const nameSchema = z.string().trim().min(1, 'Name is required').max(120, 'Name must be at most 120 characters');
+/** A person's name, wherever it is typed (shared/names.ts). */
+export const nameSchema = nameText('Name', 1, 120);
 
 export const createUserSchema = z.object({
   email: emailSchema,
@@ -32,7 +35,7 @@ export const updateUserSchema = z
   .strict();
 export type UpdateUserInput = z.infer<typeof updateUserSchema>;
 
-export const userIdParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
+export const userIdParamsSchema = z.object({ id: idParam('id') });
 
 export const listUsersQuerySchema = z.object({
   role: roleSchema.optional(),

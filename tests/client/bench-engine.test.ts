@@ -5,6 +5,7 @@ import { readMeters } from '../../sim/instruments.ts';
 import { stateAt } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
+import { MAX_ATTEMPT_MS } from '../../shared/api/attempts.ts';
 import { DISPLAY_INTERVAL_MS, MAX_FRAME_GAP_MS, START_HOLD_MS, createBenchEngine } from '../../src/features/bench/stores/bench-engine.ts';
 import { benchActions } from '../../src/features/bench/stores/bench-actions.ts';
 
@@ -104,5 +105,17 @@ describe('the live bench engine', () => {
     expect(engine.getSnapshot().timeMs).toBe(60_000);
     expect(engine.getSnapshot().timeMs % DT_MS).toBe(0);
     expect(engine.getSnapshot().history.length).toBeGreaterThan(200);
+  });
+});
+
+describe('the bench clock’s limit', () => {
+  it('stops at the longest an attempt may run, so every event it stamps is one the server takes', () => {
+    // Resumed a little before the limit (the model runs the two hours to get there, as a reload would).
+    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [], resumeAtMs: MAX_ATTEMPT_MS - 1000 });
+    engine.skipAhead(300_000);
+    expect(engine.getSnapshot().timeMs).toBe(MAX_ATTEMPT_MS);
+    frames(engine, 120);
+    expect(engine.getSnapshot().timeMs).toBe(MAX_ATTEMPT_MS);
+    expect(engine.dispatch(benchActions.turnKey('on')).atMs).toBe(MAX_ATTEMPT_MS);
   });
 });

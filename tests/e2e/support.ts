@@ -1,3 +1,4 @@
+import { randomBytes } from 'node:crypto';
 import { fileURLToPath } from 'node:url';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll } from 'vitest';
@@ -23,7 +24,8 @@ export async function startE2eServer(): Promise<E2eServer> {
   const mailDb = connect(databaseUrl, 2);
   const smtp: SmtpFake = await startSmtpFake(mailDb.db, 0);
   const server = await startServer({
-    env: readEnv({ NODE_ENV: 'production', DATABASE_URL: databaseUrl, PORT: '0', SMTP_PORT: String(smtp.port), SIGN_IN_LIMIT: '1000' }),
+    // Production, as `npm start` runs it: a secret of its own, and a public address (the browser tests open no mailed link).
+    env: readEnv({ NODE_ENV: 'production', DATABASE_URL: databaseUrl, PORT: '0', SMTP_PORT: String(smtp.port), PUBLIC_URL: 'http://localhost', SESSION_SECRET: randomBytes(32).toString('hex') }),
     staticDir: distDir,
     logLevel: 'silent',
   });

@@ -40,7 +40,7 @@ interface Server {
 async function startServer(databaseUrl: string, port: number): Promise<Server> {
   const child = spawn(process.execPath, ['--import', 'tsx', 'server/serve.ts'], {
     cwd: root,
-    env: { ...process.env, NODE_ENV: 'test', DATABASE_URL: databaseUrl, PORT: String(port), HOST: '127.0.0.1', SIGN_IN_LIMIT: '1000' },
+    env: { ...process.env, NODE_ENV: 'test', DATABASE_URL: databaseUrl, PORT: String(port), HOST: '127.0.0.1' },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   let err = '';

@@ -49,32 +49,41 @@ describe('sign-in', () => {
     expect(missing.body.error.field).toBe('password');
   });
 
-  it('regenerates the session id at sign-in and sets a httpOnly, SameSite=Lax cookie', async () => {
+  it('starts no session before sign-in, makes a new session id at each sign-in and sets a httpOnly, SameSite=Lax cookie (ASVS 3.2.1)', async () => {
     const agent = supertest.agent(t.app);
     const first = await agent.get('/api/auth/me').expect(200);
-    const before = sidOf(first);
+    expect(sidOf(first)).toBeUndefined();
+    const signedIn = await agent.post('/api/auth/sign-in').set('X-CSRF-Token', first.body.csrfToken).send({ email: student.email, password: DEMO_PASSWORD }).expect(200);
+    const before = sidOf(signedIn);
     expect(before).toBeTruthy();
-    const res = await agent
-      .post('/api/auth/sign-in')
-      .set('X-CSRF-Token', first.body.csrfToken)
-      .send({ email: student.email, password: DEMO_PASSWORD })
-      .expect(200);
+    // Signing in again on the same browser (the case of a planted session id) gives a new id; the old one is gone.
+    const res = await agent.post('/api/auth/sign-in').set('X-CSRF-Token', signedIn.body.csrfToken as string).send({ email: student.email, password: DEMO_PASSWORD }).expect(200);
     const after = sidOf(res);
     expect(after).toBeTruthy();
     expect(after).not.toBe(before);
+    const old = decodeURIComponent(before!.split('=')[1]!).replace(/^s:/, '').split('.')[0]!;
+    expect((await t.ctx.pool.query('select 1 from session where sid = $1', [old])).rowCount).toBe(0);
     const raw = ([] as string[]).concat(res.headers['set-cookie'] ?? []).join(';');
     expect(raw).toMatch(/HttpOnly/i);
     expect(raw).toMatch(/SameSite=Lax/i);
     expect(raw).not.toMatch(/Secure/i);
   });
 
-  it('marks the cookie Secure behind a TLS proxy', async () => {
+  it('marks the cookies Secure behind a TLS proxy', async () => {
     const behind = await startTestApp({ TRUST_PROXY: '1' }, t.databaseUrl);
     try {
-      const agent = supertest.agent(behind.app);
-      const me = await agent.get('/api/auth/me').set('X-Forwarded-Proto', 'https').expect(200);
-      const raw = ([] as string[]).concat(me.headers['set-cookie'] ?? []).join(';');
-      expect(raw).toMatch(/Secure/);
+      const me = await supertest(behind.app).get('/api/auth/me').set('X-Forwarded-Proto', 'https').expect(200);
+      const csrfCookie = ([] as string[]).concat(me.headers['set-cookie'] ?? []).find((c) => c.startsWith('loadline.csrf='))!;
+      expect(csrfCookie).toMatch(/Secure/);
+      // The cookie jar keeps Secure cookies for https: sent by hand, as a browser would over TLS.
+      const res = await supertest(behind.app)
+        .post('/api/auth/sign-in')
+        .set('X-Forwarded-Proto', 'https')
+        .set('Cookie', csrfCookie.split(';')[0]!)
+        .set('X-CSRF-Token', me.body.csrfToken)
+        .send({ email: student.email, password: DEMO_PASSWORD })
+        .expect(200);
+      expect(([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith('loadline.sid='))).toMatch(/Secure/);
     } finally {
       await behind.close();
     }
@@ -103,22 +112,24 @@ describe('sign-in', () => {
 });
 
 describe('rate limit', () => {
-  it('trips after the allowed number of sign-in attempts', async () => {
+  it('refuses an account after the allowed failed sign-ins from one address, in every process, and counts no success (ASVS 2.2.1)', async () => {
     // A database of its own: the counters live in PostgreSQL and the other tests share this address.
-    const limited = await startTestApp({ SIGN_IN_LIMIT: '3' });
+    const limited = await startTestApp({ SIGN_IN_FAILURES_PER_ACCOUNT: '3' });
     try {
-      const agent = await anonymousAgent(limited.app);
+      // Correct sign-ins first: never counted, however many.
+      for (let i = 0; i < 5; i++) await signIn(limited.app, student.email);
+      const fresh = await anonymousAgent(limited.app);
       const codes: number[] = [];
       for (let i = 0; i < 5; i++) {
-        codes.push((await agent.post('/api/auth/sign-in').send({ email: student.email, password: 'wrong-password-here' })).status);
+        codes.push((await fresh.post('/api/auth/sign-in').send({ email: student.email, password: 'wrong-password-here' })).status);
       }
-      expect(codes.slice(0, 3)).toEqual([401, 401, 401]);
-      expect(codes.slice(3)).toEqual([429, 429]);
-      const blocked = await agent.post('/api/auth/sign-in').send({ email: student.email, password: DEMO_PASSWORD });
+      expect(codes).toEqual([401, 401, 401, 429, 429]);
+      const blocked = await fresh.post('/api/auth/sign-in').send({ email: student.email, password: DEMO_PASSWORD });
       expect(blocked.status).toBe(429);
-      expect(blocked.body.error.message).toMatch(/Too many sign-in attempts/);
+      expect(blocked.body.error.message).toMatch(/Too many failed sign-ins to this account/);
+      expect(Number(blocked.headers['retry-after'])).toBeGreaterThan(0);
       // A second server process on the same database counts the same client.
-      const sibling = await startTestApp({ SIGN_IN_LIMIT: '3' }, limited.databaseUrl);
+      const sibling = await startTestApp({ SIGN_IN_FAILURES_PER_ACCOUNT: '3' }, limited.databaseUrl);
       try {
         const other = await anonymousAgent(sibling.app);
         expect((await other.post('/api/auth/sign-in').send({ email: student.email, password: DEMO_PASSWORD })).status).toBe(429);
@@ -233,7 +244,7 @@ describe('the API surface', () => {
   });
 
   it('hides error details in production', async () => {
-    const prod = await startTestApp({ NODE_ENV: 'production' }, t.databaseUrl);
+    const prod = await startTestApp({ NODE_ENV: 'production', PUBLIC_URL: 'https://loadline.example', SESSION_SECRET: 'a-production-secret-of-forty-characters!' }, t.databaseUrl);
     try {
       const agent = await anonymousAgent(prod.app);
       const res = await agent.post('/api/auth/sign-in').set('Content-Type', 'application/json').send('{"email": ');

@@ -1,8 +1,10 @@
 /**
  * The authorisation matrix, generated from the route table: every API route
- * is called as each of six actors with real ids, and the answer must be the
+ * is called as each of seven actors with real ids, and the answer must be the
  * one EXPECTED gives. A route with no entry fails the test, and so does an
- * entry for a route that no longer exists.
+ * entry for a route that no longer exists. The seventh actor is the
+ * instructor of another class that shares the student: teaching the student
+ * elsewhere opens none of this class's work.
  *
  * Source: OWASP ASVS 4.0 level 2, V4.1.1 (access rules enforced on the
  * server), V4.1.3 (least privilege), V4.1.5 (fail securely), V4.2.1 (no
@@ -11,13 +13,14 @@
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
-import { assignments, enrollments, signOffs, users } from '../../server/db/schema.ts';
+import { hashPassword } from '../../server/auth/passwords.ts';
+import { assignments, classes, classInstructors, enrollments, signOffs, users } from '../../server/db/schema.ts';
 import type { Method } from '../../server/http/route-table.ts';
 import { blankScenario } from '../../shared/scenario.ts';
 import { listen, makeAttempt, makeClass, makeSubmitted, userId, type ClassFixture } from './live-fixtures.ts';
 import { anonymousAgent, DEMO_PASSWORD, signIn, startTestApp, type Agent, type TestApp } from './support.ts';
 
-const ACTORS = ['anonymous', 'student', 'otherStudent', 'instructor', 'otherInstructor', 'admin'] as const;
+const ACTORS = ['anonymous', 'student', 'otherStudent', 'instructor', 'otherInstructor', 'sharingInstructor', 'admin'] as const;
 type Actor = (typeof ACTORS)[number];
 /** '2xx' for any success; otherwise the exact status. */
 type Outcome = '2xx' | 400 | 401 | 403 | 404 | 409;
@@ -31,24 +34,26 @@ const PEOPLE: Record<Exclude<Actor, 'anonymous'>, string> = {
   otherStudent: byRole((p) => p.role === 'student')[5]!.email,
   instructor: byRole((p) => p.role === 'instructor')[0]!.email,
   otherInstructor: byRole((p) => p.role === 'instructor')[1]!.email,
+  // Made in beforeAll: teaches a class of its own in which Ada, and every pupil the calls below add, is enrolled too.
+  sharingInstructor: 'sharing.instructor@matrix.example',
   admin: byRole((p) => p.role === 'admin')[0]!.email,
 };
 
 // Rows used by many routes.
-const EVERYONE: Row = { anonymous: '2xx', student: '2xx', otherStudent: '2xx', instructor: '2xx', otherInstructor: '2xx', admin: '2xx' };
+const EVERYONE: Row = { anonymous: '2xx', student: '2xx', otherStudent: '2xx', instructor: '2xx', otherInstructor: '2xx', sharingInstructor: '2xx', admin: '2xx' };
 const SIGNED_IN: Row = { ...EVERYONE, anonymous: 401 };
-const ADMIN_ONLY: Row = { anonymous: 401, student: 403, otherStudent: 403, instructor: 403, otherInstructor: 403, admin: '2xx' };
-const ANY_STAFF: Row = { anonymous: 401, student: 403, otherStudent: 403, instructor: '2xx', otherInstructor: '2xx', admin: '2xx' };
-/** The class's instructors and admins; another instructor is refused. */
-const CLASS_STAFF: Row = { anonymous: 401, student: 403, otherStudent: 403, instructor: '2xx', otherInstructor: 403, admin: '2xx' };
+const ADMIN_ONLY: Row = { anonymous: 401, student: 403, otherStudent: 403, instructor: 403, otherInstructor: 403, sharingInstructor: 403, admin: '2xx' };
+const ANY_STAFF: Row = { anonymous: 401, student: 403, otherStudent: 403, instructor: '2xx', otherInstructor: '2xx', sharingInstructor: '2xx', admin: '2xx' };
+/** The class's instructors and admins; another instructor is refused, even one who teaches the student elsewhere. */
+const CLASS_STAFF: Row = { anonymous: 401, student: 403, otherStudent: 403, instructor: '2xx', otherInstructor: 403, sharingInstructor: 403, admin: '2xx' };
 /** The enrolled student and the class's staff. */
-const CLASS_MEMBER: Row = { anonymous: 401, student: '2xx', otherStudent: 403, instructor: '2xx', otherInstructor: 403, admin: '2xx' };
+const CLASS_MEMBER: Row = { anonymous: 401, student: '2xx', otherStudent: 403, instructor: '2xx', otherInstructor: 403, sharingInstructor: 403, admin: '2xx' };
 /** Only the student whose attempt it is. */
-const OWNER_ONLY: Row = { anonymous: 401, student: '2xx', otherStudent: 403, instructor: 403, otherInstructor: 403, admin: 403 };
+const OWNER_ONLY: Row = { anonymous: 401, student: '2xx', otherStudent: 403, instructor: 403, otherInstructor: 403, sharingInstructor: 403, admin: 403 };
 /** A student's own list: each student gets their own. */
-const ANY_STUDENT: Row = { anonymous: 401, student: '2xx', otherStudent: '2xx', instructor: 403, otherInstructor: 403, admin: 403 };
+const ANY_STUDENT: Row = { anonymous: 401, student: '2xx', otherStudent: '2xx', instructor: 403, otherInstructor: 403, sharingInstructor: 403, admin: 403 };
 /** An instructor's private scenario: another instructor is told it does not exist. */
-const PRIVATE_SCENARIO: Row = { anonymous: 401, student: 403, otherStudent: 403, instructor: '2xx', otherInstructor: 404, admin: '2xx' };
+const PRIVATE_SCENARIO: Row = { anonymous: 401, student: 403, otherStudent: 403, instructor: '2xx', otherInstructor: 404, sharingInstructor: 404, admin: '2xx' };
 
 /** The expected answer of every route for every actor. */
 const EXPECTED: Record<string, Row> = {
@@ -57,7 +62,7 @@ const EXPECTED: Record<string, Row> = {
   'POST /api/auth/sign-out': EVERYONE,
   'POST /api/auth/password-reset': EVERYONE,
   // Without a valid e-mailed token nobody can set a password.
-  'POST /api/auth/set-password': { anonymous: 400, student: 400, otherStudent: 400, instructor: 400, otherInstructor: 400, admin: 400 },
+  'POST /api/auth/set-password': { anonymous: 400, student: 400, otherStudent: 400, instructor: 400, otherInstructor: 400, sharingInstructor: 400, admin: 400 },
 
   'GET /api/users': ADMIN_ONLY,
   'POST /api/users': ADMIN_ONLY,
@@ -115,14 +120,18 @@ const EXPECTED: Record<string, Row> = {
   'POST /api/replay/attempts/:id/comments': CLASS_STAFF,
 
   'GET /api/sign-offs/me': ANY_STUDENT,
-  'GET /api/sign-offs/students/:userId': CLASS_MEMBER,
+  // An instructor of any of the student's classes reads their progress (with only that class's work in it: security-reach.test.ts).
+  'GET /api/sign-offs/students/:userId': { ...CLASS_MEMBER, sharingInstructor: '2xx' },
   'POST /api/sign-offs': CLASS_STAFF,
+  // The sign-off's author (the class's instructor) or an admin; an instructor who also teaches the pupil cannot withdraw it.
   'DELETE /api/sign-offs/:id': CLASS_STAFF,
   'GET /api/sign-offs/classes/:classId/sign-offs.csv': CLASS_STAFF,
 };
 
 interface Fixtures {
   fx: ClassFixture;
+  /** The sharing instructor's class, with Ada in it. */
+  sharedClassId: number;
   studentId: number;
   sharedScenarioId: number;
   privateScenarioId: number;
@@ -158,9 +167,13 @@ async function agentFor(actor: Actor): Promise<Agent> {
   return actor === 'anonymous' ? anonymousAgent(t.app) : signIn(t.app, PEOPLE[actor]);
 }
 
+/** A pupil of the fixture class who is also in the sharing instructor's class. */
 async function newStudentInClass(): Promise<number> {
   const [u] = await t.ctx.db.insert(users).values({ email: unique('pupil'), name: 'Orrin Matrixfield', role: 'student' }).returning({ id: users.id });
-  await t.ctx.db.insert(enrollments).values({ classId: f.fx.classId, userId: u!.id });
+  await t.ctx.db.insert(enrollments).values([
+    { classId: f.fx.classId, userId: u!.id },
+    { classId: f.sharedClassId, userId: u!.id },
+  ]);
   return u!.id;
 }
 
@@ -300,6 +313,7 @@ const matches = (want: Outcome, status: number) => (want === '2xx' ? status >= 2
 beforeAll(async () => {
   t = await startTestApp();
   server = await listen(t);
+  await t.ctx.db.insert(users).values({ email: PEOPLE.sharingInstructor, name: 'Sable Sharington', role: 'instructor', passwordHash: await hashPassword(DEMO_PASSWORD) });
   for (const actor of ACTORS) {
     agents[actor] = await agentFor(actor);
     cookies[actor] = (await agents[actor].get('/api/auth/me')).request.cookies;
@@ -316,9 +330,13 @@ beforeAll(async () => {
   const [invitee] = await db.insert(users).values({ email: unique('invitee'), name: 'Sorrel Uninvited', role: 'student' }).returning({ id: users.id });
   await db.insert(enrollments).values({ classId: fx.classId, userId: invitee!.id });
   const [throwaway] = await db.insert(users).values({ email: unique('throwaway'), name: 'Quill Matrixby', role: 'student' }).returning({ id: users.id });
+  const [shared] = await db.insert(classes).values({ name: 'Matrix sharing section', term: 'Spring' }).returning({ id: classes.id });
+  await db.insert(classInstructors).values({ classId: shared!.id, userId: await userId(db, PEOPLE.sharingInstructor) });
+  await db.insert(enrollments).values({ classId: shared!.id, userId: studentId });
   const assignment = await agents.instructor.get(`/api/assignments/${fx.assignmentId}`).expect(200);
   f = {
     fx,
+    sharedClassId: shared!.id,
     studentId,
     sharedScenarioId: assignment.body.assignment.scenarioId as number,
     privateScenarioId: created.body.id as number,

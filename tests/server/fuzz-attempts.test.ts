@@ -21,7 +21,7 @@ let injectionId: number;
 let seq = 0;
 
 beforeAll(async () => {
-  t = await startTestApp({ SIGN_IN_LIMIT: '1000000' });
+  t = await startTestApp();
   student = await signIn(t.app, students[0]!.email);
   teacher = await signIn(t.app, instructor.email);
   fx = await makeClass(t.ctx.db, { students: 2, name: 'Fuzz section' });

@@ -18,7 +18,7 @@ let sharedScenarioId: number;
 let n = 0;
 
 beforeAll(async () => {
-  t = await startTestApp({ SIGN_IN_LIMIT: '1000000' });
+  t = await startTestApp();
   teacher = await signIn(t.app, instructor.email);
   fx = await makeClass(t.ctx.db, { students: 1, name: 'Fuzz section' });
   const created = await teacher.post('/api/scenarios').send({ definition: blankScenario(), visibility: 'private' }).expect(201);

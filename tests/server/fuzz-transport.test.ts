@@ -21,7 +21,7 @@ let target: number;
 let n = 0;
 
 beforeAll(async () => {
-  t = await startTestApp({ SIGN_IN_LIMIT: '1000000' });
+  t = await startTestApp();
   anon = await anonymousAgent(t.app);
   admin = await signIn(t.app, DEMO_PEOPLE.find((p) => p.role === 'admin')!.email);
   instructorAgent = await signIn(t.app, DEMO_PEOPLE.find((p) => p.role === 'instructor')!.email);

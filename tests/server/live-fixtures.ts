@@ -14,7 +14,7 @@ import { DEMO_PASSWORD, DEMO_PEOPLE } from '../../server/db/demo-people.ts';
 import { assignments, attempts, classes, classInstructors, enrollments, scenarios, scenarioVersions, users } from '../../server/db/schema.ts';
 import { blankScenario, type ScenarioDefinition } from '../../shared/scenario.ts';
 import { createAppServer, listen as listenApp } from '../../server/http/app-server.ts';
-import type { TestApp } from './support.ts';
+import { TEST_LIMITS, type TestApp } from './support.ts';
 
 export const instructor = DEMO_PEOPLE.filter((p) => p.role === 'instructor')[0]!;
 /** An instructor who does not teach the fixture class. */
@@ -92,14 +92,15 @@ export interface HttpClient {
   post(path: string, body: unknown): Promise<{ status: number; body: unknown; text: string }>;
 }
 
-function cookieOf(res: Response, previous: string): string {
-  const set = res.headers.getSetCookie().find((c) => c.startsWith('loadline.sid='));
+function cookieOf(res: Response, previous: string, name = 'loadline.sid'): string {
+  const set = res.headers.getSetCookie().find((c) => c.startsWith(`${name}=`));
   return set ? set.split(';')[0]! : previous;
 }
 
 export async function httpSignIn(baseUrl: string, email: string, password = DEMO_PASSWORD): Promise<HttpClient> {
+  // Before sign-in the CSRF token is bound to a cookie of its own (no session is stored for a visitor).
   const me = await fetch(`${baseUrl}/api/auth/me`);
-  let cookie = cookieOf(me, '');
+  let cookie = cookieOf(me, '', 'loadline.csrf');
   const first = (await me.json()) as { csrfToken: string };
   const res = await fetch(`${baseUrl}/api/auth/sign-in`, {
     method: 'POST',
@@ -107,7 +108,7 @@ export async function httpSignIn(baseUrl: string, email: string, password = DEMO
     body: JSON.stringify({ email, password }),
   });
   if (res.status !== 200) throw new Error(`sign-in of ${email} failed: ${res.status} ${await res.text()}`);
-  cookie = cookieOf(res, cookie);
+  cookie = cookieOf(res, '');
   const body = (await res.json()) as { csrfToken: string };
   const client: HttpClient = {
     baseUrl,
@@ -260,7 +261,7 @@ export async function spawnServer(databaseUrl: string, env: Record<string, strin
   const entry = new URL('../../server/serve.ts', import.meta.url).pathname;
   // Node itself with tsx's loader, so the pid held (and signalled) is the server's.
   const child = spawn(process.execPath, ['--import', 'tsx', entry], {
-    env: { ...process.env, NODE_ENV: 'test', DATABASE_URL: databaseUrl, PORT: '0', HOST: '127.0.0.1', SIGN_IN_LIMIT: '1000', ...env },
+    env: { ...process.env, NODE_ENV: 'test', DATABASE_URL: databaseUrl, PORT: '0', HOST: '127.0.0.1', ...TEST_LIMITS, ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   let err = '';

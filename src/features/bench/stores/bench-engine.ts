@@ -18,6 +18,7 @@ import { rawClampReadingA, readMeters, rippleTrace } from '../../../../sim/instr
 import { advance, startPoint } from '../../../../sim/replay.ts';
 import { DT_MS } from '../../../../sim/step.ts';
 import { SETUP_TICK_MS, SetupTracker, setupCarOf, setupSampleOf, type SetupStatus } from '../../../../shared/test-setups.ts';
+import { MAX_ATTEMPT_MS } from '../../../../shared/api/attempts.ts';
 
 type DistributiveOmit<T, K extends PropertyKey> = T extends unknown ? Omit<T, K> : never;
 
@@ -179,7 +180,8 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
 
   function stepBy(steps: number): void {
     // Step in slices that end on display ticks, so the readouts, the chart and the spring-back key see each one.
-    let left = steps;
+    // The clock stops at the longest an attempt may run (the server refuses events after it).
+    let left = Math.min(steps, Math.max(0, Math.floor((MAX_ATTEMPT_MS - point.state.timeMs) / DT_MS)));
     while (left > 0) {
       const toTick = (DISPLAY_INTERVAL_MS - (point.state.timeMs % DISPLAY_INTERVAL_MS)) / DT_MS;
       const slice = Math.min(left, toTick);
