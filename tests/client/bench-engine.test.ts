@@ -111,7 +111,7 @@ describe('the live bench engine', () => {
 describe('the bench clock’s limit', () => {
   it('stops at the longest an attempt may run, so every event it stamps is one the server takes', () => {
     // Resumed a little before the limit (the model runs the two hours to get there, as a reload would).
-    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [], resumeAtMs: MAX_ATTEMPT_MS - 1000 });
+    const engine = createBenchEngine({ params, seed: SEED, changes: [], resumeAtMs: MAX_ATTEMPT_MS - 1000 });
     engine.skipAhead(300_000);
     expect(engine.getSnapshot().timeMs).toBe(MAX_ATTEMPT_MS);
     frames(engine, 120);

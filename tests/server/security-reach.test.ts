@@ -11,7 +11,7 @@
  * others' records by changing an id), V4.3.x; OWASP Top 10 2021 A01 (broken
  * access control); from memory.
  */
-import { and, eq } from 'drizzle-orm';
+import { and, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
 import { assignments, attempts, classes, classInstructors, signOffs } from '../../server/db/schema.ts';
@@ -60,7 +60,8 @@ beforeAll(async () => {
 
   assignedRunning = await makeAttempt(db, fx, adaId);
   assignedSubmitted = await makeSubmitted(db, fx, adaId, { timeToDiagnosisMs: 300_000, given: 'diode-open', grade: 91, verdicts: [{ test: 'output', ok: true }] });
-  // Ada's practice on the same published scenario, started as the bench starts it.
+  // Ada's practice on the same published scenario, started as the bench starts it (both assignments allow practice on it).
+  await db.update(assignments).set({ allowPractice: true }).where(inArray(assignments.id, [fx.assignmentId, asg!.id]));
   const scenarioId = (await ownA.get(`/api/assignments/${fx.assignmentId}`).expect(200)).body.assignment.scenarioId as number;
   practiceRunning = (await adaAgent.post('/api/attempts').send({ scenarioId, mode: 'practice' }).expect(201)).body.attempt.id as number;
   const [done] = await db
