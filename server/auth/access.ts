@@ -9,6 +9,7 @@ import type { SessionUser } from '../../shared/api/auth.ts';
 import type { DbOrTx } from '../db/client.ts';
 import { assignments, attempts, classes, classInstructors, enrollments, scenarios, scenarioVersions } from '../db/schema.ts';
 import { forbidden, HttpError, notFound } from '../http/errors.ts';
+import { ltiDeepLinkRequests } from '../lti/tables.ts';
 
 /** Whether the user teaches the class (admins teach every class). */
 export async function teachesClass(db: DbOrTx, user: SessionUser, classId: number): Promise<boolean> {
@@ -346,4 +347,18 @@ export async function requireStudentReader(db: DbOrTx, user: SessionUser, studen
   if (user.id === studentId) return { self: true };
   if (await teachesStudent(db, user, studentId)) return { self: false };
   throw forbidden('You do not teach this student');
+}
+
+/**
+ * A deep-linking request from a learning platform (server/lti): only the
+ * instructor whose launch made it may answer it; anyone else is told it does
+ * not exist. Returns its class and platform.
+ */
+export async function requireDeepLinkOwner(db: DbOrTx, user: SessionUser, requestId: string): Promise<{ classId: number; platformId: number }> {
+  const [row] = await db
+    .select({ userId: ltiDeepLinkRequests.userId, classId: ltiDeepLinkRequests.classId, platformId: ltiDeepLinkRequests.platformId })
+    .from(ltiDeepLinkRequests)
+    .where(eq(ltiDeepLinkRequests.id, requestId));
+  if (!row || row.userId !== user.id) throw notFound('No such request from your learning platform');
+  return { classId: row.classId, platformId: row.platformId };
 }
