@@ -97,7 +97,8 @@ async function fetchMembers(ctx: AppContext, platformId: number, url: string): P
   const seen = new Map<string, number>();
   raw.forEach((m, i) => {
     const parsed = memberSchema.safeParse(m);
-    const label = `member ${i + 1}${typeof (m as { user_id?: unknown })?.user_id === 'string' ? ` (${(m as { user_id: string }).user_id})` : ''}`;
+    const id = (m as { user_id?: unknown } | null)?.user_id;
+    const label = `member ${i + 1}${typeof id === 'string' && id ? ` (${id})` : ''}`;
     if (!parsed.success) {
       problems.push({ path: label, message: parsed.error.issues.map((x) => x.message).join('; ') });
       return;

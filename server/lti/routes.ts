@@ -96,7 +96,7 @@ export function ltiBrowserRoutes(ctx: AppContext): RouteGroup {
   g.get('/login', 'public', login);
   g.post('/login', 'public', forms, login);
 
-  g.post('/launch', 'public', forms, async (req, res) => {
+  const launch = async (req: Request, res: Response) => {
     try {
       const verified = await verifyLaunch(ctx.db, req.body ?? {});
       const outcome = await provisionLaunch(ctx.db, verified);
@@ -106,7 +106,11 @@ export function ltiBrowserRoutes(ctx: AppContext): RouteGroup {
     } catch (err) {
       answerRefusal(ctx, req, res, err);
     }
-  });
+  };
+  // The id_token comes to the redirect address Loadline names (/lti/launch); a platform that posts a deep-linking
+  // request to the deep-linking address it was given is answered the same way.
+  g.post('/launch', 'public', forms, launch);
+  g.post('/deep-linking', 'public', forms, launch);
 
   g.get('/enter', 'public', async (req, res) => {
     try {
