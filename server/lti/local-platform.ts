@@ -302,6 +302,10 @@ export async function startLocalPlatform(opts: LocalPlatformOptions): Promise<Lo
 <script>document.getElementById('launch').submit();</script></body></html>`);
   });
 
+  app.get('/favicon.ico', (_req, res) => {
+    res.status(204).end();
+  });
+
   app.get('/jwks', (_req, res) => {
     res.json({ keys: [publicJwk] });
   });

@@ -18,12 +18,12 @@ export interface E2eServer {
 }
 
 /** The built client and the API on a fresh copy of the demo database. */
-export async function startE2eServer(): Promise<E2eServer> {
+export async function startE2eServer(env: Record<string, string> = {}): Promise<E2eServer> {
   const databaseUrl = await createTestDatabase();
   const mailDb = connect(databaseUrl, 2);
   const smtp: SmtpFake = await startSmtpFake(mailDb.db, 0);
   const server = await startServer({
-    env: readEnv({ NODE_ENV: 'production', DATABASE_URL: databaseUrl, PORT: '0', SMTP_PORT: String(smtp.port), SIGN_IN_LIMIT: '1000' }),
+    env: readEnv({ NODE_ENV: 'production', DATABASE_URL: databaseUrl, PORT: '0', SMTP_PORT: String(smtp.port), SIGN_IN_LIMIT: '1000', ...env }),
     staticDir: distDir,
     logLevel: 'silent',
   });
@@ -57,10 +57,10 @@ export async function signInAs(page: Page, baseUrl: string, email: string, passw
 }
 
 /** A browser and a demo server for one test file: both start before its tests and close after them. */
-export function browserAndServerForFile(): { readonly browser: Browser; readonly app: E2eServer } {
+export function browserAndServerForFile(env: Record<string, string> = {}): { readonly browser: Browser; readonly app: E2eServer } {
   const held: { browser?: Browser; app?: E2eServer } = {};
   beforeAll(async () => {
-    [held.browser, held.app] = await Promise.all([launchBrowser(), startE2eServer()]);
+    [held.browser, held.app] = await Promise.all([launchBrowser(), startE2eServer(env)]);
   });
   afterAll(async () => {
     await held.browser?.close();
