@@ -7,7 +7,7 @@
  * request at the scenario picker. Ends with a one-time token for the session
  * handoff (handoff.ts).
  */
-import { and, desc, eq, sql } from 'drizzle-orm';
+import { and, desc, eq, lt, sql } from 'drizzle-orm';
 import type { Db, DbOrTx } from '../db/client.ts';
 import { assignments, attempts, classes, classInstructors, enrollments } from '../db/schema.ts';
 import { accountOf, markLaunched } from './accounts.ts';
@@ -196,6 +196,7 @@ export async function provisionLaunch(db: Db, v: VerifiedLaunch, now = new Date(
     if (v.messageType === MESSAGE.deepLinkingRequest) {
       const settings = c[CLAIM.deepLinkingSettings]!;
       const id = randomToken(24);
+      await tx.delete(ltiDeepLinkRequests).where(lt(ltiDeepLinkRequests.expiresAt, new Date(now.getTime() - DEEP_LINK_TTL_MS)));
       await tx.insert(ltiDeepLinkRequests).values({
         id,
         userId: account.userId,

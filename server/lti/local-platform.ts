@@ -364,6 +364,21 @@ export async function startLocalPlatform(opts: LocalPlatformOptions): Promise<Lo
     res.type('application/vnd.ims.lis.v2.lineitemcontainer+json').send(JSON.stringify([...lineItems.values()].filter((li) => !link || li.resourceLinkId === link).map(lineItemJson)));
   });
 
+  app.post('/courses/:course/lineitems', (req, res) => {
+    if (!bearer(req, res, SCOPE.lineItem)) return;
+    const b = req.body as Partial<{ label: string; scoreMaximum: number; resourceLinkId: string; resourceId: string; tag: string }>;
+    if (typeof b.label !== 'string' || !b.label || typeof b.scoreMaximum !== 'number' || b.scoreMaximum <= 0) {
+      record('refused', { at: 'lineitems', error: 'label and a positive scoreMaximum are required' });
+      res.status(400).json({ error: 'label and a positive scoreMaximum are required' });
+      return;
+    }
+    const li = addLineItem({ label: b.label, scoreMaximum: b.scoreMaximum, resourceLinkId: b.resourceLinkId ?? null, resourceId: b.resourceId ?? null, tag: b.tag ?? null });
+    const link = b.resourceLinkId ? links.get(b.resourceLinkId) : undefined;
+    if (link && !link.lineItemId) link.lineItemId = li.id;
+    record('lineitems', { created: lineItemJson(li) });
+    res.status(201).type(MEDIA.lineItem).send(JSON.stringify(lineItemJson(li)));
+  });
+
   app.post('/lineitems/:id/scores', (req, res) => {
     if (!bearer(req, res, SCOPE.score)) return;
     const li = lineItems.get(String(req.params.id));

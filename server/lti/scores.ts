@@ -15,7 +15,7 @@
  * userId, scoreGiven, scoreMaximum, activityProgress, gradingProgress,
  * timestamp, comment).
  */
-import { desc, eq, inArray, sql } from 'drizzle-orm';
+import { and, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { AttemptResult } from '../../shared/api/attempts.ts';
 import type { GradeSync, GradeSyncRow } from '../../shared/api/lti.ts';
 import { diagnosisLabel } from '../../shared/scenario.ts';
@@ -96,6 +96,56 @@ async function insertScores(db: DbOrTx, where: ReturnType<typeof sql>): Promise<
     await db.update(ltiScoreOutbox).set({ payload }).where(eq(ltiScoreOutbox.id, row.id));
   }
   return rows.length;
+}
+
+/**
+ * A resource link placed on the platform by hand (not by deep linking) may
+ * come with no line item, only the line items address: once a student of it
+ * has a graded attempt, Loadline finds the link's line item there (by
+ * resource link id) or makes one, and keeps its address; the sweep then
+ * queues the scores. AGS 2.0 §3.2 (line item service: GET with
+ * resource_link_id, POST application/vnd.ims.lis.v2.lineitem+json).
+ */
+export async function resolveLineItems(ctx: Pick<AppContext, 'db' | 'log'>): Promise<number> {
+  const { rows } = await ctx.db.execute<{ platform_id: number; resource_link_id: string; lineitems_url: string; assignment_id: number; title: string }>(sql`
+    select l.platform_id, l.resource_link_id, l.lineitems_url, l.assignment_id, asg.title
+      from lti_resource_links l
+      join assignments asg on asg.id = l.assignment_id
+     where l.lineitem_url is null and l.lineitems_url is not null and l.ags_scopes ? ${SCOPE.lineItem}
+       and exists (select 1 from attempts a join lti_accounts acc on acc.user_id = a.user_id and acc.platform_id = l.platform_id
+                    where a.assignment_id = l.assignment_id and a.status = 'submitted' and a.grade is not null)
+     limit 20`);
+  let resolved = 0;
+  for (const r of rows) {
+    try {
+      const platform = await platformById(ctx.db, r.platform_id);
+      if (!platform) continue;
+      const token = await serviceToken(ctx.db, platform, [SCOPE.lineItem]);
+      const list = new URL(r.lineitems_url);
+      list.searchParams.set('resource_link_id', r.resource_link_id);
+      const found = (await (await callService(list.toString(), { headers: { Authorization: `Bearer ${token}`, Accept: 'application/vnd.ims.lis.v2.lineitemcontainer+json' } }, 'Line items')).json()) as { id?: string }[];
+      let url = Array.isArray(found) ? found.find((li) => typeof li.id === 'string')?.id : undefined;
+      if (!url) {
+        const made = await callService(
+          r.lineitems_url,
+          {
+            method: 'POST',
+            headers: { Authorization: `Bearer ${token}`, 'Content-Type': MEDIA.lineItem, Accept: MEDIA.lineItem },
+            body: JSON.stringify({ label: r.title, scoreMaximum: 100, resourceLinkId: r.resource_link_id, resourceId: `loadline-assignment-${r.assignment_id}`, tag: 'loadline-grade' }),
+          },
+          'Line item',
+        );
+        url = ((await made.json()) as { id?: string }).id;
+      }
+      if (!url) throw new ServiceError('Line item: the platform gave no line item address', null, false);
+      await ctx.db.update(ltiResourceLinks).set({ lineitemUrl: url, updatedAt: new Date() }).where(and(eq(ltiResourceLinks.platformId, r.platform_id), eq(ltiResourceLinks.resourceLinkId, r.resource_link_id)));
+      resolved++;
+    } catch (err) {
+      ctx.log('warn', `lti line item of link ${r.resource_link_id} not found or made: ${err instanceof Error ? err.message : String(err)}`, { platformId: r.platform_id });
+    }
+  }
+  if (resolved) await queueMissedScores(ctx.db);
+  return resolved;
 }
 
 /** Attempts graded in the last week whose score was never queued (a process that stopped between storing and queuing). */
@@ -209,8 +259,11 @@ export function startScoreWorker(ctx: Pick<AppContext, 'db' | 'log'>, opts: { po
 
   const round = async () => {
     try {
-      // Now and then (and first), pick up scores a stopped process never queued.
-      if (rounds++ % 60 === 0) await queueMissedScores(ctx.db);
+      // Now and then (and first), pick up scores a stopped process never queued, and line items to find or make.
+      if (rounds++ % 12 === 0) {
+        await queueMissedScores(ctx.db);
+        await resolveLineItems(ctx);
+      }
       while (!stopped && (await sendDueScores(ctx, opts)) > 0) {
         // More may be due: go on until a round sends nothing.
       }

@@ -10,7 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
 import { assignments, classes, classInstructors, enrollments, scenarios } from '../../server/db/schema.ts';
 import { ROLE } from '../../server/lti/local-platform.ts';
-import { sendDueScores } from '../../server/lti/scores.ts';
+import { resolveLineItems, sendDueScores } from '../../server/lti/scores.ts';
 import { ltiContexts, ltiMemberships, ltiScoreOutbox } from '../../server/lti/tables.ts';
 import { launch, whoIs, type FormClient, type LtiHarness, startLtiHarness } from './lti-support.ts';
 import { signIn } from './support.ts';
@@ -162,6 +162,26 @@ describe('grades back to the platform', () => {
     expect((await api(client, 'POST', `/api/lti/scores/${sent!.id}/resend`)).status).toBe(403);
   });
 
+  it('finds or makes the line item of a link placed by hand without one, then posts the score there', async () => {
+    const manual = h.platform.addLink({ id: 'qm-link-manual', title: 'Loadline (placed by hand)', custom: { loadline_assignment_id: String(assignmentId) } });
+    expect(manual.lineItemId).toBeNull();
+    // Juno launches the hand-placed link, which names the deep-linked assignment.
+    const { client, landed } = await launch(h, { user: 'qm-learner-juno', link: manual.id });
+    expect(landed).toBe(`/bench/new?assignmentId=${assignmentId}`);
+    const started = await api(client, 'POST', '/api/attempts', { assignmentId });
+    const attemptId = (started.body.attempt as { id: number }).id;
+    expect((await api(client, 'POST', `/api/attempts/${attemptId}/submit`, submitBody)).status).toBe(200);
+    // The deep-linked link's line item gets Juno's score too (she is linked to the assignment through it as well).
+    await send();
+    expect(await resolveLineItems(h.t.ctx)).toBe(1);
+    expect(manual.lineItemId).not.toBeNull();
+    expect(h.platform.received.some((r) => r.kind === 'lineitems' && (r.detail as { created?: unknown }).created)).toBe(true);
+    // Both links open the same assignment, so the new line item gets Wren's grade as well as Juno's.
+    expect(await send()).toBe(2);
+    const book = h.platform.gradebook().filter((g) => g.lineItemId === manual.lineItemId);
+    expect(book.map((g) => g.userId).sort()).toEqual(['qm-learner-juno', 'qm-learner-wren']);
+  });
+
   it('gives up on a score the platform refuses outright and lets the instructor resend it', async () => {
     const [row] = await h.t.ctx.db.select().from(ltiScoreOutbox).limit(1);
     // A line item the platform does not have: 404, not worth retrying.
@@ -180,11 +200,11 @@ describe('the roster from the platform', () => {
     const sync = await api(instructor, 'POST', `/api/lti/classes/${classId}/roster-sync`);
     expect(sync.status, JSON.stringify(sync.body)).toBe(200);
     const added = (sync.body.added as { name: string }[]).map((a) => a.name).sort();
-    // Wren, Ilse and Osric launched before; Milo and Juno are new here. The list came in pages of two (Link rel="next").
-    expect(added).toEqual(['Juno Castellaw', 'Milo Ferrant']);
+    // Wren, Juno, Ilse and Osric launched before; Milo is new here. The list came in pages of two (Link rel="next").
+    expect(added).toEqual(['Milo Ferrant']);
     expect(h.platform.received.filter((r) => r.kind === 'memberships').length).toBeGreaterThanOrEqual(3);
     const link = await api(instructor, 'GET', `/api/lti/classes/${classId}`);
-    expect(link.body).toMatchObject({ linked: true, canSync: true, lastSync: { added: 2, gone: 0 } });
+    expect(link.body).toMatchObject({ linked: true, canSync: true, lastSync: { added: 1, gone: 0 } });
 
     // Milo leaves the course, Juno changes her name.
     const milo = h.platform.people.find((p) => p.id === 'qm-learner-milo')!;
