@@ -42,7 +42,7 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
           connectSrc: ["'self'"],
           objectSrc: ["'none'"],
           baseUri: ["'self'"],
-          formAction: ["'self'", formTargets],
+          formAction: [formTargets],
           frameAncestors: [frameAncestors],
         },
       },

@@ -82,8 +82,8 @@ export const frameAncestors = (_req: unknown, res: unknown): string => {
   return origins.length ? ["'self'", ...origins].join(' ') : "'none'";
 };
 
-/** Extra form-action sources: the registered platforms. */
-export const formTargets = (_req: unknown, res: unknown): string => originsFor(res).join(' ');
+/** The form-action value: Loadline itself and the registered platforms. */
+export const formTargets = (_req: unknown, res: unknown): string => ["'self'", ...originsFor(res)].join(' ');
 
 /** Drops X-Frame-Options where platforms may frame Loadline: frame-ancestors says who may (and outranks it in browsers). */
 export const allowPlatformFrames: RequestHandler = (_req, res, next) => {
