@@ -18,3 +18,23 @@ export class LaunchRefusal extends Error {
 
 export const refuse = (status: number, title: string, message: string, reason: string, detail: Record<string, unknown> = {}, hint?: string) =>
   new LaunchRefusal(status, title, message, reason, hint, detail);
+
+/** The request field a refusal is about, for an answer in JSON. */
+export function fieldOf(err: LaunchRefusal): string {
+  if (typeof err.detail.field === 'string' && err.detail.field) return err.detail.field;
+  switch (err.reason) {
+    case 'handoff-spent':
+      return 'token';
+    case 'unknown-state':
+    case 'state-expired':
+    case 'replayed-nonce':
+      return 'state';
+    case 'unknown-issuer':
+    case 'ambiguous-issuer':
+      return 'iss';
+    case 'foreign-target':
+      return 'target_link_uri';
+    default:
+      return 'id_token';
+  }
+}

@@ -34,7 +34,7 @@ import { provisionLaunch } from './launch.ts';
 import { startLogin } from './login.ts';
 import { openInWindowPage, PAGE_CSS, refusalPage } from './pages.ts';
 import { createPlatform, deletePlatform, listPlatforms, updatePlatform } from './platforms.ts';
-import { LaunchRefusal, refuse } from './refusal.ts';
+import { fieldOf, LaunchRefusal, refuse } from './refusal.ts';
 import { classLinkOf, syncRoster } from './roster-sync.ts';
 import { verifyLaunch } from './verify.ts';
 import { toolConfig, toolBase } from './tool-config.ts';
@@ -48,12 +48,17 @@ function noStore(res: Response): void {
   res.setHeader('Cache-Control', 'no-store');
 }
 
-/** A refused launch: its page, and a log line with the reason and what it concerns. */
+/**
+ * A refused launch: a log line with the reason and what it concerns, and for
+ * a browser a page saying what went wrong; a client that does not ask for
+ * HTML gets the usual JSON error, naming the field.
+ */
 function answerRefusal(ctx: AppContext, req: Request, res: Response, err: unknown): void {
   if (!(err instanceof LaunchRefusal)) throw err;
   ctx.log('warn', `lti ${req.path.replace(/^\//, '')} refused: ${err.reason}`, { reason: err.reason, status: err.status, message: err.message, ...err.detail });
   noStore(res);
-  res.status(err.status).type('html').send(refusalPage(err.title, err.message, err.hint));
+  if ((req.get('accept') ?? '').includes('text/html')) res.status(err.status).type('html').send(refusalPage(err.title, err.message, err.hint));
+  else res.status(err.status).json({ error: { message: `${err.title}: ${err.message}`, field: fieldOf(err) } });
 }
 
 const regenerate = (req: Request) => new Promise<void>((resolve, reject) => req.session.regenerate((err) => (err ? reject(err) : resolve())));

@@ -11,7 +11,7 @@
  */
 import { createRemoteJWKSet, errors as joseErrors, jwtVerify, type JWTPayload } from 'jose';
 import { z } from 'zod';
-import type { Db, DbOrTx } from '../db/client.ts';
+import type { Db } from '../db/client.ts';
 import { CLAIM, launchClaimsSchema, MESSAGE, type LaunchClaims } from './claims.ts';
 import { consumeState, findState } from './login.ts';
 import { hasDeployment, platformById, type PlatformRow } from './platforms.ts';
@@ -130,7 +130,7 @@ export async function verifyLaunch(db: Db, form: unknown, now = new Date()): Pro
   if (typeof deploymentId !== 'string' || deploymentId === '') {
     throw refuse(400, 'This launch names no deployment', 'The launch token has no deployment id.', 'missing-deployment', detail);
   }
-  if (!(await hasDeployment(db as DbOrTx, platform.id, deploymentId))) {
+  if (!(await hasDeployment(db, platform.id, deploymentId))) {
     throw refuse(403, 'This deployment is not registered', `Deployment “${deploymentId}” of this platform is not registered with Loadline; the program admin adds it on the platform's registration.`, 'unknown-deployment', {
       ...detail,
       deploymentId,

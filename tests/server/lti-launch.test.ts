@@ -11,7 +11,9 @@ import { demoFirst } from '../../server/db/demo-people.ts';
 import { CLAIM } from '../../server/lti/claims.ts';
 import { ltiAccounts, ltiContexts } from '../../server/lti/tables.ts';
 import { FormClient, launch, startLogin, startLtiHarness, whoIs, type LtiHarness } from './lti-support.ts';
-import { signIn } from './support.ts';
+import supertest from 'supertest';
+import { createHandoff } from '../../server/lti/handoff.ts';
+import { signIn, startTestApp } from './support.ts';
 
 let h: LtiHarness;
 
@@ -258,12 +260,45 @@ describe('refusals: a clear page and a log line each', () => {
     expect(await noHint.text()).toMatch(/login_hint/);
   });
 
+  it('answers a client that does not ask for a page in JSON, naming the field', async () => {
+    const res = await fetch(`${h.tool.url}/lti/launch`, { method: 'POST', headers: { 'Content-Type': 'application/x-www-form-urlencoded', Accept: 'application/json' }, body: 'id_token=x.y.z&state=made-up' });
+    expect(res.status).toBe(400);
+    expect(await res.json()).toEqual({ error: { message: expect.stringMatching(/not one Loadline started/), field: 'state' } });
+  });
+
   it('signs nobody in on a refused launch', async () => {
     const r = await postLaunch(() => undefined, { stray: true, user: 'qm-learner-juno' });
     expect(r.status).toBe(401);
     expect(await whoIs(h, r.client)).toBeNull();
     const made = await h.t.ctx.db.select().from(ltiAccounts).where(and(eq(ltiAccounts.platformId, h.platformId), eq(ltiAccounts.subject, 'qm-learner-juno')));
     expect(made).toHaveLength(0);
+  });
+});
+
+describe('the session cookie of a launch', () => {
+  it('is SameSite=None; Secure; Partitioned inside a frame over TLS, and the usual Lax cookie in a window', async () => {
+    const t = await startTestApp({ TRUST_PROXY: '1' });
+    try {
+      const [student] = await t.ctx.db.select({ id: users.id }).from(users).where(eq(users.email, demoFirst('student').email));
+      const framed = await supertest(t.app)
+        .get(`/lti/enter?token=${await createHandoff(t.ctx.db, student!.id, '/bench')}`)
+        .set('X-Forwarded-Proto', 'https')
+        .set('Sec-Fetch-Dest', 'iframe');
+      expect(framed.status).toBe(303);
+      const framedCookie = (framed.headers['set-cookie'] as unknown as string[]).find((c) => c.startsWith('loadline.sid='))!;
+      expect(framedCookie).toMatch(/SameSite=None/i);
+      expect(framedCookie).toMatch(/; Secure/i);
+      expect(framedCookie).toMatch(/; Partitioned/i);
+      const window = await supertest(t.app)
+        .get(`/lti/enter?token=${await createHandoff(t.ctx.db, student!.id, '/bench')}`)
+        .set('X-Forwarded-Proto', 'https')
+        .set('Sec-Fetch-Dest', 'document');
+      const windowCookie = (window.headers['set-cookie'] as unknown as string[]).find((c) => c.startsWith('loadline.sid='))!;
+      expect(windowCookie).toMatch(/SameSite=Lax/i);
+      expect(windowCookie).not.toMatch(/Partitioned/i);
+    } finally {
+      await t.close();
+    }
   });
 });
 

@@ -20,7 +20,8 @@ export class FormClient {
   }
 
   async send(url: string, init: { method?: string; form?: Record<string, string>; headers?: Record<string, string> } = {}): Promise<Response> {
-    const headers: Record<string, string> = { ...init.headers };
+    // As a browser navigates: it asks for a page.
+    const headers: Record<string, string> = { Accept: 'text/html,application/xhtml+xml,*/*;q=0.8', ...init.headers };
     if (this.cookies.size) headers.Cookie = this.cookieHeader();
     let body: string | undefined;
     if (init.form) {
