@@ -1,6 +1,7 @@
 /** The pure parts of the learning-platform link: role mapping, service addresses, paging, back-off and the grade's comment. */
 import { describe, expect, it } from 'vitest';
 import { displayName } from '../../server/lti/accounts.ts';
+import { startLocalPlatform } from '../../server/lti/local-platform.ts';
 import { mappedRole } from '../../server/lti/claims.ts';
 import { isOwnTarget } from '../../server/lti/login.ts';
 import { nextLink } from '../../server/lti/roster-sync.ts';
@@ -67,5 +68,17 @@ describe('names', () => {
     expect(displayName({ subject: 's1', givenName: 'Milo', familyName: 'Ferrant' })).toBe('Milo Ferrant');
     expect(displayName({ subject: 's1', name: 'Ju\u0007no' })).toBe('Juno');
     expect(displayName({ subject: 's1' })).toMatch(/^Course member [0-9a-f]{6}$/);
+  });
+});
+
+describe('the local platform', () => {
+  it('refuses to start in production', async () => {
+    const was = process.env.NODE_ENV;
+    process.env.NODE_ENV = 'production';
+    try {
+      await expect(startLocalPlatform({ toolUrl: 'http://127.0.0.1:1' })).rejects.toThrow(/never runs in production/);
+    } finally {
+      process.env.NODE_ENV = was;
+    }
   });
 });
