@@ -2,7 +2,7 @@ import { defineConfig } from 'drizzle-kit';
 
 export default defineConfig({
   dialect: 'postgresql',
-  schema: './server/db/schema.ts',
+  schema: ['./server/db/schema.ts', './server/lti/tables.ts'],
   out: './server/db/migrations',
   dbCredentials: { url: process.env.DATABASE_URL ?? 'postgres://loadline@127.0.0.1:54329/loadline' },
 });

@@ -31,6 +31,11 @@ export default tseslint.config(
             { target: './sim', from: ['./src', './server', './shared', './tests', './scripts'], message: 'sim/ imports nothing of ours but itself.' },
             { target: './src', from: './server', message: 'The client never imports server code.' },
             { target: './shared', from: ['./src', './server'], message: 'shared/ is imported by client and server, never the reverse.' },
+            {
+              target: './server',
+              from: './server/lti/local-platform.ts',
+              message: 'The local LTI platform is for development and tests: scripts/ and tests/ start it, the server never imports it.',
+            },
           ],
         },
       ],
@@ -54,6 +59,16 @@ export default tseslint.config(
       ],
       'no-restricted-globals': ['error', 'window', 'document', 'process', 'Date', 'performance', 'setTimeout', 'setInterval', 'requestAnimationFrame'],
       'no-restricted-properties': ['error', { object: 'Math', property: 'random', message: 'Use the seeded generator in the state.' }],
+    },
+  },
+  {
+    // A domain's route file parses, checks access, calls its domain and answers: its queries live in the domain.
+    files: ['server/lti/routes.ts'],
+    rules: {
+      'no-restricted-imports': [
+        'error',
+        { patterns: [{ group: ['drizzle-orm', 'drizzle-orm/*', '**/db/schema.ts', '**/tables.ts'], message: 'Route files make no queries: call the domain.' }] },
+      ],
     },
   },
   {

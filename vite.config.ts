@@ -14,6 +14,10 @@ export default defineConfig({
   },
   server: {
     port: 5173,
-    proxy: { '/api': { target: `http://127.0.0.1:${apiPort}`, changeOrigin: false } },
+    // /lti: a learning platform's launches and the public key set (server/lti).
+    proxy: {
+      '/api': { target: `http://127.0.0.1:${apiPort}`, changeOrigin: false },
+      '/lti': { target: `http://127.0.0.1:${apiPort}`, changeOrigin: false },
+    },
   },
 });

@@ -7,6 +7,7 @@ import { loadUser } from './auth/guard.ts';
 import { sessionMiddleware } from './auth/session.ts';
 import type { AppContext } from './context.ts';
 import { apiNotFound, errorHandler } from './http/errors.ts';
+import { allowPlatformFrames, formTargets, frameAncestors, framePolicy } from './lti/frame-policy.ts';
 import type { RouteSpec } from './http/route-table.ts';
 import { markReceived } from './http/server-timing.ts';
 import { allRouteGroups } from './routes/all.ts';
@@ -26,6 +27,8 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
   app.set('etag', false);
   if (ctx.env.TRUST_PROXY) app.set('trust proxy', 1);
 
+  // Registered learning platforms may frame Loadline and receive its deep-linking forms (server/lti/frame-policy.ts).
+  app.use(framePolicy(ctx));
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -39,19 +42,21 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
           connectSrc: ["'self'"],
           objectSrc: ["'none'"],
           baseUri: ["'self'"],
-          formAction: ["'self'"],
-          frameAncestors: ["'none'"],
+          formAction: [formTargets],
+          frameAncestors: [frameAncestors],
         },
       },
       crossOriginEmbedderPolicy: false,
     }),
+    allowPlatformFrames,
   );
 
+  const session = sessionMiddleware({ pool: ctx.pool, secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY, bus: sessionBusFor(ctx) });
   app.use(
     '/api',
     markReceived,
     express.json({ limit: '256kb' }),
-    sessionMiddleware({ pool: ctx.pool, secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY, bus: sessionBusFor(ctx) }),
+    session,
     csrf({ secret: ctx.env.SESSION_SECRET, secure: ctx.env.TRUST_PROXY }).protect,
     loadUser(ctx.db),
     (_req, res, next) => {
@@ -59,6 +64,10 @@ export function createApp(ctx: AppContext, opts: { staticDir?: string } = {}): C
       next();
     },
   );
+
+  // A launch from a learning platform is handed to a session under /lti (server/lti/routes.ts): forms posted by
+  // the platform's site, so no CSRF token; the id_token's signature, state and nonce stand in for it.
+  app.use('/lti', session);
 
   const routes: RouteSpec[] = [];
   for (const group of allRouteGroups(ctx)) {

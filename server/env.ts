@@ -85,6 +85,13 @@ const envSchema = z.object({
    * notifications may have missed (one light query), in seconds.
    */
   BOARD_RECHECK_SECONDS: z.coerce.number().min(0.2).max(3600).default(30),
+  /**
+   * Grades for learning platforms (server/lti/scores.ts): how often each
+   * process looks for scores to send, and the first wait after a failed send
+   * (doubled after each further failure, at most an hour), in milliseconds.
+   */
+  LTI_OUTBOX_POLL_MS: z.coerce.number().int().min(50).max(600_000).default(5_000),
+  LTI_RETRY_BASE_MS: z.coerce.number().int().min(10).max(3_600_000).default(30_000),
 });
 
 /**

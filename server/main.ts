@@ -15,6 +15,7 @@ import { backgroundTasks } from './services/background.ts';
 import { openSharedGradingPool } from './services/grading-pool.ts';
 import { closeLiveBus } from './services/live-bus.ts';
 import { smtpMailer } from './services/mailer.ts';
+import { startScoreWorker } from './lti/scores.ts';
 
 export interface RunningServer {
   url: string;
@@ -76,6 +77,8 @@ export async function startServer(opts: { env?: Env; staticDir?: string; logLeve
   // sees a reset). Headers must be allowed a little longer still.
   server.keepAliveTimeout = KEEP_ALIVE_MS;
   server.headersTimeout = KEEP_ALIVE_MS + 1000;
+  // Grades waiting for learning platforms go out from every process (server/lti/scores.ts).
+  const scores = startScoreWorker(ctx, { pollMs: env.LTI_OUTBOX_POLL_MS, baseMs: env.LTI_RETRY_BASE_MS });
   const port = (server.address() as AddressInfo).port;
   return {
     url: `http://${env.HOST}:${port}`,
@@ -87,6 +90,7 @@ export async function startServer(opts: { env?: Env; staticDir?: string; logLeve
         server.close(() => resolve());
         server.closeAllConnections();
       });
+      await scores.stop();
       await grading.release();
       await ctx.closeDb();
     },

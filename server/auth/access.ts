@@ -9,6 +9,7 @@ import type { SessionUser } from '../../shared/api/auth.ts';
 import type { DbOrTx } from '../db/client.ts';
 import { assignmentPool, assignments, attempts, classes, classInstructors, enrollments, scenarios, scenarioVersions } from '../db/schema.ts';
 import { forbidden, HttpError, notFound } from '../http/errors.ts';
+import { ltiDeepLinkRequests } from '../lti/tables.ts';
 
 /** Whether the user teaches the class (admins teach every class). */
 export async function teachesClass(db: DbOrTx, user: SessionUser, classId: number): Promise<boolean> {
@@ -394,4 +395,18 @@ export async function requireStudentReader(db: DbOrTx, user: SessionUser, studen
 /** A sign-off is withdrawn by the instructor who made it, or by an admin. */
 export function canWithdrawSignOff(user: SessionUser, signOff: { signedBy: number | null }): boolean {
   return user.role === 'admin' || (user.role === 'instructor' && signOff.signedBy === user.id);
+}
+
+/**
+ * A deep-linking request from a learning platform (server/lti): only the
+ * instructor whose launch made it may answer it; anyone else is told it does
+ * not exist. Returns its class and platform.
+ */
+export async function requireDeepLinkOwner(db: DbOrTx, user: SessionUser, requestId: string): Promise<{ classId: number; platformId: number }> {
+  const [row] = await db
+    .select({ userId: ltiDeepLinkRequests.userId, classId: ltiDeepLinkRequests.classId, platformId: ltiDeepLinkRequests.platformId })
+    .from(ltiDeepLinkRequests)
+    .where(eq(ltiDeepLinkRequests.id, requestId));
+  if (!row || row.userId !== user.id) throw notFound('No such request from your learning platform');
+  return { classId: row.classId, platformId: row.platformId };
 }

@@ -12,6 +12,7 @@ import { classRoutes } from './classes.ts';
 import { rosterRoutes } from './roster.ts';
 import { assignmentRoutes } from './assignments.ts';
 import { attemptRoutes } from './attempts.ts';
+import { ltiApiRoutes, ltiBrowserRoutes } from '../lti/routes.ts';
 
 export function allRouteGroups(ctx: AppContext): RouteGroup[] {
   return [
@@ -27,5 +28,7 @@ export function allRouteGroups(ctx: AppContext): RouteGroup[] {
     rosterRoutes(ctx),
     assignmentRoutes(ctx),
     attemptRoutes(ctx),
+    ltiApiRoutes(ctx),
+    ltiBrowserRoutes(ctx),
   ];
 }

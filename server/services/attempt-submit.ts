@@ -27,6 +27,7 @@ import { sql } from 'drizzle-orm';
 import type { AttemptResult, RecordedReading, SubmitInput } from '../../shared/api/attempts.ts';
 import type { Db } from '../db/client.ts';
 import { MAX_READINGS } from '../../shared/api/attempts.ts';
+import { queueScoresForAttempt } from '../lti/scores.ts';
 import { badRequest, conflict, notFound } from '../http/errors.ts';
 import type { ServerTiming } from '../http/server-timing.ts';
 import { loadAttemptShowing, resultShowing, type AttemptRow, type AttemptShowing } from './attempt-store.ts';
@@ -82,7 +83,12 @@ export async function submitAttempt(db: Db, attemptId: number, input: SubmitInpu
   const grade = opts.grade ?? gradeSubmission;
   for (let tries = 1; ; tries++) {
     const stored = await tryStore(db, attemptId, input, grade, opts.timing);
-    if (stored) return stored;
+    if (stored) {
+      // A learning platform that launched this assignment gets the grade (server/lti/scores.ts); should this
+      // fail, the score worker's sweep queues it later, so the submission's answer does not wait on it.
+      await queueScoresForAttempt(db, attemptId).catch(() => 0);
+      return stored;
+    }
     if (tries >= SUBMIT_TRIES) throw conflict('Events are still arriving for this attempt; submit again once they are sent', 'events');
   }
 }

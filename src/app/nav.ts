@@ -22,6 +22,7 @@ export const NAV: Record<Role, NavItem[]> = {
     { label: 'Users', to: paths.adminUsers.href() },
     { label: 'Classes', to: paths.classes.href() },
     { label: 'Scenarios', to: paths.scenarios.href() },
+    { label: 'Platforms', to: paths.adminPlatforms.href() },
     { label: 'Outbox', to: paths.adminOutbox.href() },
   ],
 };

@@ -31,6 +31,7 @@ export const router = createBrowserRouter([
         children: [
           { path: paths.adminUsers.pattern, element: <AdminUsersPage /> },
           { path: paths.adminOutbox.pattern, element: <AdminOutboxPage /> },
+          { path: paths.adminPlatforms.pattern, lazy: () => import('./routes/admin-lti.tsx') },
         ],
       },
       { path: '*', element: <NotFoundPage /> },

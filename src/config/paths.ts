@@ -24,4 +24,6 @@ export const paths = {
   compare: { pattern: '/assignments/:assignmentId/compare', href: (assignmentId: number) => `/assignments/${assignmentId}/compare` },
   adminUsers: { pattern: '/admin/users', href: () => '/admin/users' },
   adminOutbox: { pattern: '/admin/outbox', href: () => '/admin/outbox' },
+  adminPlatforms: { pattern: '/admin/platforms', href: () => '/admin/platforms' },
+  deepLink: { pattern: '/deep-link/:requestId', href: (requestId: string) => `/deep-link/${requestId}` },
 } as const;

@@ -8,7 +8,7 @@ const e2e = browserAndServerForFile();
 const expectedNav = {
   student: ['Bench', 'My attempts', 'Progress'],
   instructor: ['Scenarios', 'Classes'],
-  admin: ['Users', 'Classes', 'Scenarios', 'Outbox'],
+  admin: ['Users', 'Classes', 'Scenarios', 'Platforms', 'Outbox'],
 } as const;
 
 const startPageTitle = { student: 'Bench', instructor: 'Scenario library', admin: 'Users' } as const;

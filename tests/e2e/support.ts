@@ -19,13 +19,21 @@ export interface E2eServer {
 }
 
 /** The built client and the API on a fresh copy of the demo database. */
-export async function startE2eServer(): Promise<E2eServer> {
+export async function startE2eServer(env: Record<string, string> = {}): Promise<E2eServer> {
   const databaseUrl = await createTestDatabase();
   const mailDb = connect(databaseUrl, 2);
   const smtp: SmtpFake = await startSmtpFake(mailDb.db, 0);
   const server = await startServer({
     // Production, as `npm start` runs it: a secret of its own, and a public address (the browser tests open no mailed link).
-    env: readEnv({ NODE_ENV: 'production', DATABASE_URL: databaseUrl, PORT: '0', SMTP_PORT: String(smtp.port), PUBLIC_URL: 'http://localhost', SESSION_SECRET: randomBytes(32).toString('hex') }),
+    env: readEnv({
+      NODE_ENV: 'production',
+      DATABASE_URL: databaseUrl,
+      PORT: '0',
+      SMTP_PORT: String(smtp.port),
+      PUBLIC_URL: 'http://localhost',
+      SESSION_SECRET: randomBytes(32).toString('hex'),
+      ...env,
+    }),
     staticDir: distDir,
     logLevel: 'silent',
   });
@@ -59,10 +67,10 @@ export async function signInAs(page: Page, baseUrl: string, email: string, passw
 }
 
 /** A browser and a demo server for one test file: both start before its tests and close after them. */
-export function browserAndServerForFile(): { readonly browser: Browser; readonly app: E2eServer } {
+export function browserAndServerForFile(env: Record<string, string> = {}): { readonly browser: Browser; readonly app: E2eServer } {
   const held: { browser?: Browser; app?: E2eServer } = {};
   beforeAll(async () => {
-    [held.browser, held.app] = await Promise.all([launchBrowser(), startE2eServer()]);
+    [held.browser, held.app] = await Promise.all([launchBrowser(), startE2eServer(env)]);
   });
   afterAll(async () => {
     await held.browser?.close();

@@ -46,4 +46,12 @@ describe('the layer boundaries', () => {
     expect(await rulesBroken('sim/boundary-probe.ts', "import type { Fault } from './faults.ts';\nexport type Probe = Fault;\n")).toEqual([]);
     expect(await rulesBroken('shared/boundary-probe.ts', "import type { Fault } from '../sim/faults.ts';\nexport type Probe = Fault;\n")).toEqual([]);
   });
+
+  it('keep the local LTI platform out of the server, and queries out of the LTI route file', async () => {
+    const platform = await rulesBroken('server/lti/boundary-probe.ts', "import { startLocalPlatform } from './local-platform.ts';\nexport const probe = startLocalPlatform;\n");
+    expect(platform).toContain('import-x/no-restricted-paths');
+    const routes = await rulesBroken('server/lti/routes.ts', "import { eq } from 'drizzle-orm';\nexport const probe = eq;\n");
+    expect(routes).toContain('no-restricted-imports');
+    expect(await rulesBroken('tests/server/boundary-probe.ts', "import { startLocalPlatform } from '../../server/lti/local-platform.ts';\nexport const probe = startLocalPlatform;\n")).toEqual([]);
+  });
 });

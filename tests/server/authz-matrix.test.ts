@@ -15,6 +15,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
 import { hashPassword } from '../../server/auth/passwords.ts';
 import { assignments, classes, classInstructors, enrollments, signOffs, users } from '../../server/db/schema.ts';
+import { ltiDeepLinkRequests, ltiPlatforms, ltiScoreOutbox } from '../../server/lti/tables.ts';
 import type { Method } from '../../server/http/route-table.ts';
 import { blankScenario } from '../../shared/scenario.ts';
 import { listen, makeAttempt, makeClass, makeSubmitted, userId, type ClassFixture } from './live-fixtures.ts';
@@ -54,6 +55,11 @@ const OWNER_ONLY: Row = { anonymous: 401, student: '2xx', otherStudent: 403, ins
 const ANY_STUDENT: Row = { anonymous: 401, student: '2xx', otherStudent: '2xx', instructor: 403, otherInstructor: 403, sharingInstructor: 403, admin: 403 };
 /** An instructor's private scenario: another instructor is told it does not exist. */
 const PRIVATE_SCENARIO: Row = { anonymous: 401, student: 403, otherStudent: 403, instructor: '2xx', otherInstructor: 404, sharingInstructor: 404, admin: '2xx' };
+
+/** A deep-linking request made by the first instructor's launch. */
+const DEEP_LINK_OWNER: Row = { anonymous: 401, student: 403, otherStudent: 403, instructor: '2xx', otherInstructor: 404, sharingInstructor: 404, admin: 404 };
+/** A public route called without what it needs: a 400 page for everyone. */
+const EVERYONE_REFUSED: Row = { anonymous: 400, student: 400, otherStudent: 400, instructor: 400, otherInstructor: 400, sharingInstructor: 400, admin: 400 };
 
 /** The expected answer of every route for every actor. */
 const EXPECTED: Record<string, Row> = {
@@ -126,6 +132,30 @@ const EXPECTED: Record<string, Row> = {
   // The sign-off's author (the class's instructor) or an admin; an instructor who also teaches the pupil cannot withdraw it.
   'DELETE /api/sign-offs/:id': CLASS_STAFF,
   'GET /api/sign-offs/classes/:classId/sign-offs.csv': CLASS_STAFF,
+
+  'GET /api/lti/tool': ADMIN_ONLY,
+  'POST /api/lti/keys/rotate': ADMIN_ONLY,
+  'GET /api/lti/platforms': ADMIN_ONLY,
+  'POST /api/lti/platforms': ADMIN_ONLY,
+  'PUT /api/lti/platforms/:id': ADMIN_ONLY,
+  'DELETE /api/lti/platforms/:id': ADMIN_ONLY,
+  // Only the instructor whose launch made a deep-linking request sees it; to anyone else it does not exist.
+  'GET /api/lti/deep-links/:id': DEEP_LINK_OWNER,
+  'POST /api/lti/deep-links/:id': DEEP_LINK_OWNER,
+  'GET /api/lti/assignments/:id/grades': CLASS_STAFF,
+  'POST /api/lti/scores/:id/resend': CLASS_STAFF,
+  'GET /api/lti/classes/:id': CLASS_STAFF,
+  // The fixture class is not linked to a platform: those allowed in are told so.
+  'POST /api/lti/classes/:id/roster-sync': { ...CLASS_STAFF, instructor: 409, admin: 409 },
+  // What a platform's browser reaches: public, and without the launch's parameters refused (a page for a browser, JSON here).
+  'GET /lti/login': EVERYONE_REFUSED,
+  'POST /lti/login': EVERYONE_REFUSED,
+  'POST /lti/launch': EVERYONE_REFUSED,
+  'POST /lti/deep-linking': EVERYONE_REFUSED,
+  'GET /lti/enter': EVERYONE_REFUSED,
+  'GET /lti/entered': EVERYONE_REFUSED,
+  'GET /lti/jwks.json': EVERYONE,
+  'GET /lti/page.css': EVERYONE,
 };
 
 interface Fixtures {
@@ -140,6 +170,8 @@ interface Fixtures {
   submittedId: number;
   invitee: number;
   throwawayUser: number;
+  platformId: number;
+  scoreId: number;
 }
 
 interface Call {
@@ -284,7 +316,55 @@ const CALLS: Record<string, (actor: Actor) => Call | Promise<Call>> = {
     return { path: `/api/sign-offs/${row!.id}` };
   },
   'GET /api/sign-offs/classes/:classId/sign-offs.csv': () => ({ path: `/api/sign-offs/classes/${f.fx.classId}/sign-offs.csv` }),
+
+  'GET /api/lti/tool': () => ({ path: '/api/lti/tool' }),
+  'POST /api/lti/keys/rotate': () => ({ path: '/api/lti/keys/rotate' }),
+  'GET /api/lti/platforms': () => ({ path: '/api/lti/platforms' }),
+  'POST /api/lti/platforms': () => ({ path: '/api/lti/platforms', body: platformBody(unique('client')) }),
+  'PUT /api/lti/platforms/:id': () => ({ path: `/api/lti/platforms/${f.platformId}`, body: platformBody('matrix-client') }),
+  'DELETE /api/lti/platforms/:id': async () => {
+    const [row] = await t.ctx.db.insert(ltiPlatforms).values({ ...platformFields(unique('gone')) }).returning({ id: ltiPlatforms.id });
+    return { path: `/api/lti/platforms/${row!.id}` };
+  },
+  'GET /api/lti/deep-links/:id': async () => ({ path: `/api/lti/deep-links/${await deepLinkRequest()}` }),
+  'POST /api/lti/deep-links/:id': async () => ({
+    path: `/api/lti/deep-links/${await deepLinkRequest()}`,
+    body: { scenarioId: f.sharedScenarioId, opensAt: new Date(Date.now() - 3_600_000).toISOString(), dueAt: new Date(Date.now() + 86_400_000).toISOString(), attemptsAllowed: 2 },
+  }),
+  'GET /api/lti/assignments/:id/grades': () => ({ path: `/api/lti/assignments/${f.fx.assignmentId}/grades` }),
+  'POST /api/lti/scores/:id/resend': () => ({ path: `/api/lti/scores/${f.scoreId}/resend` }),
+  'GET /api/lti/classes/:id': () => ({ path: `/api/lti/classes/${f.fx.classId}` }),
+  'POST /api/lti/classes/:id/roster-sync': () => ({ path: `/api/lti/classes/${f.fx.classId}/roster-sync` }),
+  'GET /lti/login': () => ({ path: '/lti/login' }),
+  'POST /lti/login': () => ({ path: '/lti/login', body: {} }),
+  'POST /lti/launch': () => ({ path: '/lti/launch', body: {} }),
+  'POST /lti/deep-linking': () => ({ path: '/lti/deep-linking', body: {} }),
+  'GET /lti/enter': () => ({ path: '/lti/enter?token=not-a-token' }),
+  'GET /lti/entered': () => ({ path: '/lti/entered?fallback=not-a-token' }),
+  'GET /lti/jwks.json': () => ({ path: '/lti/jwks.json' }),
+  'GET /lti/page.css': () => ({ path: '/lti/page.css' }),
 };
+
+function platformFields(clientId: string) {
+  return { name: 'Matrix platform', issuer: 'https://platform.matrix.example', clientId, authUrl: 'https://platform.matrix.example/auth', tokenUrl: 'https://platform.matrix.example/token', jwksUrl: 'https://platform.matrix.example/jwks' };
+}
+const platformBody = (clientId: string) => ({ ...platformFields(clientId), deploymentIds: ['matrix-deployment'] });
+
+/** A fresh deep-linking request of the first instructor, in the fixture class. */
+async function deepLinkRequest(): Promise<string> {
+  const id = `matrix-request-${Date.now().toString(36)}-${++counter}`;
+  await t.ctx.db.insert(ltiDeepLinkRequests).values({
+    id,
+    userId: f.fx.instructorId,
+    platformId: f.platformId,
+    deploymentId: 'matrix-deployment',
+    contextId: 'matrix-course',
+    classId: f.fx.classId,
+    returnUrl: 'https://platform.matrix.example/deep-link-return',
+    expiresAt: new Date(Date.now() + 3_600_000),
+  });
+  return id;
+}
 
 const keyOf = (r: { method: Method; path: string }) => `${r.method.toUpperCase()} ${r.path}`;
 
@@ -334,6 +414,11 @@ beforeAll(async () => {
   await db.insert(classInstructors).values({ classId: shared!.id, userId: await userId(db, PEOPLE.sharingInstructor) });
   await db.insert(enrollments).values({ classId: shared!.id, userId: studentId });
   const assignment = await agents.instructor.get(`/api/assignments/${fx.assignmentId}`).expect(200);
+  const [platform] = await db.insert(ltiPlatforms).values(platformFields('matrix-client')).returning({ id: ltiPlatforms.id });
+  const [score] = await db
+    .insert(ltiScoreOutbox)
+    .values({ attemptId: submittedId, platformId: platform!.id, lineitemUrl: 'https://platform.matrix.example/lineitems/1', payload: { userId: 'matrix-subject', scoreGiven: 85 }, status: 'failed', lastError: 'Score: the platform answered 404' })
+    .returning({ id: ltiScoreOutbox.id });
   f = {
     fx,
     sharedClassId: shared!.id,
@@ -345,6 +430,8 @@ beforeAll(async () => {
     submittedId,
     invitee: invitee!.id,
     throwawayUser: throwaway!.id,
+    platformId: platform!.id,
+    scoreId: score!.id,
   };
 });
 

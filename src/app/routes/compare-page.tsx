@@ -13,6 +13,7 @@ import { AccuracyTables } from '../../features/compare/components/accuracy-table
 import { CompareTable, formatMinutes } from '../../features/compare/components/compare-table.tsx';
 import { DiagnosisDistribution } from '../../features/compare/components/diagnosis-distribution.tsx';
 import { SignOffForm } from '../../features/compare/components/sign-off-form.tsx';
+import { GradeSyncPanel } from '../../features/lti/components/grade-sync-panel.tsx';
 import { signOffsCsvUrl } from '../../features/progress/api/get-progress.ts';
 import { paths } from '../../config/paths.ts';
 
@@ -66,6 +67,7 @@ function InstructorView({ data }: { data: InstructorCompare }) {
             </>
           )}
         />
+        <GradeSyncPanel assignmentId={a.assignmentId} />
       </div>
     </>
   );

@@ -1,3 +1,4 @@
+import { useQueryClient } from '@tanstack/react-query';
 import { Link, useParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { paths } from '../../config/paths.ts';
 import { ErrorState, PageHeader, Panel, Spinner } from '../../components/ui/states.tsx';
@@ -5,8 +6,10 @@ import { useClassAssignments } from '../../features/assignments/api/get-class-as
 import { AssignmentForm } from '../../features/assignments/components/assignment-form.tsx';
 import { AssignmentsTable } from '../../features/assignments/components/assignments-table.tsx';
 import { classQueryOptions, useClass } from '../../features/classes/api/get-class.ts';
+import { classKeys } from '../../features/classes/api/get-classes.ts';
 import { RosterUpload } from '../../features/classes/components/roster-upload.tsx';
 import { StudentsPanel } from '../../features/classes/components/students-panel.tsx';
+import { ClassRosterSync } from '../../features/lti/components/class-roster-sync.tsx';
 import { useScenarios } from '../../features/scenarios/api/get-scenarios.ts';
 import { queryClient } from '../../lib/query-client.ts';
 
@@ -18,6 +21,7 @@ export async function classLoader({ params }: LoaderFunctionArgs) {
 
 export function ClassPage() {
   const id = Number(useParams().classId);
+  const qc = useQueryClient();
   const cls = useClass(id);
   const assignments = useClassAssignments(id);
   const scenarios = useScenarios();
@@ -71,6 +75,7 @@ export function ClassPage() {
           </Panel>
         </div>
         <div className="space-y-6">
+          <ClassRosterSync classId={c.id} onSynced={() => void qc.invalidateQueries({ queryKey: classKeys.detail(c.id) })} />
           <Panel title="Students">
             <StudentsPanel cls={c} />
           </Panel>

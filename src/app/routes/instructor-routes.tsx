@@ -20,6 +20,10 @@ export const instructorRoutes: RouteObject[] = [
     lazy: () => import('./instructor-classes.tsx').then((m) => ({ loader: m.classesLoader, Component: m.ClassesPage })),
   },
   {
+    path: paths.deepLink.pattern,
+    lazy: () => import('./deep-link-page.tsx').then((m) => ({ Component: m.DeepLinkPage })),
+  },
+  {
     path: paths.class.pattern,
     lazy: () => import('./instructor-class.tsx').then((m) => ({ loader: m.classLoader, Component: m.ClassPage })),
   },
