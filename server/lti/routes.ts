@@ -90,7 +90,7 @@ export function ltiBrowserRoutes(ctx: AppContext): RouteGroup {
   const login = async (req: Request, res: Response) => {
     try {
       const params = req.method === 'POST' ? req.body : req.query;
-      const { location } = await startLogin(ctx.db, params, toolBase(ctx, req));
+      const { location } = await startLogin(ctx.db, params, toolBase(ctx));
       noStore(res);
       res.redirect(302, location);
     } catch (err) {
@@ -169,7 +169,7 @@ export function ltiApiRoutes(ctx: AppContext): RouteGroup {
   const g = routeGroup('/api/lti');
 
   g.get('/tool', ADMIN, async (req, res) => {
-    res.json(await toolConfig(ctx, req));
+    res.json(await toolConfig(ctx));
   });
 
   g.post('/keys/rotate', ADMIN, async (req, res) => {
@@ -211,7 +211,7 @@ export function ltiApiRoutes(ctx: AppContext): RouteGroup {
   g.post('/deep-links/:id', STAFF, async (req, res) => {
     const { id } = parseParams(deepLinkIdParamsSchema, req);
     const choice = parseBody(deepLinkChoiceSchema, req);
-    res.status(201).json(await answerDeepLink(ctx, currentUser(req), id, choice, toolBase(ctx, req)));
+    res.status(201).json(await answerDeepLink(ctx, currentUser(req), id, choice, toolBase(ctx)));
   });
 
   g.get('/assignments/:id/grades', STAFF, async (req, res) => {

@@ -1,20 +1,19 @@
 /** The addresses a platform's admin pastes when adding Loadline, and Loadline's public address they are built on. */
-import type { Request } from 'express';
 import type { ToolConfig } from '../../shared/api/lti.ts';
 import type { AppContext } from '../context.ts';
 import { listKeys } from './keys.ts';
 
 /**
- * Loadline's public address: APP_URL when set (it must be, behind a proxy
- * that rewrites the host), else the address this request came to.
+ * Loadline's public address: PUBLIC_URL, never the address a request claims
+ * to have come to (a forged Host header must not move a launch or a
+ * deep-linking answer elsewhere).
  */
-export function toolBase(ctx: AppContext, req: Request): string {
-  if (ctx.env.APP_URL) return ctx.env.APP_URL.replace(/\/+$/, '');
-  return `${req.protocol}://${req.get('host') ?? 'localhost'}`;
+export function toolBase(ctx: AppContext): string {
+  return ctx.env.PUBLIC_URL.replace(/\/+$/, '');
 }
 
-export async function toolConfig(ctx: AppContext, req: Request): Promise<ToolConfig> {
-  const base = toolBase(ctx, req);
+export async function toolConfig(ctx: AppContext): Promise<ToolConfig> {
+  const base = toolBase(ctx);
   return {
     loginUrl: `${base}/lti/login`,
     redirectUrl: `${base}/lti/launch`,

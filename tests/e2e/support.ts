@@ -1,3 +1,4 @@
+import { createServer as createNetServer, type AddressInfo } from 'node:net';
 import { randomBytes } from 'node:crypto';
 import { fileURLToPath } from 'node:url';
 import type { Browser, Page } from 'playwright-core';
@@ -18,19 +19,33 @@ export interface E2eServer {
   close(): Promise<void>;
 }
 
+/** A port free on the loopback address now. */
+function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const probe = createNetServer();
+    probe.once('error', reject);
+    probe.listen(0, '127.0.0.1', () => {
+      const { port } = probe.address() as AddressInfo;
+      probe.close(() => resolve(port));
+    });
+  });
+}
+
 /** The built client and the API on a fresh copy of the demo database. */
 export async function startE2eServer(env: Record<string, string> = {}): Promise<E2eServer> {
   const databaseUrl = await createTestDatabase();
   const mailDb = connect(databaseUrl, 2);
   const smtp: SmtpFake = await startSmtpFake(mailDb.db, 0);
+  // Listen where the public address says (launches from a learning platform name it as their target).
+  const port = await freePort();
   const server = await startServer({
     // Production, as `npm start` runs it: a secret of its own, and a public address (the browser tests open no mailed link).
     env: readEnv({
       NODE_ENV: 'production',
       DATABASE_URL: databaseUrl,
-      PORT: '0',
+      PORT: String(port),
       SMTP_PORT: String(smtp.port),
-      PUBLIC_URL: 'http://localhost',
+      PUBLIC_URL: `http://127.0.0.1:${port}`,
       SESSION_SECRET: randomBytes(32).toString('hex'),
       ...env,
     }),

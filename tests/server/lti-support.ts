@@ -79,6 +79,8 @@ export interface LtiHarness {
 export async function startLtiHarness(opts: { pageSize?: number } = {}): Promise<LtiHarness> {
   const t = await startTestApp();
   const tool = await listen(t);
+  // Loadline's public address is where it listens (a port the system picked): launches name it as their target.
+  t.ctx.env = { ...t.ctx.env, PUBLIC_URL: tool.url };
   const platform = await startLocalPlatform({ toolUrl: tool.url, pageSize: opts.pageSize });
   const logs: LtiHarness['logs'] = [];
   t.ctx.log = (level, message, extra) => void logs.push({ level, message, extra });
