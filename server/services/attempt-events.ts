@@ -276,10 +276,8 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
     const b = attempt.backdated;
     const i = input.events.findIndex((e) => e.seq === b.seq);
     const field = `events.${i}.event.atMs`;
-    throw conflict(
-      `${field}: event ${b.seq} at ${b.atMs} ms runs back before event ${b.storedSeq} at ${b.storedAtMs} ms, already in the log; the log's sim times never go back, so nothing of this batch was stored`,
-      field,
-    );
+    const against = b.storedSeq < b.seq ? `runs back before event ${b.storedSeq} at ${b.storedAtMs} ms` : `comes after event ${b.storedSeq} at ${b.storedAtMs} ms, later in the log`;
+    throw conflict(`${field}: event ${b.seq} at ${b.atMs} ms ${against}, already stored; the log's sim times never go back, so nothing of this batch was stored`, field);
   }
   if (predicted && attempt.movedOn) {
     setups.of(ctx.db)?.set(attemptId, { lastSeq: predicted.lastSeq, setup: predicted.setup });
