@@ -13,6 +13,7 @@
  */
 import type pg from 'pg';
 import type { DiagnosticTest } from '../../sim/faults.ts';
+import { sameEffect } from '../../sim/car-changes.ts';
 import type { Controls } from '../../sim/inputs.ts';
 import { applyInput, initialControls } from '../../sim/inputs.ts';
 import { orderEvents } from '../../sim/replay.ts';
@@ -54,7 +55,7 @@ export function matchesInjection(event: LogEvent, actions: readonly PendingActio
     return actions.some((a) => {
       if (a.type !== 'inject' || a.faultId !== c.id) return false;
       const expected = injectionChange(a, event.atMs);
-      return JSON.stringify(expected.ops) === JSON.stringify(c.ops) && JSON.stringify(expected.intermittent ?? null) === JSON.stringify(c.intermittent ?? null);
+      return sameEffect(expected, c);
     });
   }
   if (event.kind === 'change-clear') return actions.some((a) => a.type === 'clear' && a.faultId === event.changeId);
