@@ -51,6 +51,19 @@ export interface CarChange {
   ops: ParamOp[];
 }
 
+/**
+ * Whether two changes do the same to the car: the same operations in the same
+ * order and the same pattern, compared field by field (ids and onsets aside).
+ * A change read back from storage may list its fields in another order, so
+ * their texts are not compared.
+ */
+export function sameEffect(a: Pick<CarChange, 'ops' | 'intermittent'>, b: Pick<CarChange, 'ops' | 'intermittent'>): boolean {
+  const pa = a.intermittent ?? null;
+  const pb = b.intermittent ?? null;
+  const samePattern = pa === null || pb === null ? pa === pb : pa.periodS === pb.periodS && pa.onFraction01 === pb.onFraction01;
+  return samePattern && a.ops.length === b.ops.length && a.ops.every((x, i) => x.path === b.ops[i]!.path && x.op === b.ops[i]!.op && x.value === b.ops[i]!.value);
+}
+
 /** Whether something with this onset and pattern is present at a sim time. */
 export function isScheduledActive(s: { onsetS: number; intermittent?: IntermittentPattern | null }, timeS: number): boolean {
   if (timeS < s.onsetS) return false;

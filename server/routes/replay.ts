@@ -37,6 +37,14 @@ function changeLabelsOf(run: AttemptRunInputs): Record<string, string> {
   return out;
 }
 
+/**
+ * The faults of the car the attempt ran: the scenario's own, permanent or
+ * scheduled, whatever the stored result says (an attempt stored without one
+ * still names them). The instructor's injections are not the car's: they are
+ * named by the change labels.
+ */
+const carFaultLabelsOf = (run: AttemptRunInputs): string[] => [...new Set(run.definition.faults.map((f) => FAULT_CATALOG[f.kind].label))];
+
 /** A submitted attempt's replay as the viewer may see it (its student: as result-views.ts allows). */
 async function replayOf(db: DbOrTx, attemptId: number, viewer: { isOwner: boolean }): Promise<Omit<ReplayResponse, 'canComment' | 'comments'>> {
   const run = await loadAttemptRun(db, attemptId);
@@ -84,7 +92,7 @@ async function replayOf(db: DbOrTx, attemptId: number, viewer: { isOwner: boolea
     },
     car: run.car,
     events: server.events,
-    faultLabels: hidden ? [] : (stored?.fault.labels ?? []),
+    faultLabels: hidden ? [] : carFaultLabelsOf(run),
     changeLabels,
     markers: replayMarkers(server.events, readings, submittedAtMs, changeLabels),
     readings,

@@ -13,6 +13,7 @@
  */
 import type pg from 'pg';
 import type { DiagnosticTest } from '../../sim/faults.ts';
+import { sameEffect } from '../../sim/car-changes.ts';
 import type { Controls } from '../../sim/inputs.ts';
 import { applyInput, initialControls } from '../../sim/inputs.ts';
 import { orderEvents } from '../../sim/replay.ts';
@@ -54,7 +55,7 @@ export function matchesInjection(event: LogEvent, actions: readonly PendingActio
     return actions.some((a) => {
       if (a.type !== 'inject' || a.faultId !== c.id) return false;
       const expected = injectionChange(a, event.atMs);
-      return JSON.stringify(expected.ops) === JSON.stringify(c.ops) && JSON.stringify(expected.intermittent ?? null) === JSON.stringify(c.intermittent ?? null);
+      return sameEffect(expected, c);
     });
   }
   if (event.kind === 'change-clear') return actions.some((a) => a.type === 'clear' && a.faultId === event.changeId);
@@ -276,10 +277,8 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
     const b = attempt.backdated;
     const i = input.events.findIndex((e) => e.seq === b.seq);
     const field = `events.${i}.event.atMs`;
-    throw conflict(
-      `${field}: event ${b.seq} at ${b.atMs} ms runs back before event ${b.storedSeq} at ${b.storedAtMs} ms, already in the log; the log's sim times never go back, so nothing of this batch was stored`,
-      field,
-    );
+    const against = b.storedSeq < b.seq ? `runs back before event ${b.storedSeq} at ${b.storedAtMs} ms` : `comes after event ${b.storedSeq} at ${b.storedAtMs} ms, later in the log`;
+    throw conflict(`${field}: event ${b.seq} at ${b.atMs} ms ${against}, already stored; the log's sim times never go back, so nothing of this batch was stored`, field);
   }
   if (predicted && attempt.movedOn) {
     setups.of(ctx.db)?.set(attemptId, { lastSeq: predicted.lastSeq, setup: predicted.setup });

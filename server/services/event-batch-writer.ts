@@ -112,7 +112,8 @@ const STORE_BATCHES = `with b as (
       from jsonb_to_recordset($8::jsonb) as e(attempt_id int, seq int, payload jsonb)
   ), back as (
     select distinct on (ev.attempt_id) ev.attempt_id, ev.seq, ev.at_ms,
-           coalesce(p.seq, n.seq) as stored_seq, coalesce(p.sim_time_ms, n.sim_time_ms) as stored_ms
+           case when p.sim_time_ms > ev.at_ms then p.seq else n.seq end as stored_seq,
+           case when p.sim_time_ms > ev.at_ms then p.sim_time_ms else n.sim_time_ms end as stored_ms
       from ev join a on a.id = ev.attempt_id
       left join lateral (select x.seq, x.sim_time_ms from attempt_events x
                           where x.attempt_id = ev.attempt_id and x.seq < ev.seq order by x.seq desc limit 1) p on true

@@ -18,7 +18,7 @@
  */
 import type { Fault } from '../../sim/faults.ts';
 import { faultOps } from '../../sim/faults.ts';
-import type { CarChange } from '../../sim/car-changes.ts';
+import { sameEffect, type CarChange } from '../../sim/car-changes.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
 import { orderEvents } from '../../sim/replay.ts';
 import type { IntegrityFlag, LogEvent, RecordedReading } from '../../shared/api/attempts.ts';
@@ -61,8 +61,6 @@ export interface ResolvedInjection {
 export function injectionChange(action: Extract<PendingAction, { type: 'inject' }>, fromMs: number): CarChange {
   return { id: action.faultId, onsetS: fromMs / 1000 + action.delayS, intermittent: action.intermittent, ops: faultOps(action) };
 }
-
-const sameOps = (a: CarChange, b: CarChange) => JSON.stringify(a.ops) === JSON.stringify(b.ops) && JSON.stringify(a.intermittent ?? null) === JSON.stringify(b.intermittent ?? null);
 
 const secs = (ms: number) => `${(ms / 1000).toFixed(1)} s`;
 
@@ -109,7 +107,7 @@ export function resolveInjections(records: readonly InjectionRecord[], logged: r
       const e = log.event;
       const lateMs = log.storedAt.getTime() - deliveredAt.getTime();
       const expected = r.action.type === 'inject' ? injectionChange(r.action, e.atMs) : null;
-      const otherOnset = expected !== null && e.kind === 'change-apply' && (Math.abs(e.change.onsetS - expected.onsetS) > 1e-6 || !sameOps(e.change, expected));
+      const otherOnset = expected !== null && e.kind === 'change-apply' && (Math.abs(e.change.onsetS - expected.onsetS) > 1e-6 || !sameEffect(e.change, expected));
       if (lateMs > ACK_BOUND_MS || e.atMs < floorMs) {
         const atMs = Math.max(floorMs, lastAtMs);
         res = flagged(

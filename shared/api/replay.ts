@@ -70,7 +70,7 @@ export const replayResponseSchema = z.object({
   car: z.custom<CompiledCar>((v) => typeof v === 'object' && v !== null),
   /** The model's events the server graded on, in order. */
   events: z.array(inputEventSchema),
-  /** The faults of the car (empty while hidden from the viewer). */
+  /** The labels of the scenario's faults, those the car has from the start or by its schedule; injections are in changeLabels (both empty while hidden from the viewer). */
   faultLabels: z.array(z.string()),
   /** What each scheduled or injected change stands for, by change id (empty while hidden). */
   changeLabels: z.record(z.string(), z.string()),

@@ -2,8 +2,12 @@
  * The answer key: a student with an assigned attempt on a faulted scenario
  * walks every response they can get before submitting (every route of the
  * table with their own ids, the bench's stream, error bodies) and none of them
- * names the fault: no fault kind, no catalog label, no `faults` key, not the
- * fault's id, severity or onset. After submission the result reveals it.
+ * names the fault: no fault kind, no catalog label, no `faults` or `fault`
+ * key, not the fault's id or severity. The bench is sent the car it must
+ * simulate (docs/decisions/001): parameters, and a schedule of parameter
+ * changes under opaque ids, each with the onset at which it comes on; that
+ * onset is the one thing of the fault a response may carry, and only there.
+ * After submission the result reveals the fault.
  *
  * Source: OWASP ASVS 4.0 level 2, V8.3.1 (sensitive data is not sent to a
  * client that has no need of it) and V4.2.1 (no access by changing an id).
@@ -11,7 +15,9 @@
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { attempts, assignments, scenarios, scenarioVersions } from '../../server/db/schema.ts';
-import { FAULT_CATALOG, FAULT_KINDS } from '../../sim/faults.ts';
+import type { AttemptBootstrap } from '../../shared/api/attempts.ts';
+import { liveFaultId } from '../../shared/api/live.ts';
+import { FAULT_CATALOG, FAULT_KINDS, faultOps } from '../../sim/faults.ts';
 import { blankScenario, DIAGNOSTIC_TESTS, type ScenarioDefinition } from '../../shared/scenario.ts';
 import { httpSignIn, instructor, listen, makeClass, openStream, students, type ClassFixture, type HttpClient } from './live-fixtures.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
@@ -34,28 +40,43 @@ function faultedScenario(kind: ScenarioDefinition['faults'][number]['kind'], cho
 }
 
 /**
+ * Where a change of the car sits in a response: the compiled car's schedule
+ * (`car.changes.N`, in the bootstrap and the replay) and a single change (the
+ * bench stream's injection and the log's `change-apply` events, `….change`).
+ */
+const CHANGE_AT = /(^|\.)(car\.changes\.\d+|change)$/;
+
+/**
  * What in a response names a fault. The diagnosis choices (the answer among
  * distractors) and the family of tests must list kinds, so those two lists
  * are left out; every other byte of the raw text is searched. A kind that is
  * also the name of a test ("key-off-draw", as in a competency) is searched by
  * its label only; a message that lists the whole catalog (an enum's error)
  * singles nothing out.
+ *
+ * The onset is left out where, and only where, it is a change's `onsetS`: the
+ * bench cannot run a car whose fault comes on at 3.14 s without being told
+ * that something changes then, and a change carries no kind, label, severity
+ * or the author's fault id (its id is opaque, its operations are parameter
+ * arithmetic). An `onsetS` key, or the scenario's onset, anywhere else (a
+ * fault object, a summary, an error) is a leak.
  */
 function leaks(text: string): string[] {
   let searched = text;
   try {
-    const strip = (x: unknown): unknown => {
-      if (Array.isArray(x)) return x.map(strip);
+    const strip = (x: unknown, at: string): unknown => {
+      if (Array.isArray(x)) return x.map((v, i) => strip(v, `${at}.${i}`));
       if (x && typeof x === 'object') {
+        const isChange = CHANGE_AT.test(at);
         return Object.fromEntries(
           Object.entries(x as Record<string, unknown>)
-            .filter(([k]) => k !== 'diagnosisChoices' && k !== 'tests')
-            .map(([k, v]) => [k, strip(v)]),
+            .filter(([k]) => k !== 'diagnosisChoices' && k !== 'tests' && !(isChange && k === 'onsetS'))
+            .map(([k, v]) => [k, strip(v, at ? `${at}.${k}` : k)]),
         );
       }
       return x;
     };
-    searched = JSON.stringify(strip(JSON.parse(text)));
+    searched = JSON.stringify(strip(JSON.parse(text), ''));
   } catch {
     // Not JSON (a CSV, a stream): search the raw text.
   }
@@ -77,6 +98,8 @@ let teacher: Agent;
 let attemptId: number;
 let scenarioId: number;
 let otherAssignmentId: number;
+/** The assigned scenario's definition. */
+const fxDefinition = faultedScenario(KIND, [KIND, 'none', 'diode-open', 'belt-slip', 'regulator-set-low']);
 
 async function addAssignment(def: ScenarioDefinition, title: string): Promise<{ assignmentId: number; scenarioId: number }> {
   const db = t.ctx.db;
@@ -94,7 +117,7 @@ beforeAll(async () => {
   t = await startTestApp();
   server = await listen(t);
   // The author lists the answer first among the choices, as the editor does.
-  fx = await makeClass(t.ctx.db, { students: 1, definition: faultedScenario(KIND, [KIND, 'none', 'diode-open', 'belt-slip', 'regulator-set-low']), name: 'Answer-key section' });
+  fx = await makeClass(t.ctx.db, { students: 1, definition: fxDefinition, name: 'Answer-key section' });
   const [version] = await t.ctx.db.select({ scenarioId: scenarioVersions.scenarioId }).from(scenarioVersions).where(eq(scenarioVersions.id, fx.scenarioVersionId));
   scenarioId = version!.scenarioId;
   // The same choices, another answer, listed first by its author.
@@ -112,13 +135,19 @@ describe('the answer key before submission', () => {
   const seen: { what: string; status: number; text: string }[] = [];
   const record = (what: string, status: number, text: string) => seen.push({ what, status, text });
 
-  it('starts the attempt and posts events; the bootstrap carries the faults only sealed', async () => {
+  it('starts the attempt and posts events; the bootstrap carries the car to simulate, with no fault list and nothing sealed', async () => {
     const started = await student.post('/api/attempts').send({ assignmentId: fx.assignmentId });
     expect(started.status).toBe(201);
     attemptId = started.body.attempt.id as number;
     record('POST /api/attempts', started.status, started.text);
-    expect(typeof started.body.sealedFaults).toBe('string');
-    expect(started.body.sealedFaults.length).toBeGreaterThan(20);
+    const boot = started.body as AttemptBootstrap;
+    // Nothing travels sealed beside the car, and there is no key to open anything with.
+    expect(Object.keys(boot).sort()).toEqual(['attempt', 'car', 'events', 'result', 'scenario']);
+    expect(Object.keys(boot.car).sort()).toEqual(['changes', 'params']);
+    // The fault comes on at its onset, so it is a scheduled change: an opaque id, its onset, parameter operations.
+    expect(boot.car.changes).toEqual([{ id: 'c1', onsetS: ONSET_S, intermittent: null, ops: faultOps({ kind: KIND, severity01: SEVERITY }) }]);
+    // Until then the car is the healthy one, labelled with the vehicle's name, not the author's parameter set.
+    expect(boot.car.params).toEqual({ ...fxDefinition.vehicle.params, label: fxDefinition.vehicle.name });
 
     const events = await student.post(`/api/attempts/${attemptId}/events`).send({
       events: [
@@ -136,6 +165,12 @@ describe('the answer key before submission', () => {
     });
     expect(guess.status).toBe(400);
     record('POST events (guessed fault)', guess.status, guess.text.replaceAll('diode-open', '<guess>'));
+    // Nor is a change of the car that logs no injection delivered to this bench.
+    const change = await student.post(`/api/attempts/${attemptId}/events`).send({
+      events: [{ seq: 4, event: { kind: 'change-apply', atMs: 4000, change: { id: 'guess', onsetS: 4, intermittent: null, ops: faultOps({ kind: 'diode-open', severity01: 1 }) } } }],
+    });
+    expect(change.status).toBe(400);
+    record('POST events (guessed change)', change.status, change.text);
     const clear = await student.post(`/api/attempts/${attemptId}/events`).send({ events: [{ seq: 4, event: { kind: 'fault-clear', atMs: 4000, faultId: 'guess' } }] });
     expect(clear.status).toBe(400);
     record('POST events (guessed clear)', clear.status, clear.text);
@@ -144,16 +179,18 @@ describe('the answer key before submission', () => {
     record('POST submit (malformed)', badSubmit.status, badSubmit.text.replaceAll('not-a-kind', '<sent>'));
   });
 
-  it('the instructor injects a live fault; the bench stream sends it sealed', async () => {
+  it('the instructor injects a live fault; the bench stream sends it as a change of the car under an opaque id', async () => {
     const injected = await teacher.post(`/api/live/attempts/${attemptId}/inject`).send({ kind: LIVE_KIND, severity01: LIVE_SEVERITY });
     expect(injected.status).toBe(201);
+    const injectionId = (injected.body as { injection: { injectionId: number } }).injection.injectionId;
     const client: HttpClient = await httpSignIn(server.url, students[0]!.email);
     const stream = await openStream(client, `/api/live/attempts/${attemptId}/stream`);
     try {
       expect(stream.status).toBe(200);
       const status = await stream.next((m) => m.event === 'status', 15_000);
       const injection = await stream.next((m) => m.event === 'injection', 15_000);
-      expect(injection.data).toMatchObject({ type: 'inject', sealed: expect.any(String) });
+      // What the bench needs to run it and to log it: the id it logs it under, when it comes on (the delay), the operations.
+      expect(injection.data).toEqual({ type: 'inject', injectionId, change: { id: liveFaultId(injectionId), onsetS: 0, intermittent: null, ops: faultOps({ kind: LIVE_KIND, severity01: LIVE_SEVERITY }) } });
       record('bench stream: status', 200, JSON.stringify(status.data));
       record('bench stream: injection', 200, JSON.stringify(injection.data));
     } finally {
@@ -196,7 +233,11 @@ describe('the answer key before submission', () => {
     }
   });
 
-  it('finds no fault kind, label, key, id, severity or onset in any of them', () => {
+  it('finds no fault kind, label, key, id or severity in any of them, and the onset only as a change’s', () => {
+    // The search leaves out a change's onset, and nothing else: the same onset outside a change is found.
+    expect(leaks(JSON.stringify({ car: { changes: [{ id: 'c1', onsetS: ONSET_S }] }, events: [{ event: { change: { onsetS: ONSET_S } } }] }))).toEqual([]);
+    expect(leaks(JSON.stringify({ car: { onsetS: ONSET_S }, hint: { onsetS: ONSET_S } }))).toEqual(['"onsetS"', String(ONSET_S)]);
+    expect(leaks(JSON.stringify({ car: { changes: [{ id: FAULT_ID, onsetS: 0, severity01: SEVERITY }] } }))).toEqual(['"severity01"', FAULT_ID, String(SEVERITY)]);
     expect(seen.length).toBeGreaterThan(45);
     const found = seen.flatMap((s) => leaks(s.text).map((l) => `${s.what}: ${l}`));
     expect(found).toEqual([]);

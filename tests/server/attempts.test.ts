@@ -363,6 +363,18 @@ describe('the event log', () => {
     expect(reload.body.events.find((e: { seq: number }) => e.seq === 12)).toEqual({ seq: 12, event: { kind: 'change-apply', atMs: 12_000, change } });
   });
 
+  it('refuses a batch whose sim time runs back before the stored log with a 409 naming the event, so a mistake cannot be erased after the fact', async () => {
+    const res = await ada.post('/api/attempts').send({ scenarioId: await scenarioId(t.ctx, 'healthy-control-corvane-linden'), mode: 'practice' }).expect(201);
+    const id = res.body.attempt.id as number;
+    await ada.post(`/api/attempts/${id}/events`).send({ events: numbered([...leads(5_000, 'battery-pos', 'battery-neg'), { kind: 'pile', atMs: 8_000, dial01: 0.9 }]) }).expect(200);
+    // The attack: a later batch set at 6 s and 6.5 s, meant to go before the pile turned up at 8 s.
+    const back = await ada.post(`/api/attempts/${id}/events`).send({ events: numbered([{ kind: 'pile', atMs: 6_000, dial01: 0 }, { kind: 'pile', atMs: 6_500, dial01: 0 }], 4) }).expect(409);
+    expect(back.body.error.field).toBe('events.0.event.atMs');
+    expect(back.body.error.message).toContain('event 4 at 6000 ms runs back before event 3 at 8000 ms');
+    const stored = await t.ctx.db.select({ seq: attemptEvents.seq }).from(attemptEvents).where(eq(attemptEvents.attemptId, id));
+    expect(stored.map((r) => r.seq).sort((a, b) => a - b)).toEqual([1, 2, 3]);
+  });
+
   it('answers 409 to events for a submitted attempt', async () => {
     const done = await ada.post('/api/attempts').send({ scenarioId: await scenarioId(t.ctx, 'healthy-control-corvane-linden'), mode: 'practice' }).expect(201);
     const did = done.body.attempt.id as number;

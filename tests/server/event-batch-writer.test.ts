@@ -65,7 +65,7 @@ describe('the event batch writer', () => {
     const results = await Promise.all(ids.map((id) => writer.store(batchOf(id, 1, 4))));
     expect(writer.stats).toEqual({ statements: 1, batches: 6, retriedAlone: 0 });
     for (const [i, id] of ids.entries()) {
-      expect(results[i]).toEqual({ status: 'running', lastSeq: 0, simTimeMs: 0, inserted: expect.arrayContaining([1, 2, 3, 4]), earlier: [], movedOn: true });
+      expect(results[i]).toEqual({ status: 'running', lastSeq: 0, simTimeMs: 0, inserted: expect.arrayContaining([1, 2, 3, 4]), earlier: [], movedOn: true, backdated: null });
       expect(results[i]!.inserted).toHaveLength(4);
       expect(await storedSeqs(id)).toEqual([1, 2, 3, 4]);
       expect(await rowOf(id)).toEqual({ lastSeq: 4, simTimeMs: script[3]!.atMs, currentTest: 'battery-load' });
@@ -121,8 +121,26 @@ describe('the event batch writer', () => {
     const writer = createBatchWriter(t.ctx.pool);
     const [a, b] = await Promise.all([writer.store(batchOf(running, 1, 2)), writer.store(batchOf(done, 1, 2))]);
     expect(a).toMatchObject({ status: 'running', movedOn: true });
-    expect(b).toEqual({ status: 'submitted', lastSeq: 0, simTimeMs: 0, inserted: [], earlier: [], movedOn: false });
+    expect(b).toEqual({ status: 'submitted', lastSeq: 0, simTimeMs: 0, inserted: [], earlier: [], movedOn: false, backdated: null });
     expect(await storedSeqs(done)).toEqual([]);
+  });
+
+  it('refuses a batch whose sim time runs back before the stored log, naming its first such event, and stores nothing of it', async () => {
+    const [after, gap, fine] = await Promise.all([start(), start(), start()]);
+    const writer = createBatchWriter(t.ctx.pool);
+    await Promise.all([writer.store(batchOf(after, 1, 4)), writer.store(batchOf(gap, 1, 2)), writer.store(batchOf(gap, 5, 6, false))]);
+    const at = (seq: number) => script[seq - 1]!.atMs;
+    // Event 5 set before stored event 4; event 3 filling the gap but set after stored event 5.
+    const early: BatchToStore = { attemptId: after, userId: adaId, events: [{ seq: 5, event: { ...script[4]!, atMs: at(4) - 1 } }, { seq: 6, event: script[5]! }], predicted: null };
+    const late: BatchToStore = { attemptId: gap, userId: adaId, events: [{ seq: 3, event: { ...script[2]!, atMs: at(5) + 1 } }], predicted: null };
+    const [a, b, c] = await Promise.all([writer.store(early), writer.store(late), writer.store(batchOf(fine, 1, 2))]);
+    expect(a).toMatchObject({ status: 'running', inserted: [], movedOn: false, backdated: { seq: 5, atMs: at(4) - 1, storedSeq: 4, storedAtMs: at(4) } });
+    expect(b).toMatchObject({ status: 'running', inserted: [], movedOn: false, backdated: { seq: 3, atMs: at(5) + 1, storedSeq: 5, storedAtMs: at(5) } });
+    // The refusal is the batch's own: the batch beside it in the statement is stored.
+    expect(c).toMatchObject({ movedOn: true, backdated: null });
+    expect(await storedSeqs(after)).toEqual([1, 2, 3, 4]);
+    expect(await storedSeqs(gap)).toEqual([1, 2, 5, 6]);
+    expect(await storedSeqs(fine)).toEqual([1, 2]);
   });
 
   it('fails only the batch holding a value PostgreSQL cannot store, after trying the group again one by one', async () => {

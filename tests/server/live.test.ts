@@ -2,6 +2,8 @@ import { and, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { attemptEvents, attempts, pendingInjections } from '../../server/db/schema.ts';
 import { benchInjectionSchema, boardSnapshotSchema, liveFaultId, type BenchInjection } from '../../shared/api/live.ts';
+import type { AttemptResult } from '../../shared/api/attempts.ts';
+import { ACK_BOUND_MS } from '../../server/services/injection-authority.ts';
 import { FAULT_CATALOG, faultOps } from '../../sim/faults.ts';
 import { startTestApp, type TestApp } from './support.ts';
 import {
@@ -89,6 +91,78 @@ describe('live fault injection', () => {
     await again.next((m) => m.event === 'status');
     expect(await again.arrives((m) => m.event === 'injection', 1_000)).toBe(false);
     again.close();
+  });
+
+  /** The bench's ordinary work up to `atMs`: the voltmeter on the battery posts. */
+  const hookUp = (client: HttpClient, attemptId: number, seq: number, atMs: number) =>
+    client.post(`/api/attempts/${attemptId}/events`, {
+      events: [
+        { seq, event: { kind: 'lead', atMs, which: 'red', point: 'battery-pos' } },
+        { seq: seq + 1, event: { kind: 'lead', atMs, which: 'black', point: 'battery-neg' } },
+      ],
+    });
+
+  /** The stored result and verified flag of a submitted attempt, as the instructor's grade book reads them. */
+  const storedResult = async (attemptId: number) => {
+    const [row] = await t.ctx.db.select({ result: attempts.result, verified: attempts.verified }).from(attempts).where(eq(attempts.id, attemptId));
+    return row as { result: AttemptResult; verified: boolean };
+  };
+
+  const injectionsOf = async (attemptId: number) =>
+    (await teacher.get(`/api/live/attempts/${attemptId}/injections`)).body as { injections: { injectionId: number; status: string; appliedAtMs: number | null; flag: { kind: string } | null }[] };
+
+  it('flags a bench that never logs a delivered injection: the server applies it when it delivered it, and grades on that', async () => {
+    const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
+    expect((await hookUp(ada, attemptId, 1, 5_000)).status).toBe(200);
+    const stream = await openStream(ada, `/api/live/attempts/${attemptId}/stream`);
+    await stream.next((m) => m.event === 'status');
+    const res = await teacher.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'fusible-link-open', severity01: 1, delayS: 0 });
+    const injectionId = (res.body as { injection: { injectionId: number } }).injection.injectionId;
+    benchInjectionSchema.parse((await stream.next((m) => m.event === 'injection', 2_000)).data);
+    stream.close();
+    const [delivered] = await t.ctx.db.select({ simMs: pendingInjections.deliveredSimMs }).from(pendingInjections).where(eq(pendingInjections.id, injectionId));
+    expect(delivered!.simMs).toBe(5_000);
+
+    // The attack: the bench goes on without logging the change (its car stays healthy), and records at 9 s.
+    expect((await hookUp(ada, attemptId, 3, 9_000)).status).toBe(200);
+    // Within the bound the injection is still awaited, not yet flagged.
+    expect((await injectionsOf(attemptId)).injections[0]).toMatchObject({ injectionId, status: 'delivered', appliedAtMs: null, flag: null });
+    // Past the bound (the delivery moved back in time, as if the bound had passed), the server applies it at its delivery.
+    await t.ctx.db.update(pendingInjections).set({ deliveredAt: new Date(Date.now() - ACK_BOUND_MS - 5_000) }).where(eq(pendingInjections.id, injectionId));
+    expect((await injectionsOf(attemptId)).injections[0]).toMatchObject({ injectionId, status: 'flagged', appliedAtMs: 5_000, flag: { kind: 'injection-not-logged' } });
+
+    const submitted = await ada.post(`/api/attempts/${attemptId}/submit`, { atMs: 20_000, diagnosis: { verdicts: [], faultKind: 'diode-open', notes: '' } });
+    expect(submitted.status, submitted.text).toBe(200);
+    const { result, verified } = await storedResult(attemptId);
+    expect(result.flags).toEqual([expect.objectContaining({ kind: 'injection-not-logged', injectionId, appliedAtMs: 5_000 })]);
+    // Graded on the car with the injected fault from the delivery on, not on the car the bench kept.
+    expect(result.fault.actual).toEqual(expect.arrayContaining(['fusible-link-open']));
+    expect(verified).toBe(false);
+    expect(result.verified).toBe(false);
+  });
+
+  it('flags a bench that logs the injection with a far-off onset, and grades it with the instructor’s delay from the bench’s moment', async () => {
+    const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
+    const stream = await openStream(ada, `/api/live/attempts/${attemptId}/stream`);
+    await stream.next((m) => m.event === 'status');
+    const res = await teacher.post(`/api/live/attempts/${attemptId}/inject`, { kind: 'fusible-link-open', severity01: 1, delayS: 2 });
+    const injectionId = (res.body as { injection: { injectionId: number } }).injection.injectionId;
+    const injection = benchInjectionSchema.parse((await stream.next((m) => m.event === 'injection', 2_000)).data);
+    stream.close();
+    if (injection.type !== 'inject') throw new Error('expected an inject');
+    // The attack: logged at once, but set to come on ten minutes later, after the submission.
+    const deferred = { kind: 'change-apply', atMs: 12_340, change: { ...injection.change, onsetS: 12.34 + 600 } };
+    const logged = await ada.post(`/api/attempts/${attemptId}/events`, { events: [{ seq: 1, event: deferred }] });
+    expect(logged.status, logged.text).toBe(200);
+    expect((await injectionsOf(attemptId)).injections[0]).toMatchObject({ injectionId, status: 'flagged', appliedAtMs: 12_340, flag: { kind: 'injection-other-onset' } });
+
+    const submitted = await ada.post(`/api/attempts/${attemptId}/submit`, { atMs: 20_000, diagnosis: { verdicts: [], faultKind: 'diode-open', notes: '' } });
+    expect(submitted.status, submitted.text).toBe(200);
+    const { result, verified } = await storedResult(attemptId);
+    expect(result.flags).toEqual([expect.objectContaining({ kind: 'injection-other-onset', injectionId, appliedAtMs: 12_340 })]);
+    // In force from 14.34 s (12.34 s and the instructor's 2 s), so at the 20 s submission.
+    expect(result.fault.actual).toEqual(expect.arrayContaining(['fusible-link-open']));
+    expect(verified).toBe(false);
   });
 
   it('keeps an injection for a bench that was offline and delivers it when the bench comes back', async () => {

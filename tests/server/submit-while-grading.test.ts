@@ -14,6 +14,7 @@ import { gradeRun, type GradeJob } from '../../server/services/grade-run.ts';
 import { gradeJobOf, submitAttempt } from '../../server/services/attempt-submit.ts';
 import { loadAttempt, showAfter } from '../../server/services/attempt-store.ts';
 import { loadAttemptRun } from '../../server/services/live-attempt-run.ts';
+import { studentResult } from '../../server/services/result-views.ts';
 import { leads, numbered, scenarioId, startEngine } from './attempts-bench.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
 
@@ -58,7 +59,22 @@ async function gradedNow(id: number): Promise<AttemptResult> {
 }
 
 const storedRow = async (id: number) =>
-  (await t.ctx.pool.query<{ status: string; result: unknown }>('select status, result from attempts where id = $1', [id])).rows[0]!;
+  (await t.ctx.pool.query<{ status: string; result: AttemptResult | null }>('select status, result from attempts where id = $1', [id])).rows[0]!;
+
+/**
+ * The stored result is whole; the submission answers with what the student
+ * may see of it, and these attempts are practice, whose result shows nothing
+ * of the key (server/services/result-views.ts).
+ */
+const seenByStudent = (result: AttemptResult): AttemptResult => studentResult(result, { mode: 'practice', showFeedbackAfter: true, dueAt: null });
+
+/** The submission's answer and its stored result are the grading of the whole stored log, as it is now. */
+async function expectGradedNow(id: number, answer: AttemptResult): Promise<void> {
+  const whole = await gradedNow(id);
+  expect((await storedRow(id)).result).toEqual(whole);
+  expect(answer).toEqual(seenByStudent(whole));
+  expect(answer.hidden).toEqual({ reason: 'practice', until: null });
+}
 
 describe('a submission while it is graded', () => {
   it('holds no database connection and leaves the attempt unlocked', async () => {
@@ -78,7 +94,7 @@ describe('a submission while it is graded', () => {
         },
       });
       expect(seen).toEqual([{ checkedOut: 0, lockedBy: null }]);
-      expect(result).toEqual(await gradedNow(id));
+      await expectGradedNow(id, result);
       expect((await storedRow(id)).status).toBe('submitted');
     } finally {
       await other.end();
@@ -99,8 +115,7 @@ describe('a submission while it is graded', () => {
     expect(jobs).toHaveLength(2);
     expect(jobs[1]!.events.length - jobs[0]!.events.length).toBe(LATE.length);
     // What is stored is the grading of the whole log, late batch included.
-    expect(result).toEqual(await gradedNow(id));
-    expect((await storedRow(id)).result).toEqual(result);
+    await expectGradedNow(id, result);
   });
 
   it('takes in a batch whose transaction held the attempt when the store began, committing only while the store waited', async () => {
@@ -140,8 +155,7 @@ describe('a submission while it is graded', () => {
       // The store saw the batch committed while it waited, so the submission was graded again with it.
       expect(jobs).toHaveLength(2);
       expect(jobs[1]!.events.length - jobs[0]!.events.length).toBe(1);
-      expect(result).toEqual(await gradedNow(id));
-      expect((await storedRow(id)).result).toEqual(result);
+      await expectGradedNow(id, result);
     } finally {
       await Promise.all([batch.end(), watcher.end()]);
     }
@@ -172,7 +186,8 @@ describe('a submission while it is graded', () => {
     expect(answers.map((a) => a.status).sort()).toEqual([200, 409]);
     const refused = answers.find((a) => a.status === 409)!;
     expect(refused.body.error.message).toBe('This attempt has already been submitted');
-    expect((await storedRow(id)).result).toEqual(answers.find((a) => a.status === 200)!.body);
+    // The answer given is the stored result as the student sees it.
+    expect(seenByStudent((await storedRow(id)).result!)).toEqual(answers.find((a) => a.status === 200)!.body);
   });
 
   it('refuses events once stored: a batch after the submission stores nothing', async () => {

@@ -6,7 +6,7 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { applyChanges, applyOp, applyOps, type CarChange } from '../../sim/car-changes';
+import { applyChanges, applyOp, applyOps, sameEffect, type CarChange } from '../../sim/car-changes';
 import { compileCar } from '../../sim/compiled-car';
 import { FAULT_KINDS, applyFaults, faultChange, type Fault, type FaultKind } from '../../sim/faults';
 import { applyInput, initialControls } from '../../sim/inputs';
@@ -171,5 +171,22 @@ describe('the compiled car', () => {
     expect(c.changes).toHaveLength(1);
     c = applyInput(c, { kind: 'change-clear', atMs: 300, changeId: 'live-7' }, 0);
     expect(c.changes).toEqual([]);
+  });
+
+  it('takes two changes as the same effect field by field, whatever order their fields were written in', () => {
+    const ops = faultChange({ id: 'x', kind: 'diode-shorted', severity01: 0.4, onsetS: 0 }).ops;
+    const change: CarChange = { id: 'live-3', onsetS: 12.5, intermittent: { periodS: 10, onFraction01: 0.5 }, ops };
+    // As storage may give it back: every object's keys in another order.
+    const reordered = JSON.parse(JSON.stringify({ ops: ops.map((o) => ({ value: o.value, op: o.op, path: o.path })), intermittent: { onFraction01: 0.5, periodS: 10 } })) as CarChange;
+    expect(JSON.stringify(reordered.ops)).not.toBe(JSON.stringify(change.ops));
+    expect(sameEffect(change, reordered)).toBe(true);
+    const other: CarChange = { ...change, id: 'other', onsetS: 99 };
+    expect(sameEffect(change, other)).toBe(true);
+    expect(sameEffect(change, { ...change, intermittent: null })).toBe(false);
+    expect(sameEffect(change, { ...change, intermittent: { periodS: 10, onFraction01: 0.6 } })).toBe(false);
+    expect(sameEffect(change, { ...change, ops: ops.slice(1) })).toBe(false);
+    expect(sameEffect(change, { ...change, ops: [...ops].reverse() })).toBe(false);
+    const nudged = ops.map((o, i) => (i === 2 && o.op === 'add' ? { ...o, value: o.value + 1e-9 } : o));
+    expect(sameEffect(change, { ...change, ops: nudged })).toBe(false);
   });
 });
