@@ -16,7 +16,7 @@ import type { Fault } from './faults.ts';
 import type { SimState, EngineStatus, EngineStopCause } from './step.ts';
 import type { Controls, Conductor, ConnectionPoint } from './inputs.ts';
 import type { NodeName, NetworkSolution } from './network.ts';
-import { COLD_ALTERNATOR_C, FIELD_DRIVER_DROP_V, HOT_ALTERNATOR_C, copperAt, effectiveModel, fieldResistanceOhm, relativeFlux } from './model.ts';
+import { COLD_ALTERNATOR_C, CURVE_TEST_V, FIELD_DRIVER_DROP_V, HOT_ALTERNATOR_C, copperAt, effectiveModel, fieldResistanceOhm, relativeFlux } from './model.ts';
 import type { BridgePoint } from './bridge.ts';
 import { bridgeOperatingPoint, diodeDropV, periodicBridge } from './bridge.ts';
 
@@ -231,7 +231,6 @@ export function rippleTrace(params: VehicleParams, state: SimState, samples: num
 
 const CURVE_MAX_ALT_RPM = 12000;
 const CURVE_STEP_ALT_RPM = 100;
-const CURVE_TEST_V = 13.5;
 
 /**
  * The output available at 13.5 V held at the B+ stud against alternator
@@ -259,7 +258,7 @@ export function outputAtSpeed(params: VehicleParams, faults: readonly Fault[], o
   const flux = relativeFlux(m, fieldA);
   const rPhase = copperAt(a.statorResistanceOhmAt20C, tempC) + a.diodeSeriesResistanceOhm;
   const diode = { saturationCurrentA: a.diodeSaturationCurrentA, emissionCoefficient: a.diodeEmissionCoefficient };
-  const out: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0 };
+  const out: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0 };
   let guess = 0;
   return (rpm: number) => {
     const omegaE = (2 * Math.PI * a.polePairs * rpm) / 60;

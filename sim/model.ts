@@ -37,6 +37,8 @@ export const COLD_ALTERNATOR_C = 25;
 const MIN_PATH_OHM = 2e-5;
 /** Reference field voltage for the EMF constant (see cut-in). */
 const REFERENCE_FIELD_V = 13.5;
+/** B+ voltage of the output curve and of the rating (SAE J56 test voltage). */
+export const CURVE_TEST_V = 13.5;
 
 export interface Model {
   p: VehicleParams;
