@@ -736,9 +736,10 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
   const field = stepRegulatorAndField(model, state, keyOn, altRpm, dt, fieldOut);
 
   // ---- Temperatures, battery charge, fuses ---------------------------------
-  const bridgeA = prev.bridgeCurrentA;
-  const loadFraction = bridgeA / p.alternator.ratedCurrentA;
-  const altHotC = model.underhoodC + p.alternator.fullLoadTempRiseC * loadFraction * loadFraction;
+  // The winding heats with the stator's copper loss (its phase currents, not the output: a bridge fault
+  // that makes a phase carry a standing DC current heats it more for the same output).
+  const copperFraction = prev.statorSquaresA2 / model.ratedStatorSquaresA2;
+  const altHotC = model.underhoodC + p.alternator.fullLoadTempRiseC * copperFraction;
   const altTempC = altHotC + (state.alternatorTempC - altHotC) * decay.alternatorThermal;
 
   const battery = stepBattery(
