@@ -279,3 +279,36 @@ export function outputAtSpeed(params: VehicleParams, faults: readonly Fault[], o
     return Math.max(0, out.meanA - fieldA);
   };
 }
+
+/** Where a faulted unit's output curve lies above the healthy one: the speeds it spans and the most it gives above. */
+export interface CurveExcess {
+  fromAltRpm: number;
+  toAltRpm: number;
+  mostA: number;
+}
+
+/**
+ * The stretch of speeds where `faulted` gives more than `marginA` above
+ * `healthy` (the two compared at the speeds both hold), or null. A bridge
+ * fault can do this: with one diode open the circuit gives the healthy
+ * output or a little more at speed (see docs/model.md), and the charts say
+ * why under them.
+ */
+export function faultedCurveExcess(healthy: readonly OutputCurvePoint[], faulted: readonly OutputCurvePoint[], marginA = 1): CurveExcess | null {
+  const healthyAt = new Map<number, number>();
+  for (const p of healthy) healthyAt.set(p.altRpm, p.currentA);
+  let excess: CurveExcess | null = null;
+  for (const p of faulted) {
+    const h = healthyAt.get(p.altRpm);
+    if (h === undefined) continue;
+    const above = p.currentA - h;
+    if (!(above > marginA)) continue;
+    if (excess === null) excess = { fromAltRpm: p.altRpm, toAltRpm: p.altRpm, mostA: above };
+    else {
+      excess.fromAltRpm = Math.min(excess.fromAltRpm, p.altRpm);
+      excess.toAltRpm = Math.max(excess.toAltRpm, p.altRpm);
+      excess.mostA = Math.max(excess.mostA, above);
+    }
+  }
+  return excess;
+}
