@@ -16,7 +16,7 @@ import type { CarChange } from './car-changes.ts';
 import type { SimState, EngineStatus, EngineStopCause } from './step.ts';
 import type { Controls, Conductor, ConnectionPoint } from './inputs.ts';
 import type { NodeName, NetworkSolution } from './network.ts';
-import { COLD_ALTERNATOR_C, FIELD_DRIVER_DROP_V, HOT_ALTERNATOR_C, copperAt, effectiveModel, fieldResistanceOhm, relativeFlux } from './model.ts';
+import { COLD_ALTERNATOR_C, CURVE_TEST_V, FIELD_DRIVER_DROP_V, HOT_ALTERNATOR_C, copperAt, effectiveModel, fieldResistanceOhm, relativeFlux } from './model.ts';
 import type { BridgePoint } from './bridge.ts';
 import { bridgeOperatingPoint, diodeDropV, periodicBridge } from './bridge.ts';
 
@@ -231,7 +231,6 @@ export function rippleTrace(params: VehicleParams, state: SimState, samples: num
 
 const CURVE_MAX_ALT_RPM = 12000;
 const CURVE_STEP_ALT_RPM = 100;
-const CURVE_TEST_V = 13.5;
 
 /**
  * The output available at 13.5 V held at the B+ stud against alternator
@@ -260,7 +259,7 @@ export function outputAtSpeed(params: VehicleParams, changes: readonly CarChange
   const flux = relativeFlux(m, fieldA);
   const rPhase = copperAt(a.statorResistanceOhmAt20C, tempC) + a.diodeSeriesResistanceOhm;
   const diode = { saturationCurrentA: a.diodeSaturationCurrentA, emissionCoefficient: a.diodeEmissionCoefficient };
-  const out: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0 };
+  const out: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0 };
   let guess = 0;
   return (rpm: number) => {
     const omegaE = (2 * Math.PI * a.polePairs * rpm) / 60;
@@ -280,4 +279,37 @@ export function outputAtSpeed(params: VehicleParams, changes: readonly CarChange
     guess = out.meanA;
     return Math.max(0, out.meanA - fieldA);
   };
+}
+
+/** Where a faulted unit's output curve lies above the healthy one: the speeds it spans and the most it gives above. */
+export interface CurveExcess {
+  fromAltRpm: number;
+  toAltRpm: number;
+  mostA: number;
+}
+
+/**
+ * The stretch of speeds where `faulted` gives more than `marginA` above
+ * `healthy` (the two compared at the speeds both hold), or null. A bridge
+ * fault can do this: with one diode open the circuit gives the healthy
+ * output or a little more at speed (see docs/model.md), and the charts say
+ * why under them.
+ */
+export function faultedCurveExcess(healthy: readonly OutputCurvePoint[], faulted: readonly OutputCurvePoint[], marginA = 1): CurveExcess | null {
+  const healthyAt = new Map<number, number>();
+  for (const p of healthy) healthyAt.set(p.altRpm, p.currentA);
+  let excess: CurveExcess | null = null;
+  for (const p of faulted) {
+    const h = healthyAt.get(p.altRpm);
+    if (h === undefined) continue;
+    const above = p.currentA - h;
+    if (!(above > marginA)) continue;
+    if (excess === null) excess = { fromAltRpm: p.altRpm, toAltRpm: p.altRpm, mostA: above };
+    else {
+      excess.fromAltRpm = Math.min(excess.fromAltRpm, p.altRpm);
+      excess.toAltRpm = Math.max(excess.toAltRpm, p.altRpm);
+      excess.mostA = Math.max(excess.mostA, above);
+    }
+  }
+  return excess;
 }

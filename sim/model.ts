@@ -13,8 +13,8 @@ import type { VehicleParams } from './params.ts';
 import { copperResistanceOhm } from './params.ts';
 import type { CarChange } from './car-changes.ts';
 import { activeChangeMask, applyChanges } from './car-changes.ts';
-import type { BridgeTable, BridgeTopology } from './bridge.ts';
-import { bridgeTable, diodeDropV, openCircuitRippleRatio } from './bridge.ts';
+import type { BridgePoint, BridgeTable, BridgeTopology } from './bridge.ts';
+import { bridgeOperatingPoint, bridgeTable, diodeDropV, openCircuitRippleRatio } from './bridge.ts';
 import { capacityAs } from './battery.ts';
 
 /** Copper's temperature coefficient of resistance near 20 C. */
@@ -37,6 +37,8 @@ export const COLD_ALTERNATOR_C = 25;
 const MIN_PATH_OHM = 2e-5;
 /** Reference field voltage for the EMF constant (see cut-in). */
 const REFERENCE_FIELD_V = 13.5;
+/** B+ voltage of the output curve and of the rating (SAE J56 test voltage). */
+export const CURVE_TEST_V = 13.5;
 
 export interface Model {
   p: VehicleParams;
@@ -81,6 +83,13 @@ export interface Model {
   twoPiPolePairs: number;
   /** e^(-dt/tau) of the fixed time constants, for the last dt asked (see decaysFor). */
   decays: Decays | null;
+  /**
+   * The healthy unit's sum of stator phase rms currents squared (A^2) when it
+   * gives its rated output at its rating speed: the copper loss that makes
+   * `alternator.fullLoadTempRiseC`. The winding heats in proportion to the
+   * stator's copper loss against this (see stepInto).
+   */
+  ratedStatorSquaresA2: number;
 }
 
 export interface Decays {
@@ -145,7 +154,7 @@ export function compile(p: VehicleParams): Model {
   const rStrapOhm = floor(copperResistanceOhm(w.groundStrapAwg, w.groundStrapLengthM) + joint);
   const rMountOhm = floor(joint + w.groundExtraOhm);
   const leakageG = a.keyOffLeakageA / 12.6;
-  return {
+  const model: Model = {
     p,
     topology,
     table: bridgeTable(topology),
@@ -178,7 +187,42 @@ export function compile(p: VehicleParams): Model {
     sensesBattery: p.regulator.sense === 'battery' && !(w.senseLineOhm > 1000),
     twoPiPolePairs: 2 * Math.PI * a.polePairs,
     decays: null,
+    ratedStatorSquaresA2: 0,
   };
+  model.ratedStatorSquaresA2 = ratedStatorSquaresA2(model);
+  return model;
+}
+
+const HEALTHY_BRIDGE: BridgeTopology = { openDiodes: [], shortedDiodes: [], openPhases: [] };
+
+/**
+ * Stator copper loss over R at the rating: the healthy bridge at the rating
+ * speed, full field, cold, 13.5 V at B+ (as the output curve), scaled from
+ * the output it gives there to the rated current (the sum of squares goes as
+ * the output squared at one speed). About 2 I_rated^2: each phase carries the
+ * output for two thirds of the cycle.
+ */
+function ratedStatorSquaresA2(m: Model): number {
+  const a = m.p.alternator;
+  const fallback = 2 * a.ratedCurrentA * a.ratedCurrentA;
+  const omegaE = (m.twoPiPolePairs * a.ratedAltRpm) / 60;
+  const fieldA = Math.max(0, (CURVE_TEST_V - FIELD_DRIVER_DROP_V) / fieldResistanceOhm(m, COLD_ALTERNATOR_C));
+  const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0 };
+  bridgeOperatingPoint(
+    {
+      table: bridgeTable(HEALTHY_BRIDGE),
+      emfPeakV: m.emfConstantVsPerRad * omegaE * relativeFlux(m, fieldA),
+      reactanceOhm: omegaE * a.synchronousInductanceH,
+      phaseResistanceOhm: copperAt(a.statorResistanceOhmAt20C, COLD_ALTERNATOR_C) + a.diodeSeriesResistanceOhm,
+      diode: m.diode,
+      dcTheveninV: CURVE_TEST_V,
+      dcResistanceOhm: 0,
+      guessA: 0,
+    },
+    point,
+  );
+  if (!(point.meanA > 1) || !(point.phaseSquaresA2 > 0)) return fallback;
+  return (point.phaseSquaresA2 / (point.meanA * point.meanA)) * a.ratedCurrentA * a.ratedCurrentA;
 }
 
 /** Flux of the claw-pole rotor relative to reference: saturates above the knee. */

@@ -79,6 +79,8 @@ export interface NetworkSolution {
   rippleShare01: number;
   /** Current through the B+ load-dump clamp (0 unless the stud would rise above BPLUS_CLAMP_V). */
   clampA: number;
+  /** Sum over the three stator phases of the rms current squared (A^2): the stator's copper loss over its resistance. */
+  statorSquaresA2: number;
 }
 
 /** Sum of currents into each node (A); every entry is ~0 when KCL holds. */
@@ -149,7 +151,7 @@ interface LinearResponses {
 const mat = new Float64Array(N * N);
 const COLS = 3;
 const rhs = new Float64Array(N * COLS);
-const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0 };
+const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0 };
 /**
  * The responses of the last few sets of conductances, most recently used
  * first. A pile stepped through a handful of settings comes back to each of
@@ -340,6 +342,7 @@ export function blankSolution(): NetworkSolution {
     rippleHarmonic: 6,
     rippleShare01: 1,
     clampA: 0,
+    statorSquaresA2: 0,
   };
 }
 
@@ -432,5 +435,6 @@ export function solveNetworkInto(n: NetworkInput, out: NetworkSolution): Network
   out.rippleCurrentRmsA = acA * share * clampShare;
   out.clampA = clampA;
   out.rippleHarmonic = point.dominantHarmonic;
+  out.statorSquaresA2 = point.phaseSquaresA2;
   return out;
 }

@@ -679,7 +679,10 @@ function stepRegulatorAndField(model: Model, state: SimState, keyOn: boolean, al
     const limitErr = REGULATOR_BPLUS_LIMIT_V - bplusV;
     const onLimit = limitErr < senseErr;
     const err = onLimit ? limitErr : senseErr;
-    const sensitivity = clamp(transferOhm(prev, onLimit, model), 1e-3, REGULATOR_SENSITIVITY_CAP_OHM);
+    // Scaled by the larger of the two points' sensitivities: the law switches between them, and a sense loop
+    // tuned only to its own point (a battery that no longer responds, the charging lead open) would drive the
+    // field at full gain straight past the B+ limit.
+    const sensitivity = clamp(Math.max(transferOhm(prev, onLimit, model), transferOhm(prev, true, model)), 1e-3, REGULATOR_SENSITIVITY_CAP_OHM);
     const scale = Math.min(1, REGULATOR_REFERENCE_OHM / sensitivity);
     integral = clamp(integral + REGULATOR_KI_PER_VS * scale * err * dt, 0, 1);
     duty = clamp(integral + REGULATOR_KP_PER_V * scale * err, 0, 1);
@@ -738,9 +741,10 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
   const field = stepRegulatorAndField(model, state, keyOn, altRpm, dt, fieldOut);
 
   // ---- Temperatures, battery charge, fuses ---------------------------------
-  const bridgeA = prev.bridgeCurrentA;
-  const loadFraction = bridgeA / p.alternator.ratedCurrentA;
-  const altHotC = model.underhoodC + p.alternator.fullLoadTempRiseC * loadFraction * loadFraction;
+  // The winding heats with the stator's copper loss (its phase currents, not the output: a bridge fault
+  // that makes a phase carry a standing DC current heats it more for the same output).
+  const copperFraction = prev.statorSquaresA2 / model.ratedStatorSquaresA2;
+  const altHotC = model.underhoodC + p.alternator.fullLoadTempRiseC * copperFraction;
   const altTempC = altHotC + (state.alternatorTempC - altHotC) * decay.alternatorThermal;
 
   const battery = stepBattery(

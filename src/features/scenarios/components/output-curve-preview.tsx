@@ -3,8 +3,9 @@ import { line } from 'd3-shape';
 import { useDeferredValue, useMemo } from 'react';
 import type { Fault } from '../../../../sim/faults.ts';
 import { faultChange } from '../../../../sim/faults.ts';
-import { outputCurve, type OutputCurvePoint } from '../../../../sim/instruments.ts';
+import { faultedCurveExcess, outputCurve, type OutputCurvePoint } from '../../../../sim/instruments.ts';
 import type { VehicleParams } from '../../../../sim/params.ts';
+import { CurveExcessNote } from '../../../components/curve-excess-note.tsx';
 
 interface Curves {
   healthy: OutputCurvePoint[];
@@ -124,19 +125,23 @@ export function OutputCurvePreview({ params, faults, passMarkA }: { params: Vehi
     { rpm: params.engine.idleRpm * ratio, label: 'idle' },
     { rpm: 2000 * ratio, label: '2,000 engine rpm' },
   ].filter((m) => m.rpm <= maxRpm);
+  const excess = faults.length ? faultedCurveExcess(healthy, faulted) : null;
   return (
-    <div className="flex flex-col gap-4 md:flex-row" data-testid="output-curve-preview">
-      <Chart title="Healthy" points={healthy} ratedA={ratedA} passMarkA={passMarkA} maxA={maxA} maxRpm={maxRpm} markers={markers} tone="live" />
-      <Chart
-        title={faults.length ? 'With the faults' : 'With the faults (none set)'}
-        points={faulted}
-        ratedA={ratedA}
-        passMarkA={passMarkA}
-        maxA={maxA}
-        maxRpm={maxRpm}
-        markers={markers}
-        tone="warn"
-      />
+    <div>
+      <div className="flex flex-col gap-4 md:flex-row" data-testid="output-curve-preview">
+        <Chart title="Healthy" points={healthy} ratedA={ratedA} passMarkA={passMarkA} maxA={maxA} maxRpm={maxRpm} markers={markers} tone="live" />
+        <Chart
+          title={faults.length ? 'With the faults' : 'With the faults (none set)'}
+          points={faulted}
+          ratedA={ratedA}
+          passMarkA={passMarkA}
+          maxA={maxA}
+          maxRpm={maxRpm}
+          markers={markers}
+          tone="warn"
+        />
+      </div>
+      <CurveExcessNote excess={excess} />
     </div>
   );
 }
