@@ -926,6 +926,14 @@ export interface BridgeTable {
   dominant: Uint8Array;
   /** Sum over the three phases of the rms current squared, in units of (E/X)^2 (the stator's copper loss over R). */
   phaseSquares: Float64Array;
+  /**
+   * Size of the standing DC part of the phase currents as a stator space
+   * vector, (2/3)|I_A + a I_B + a^2 I_C| of the three phase means, in units
+   * of E/X: zero for a healthy bridge; an open diode leaves its phase's DC
+   * current here. Its stationary field is what the rotor's iron sees (see
+   * fluxWithStatorDc in model.ts).
+   */
+  dcVector: Float64Array;
   /** Largest mean output anywhere in the table (units of E/X). */
   maxMean: number;
 }
@@ -964,6 +972,7 @@ function buildTable(topology: BridgeTopology): BridgeTable {
   const acRms = new Float64Array(size);
   const dominant = new Uint8Array(size);
   const phaseSquares = new Float64Array(size);
+  const dcVector = new Float64Array(size);
   /** Whether a grid point's conduction is discontinuous (every pulse starts from zero current). */
   const discontinuous = new Uint8Array(size);
   const m = masksOf(topology);
@@ -1023,6 +1032,8 @@ function buildTable(topology: BridgeTopology): BridgeTable {
         let squares = 0;
         for (let j = 0; j < 3 * n; j++) squares += rec.phaseA[j]! * rec.phaseA[j]!;
         phaseSquares[idx] = squares / n;
+        // A healthy bridge's phase currents have no DC part (each is the last one shifted by a third of a cycle).
+        if (faulted) dcVector[idx] = dcSpaceVector(rec);
         discontinuous[idx] = !shorted && conductionStarts(rec) === pattern.count ? 1 : 0;
         if (!(g > EDGE_MEAN)) continue;
         linearise(inp, m, p);
@@ -1108,8 +1119,26 @@ function buildTable(topology: BridgeTopology): BridgeTable {
       }
     }
   }
-  return { dropReference, dropLevels, drops: shorted ? SHORTED_DROP_AXIS : null, u: uAxis, s: sAxis, busTerm: faulted, root, rootPerB, rootPerRho, acRms, dominant, phaseSquares, maxMean };
+  return { dropReference, dropLevels, drops: shorted ? SHORTED_DROP_AXIS : null, u: uAxis, s: sAxis, busTerm: faulted, root, rootPerB, rootPerRho, acRms, dominant, phaseSquares, dcVector, maxMean };
 }
+
+/** (2/3)|I_A + a I_B + a^2 I_C| of the phase currents' means over a recorded cycle. */
+function dcSpaceVector(rec: CycleRecord): number {
+  const n = rec.n;
+  let a = 0;
+  let b = 0;
+  let c = 0;
+  for (let st = 0; st < n; st++) {
+    a += rec.phaseA[3 * st]!;
+    b += rec.phaseA[3 * st + 1]!;
+    c += rec.phaseA[3 * st + 2]!;
+  }
+  const re = (2 / 3) * (a - 0.5 * (b + c));
+  const im = (2 / 3) * SQRT3_OVER_2 * (b - c);
+  return Math.sqrt(re * re + im * im) / n;
+}
+
+const SQRT3_OVER_2 = Math.sqrt(3) / 2;
 
 /**
  * Steps per cycle for a row of the table. A shorted diode's circulating
@@ -1257,6 +1286,8 @@ export interface TableLookup {
   dominant: number;
   /** Sum over the phases of the rms current squared, in units of (E/X)^2. */
   phaseSquares: number;
+  /** The DC space vector of the phase currents (see BridgeTable.dcVector), in units of E/X. */
+  dcVector: number;
 }
 
 /**
@@ -1408,6 +1439,7 @@ function extrasAt(t: BridgeTable, u: number, pl: Placement, out: TableLookup): T
     out.acRms = 0;
     out.dominant = 6;
     out.phaseSquares = 0;
+    out.dcVector = 0;
     return out;
   }
   const c = column(t.u, u, columnScratch);
@@ -1415,12 +1447,14 @@ function extrasAt(t: BridgeTable, u: number, pl: Placement, out: TableLookup): T
   const lo = pl.li * layer;
   out.acRms = nodeValue(t.acRms, uPoints, lo, c, pl);
   out.phaseSquares = nodeValue(t.phaseSquares, uPoints, lo, c, pl);
+  out.dcVector = nodeValue(t.dcVector, uPoints, lo, c, pl);
   const near = (pl.ts < 0.5 ? pl.is : pl.is + 1) * uPoints + c.iu + (c.tu < 0.5 ? 0 : 1);
   out.dominant = t.dominant[lo + near]!;
   if (t.dropLevels.length > 1) {
     const hi = (pl.li + 1) * layer;
     out.acRms += (nodeValue(t.acRms, uPoints, hi, c, pl) - out.acRms) * pl.tl;
     out.phaseSquares += (nodeValue(t.phaseSquares, uPoints, hi, c, pl) - out.phaseSquares) * pl.tl;
+    out.dcVector += (nodeValue(t.dcVector, uPoints, hi, c, pl) - out.dcVector) * pl.tl;
     if (pl.tl >= 0.5) out.dominant = t.dominant[hi + near]!;
   }
   if (out.acRms < 0) out.acRms = 0;
@@ -1479,9 +1513,11 @@ export interface BridgePoint {
   dcV: number;
   /** Sum over the three stator phases of the rms current squared (A^2): the copper loss is this times R. */
   phaseSquaresA2: number;
+  /** The standing DC part of the phase currents as a stator space vector (A; 0 for a healthy bridge). */
+  statorDcA: number;
 }
 
-const scratch: TableLookup = { mean: 0, dMeanDu: 0, acRms: 0, dominant: 6, phaseSquares: 0 };
+const scratch: TableLookup = { mean: 0, dMeanDu: 0, acRms: 0, dominant: 6, phaseSquares: 0, dcVector: 0 };
 const pointPlace: Placement = { is: 0, ts: 0, li: 0, tl: 0, b: 0, rho: 0 };
 
 /**
@@ -1517,6 +1553,7 @@ export function bridgeOperatingPoint(inp: BridgePointInput, out: BridgePoint): B
   out.dominantHarmonic = 6;
   out.dcV = inp.dcTheveninV;
   out.phaseSquaresA2 = 0;
+  out.statorDcA = 0;
   if (!(e > 1e-6) || !(x > 1e-9)) return out;
   const base = e / x;
   const r = inp.phaseResistanceOhm / x;
@@ -1565,6 +1602,7 @@ export function bridgeOperatingPoint(inp: BridgePointInput, out: BridgePoint): B
   out.dominantHarmonic = scratch.dominant;
   out.dcV = vth + rth * i;
   out.phaseSquaresA2 = base * base * scratch.phaseSquares;
+  out.statorDcA = scratch.dcVector > 0 ? base * scratch.dcVector : 0;
   return out;
 }
 

@@ -16,7 +16,7 @@ import type { CarChange } from './car-changes.ts';
 import type { SimState, EngineStatus, EngineStopCause } from './step.ts';
 import type { Controls, Conductor, ConnectionPoint } from './inputs.ts';
 import type { NodeName, NetworkSolution } from './network.ts';
-import { COLD_ALTERNATOR_C, CURVE_TEST_V, FIELD_DRIVER_DROP_V, HOT_ALTERNATOR_C, copperAt, effectiveModel, fieldResistanceOhm, relativeFlux } from './model.ts';
+import { COLD_ALTERNATOR_C, CURVE_TEST_V, FIELD_DRIVER_DROP_V, HOT_ALTERNATOR_C, copperAt, effectiveModel, fieldResistanceOhm, fluxWithStatorDc } from './model.ts';
 import type { BridgePoint } from './bridge.ts';
 import { bridgeOperatingPoint, diodeDropV, periodicBridge } from './bridge.ts';
 
@@ -173,7 +173,7 @@ export function bridgeOperatingInputs(params: VehicleParams, state: SimState) {
   const m = effectiveModel(params, state.controls.changes, state.timeMs / 1000);
   const a = m.p.alternator;
   const omegaE = (2 * Math.PI * a.polePairs * state.altRpm) / 60;
-  const emfPeakV = m.emfConstantVsPerRad * omegaE * relativeFlux(m, state.fieldCurrentA);
+  const emfPeakV = m.emfConstantVsPerRad * omegaE * fluxWithStatorDc(m, state.fieldCurrentA, state.net.statorDcA);
   const net = state.net;
   const dcResistanceOhm = net.rippleOhm.bplus - net.rippleOhm.altCase;
   const portV = net.nodeV.bplus - net.nodeV.altCase;
@@ -231,6 +231,8 @@ export function rippleTrace(params: VehicleParams, state: SimState, samples: num
 
 const CURVE_MAX_ALT_RPM = 12000;
 const CURVE_STEP_ALT_RPM = 100;
+/** Most passes of the flux against the stator's DC current at one speed (see outputAtSpeed). */
+const STATOR_DC_PASSES = 8;
 
 /**
  * The output available at 13.5 V held at the B+ stud against alternator
@@ -256,26 +258,34 @@ export function outputAtSpeed(params: VehicleParams, changes: readonly CarChange
   const a = m.p.alternator;
   const tempC = options.hot ? HOT_ALTERNATOR_C : COLD_ALTERNATOR_C;
   const fieldA = Math.max(0, (CURVE_TEST_V - FIELD_DRIVER_DROP_V) / fieldResistanceOhm(m, tempC));
-  const flux = relativeFlux(m, fieldA);
   const rPhase = copperAt(a.statorResistanceOhmAt20C, tempC) + a.diodeSeriesResistanceOhm;
   const diode = { saturationCurrentA: a.diodeSaturationCurrentA, emissionCoefficient: a.diodeEmissionCoefficient };
-  const out: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0 };
+  const out: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0, statorDcA: 0 };
   let guess = 0;
+  let statorDcA = 0;
   return (rpm: number) => {
     const omegaE = (2 * Math.PI * a.polePairs * rpm) / 60;
-    bridgeOperatingPoint(
-      {
-        table: m.table,
-        emfPeakV: m.emfConstantVsPerRad * omegaE * flux,
-        reactanceOhm: omegaE * a.synchronousInductanceH,
-        phaseResistanceOhm: rPhase,
-        diode,
-        dcTheveninV: CURVE_TEST_V,
-        dcResistanceOhm: 0,
-        guessA: guess,
-      },
-      out,
-    );
+    // The flux depends on the stator's DC current, which depends on the flux: a few passes settle it (a healthy
+    // bridge has none, and one pass).
+    for (let pass = 0; pass < STATOR_DC_PASSES; pass++) {
+      bridgeOperatingPoint(
+        {
+          table: m.table,
+          emfPeakV: m.emfConstantVsPerRad * omegaE * fluxWithStatorDc(m, fieldA, statorDcA),
+          reactanceOhm: omegaE * a.synchronousInductanceH,
+          phaseResistanceOhm: rPhase,
+          diode,
+          dcTheveninV: CURVE_TEST_V,
+          dcResistanceOhm: 0,
+          guessA: guess,
+        },
+        out,
+      );
+      guess = out.meanA;
+      const settled = Math.abs(out.statorDcA - statorDcA) <= 1e-3 * (1 + statorDcA);
+      statorDcA = out.statorDcA;
+      if (settled) break;
+    }
     guess = out.meanA;
     return Math.max(0, out.meanA - fieldA);
   };

@@ -8,7 +8,7 @@
  * Units in names: V, A, Ohm, S (siemens), H, s, C, rad/s.
  */
 
-import { detExp, detTanh } from './det-math.ts';
+import { detCos, detExp, detTanh } from './det-math.ts';
 import type { VehicleParams } from './params.ts';
 import { copperResistanceOhm } from './params.ts';
 import type { CarChange } from './car-changes.ts';
@@ -90,6 +90,8 @@ export interface Model {
    * stator's copper loss against this (see stepInto).
    */
   ratedStatorSquaresA2: number;
+  /** Equivalent field current per ampere of stator DC current (see fluxWithStatorDc). */
+  fieldAPerStatorDcA: number;
 }
 
 export interface Decays {
@@ -188,6 +190,7 @@ export function compile(p: VehicleParams): Model {
     twoPiPolePairs: 2 * Math.PI * a.polePairs,
     decays: null,
     ratedStatorSquaresA2: 0,
+    fieldAPerStatorDcA: (a.synchronousInductanceH * a.fieldKneeCurrentA * detTanh(referenceFieldA / a.fieldKneeCurrentA)) / emfConstant,
   };
   model.ratedStatorSquaresA2 = ratedStatorSquaresA2(model);
   return model;
@@ -207,7 +210,7 @@ function ratedStatorSquaresA2(m: Model): number {
   const fallback = 2 * a.ratedCurrentA * a.ratedCurrentA;
   const omegaE = (m.twoPiPolePairs * a.ratedAltRpm) / 60;
   const fieldA = Math.max(0, (CURVE_TEST_V - FIELD_DRIVER_DROP_V) / fieldResistanceOhm(m, COLD_ALTERNATOR_C));
-  const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0 };
+  const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0, statorDcA: 0 };
   bridgeOperatingPoint(
     {
       table: bridgeTable(HEALTHY_BRIDGE),
@@ -223,6 +226,32 @@ function ratedStatorSquaresA2(m: Model): number {
   );
   if (!(point.meanA > 1) || !(point.phaseSquaresA2 > 0)) return fallback;
   return (point.phaseSquaresA2 / (point.meanA * point.meanA)) * a.ratedCurrentA * a.ratedCurrentA;
+}
+
+/** cos((2j + 1) pi / 8), j = 0..3: a mean over a turn of a smooth function of cos(theta) from four values (Gauss-Chebyshev). */
+const TURN_NODES = [0, 1, 2, 3].map((j) => detCos(((2 * j + 1) * Math.PI) / 8));
+
+/**
+ * Flux with the stator carrying a standing DC current (a bridge fault: with
+ * one diode open, its phase carries about the output in DC). That current's
+ * field stands still while the rotor turns, so the rotor's iron sees it as
+ * an equivalent field current swinging by +-d each turn about the field's
+ * own, and the iron's curve (the tanh of relativeFlux) bends over: the
+ * average flux, and with it the EMF, falls. d is the DC current's flux
+ * linkage L_s I_dc over the field's flux linkage per ampere below the knee
+ * (the EMF constant k over i_knee tanh(i_ref / i_knee)), all of them the
+ * machine's own constants; no further fitting. Armature reaction through
+ * the saturation curve (the MMF of the stator added to the field's),
+ * a textbook treatment; the estimate leaves out the stator iron's own
+ * knee and the rotor's eddy currents (see docs/model.md).
+ */
+export function fluxWithStatorDc(m: Model, fieldA: number, statorDcA: number): number {
+  if (!(statorDcA > 0)) return relativeFlux(m, fieldA);
+  const i = fieldA > 0 ? fieldA : 0;
+  const swing = m.fieldAPerStatorDcA * statorDcA;
+  let sum = 0;
+  for (const c of TURN_NODES) sum += detTanh((i + swing * c) / m.fieldKneeA);
+  return sum / TURN_NODES.length / m.tanhReference;
 }
 
 /** Flux of the claw-pole rotor relative to reference: saturates above the knee. */

@@ -81,6 +81,8 @@ export interface NetworkSolution {
   clampA: number;
   /** Sum over the three stator phases of the rms current squared (A^2): the stator's copper loss over its resistance. */
   statorSquaresA2: number;
+  /** The standing DC part of the stator's phase currents as a space vector (A; 0 for a healthy bridge). */
+  statorDcA: number;
 }
 
 /** Sum of currents into each node (A); every entry is ~0 when KCL holds. */
@@ -151,7 +153,7 @@ interface LinearResponses {
 const mat = new Float64Array(N * N);
 const COLS = 3;
 const rhs = new Float64Array(N * COLS);
-const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0 };
+const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0, statorDcA: 0 };
 /**
  * The responses of the last few sets of conductances, most recently used
  * first. A pile stepped through a handful of settings comes back to each of
@@ -343,6 +345,7 @@ export function blankSolution(): NetworkSolution {
     rippleShare01: 1,
     clampA: 0,
     statorSquaresA2: 0,
+    statorDcA: 0,
   };
 }
 
@@ -436,5 +439,6 @@ export function solveNetworkInto(n: NetworkInput, out: NetworkSolution): Network
   out.clampA = clampA;
   out.rippleHarmonic = point.dominantHarmonic;
   out.statorSquaresA2 = point.phaseSquaresA2;
+  out.statorDcA = point.statorDcA;
   return out;
 }

@@ -80,7 +80,7 @@ export function solveRectifier(circuit: RectifierCircuit): RectifierSolution {
   let acRmsA: number;
   let harmonic: number;
   if (circuit.battery && reactanceOhm > 0 && Number.isFinite(dcResistanceOhm)) {
-    const out: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0 };
+    const out: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0, statorDcA: 0 };
     bridgeOperatingPoint(
       {
         table: bridgeTable(topology),

@@ -30,7 +30,7 @@ import {
   copperAt,
   decaysFor,
   fieldResistanceOhm,
-  relativeFlux,
+  fluxWithStatorDc,
 } from './model.ts';
 import type { BatteryState } from './battery.ts';
 import { internalResistanceOhm, openCircuitVoltageV, stepBattery } from './battery.ts';
@@ -253,6 +253,8 @@ interface NetworkInputs {
   ammeterFuseBlown: boolean;
   modulesAwake: boolean;
   guessBridgeA: number;
+  /** The stator's standing DC current (space vector, A) of the last solution: its field saturates the iron. */
+  statorDcA: number;
 }
 
 // Reused for every solve (the network copies what it keeps); never escapes this module.
@@ -341,7 +343,7 @@ function solveAt(n: NetworkInputs, out: NetworkSolution): NetworkSolution {
   const cranking = c.key === 'start' && (n.engineStatus === 'cranking' || n.engineStatus === 'stalled');
 
   const omegaE = (m.twoPiPolePairs * n.altRpm) / 60;
-  const flux = relativeFlux(m, n.fieldCurrentA);
+  const flux = fluxWithStatorDc(m, n.fieldCurrentA, n.statorDcA);
 
   const a = p.alternator;
   const ni = networkInput;
@@ -406,6 +408,7 @@ export function initialState(params: VehicleParams, seed: number, changes: reado
     ammeterFuseBlown: false,
     modulesAwake: false,
     guessBridgeA: 0,
+    statorDcA: 0,
   }, blankSolution());
   // The blank state fixes the fields and their order (one shape for every state); these are the ones not zero at the start.
   return Object.assign(blankState(), {
@@ -439,6 +442,7 @@ const stepInputs: NetworkInputs = {
   ammeterFuseBlown: false,
   modulesAwake: false,
   guessBridgeA: 0,
+  statorDcA: 0,
 };
 
 /** A state for stepInto to fill: fresh objects, every field in the order the step writes (and JSON shows) them. */
@@ -800,6 +804,7 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
   at.ammeterFuseBlown = fuseBlown;
   at.modulesAwake = awakeS > 0;
   at.guessBridgeA = prev.bridgeCurrentA;
+  at.statorDcA = prev.statorDcA;
   // From here on `prev` (which may be out.net) is not read again.
   const net = solveAt(at, out.net);
 

@@ -89,7 +89,7 @@ describe('the bridge against a stiff DC source (per-unit: E = 1, X = 1)', () => 
   it('matches its cached characteristic within 1 % across the operating range', () => {
     // Self-consistency of the model's two levels (no external source).
     const table = bridgeTable(HEALTHY);
-    const out = { mean: 0, dMeanDu: 0, acRms: 0, dominant: 0, phaseSquares: 0 };
+    const out = { mean: 0, dMeanDu: 0, acRms: 0, dominant: 0, phaseSquares: 0, dcVector: 0 };
     for (const [u, r] of [
       [0.3, 0.08],
       [0.75, 0.2],
@@ -106,7 +106,7 @@ describe('the bridge against a stiff DC source (per-unit: E = 1, X = 1)', () => 
   it('never gives more output at a higher DC voltage or a higher resistance', () => {
     // Physical monotonicity (common practice, no source).
     const table = bridgeTable(HEALTHY);
-    const out = { mean: 0, dMeanDu: 0, acRms: 0, dominant: 0, phaseSquares: 0 };
+    const out = { mean: 0, dMeanDu: 0, acRms: 0, dominant: 0, phaseSquares: 0, dcVector: 0 };
     for (let r = 0.04; r < 3; r *= 1.3) {
       let last = Infinity;
       for (let u = 0; u < 1.8; u += 0.013) {
