@@ -3,6 +3,10 @@ import { eq } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
 import { expect } from 'vitest';
 import { assignments, classes, enrollments, scenarios, users } from '../../server/db/schema.ts';
+import type { ReadingQuantity } from '../../shared/api/attempts.ts';
+import { TEST_SETUPS } from '../../shared/test-setups.ts';
+import type { DiagnosticTest } from '../../sim/faults.ts';
+import { QUANTITY_LABELS } from '../../src/features/bench/components/reading-capture.ts';
 import type { E2eServer } from './support.ts';
 
 /** Assigns a library scenario (by its slug) to the class of the given student, open now. */
@@ -69,10 +73,17 @@ export async function loadDownTo(page: Page, volts: number): Promise<void> {
   throw new Error(`could not load the system down to ${volts} V`);
 }
 
-export async function recordReading(page: Page, test: string, quantity: string): Promise<void> {
+/**
+ * Records what the meter shows now for a test. Each test reads one quantity
+ * (shared/test-setups.ts), so the student picks the test and the panel says
+ * what it reads; `quantity` is the one the caller means to record, checked
+ * against what the panel says.
+ */
+export async function recordReading(page: Page, test: DiagnosticTest, quantity: ReadingQuantity): Promise<void> {
   const form = page.getByRole('form', { name: 'Record a reading' });
   await form.getByLabel('Test').selectOption(test);
-  await form.getByLabel('What was measured').selectOption(quantity);
+  expect(TEST_SETUPS[test].quantity).toBe(quantity);
+  await form.getByText(`Reads: ${QUANTITY_LABELS[quantity]}`).waitFor();
   const before = await page.getByTestId('recorded-reading').count();
   await form.getByRole('button', { name: 'Record this reading' }).click();
   await expect.poll(() => page.getByTestId('recorded-reading').count()).toBe(before + 1);

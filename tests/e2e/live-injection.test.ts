@@ -52,11 +52,14 @@ describe('live fault injection in the browser', () => {
     // The student is not told what happened.
     expect(await bench.getByText(/fusible link open/i).count()).toBe(0);
 
+    // The bench logged it as a change of the car, once, and the server took that log as it stands: applied, not flagged.
     const logged = await e2e.app.server.ctx.db
       .select({ kind: attemptEvents.kind, source: attemptEvents.source })
       .from(attemptEvents)
-      .where(and(eq(attemptEvents.attemptId, attemptId), eq(attemptEvents.kind, 'fault-inject')));
-    expect(logged).toEqual([{ kind: 'fault-inject', source: 'instructor' }]);
+      .where(and(eq(attemptEvents.attemptId, attemptId), eq(attemptEvents.kind, 'change-apply')));
+    expect(logged).toEqual([{ kind: 'change-apply', source: 'instructor' }]);
+    const injections = await board.evaluate(async (id) => (await (await fetch(`/api/live/attempts/${id}/injections`)).json()) as { injections: { status: string; flag: unknown }[] }, attemptId);
+    expect(injections.injections.map((i) => [i.status, i.flag])).toEqual([['applied', null]]);
 
     await bench.screenshot({ path: `${SCREENSHOT_DIR}/live-bench-after-injection.png`, fullPage: true });
     await board.screenshot({ path: `${SCREENSHOT_DIR}/live-board.png`, fullPage: true });
