@@ -10,8 +10,9 @@ import { defaultVehicleParams } from '../../sim/params';
 import { effectiveModel, fluxWithStatorDc, relativeFlux } from '../../sim/model';
 import { outputAtSpeed } from '../../sim/instruments';
 import { bridgeTable } from '../../sim/bridge';
+import { faultChange } from '../../sim/faults';
 
-const OPEN_DIODE = [{ id: 'open', kind: 'diode-open' as const, severity01: 1, onsetS: 0 }];
+const OPEN_DIODE = [faultChange({ id: 'open', kind: 'diode-open', severity01: 1, onsetS: 0 })];
 
 describe("the stator's standing DC current", () => {
   it('is zero for a healthy bridge and of the order of the output with a diode open', () => {
