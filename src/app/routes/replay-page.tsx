@@ -1,6 +1,8 @@
 /** /attempts/:attemptId/replay — a submitted attempt replayed read-only, with markers and comments. `?at=` opens at a moment (ms). */
 import { useParams, useSearchParams } from 'react-router-dom';
+import type { DiagnosticTest } from '../../../sim/faults.ts';
 import type { ReplayResponse } from '../../../shared/api/replay.ts';
+import { DIAGNOSTIC_TEST_LABELS } from '../../../shared/scenario.ts';
 import { ErrorState, PageHeader, Panel, Spinner } from '../../components/ui/states.tsx';
 import { useReplay } from '../../features/replay/api/get-replay.ts';
 import { ReplayBenchView } from '../../features/replay/components/replay-bench-view.tsx';
@@ -20,7 +22,7 @@ function Player({ replay, initialMs }: { replay: ReplayResponse; initialMs: numb
       <div className="grid gap-6 lg:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
         <div className="space-y-4">
           <Panel>
-            <ReplayBenchView frame={player.frame} />
+            <ReplayBenchView frame={player.frame} accessories={replay.vehicle.loads.accessories} showFaults />
           </Panel>
           <Panel>
             <ReplayControls player={player} markers={replay.markers} comments={replay.comments} />
@@ -39,7 +41,8 @@ function Player({ replay, initialMs }: { replay: ReplayResponse; initialMs: numb
                       <span className="font-mono text-live-700">
                         {r.value} {r.unit}
                       </span>{' '}
-                      <span className="text-slate-600">{r.where || r.test}</span>
+                      <span className="text-slate-700">{DIAGNOSTIC_TEST_LABELS[r.test as DiagnosticTest] ?? 'Reading'}</span>
+                      {r.where && <span className="block text-xs text-slate-600">{r.where}</span>}
                     </button>
                   </li>
                 ))}
