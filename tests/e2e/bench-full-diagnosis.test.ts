@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
 import { SCREENSHOT_DIR } from './browser.ts';
 import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
-import { assignToStudent, diagnose, holdRpm, hookUp, loadDownTo, reading, recordReading, startEngine } from './bench-helpers.ts';
+import { assignToStudent, diagnose, holdRpm, hookUp, loadDownTo, reading, recordReading, startEngine, toggleAccessory } from './bench-helpers.ts';
 
 const e2e = browserAndServerForFile();
 
@@ -58,8 +58,8 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await page.getByRole('button', { name: 'Load off' }).click();
 
     // 5 and 6. Voltage drops with the headlamps and blower on.
-    await page.getByRole('button', { name: 'Headlamps (low beam)' }).click();
-    await page.getByRole('button', { name: 'Heater blower (high)' }).click();
+    await toggleAccessory(page, 'Headlamps (low beam)');
+    await toggleAccessory(page, 'Heater blower (high)');
     await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
     values.chargeAmps = await reading(page, 'amps');
     await hookUp(page, { red: 'alt-bplus', black: 'battery-pos' });

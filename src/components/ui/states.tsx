@@ -57,3 +57,8 @@ export function Panel({ title, children, className = '' }: { title?: ReactNode; 
     </section>
   );
 }
+
+/** The page's usual width and margins, for pages under a full-width workspace route (the bench). */
+export function PageBody({ children }: { children: ReactNode }) {
+  return <div className="mx-auto max-w-7xl px-4 py-6 sm:py-8">{children}</div>;
+}

@@ -1,7 +1,7 @@
 /**
- * The bench: the reading strip, the engine-bay schematic with its hook-up,
- * the controls and the dial, the charts, the procedure for each test, the
- * readings and the diagnosis; after submission, the graded result.
+ * An attempt's bench: the workspace on a running attempt (its events sent to
+ * the server, its readings kept in this browser until submission); after
+ * submission, the graded result.
  */
 import { useMemo, useState } from 'react';
 import { Link } from 'react-router-dom';
@@ -10,29 +10,18 @@ import { outputCurve } from '../../../../sim/instruments.ts';
 import type { AttemptBootstrap, AttemptResult } from '../../../../shared/api/attempts.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../../../shared/scenario.ts';
 import { paths } from '../../../config/paths.ts';
-import { ErrorState, PageHeader, Panel, Spinner } from '../../../components/ui/states.tsx';
+import { ErrorState, PageBody, PageHeader, Panel, Spinner } from '../../../components/ui/states.tsx';
 import { useSubmitAttempt } from '../api/submit-attempt.ts';
-import { BenchEngineContext } from '../hooks/use-bench.ts';
 import { useBenchSession, type BenchSession } from '../hooks/use-bench-session.ts';
 import { useLiveInjections } from '../hooks/use-live-injections.ts';
 import { useLocalReadings } from '../hooks/use-local-readings.ts';
 import { AttemptResultView } from './attempt-result.tsx';
-import { BenchSchematic } from './bench-schematic.tsx';
-import { BenchStatus } from './bench-status.tsx';
+import { BenchWorkspace } from './bench-workspace.tsx';
 import { LiveConnectionStatus } from './connection-status.tsx';
 import { DiagnosisForm, type DiagnosisValues } from './diagnosis-form.tsx';
-import { AccessorySwitches, KeySwitch, RpmControl } from './engine-controls.tsx';
-import { HookupPanel } from './hookup-panel.tsx';
 import { OutputCurveChart } from './output-curve-chart.tsx';
-import { PileControl } from './pile-control.tsx';
-import { GENERAL_CAUTIONS } from './procedure-content.ts';
-import { ProcedurePanel } from './procedure-panel.tsx';
 import { toRecorded, type LocalReading } from './reading-capture.ts';
-import { ReadingStrip } from './reading-strip.tsx';
-import { ReadingsPanel } from './readings-panel.tsx';
-import { RippleScope } from './ripple-scope.tsx';
-import { StripChart } from './strip-chart.tsx';
-import { TimeControls } from './time-controls.tsx';
+import { ReadingsList, RecordBar } from './readings-panel.tsx';
 
 const testLabel = (t: DiagnosticTest) => DIAGNOSTIC_TEST_LABELS[t];
 
@@ -73,7 +62,6 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
   const scenario = boot.scenario;
   const vehicle = session.vehicle;
   const tests = scenario.tests;
-  const testIds = tests.map((t) => t.test);
   const practice = boot.attempt.mode === 'practice';
   const curve = useMemo(() => (practice ? outputCurve(vehicle, faults, { hot: false }) : null), [practice, vehicle, faults]);
 
@@ -107,84 +95,28 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
   };
 
   return (
-    <BenchEngineContext.Provider value={engine}>
-      <PageHeader
-        title={scenario.title}
-        description={
-          <>
-            <span className="block">{scenario.summary}</span>
-            <span className="mt-1 block text-xs text-slate-600">
-              {scenario.vehicle.name} · {scenario.vehicle.engineDescription} · alternator rated {scenario.vehicle.alternatorRatedA} A · battery {scenario.vehicle.batteryCca} CCA,{' '}
-              {scenario.vehicle.batteryCapacityAh} Ah · pulley {scenario.vehicle.pulleyRatio}:1 · {practice ? 'practice run (ungraded)' : 'assigned'}
-            </span>
-          </>
-        }
-        actions={<LiveConnectionStatus outbox={outbox} />}
-      />
-      <div className="space-y-4">
-        <ReadingStrip />
-        <BenchStatus />
-        <div className="grid gap-4 lg:grid-cols-12">
-          <div className="lg:col-span-8">
-            <BenchSchematic accessories={vehicle.loads.accessories} />
-          </div>
-          <Panel className="lg:col-span-4" title="Controls">
-            <div className="space-y-5">
-              <KeySwitch />
-              <RpmControl idleRpm={vehicle.engine.idleRpm} maxRpm={Math.min(3000, vehicle.engine.maxHeldRpm)} />
-              <PileControl pile={vehicle.pile} />
-            </div>
-          </Panel>
-        </div>
-        <div className="grid gap-4 lg:grid-cols-12">
-          <Panel className="lg:col-span-5" title="Hook-up">
-            <HookupPanel />
-          </Panel>
-          <Panel className="lg:col-span-4" title="Last minute">
-            <StripChart />
-          </Panel>
-          <Panel className="lg:col-span-3" title="Ripple">
-            <RippleScope />
-          </Panel>
-        </div>
-        <div className="grid gap-4 lg:grid-cols-12">
-          <Panel className="lg:col-span-8" title="Accessories">
-            <AccessorySwitches accessories={vehicle.loads.accessories} />
-          </Panel>
-          <Panel className="lg:col-span-4" title="Time">
-            <TimeControls />
-          </Panel>
-        </div>
-        <div className="grid gap-4 lg:grid-cols-2">
-          <Panel title="Procedure">
-            <ProcedurePanel tests={testIds} rules={scenario.passRules} ratedA={scenario.vehicle.alternatorRatedA} cca={scenario.vehicle.batteryCca} />
-          </Panel>
-          <Panel title="Readings">
-            <ReadingsPanel tests={tests} readings={readings} onAdd={add} onRemove={remove} disabled={busy} />
-          </Panel>
-        </div>
-        {curve && (
-          <Panel title="Output curve (practice)">
-            <p className="mb-2 text-xs text-slate-500">The fitted unit’s output at 13.5 V against alternator speed; dots are your output readings.</p>
-            <div className="max-w-2xl">
-              <OutputCurveChart fitted={curve} measured={measuredPoints(readings, vehicle.belt.pulleyRatio)} ratedA={scenario.vehicle.alternatorRatedA} />
-            </div>
-          </Panel>
-        )}
-        <Panel title="Diagnosis">
-          <DiagnosisForm tests={tests} choices={scenario.diagnosisChoices} readingCount={readings.length} submitting={busy || submit.isPending} error={submitError} onSubmit={(d) => void onSubmit(d)} />
-        </Panel>
-        <aside aria-label="Safety" className="rounded-xl bg-white p-4 text-xs text-slate-600 ring-1 ring-slate-200">
-          <p className="mb-1 font-semibold text-slate-800">Safety on a real car</p>
-          <ul className="list-disc space-y-0.5 pl-5">
-            {GENERAL_CAUTIONS.map((c) => (
-              <li key={c}>{c}</li>
-            ))}
-          </ul>
-          <p className="mt-2">Always work to the vehicle maker’s service information, local codes and licensed practice.</p>
-        </aside>
-      </div>
-    </BenchEngineContext.Provider>
+    <BenchWorkspace
+      engine={engine}
+      scenario={scenario}
+      vehicle={vehicle}
+      modeText={practice ? 'practice run (ungraded)' : 'assigned'}
+      status={<LiveConnectionStatus outbox={outbox} />}
+      readingCount={readings.length}
+      readings={<ReadingsList tests={tests} readings={readings} onRemove={remove} disabled={busy} />}
+      recordBar={<RecordBar tests={tests} accessories={vehicle.loads.accessories} onAdd={add} disabled={busy} />}
+      charts={
+        curve && (
+          <section aria-labelledby="curve-heading">
+            <h3 id="curve-heading" className="text-sm font-semibold text-slate-900">
+              Output curve (practice)
+            </h3>
+            <p className="mb-2 text-xs text-slate-600">The fitted unit’s output at 13.5 V against alternator speed; dots are your output readings.</p>
+            <OutputCurveChart fitted={curve} measured={measuredPoints(readings, vehicle.belt.pulleyRatio)} ratedA={scenario.vehicle.alternatorRatedA} />
+          </section>
+        )
+      }
+      diagnose={<DiagnosisForm tests={tests} choices={scenario.diagnosisChoices} readingCount={readings.length} submitting={busy || submit.isPending} error={submitError} onSubmit={(d) => void onSubmit(d)} />}
+    />
   );
 }
 
@@ -193,9 +125,29 @@ export function BenchScreen({ boot }: { boot: AttemptBootstrap }) {
   const submitted = boot.attempt.status === 'submitted' || result !== null;
   const { session, error } = useBenchSession(boot, !submitted);
   useLiveInjections(boot.attempt.id, session?.engine ?? null, boot.benchKey);
-  if (submitted && result) return <SubmittedView boot={boot} result={result} />;
-  if (submitted) return <PageHeader title={boot.scenario.title} description="This attempt was submitted." />;
-  if (error) return <ErrorState error={error} />;
-  if (!session) return <Spinner label="Setting up the bench" />;
+  if (submitted && result)
+    return (
+      <PageBody>
+        <SubmittedView boot={boot} result={result} />
+      </PageBody>
+    );
+  if (submitted)
+    return (
+      <PageBody>
+        <PageHeader title={boot.scenario.title} description="This attempt was submitted." />
+      </PageBody>
+    );
+  if (error)
+    return (
+      <PageBody>
+        <ErrorState error={error} />
+      </PageBody>
+    );
+  if (!session)
+    return (
+      <PageBody>
+        <Spinner label="Setting up the bench" />
+      </PageBody>
+    );
   return <LiveBench boot={boot} session={session} onResult={setResult} />;
 }

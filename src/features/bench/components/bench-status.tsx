@@ -1,55 +1,66 @@
 /**
- * What the model says has happened to the car: engine state, the charge
- * lamp, an open fusible link, a hot or cut-out pile, a battery running down.
+ * What the model says has happened to the car: the engine and the charge
+ * lamp as small chips, and what needs the student's attention (an open
+ * fusible link, a cut-out pile, a stalled engine, a battery running down,
+ * the B+ lead off with the engine running) as notices over the drawing.
  */
+import type { BenchSnapshot } from '../stores/bench-engine.ts';
 import { shallowEqual, useBench } from '../hooks/use-bench.ts';
 
-const selectStatus = (s: { linkBlownHere: boolean; readings: { engine: string; chargeWarning: boolean; pileOverheated: boolean; pileHot: boolean; voltmeterV: number | null; batterySoc01: number }; controls: { key: string } ; timeMs: number }) => ({
+const selectStatus = (s: BenchSnapshot) => ({
   engine: s.readings.engine,
   lamp: s.readings.chargeWarning,
   link: s.linkBlownHere,
   over: s.readings.pileOverheated,
-  hot: s.readings.pileHot,
   key: s.controls.key,
+  bplus: s.controls.bplusConnected,
   low: s.readings.batterySoc01 < 0.25,
-  minutes: Math.floor(s.timeMs / 60_000),
-  seconds: Math.floor((s.timeMs % 60_000) / 1000),
 });
 
-const ENGINE_WORDS: Record<string, string> = { off: 'Engine stopped', cranking: 'Cranking', running: 'Engine running', stalled: 'Engine stalled — will not crank' };
+const ENGINE_WORDS: Record<string, string> = { off: 'Engine stopped', cranking: 'Cranking', running: 'Engine running', stalled: 'Engine stalled' };
 
-export function BenchStatus() {
+export function BenchChips() {
   const s = useBench(selectStatus, shallowEqual);
   return (
-    <div className="flex flex-wrap items-center gap-2 text-xs font-medium">
-      <span className="rounded-full bg-white px-2.5 py-1 text-slate-700 ring-1 ring-slate-200">
+    <>
+      <span className="whitespace-nowrap rounded-full bg-white px-2.5 py-1 text-xs font-medium text-slate-700 ring-1 ring-slate-200" data-testid="engine-state">
         {ENGINE_WORDS[s.engine] ?? s.engine}
       </span>
-      <span className={`rounded-full px-2.5 py-1 ring-1 ${s.lamp ? 'bg-warn-100 text-warn-700 ring-warn-500/40' : 'bg-white text-slate-500 ring-slate-200'}`}>
+      <span className={`whitespace-nowrap rounded-full px-2.5 py-1 text-xs font-medium ring-1 ${s.lamp ? 'bg-warn-100 text-warn-700 ring-warn-500/40' : 'bg-white text-slate-600 ring-slate-200'}`}>
         Charge lamp {s.lamp ? 'on' : 'off'}
       </span>
-      <span className="rounded-full bg-white px-2.5 py-1 font-mono text-slate-500 ring-1 ring-slate-200" aria-label={`Bench time ${s.minutes} minutes ${s.seconds} seconds`}>
-        {String(s.minutes).padStart(2, '0')}:{String(s.seconds).padStart(2, '0')}
-      </span>
+    </>
+  );
+}
+
+/** Notices that stay until the cause is gone; safety stops in red, cautions in amber. */
+export function BenchAlerts() {
+  const s = useBench(selectStatus, shallowEqual);
+  const caution = 'rounded-lg bg-warn-100 px-3 py-1.5 text-xs font-medium text-warn-700 shadow-sm ring-1 ring-warn-500/40';
+  return (
+    <div className="pointer-events-none flex flex-col items-start gap-1.5" data-testid="bench-alerts">
+      {s.over && (
+        <p role="alert" className="rounded-lg bg-stop-600 px-3 py-1.5 text-xs font-semibold text-white shadow-sm">
+          Stop: carbon pile overheated and cut out. Turn the dial to zero and let it cool.
+        </p>
+      )}
       {s.link && (
-        <span role="alert" className="rounded-full bg-warn-100 px-2.5 py-1 text-warn-700 ring-1 ring-warn-500/40">
+        <p role="alert" className={caution}>
           The fusible link has burnt open: the load was held over its rating too long. The alternator no longer reaches the battery.
-        </span>
+        </p>
+      )}
+      {!s.bplus && s.engine === 'running' && (
+        <p role="alert" className={caution} data-testid="bplus-caution">
+          Caution: the B+ lead is off with the engine running. On a real car, stop the engine and disconnect the battery before removing or refitting it: the lead is live and can arc, and an alternator running with its output open can spike the voltage.
+        </p>
       )}
       {s.engine === 'stalled' && (
-        <span role="alert" className="rounded-full bg-warn-100 px-2.5 py-1 text-warn-700 ring-1 ring-warn-500/40">
-          Battery too low to crank
-        </span>
+        <p role="alert" className={caution}>
+          Battery too low to crank: the engine will not start until the key is turned off and back.
+        </p>
       )}
       {s.key !== 'off' && s.engine !== 'running' && s.engine !== 'cranking' && (
-        <span className="rounded-full bg-warn-100 px-2.5 py-1 text-warn-700 ring-1 ring-warn-500/40">
-          Key on, engine stopped: the battery is running down{s.low ? ' and is nearly flat' : ''}
-        </span>
-      )}
-      {s.over && (
-        <span role="alert" className="rounded-full bg-stop-600 px-2.5 py-1 text-white">
-          Stop: carbon pile overheated
-        </span>
+        <p className={caution}>Key on, engine stopped: the battery is running down{s.low ? ' and is nearly flat' : ''}.</p>
       )}
     </div>
   );

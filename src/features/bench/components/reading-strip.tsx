@@ -31,13 +31,13 @@ export function stripValues(r: Readings): StripValues {
 
 function Readout({ label, value, unit, testId }: { label: string; value: string; unit: string; testId: string }) {
   return (
-    <div className="min-w-0 flex-1 px-4 py-3">
-      <dt className="text-xs font-medium uppercase tracking-wide text-slate-400">{label}</dt>
-      <dd className="mt-0.5 flex items-baseline gap-1.5">
-        <span data-testid={testId} className={`font-mono text-3xl font-semibold tabular-nums ${value === '—' ? 'text-slate-500' : 'text-live-300'}`}>
+    <div className="min-w-0 px-3 py-1.5 lg:py-2">
+      <dt className="truncate text-[11px] font-medium uppercase tracking-wide text-slate-300">{label}</dt>
+      <dd className="flex min-w-0 items-baseline gap-1">
+        <span data-testid={testId} className={`font-mono text-xl font-semibold tabular-nums sm:text-2xl xl:text-3xl ${value === '—' ? 'text-slate-400' : 'text-live-300'}`}>
           {value}
         </span>
-        <span className="text-sm text-slate-400">{unit}</span>
+        <span className="truncate text-xs text-slate-300 sm:text-sm">{unit}</span>
       </dd>
     </div>
   );
@@ -48,8 +48,8 @@ export function ReadingStrip() {
   const v = stripValues(readings);
   const drawUnit = v.draw.endsWith(' A') ? '' : UNITS.draw;
   return (
-    <div className="rounded-xl bg-slate-900 shadow-sm">
-      <dl className="flex flex-wrap divide-x divide-slate-800">
+    <div className="rounded-xl bg-slate-900 shadow-sm" data-testid="reading-strip">
+      <dl className="grid grid-cols-3 gap-y-1 divide-slate-800 sm:grid-cols-5 sm:divide-x">
         <Readout label="Volts (DC)" value={v.volts} unit={UNITS.volts} testId="reading-volts" />
         <Readout label="Amps (clamp)" value={v.amps} unit={UNITS.amps} testId="reading-amps" />
         <Readout label="Engine" value={v.rpm} unit={UNITS.rpm} testId="reading-rpm" />

@@ -1,6 +1,7 @@
 /**
- * Recording readings: pick the test and the quantity, and "Record this
- * reading" writes down what the meter shows now, with the sim time and the
+ * Recording readings: the record bar takes the test from the procedure in
+ * view and the quantity that test usually records (both can be changed), and
+ * "Record" writes down what the meter shows now, with the sim time and the
  * hook-up in words. The list can be pruned before submitting.
  */
 import { useEffect } from 'react';
@@ -8,13 +9,13 @@ import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
 import type { DiagnosticTest } from '../../../../sim/faults.ts';
-import { readingQuantitySchema } from '../../../../shared/api/attempts.ts';
+import type { AccessoryParams } from '../../../../sim/params.ts';
+import { readingQuantitySchema, type ReadingQuantity } from '../../../../shared/api/attempts.ts';
 import { diagnosticTestSchema } from '../../../../shared/scenario.ts';
 import { Button } from '../../../components/ui/button.tsx';
-import { SelectField, TextField } from '../../../components/ui/field.tsx';
 import { useBenchEngine } from '../hooks/use-bench.ts';
-import { useBenchUi } from '../stores/bench-ui-store.ts';
-import { DEFAULT_QUANTITY, QUANTITY_LABELS, describeSetup, meterValue, type LocalReading } from './reading-capture.ts';
+import { DEFAULT_QUANTITY, describeSetup, meterValue, type LocalReading } from './reading-capture.ts';
+import { SHORT_TEST_NAMES, useOpenTest } from './procedure-panel.tsx';
 
 const recordFormSchema = z.object({
   test: diagnosticTestSchema,
@@ -27,23 +28,32 @@ function newId(): string {
   return globalThis.crypto?.randomUUID?.() ?? `r-${Date.now().toString(36)}-${Math.random().toString(36).slice(2, 10)}`;
 }
 
-const formatTime = (ms: number) => `${String(Math.floor(ms / 60_000)).padStart(2, '0')}:${String(Math.floor((ms % 60_000) / 1000)).padStart(2, '0')}`;
+export const formatClock = (ms: number) => `${String(Math.floor(ms / 60_000)).padStart(2, '0')}:${String(Math.floor((ms % 60_000) / 1000)).padStart(2, '0')}`;
 
-export function ReadingsPanel({
+/** Short names for the record bar's narrow list. */
+const QUANTITY_SHORT: Record<ReadingQuantity, string> = {
+  voltage: 'Volts DC',
+  current: 'Amps (clamp)',
+  ripple: 'Ripple AC',
+  rpm: 'Engine rpm',
+  draw: 'Draw (ammeter)',
+};
+
+const selectClass = 'block w-full min-w-0 rounded-md border-0 bg-white py-1.5 pl-2 pr-7 text-sm text-slate-900 ring-1 ring-slate-300 focus:ring-2 focus:ring-live-500 aria-[invalid=true]:ring-stop-600';
+
+export function RecordBar({
   tests,
-  readings,
+  accessories,
   onAdd,
-  onRemove,
   disabled,
 }: {
   tests: { test: DiagnosticTest; label: string }[];
-  readings: LocalReading[];
+  accessories: readonly AccessoryParams[];
   onAdd: (r: LocalReading) => void;
-  onRemove: (id: string) => void;
   disabled?: boolean;
 }) {
   const engine = useBenchEngine();
-  const procedure = useBenchUi((s) => s.procedure);
+  const procedure = useOpenTest(tests.map((t) => t.test));
   const form = useForm<RecordForm>({
     resolver: zodResolver(recordFormSchema),
     defaultValues: { test: procedure, quantity: DEFAULT_QUANTITY[procedure], note: '' },
@@ -63,7 +73,7 @@ export function ReadingsPanel({
       setError('quantity', { message: 'That meter shows no reading now: check the hook-up.' });
       return;
     }
-    const setup = describeSetup(engine.getSnapshot().controls, meters);
+    const setup = describeSetup(engine.getSnapshot().controls, meters, accessories);
     onAdd({
       id: newId(),
       test: values.test,
@@ -77,68 +87,78 @@ export function ReadingsPanel({
     setValue('note', '');
   });
 
+  const error = formState.errors.quantity?.message ?? formState.errors.note?.message;
   return (
-    <div className="space-y-4">
-      <form onSubmit={record} className="grid gap-3 sm:grid-cols-2" aria-label="Record a reading">
-        <SelectField label="Test" {...register('test')} error={formState.errors.test?.message}>
-          {tests.map((t) => (
-            <option key={t.test} value={t.test}>
-              {t.label}
-            </option>
-          ))}
-        </SelectField>
-        <SelectField label="What was measured" {...register('quantity')} error={formState.errors.quantity?.message}>
-          {(Object.keys(QUANTITY_LABELS) as (keyof typeof QUANTITY_LABELS)[]).map((q) => (
-            <option key={q} value={q}>
-              {QUANTITY_LABELS[q]}
-            </option>
-          ))}
-        </SelectField>
-        <div className="sm:col-span-2">
-          <TextField label="Note (optional)" placeholder="e.g. after 15 s at half CCA" {...register('note')} error={formState.errors.note?.message} />
-        </div>
-        <div className="sm:col-span-2">
-          <Button type="submit" disabled={disabled}>
-            Record this reading
-          </Button>
-        </div>
-      </form>
-      {readings.length === 0 ? (
-        <p className="text-sm text-slate-500">No readings recorded yet.</p>
-      ) : (
-        <table className="w-full text-left text-sm" aria-label="Recorded readings">
-          <thead className="text-xs uppercase tracking-wide text-slate-400">
-            <tr>
-              <th className="py-1 font-medium">Time</th>
-              <th className="py-1 font-medium">Test</th>
-              <th className="py-1 text-right font-medium">Value</th>
-              <th className="py-1 pl-3 font-medium">Where</th>
-              <th className="py-1">
-                <span className="sr-only">Remove</span>
-              </th>
-            </tr>
-          </thead>
-          <tbody className="divide-y divide-slate-100">
-            {readings.map((r) => (
-              <tr key={r.id} data-testid="recorded-reading">
-                <td className="py-1.5 font-mono text-xs text-slate-500">{formatTime(r.atMs)}</td>
-                <td className="py-1.5 text-slate-700">{tests.find((t) => t.test === r.test)?.label ?? r.test}</td>
-                <td className="whitespace-nowrap py-1.5 text-right font-mono font-semibold text-slate-900">
-                  {r.value} {r.unit}
-                </td>
-                <td className="max-w-56 truncate py-1.5 pl-3 text-xs text-slate-500" title={r.where}>
-                  {r.where}
-                </td>
-                <td className="py-1.5 text-right">
-                  <Button variant="ghost" size="sm" disabled={disabled} onClick={() => onRemove(r.id)} aria-label={`Remove reading ${r.value} ${r.unit}`}>
-                    Remove
-                  </Button>
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
+    <form onSubmit={record} aria-label="Record a reading" className="grid grid-cols-2 gap-1.5" noValidate>
+      <label className="sr-only" htmlFor="record-test">
+        Test
+      </label>
+      <select id="record-test" {...register('test')} className={selectClass}>
+        {tests.map((t) => (
+          <option key={t.test} value={t.test}>
+            {SHORT_TEST_NAMES[t.test]}
+          </option>
+        ))}
+      </select>
+      <label className="sr-only" htmlFor="record-quantity">
+        What was measured
+      </label>
+      <select id="record-quantity" {...register('quantity')} aria-invalid={formState.errors.quantity ? true : undefined} aria-describedby={error ? 'record-error' : undefined} className={selectClass}>
+        {(Object.keys(QUANTITY_SHORT) as (keyof typeof QUANTITY_SHORT)[]).map((q) => (
+          <option key={q} value={q}>
+            {QUANTITY_SHORT[q]}
+          </option>
+        ))}
+      </select>
+      <label className="sr-only" htmlFor="record-note">
+        Note (optional)
+      </label>
+      <div className="col-span-2 flex gap-1.5">
+        <input id="record-note" placeholder="Note (optional)" {...register('note')} className={`${selectClass} min-w-0 flex-1 pr-2`} />
+        <Button type="submit" disabled={disabled} data-testid="record-button" className="shrink-0 whitespace-nowrap">
+          Record this reading
+        </Button>
+      </div>
+      {error && (
+        <p id="record-error" role="alert" className="col-span-2 text-xs font-medium text-stop-700">
+          {error}
+        </p>
       )}
-    </div>
+    </form>
+  );
+}
+
+export function ReadingsList({
+  tests,
+  readings,
+  onRemove,
+  disabled,
+}: {
+  tests: { test: DiagnosticTest; label: string }[];
+  readings: LocalReading[];
+  onRemove: (id: string) => void;
+  disabled?: boolean;
+}) {
+  if (readings.length === 0) return <p className="text-sm text-slate-600">No readings recorded yet. Set up a test, then press “Record this reading” below.</p>;
+  return (
+    <ul className="divide-y divide-slate-100 text-sm" aria-label="Recorded readings">
+      {readings.map((r) => (
+        <li key={r.id} data-testid="recorded-reading" className="flex items-start gap-2 py-2">
+          <span className="w-11 shrink-0 pt-0.5 font-mono text-xs text-slate-600">{formatClock(r.atMs)}</span>
+          <span className="min-w-0 flex-1">
+            <span className="flex flex-wrap items-baseline gap-x-2">
+              <span className="whitespace-nowrap font-mono font-semibold text-slate-900">
+                {r.value} {r.unit}
+              </span>
+              <span className="text-slate-700">{tests.find((t) => t.test === r.test)?.label ?? SHORT_TEST_NAMES[r.test]}</span>
+            </span>
+            <span className="block text-xs text-slate-600">{r.where}</span>
+          </span>
+          <Button variant="ghost" size="sm" disabled={disabled} onClick={() => onRemove(r.id)} aria-label={`Remove reading ${r.value} ${r.unit}`}>
+            Remove
+          </Button>
+        </li>
+      ))}
+    </ul>
   );
 }

@@ -35,6 +35,14 @@ const TRACE_SAMPLES = 240;
 export const DISPLAY_INTERVAL_MS = 100;
 /** The key springs back from start to on after this long, or once the engine runs. */
 export const START_HOLD_MS = 1500;
+/** The pile counts as loaded (a burst under way) above this current. */
+export const BURST_MIN_A = 5;
+
+/** The carbon pile's loaded burst: when the one under way began, and how long the last one lasted (sim ms). */
+export interface PileBurst {
+  sinceMs: number | null;
+  lastMs: number | null;
+}
 
 export interface HistorySample {
   tMs: number;
@@ -63,6 +71,7 @@ export interface BenchSnapshot {
    * that was open before the student arrived is not shown: finding it is the job.
    */
   linkBlownHere: boolean;
+  burst: PileBurst;
 }
 
 export interface BenchEngineOptions {
@@ -97,7 +106,17 @@ export interface BenchEngine {
 }
 
 function emptySnapshot(point: ReplayPoint, display: MeterDisplay, eventCount: number): BenchSnapshot {
-  return { timeMs: point.state.timeMs, readings: display.readings, display, controls: point.controls, history: [], trace: null, eventCount, linkBlownHere: point.state.fusibleLinkBlown };
+  return {
+    timeMs: point.state.timeMs,
+    readings: display.readings,
+    display,
+    controls: point.controls,
+    history: [],
+    trace: null,
+    eventCount,
+    linkBlownHere: point.state.fusibleLinkBlown,
+    burst: { sinceMs: display.readings.pileA > BURST_MIN_A ? point.state.timeMs : null, lastMs: null },
+  };
 }
 
 export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
@@ -142,16 +161,26 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
     trace = leads.red && leads.black ? rippleTrace(params, point.state, TRACE_SAMPLES) : null;
   }
 
+  let burst: PileBurst = snapshot.burst;
+
   function publish(): void {
+    const readings = readMeters(params, point.state);
+    const t = point.state.timeMs;
+    if (readings.pileA > BURST_MIN_A) {
+      if (burst.sinceMs === null) burst = { sinceMs: t, lastMs: burst.lastMs };
+    } else if (burst.sinceMs !== null) {
+      burst = { sinceMs: null, lastMs: t - burst.sinceMs };
+    }
     snapshot = {
-      timeMs: point.state.timeMs,
-      readings: readMeters(params, point.state),
+      timeMs: t,
+      readings,
       display,
       controls: shownControls,
       history,
       trace,
       eventCount: student.length,
       linkBlownHere: point.state.fusibleLinkBlown,
+      burst,
     };
     for (const l of [...listeners]) l();
   }
