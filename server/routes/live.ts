@@ -42,14 +42,17 @@ export function liveRoutes(ctx: AppContext) {
     return { classId, className: name, attempts: list };
   }
 
+  // A class that does not exist is named as such (404) before whether the user teaches it (403).
   g.get('/classes/:classId/board', INSTRUCTORS, async (req, res) => {
     const { classId } = parseParams(classParamsSchema, req);
+    await className(ctx.db, classId);
     await requireClassInstructor(ctx.db, currentUser(req), classId);
     res.json(await snapshot(classId));
   });
 
   g.get('/classes/:classId/stream', INSTRUCTORS, async (req, res) => {
     const { classId } = parseParams(classParamsSchema, req);
+    await className(ctx.db, classId);
     await requireClassInstructor(ctx.db, currentUser(req), classId);
     const first = await snapshot(classId);
     const sse = openSse(req, res);

@@ -1,8 +1,12 @@
 /** /bench/:attemptId: the live bench of one attempt (resumes where it was left), or its result. */
 import { useParams } from 'react-router-dom';
 import { ErrorState, PageBody, Spinner } from '../../components/ui/states.tsx';
+import { paths } from '../../config/paths.ts';
+import { ApiError } from '../../lib/api-client.ts';
 import { useAttempt } from '../../features/bench/api/get-attempt.ts';
 import { BenchScreen } from '../../features/bench/components/bench-screen.tsx';
+
+const backToAttempts = { to: paths.attempts.href(), label: 'Back to my attempts' };
 
 export function BenchAttemptPage() {
   const { attemptId } = useParams();
@@ -12,7 +16,7 @@ export function BenchAttemptPage() {
   if (!valid)
     return (
       <PageBody>
-        <ErrorState error={new Error('There is no attempt at this address.')} />
+        <ErrorState error={new ApiError(404, 'No such attempt')} what="attempt" back={backToAttempts} />
       </PageBody>
     );
   if (query.isPending)
@@ -24,7 +28,7 @@ export function BenchAttemptPage() {
   if (query.isError)
     return (
       <PageBody>
-        <ErrorState error={query.error} retry={() => void query.refetch()} />
+        <ErrorState error={query.error} retry={() => void query.refetch()} what="attempt" back={backToAttempts} />
       </PageBody>
     );
   return <BenchScreen key={id} boot={query.data} />;

@@ -22,7 +22,7 @@ export function ClassPage() {
   const assignments = useClassAssignments(id);
   const scenarios = useScenarios();
   if (cls.isPending) return <Spinner label="Loading the class" />;
-  if (cls.isError) return <ErrorState error={cls.error} retry={() => void cls.refetch()} />;
+  if (cls.isError) return <ErrorState error={cls.error} retry={() => void cls.refetch()} what="class" back={{ to: paths.classes.href(), label: 'Back to the classes' }} />;
   const c = cls.data;
   const titleOf = (scenarioId: number) => scenarios.data?.find((s) => s.id === scenarioId)?.title;
   return (

@@ -48,7 +48,7 @@ export function EditScenarioPage() {
   const patch = usePatchScenario();
   const navigate = useNavigate();
   if (scenario.isPending) return <Spinner label="Loading the scenario" />;
-  if (scenario.isError) return <ErrorState error={scenario.error} retry={() => void scenario.refetch()} />;
+  if (scenario.isError) return <ErrorState error={scenario.error} retry={() => void scenario.refetch()} what="scenario" back={{ to: paths.scenarios.href(), label: 'Back to the library' }} />;
   const s = scenario.data;
   const faults = s.definition.faults.map((f) => FAULT_CATALOG[f.kind].label);
   return (

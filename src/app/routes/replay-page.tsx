@@ -4,7 +4,9 @@ import type { DiagnosticTest } from '../../../sim/faults.ts';
 import type { ReplayResponse } from '../../../shared/api/replay.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../../shared/scenario.ts';
 import { ErrorState, PageHeader, Panel, Spinner } from '../../components/ui/states.tsx';
+import { useMe } from '../../features/auth/api/get-me.ts';
 import { useReplay } from '../../features/replay/api/get-replay.ts';
+import { paths } from '../../config/paths.ts';
 import { ReplayBenchView } from '../../features/replay/components/replay-bench-view.tsx';
 import { ReplayComments } from '../../features/replay/components/replay-comments.tsx';
 import { ReplayControls } from '../../features/replay/components/replay-controls.tsx';
@@ -60,8 +62,9 @@ export function ReplayPage() {
   const [search] = useSearchParams();
   const at = Number(search.get('at') ?? 0);
   const q = useReplay(attemptId);
+  const role = useMe().data?.user?.role;
   if (q.isPending) return <Spinner label="Loading the replay" />;
-  if (q.isError) return <ErrorState error={q.error} retry={() => void q.refetch()} />;
+  if (q.isError) return <ErrorState error={q.error} retry={() => void q.refetch()} what="attempt" back={role === 'student' ? { to: paths.attempts.href(), label: 'Back to my attempts' } : { to: paths.classes.href(), label: 'Back to the classes' }} />;
   return <Player replay={q.data} initialMs={Number.isFinite(at) ? at : 0} />;
 }
 
