@@ -31,7 +31,7 @@ export function ErrorState({ error, retry, what, back }: { error: unknown; retry
   if (what && (status === 404 || status === 403)) {
     return (
       <div role="alert" className="rounded-xl bg-white p-6 text-sm shadow-sm ring-1 ring-slate-200" data-testid="access-problem">
-        <h2 className="text-lg font-semibold text-slate-900">{status === 404 ? `This ${what} does not exist` : `This ${what} is not yours to open`}</h2>
+        <h1 className="text-lg font-semibold text-slate-900">{status === 404 ? `This ${what} does not exist` : `This ${what} is not yours to open`}</h1>
         <p className="mt-1 text-slate-700">
           {status === 404
             ? `There is no ${what} at this address: it may have been removed, or the link may be mistyped.`

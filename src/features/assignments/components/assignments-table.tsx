@@ -27,7 +27,7 @@ export function AssignmentsTable({
   return (
     <div className="space-y-2">
       <div className="overflow-x-auto rounded-lg ring-1 ring-slate-200">
-        <table className="min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Assignments">
+        <table className="stack-table min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Assignments">
           <thead className="bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-500">
             <tr>
               <th scope="col" className="px-3 py-2">Assignment</th>
@@ -51,10 +51,10 @@ export function AssignmentsTable({
                       {scenarioTitle(a.scenarioId) ?? 'Scenario'} · version {a.scenarioVersion}
                     </span>
                   </td>
-                  <td className="px-3 py-2 text-slate-600">{when(a.opensAt)}</td>
-                  <td className="px-3 py-2 text-slate-600">{when(a.dueAt)}</td>
-                  <td className="px-3 py-2">{a.attemptsAllowed}</td>
-                  <td className={`px-3 py-2 font-medium ${s.tone}`}>{s.label}</td>
+                  <td data-label="Opens" className="px-3 py-2 text-slate-600">{when(a.opensAt)}</td>
+                  <td data-label="Due" className="px-3 py-2 text-slate-600">{when(a.dueAt)}</td>
+                  <td data-label="Attempts" className="px-3 py-2">{a.attemptsAllowed}</td>
+                  <td data-label="State" className={`px-3 py-2 font-medium ${s.tone}`}>{s.label}</td>
                   <td className="space-x-1 whitespace-nowrap px-3 py-2 text-right">
                     {rowActions?.(a)}
                     <Button size="sm" variant="ghost" disabled={remove.isPending} onClick={() => remove.mutate({ id: a.id, classId: a.classId })}>

@@ -14,7 +14,7 @@ export function AttemptResultView({ result, testLabel, ratedA }: { result: Attem
     <div className="space-y-6" data-testid="attempt-result">
       <div className="flex flex-wrap items-end gap-6">
         <div>
-          <p className="text-xs font-medium uppercase tracking-wide text-slate-400">Grade</p>
+          <p className="text-xs font-medium uppercase tracking-wide text-slate-600">Grade</p>
           <p className="text-4xl font-semibold text-slate-900" data-testid="result-grade">
             {result.grade === null ? 'Practice' : `${Math.round(result.grade)} / 100`}
           </p>
@@ -36,7 +36,7 @@ export function AttemptResultView({ result, testLabel, ratedA }: { result: Attem
         <section>
           <h3 className="mb-1 text-sm font-semibold text-slate-900">Readings</h3>
           <table className="w-full text-left text-sm">
-            <thead className="text-xs uppercase tracking-wide text-slate-400">
+            <thead className="text-xs uppercase tracking-wide text-slate-600">
               <tr>
                 <th className="py-1 font-medium">Test</th>
                 <th className="py-1 text-right font-medium">You wrote</th>

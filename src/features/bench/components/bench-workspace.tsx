@@ -169,7 +169,10 @@ export function BenchWorkspace(p: BenchWorkspaceProps) {
               <PileControl pile={vehicle.pile} dialSize={150} />
             </section>
           </div>
-          <section aria-label="Procedure and records" className="flex min-h-0 flex-col rounded-xl bg-white shadow-sm ring-1 ring-slate-200">
+          <section aria-labelledby="bench-side-heading" className="flex min-h-0 flex-col rounded-xl bg-white shadow-sm ring-1 ring-slate-200">
+            <h2 id="bench-side-heading" className="sr-only">
+              Procedure and records
+            </h2>
             <TabList
               label="Bench panels"
               idPrefix={idPrefix}

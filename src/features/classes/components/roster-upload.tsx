@@ -69,7 +69,7 @@ export function RosterUpload({ classId }: { classId: number }) {
             .
           </p>
           <div className="max-h-80 overflow-auto rounded-lg ring-1 ring-slate-200">
-            <table className="min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Roster preview">
+            <table className="stack-table min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Roster preview">
               <thead className="sticky top-0 bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-500">
                 <tr>
                   <th scope="col" className="px-3 py-2">Line</th>
@@ -81,10 +81,10 @@ export function RosterUpload({ classId }: { classId: number }) {
               <tbody className="divide-y divide-slate-100">
                 {data.rows.map((r) => (
                   <tr key={r.line} className={r.status === 'error' ? 'bg-stop-100/40' : ''}>
-                    <td className="px-3 py-1.5 font-mono text-xs">{r.line}</td>
-                    <td className="px-3 py-1.5">{r.name || <span className="text-slate-400">—</span>}</td>
-                    <td className="px-3 py-1.5 text-slate-600">{r.email || <span className="text-slate-400">—</span>}</td>
-                    <td className="px-3 py-1.5">
+                    <td data-label="Line" className="px-3 py-1.5 font-mono text-xs">{r.line}</td>
+                    <td data-label="Name" className="px-3 py-1.5">{r.name || <span className="text-slate-500">—</span>}</td>
+                    <td data-label="E-mail" className="break-all px-3 py-1.5 text-slate-600">{r.email || <span className="text-slate-500">—</span>}</td>
+                    <td data-label="Result" className="px-3 py-1.5">
                       {r.status === 'error' ? <span className="font-medium text-stop-700">{r.message}</span> : <span className="text-slate-700">{statusText[r.status]}</span>}
                     </td>
                   </tr>

@@ -40,8 +40,8 @@ function StudentRow({ classId, student }: { classId: number; student: ClassDetai
   return (
     <tr>
       <td className="px-3 py-2 font-medium">{student.name}</td>
-      <td className="px-3 py-2 text-slate-600">{student.email}</td>
-      <td className="px-3 py-2 text-sm">{student.hasPassword ? 'Active' : <span className="text-slate-500">Invited</span>}</td>
+      <td data-label="E-mail" className="break-all px-3 py-2 text-slate-600">{student.email}</td>
+      <td data-label="Status" className="px-3 py-2 text-sm">{student.hasPassword ? 'Active' : <span className="text-slate-500">Invited</span>}</td>
       <td className="space-x-1 whitespace-nowrap px-3 py-2 text-right">
         {!student.hasPassword && (
           <Button size="sm" variant="ghost" disabled={invite.isPending} onClick={() => invite.mutate({ classId, userId: student.id })}>
@@ -65,7 +65,7 @@ export function StudentsPanel({ cls }: { cls: ClassDetail }) {
         <EmptyState title="No students yet">Add them one at a time or upload a roster.</EmptyState>
       ) : (
         <div className="overflow-x-auto rounded-lg ring-1 ring-slate-200">
-          <table className="min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Students">
+          <table className="stack-table min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Students">
             <thead className="bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-500">
               <tr>
                 <th scope="col" className="px-3 py-2">Name</th>

@@ -37,7 +37,7 @@ export function CompareTable({ rows, action }: { rows: readonly CompareRow[]; ac
   });
   return (
     <div className="overflow-x-auto rounded-xl bg-white shadow-sm ring-1 ring-slate-200">
-      <table className="min-w-full text-sm">
+      <table className="stack-table min-w-full text-sm" aria-label="Students of the assignment">
         <thead className="bg-stone-50 text-left text-slate-600">
           {table.getHeaderGroups().map((hg) => (
             <tr key={hg.id}>
@@ -64,11 +64,15 @@ export function CompareTable({ rows, action }: { rows: readonly CompareRow[]; ac
           {table.getRowModel().rows.map((row) => (
             <tr key={row.id}>
               {row.getVisibleCells().map((cell) => (
-                <td key={cell.id} className={`px-3 py-2 ${cell.column.id === 'timeToDiagnosisMs' ? 'font-mono' : ''}`}>
+                <td
+                  key={cell.id}
+                  data-label={cell.column.id === 'studentName' ? undefined : typeof cell.column.columnDef.header === 'string' ? cell.column.columnDef.header : undefined}
+                  className={`px-3 py-2 ${cell.column.id === 'timeToDiagnosisMs' ? 'font-mono' : ''} ${cell.column.id === 'studentName' ? 'font-medium' : ''}`}
+                >
                   {flexRender(cell.column.columnDef.cell, cell.getContext())}
                 </td>
               ))}
-              <td className="whitespace-nowrap px-3 py-2">
+              <td className="whitespace-nowrap px-3 py-2 max-sm:pt-1.5">
                 <Link to={paths.replay.href(row.original.attemptId)} className="font-medium text-live-700 underline underline-offset-2">
                   Replay<span className="sr-only"> {row.original.studentName}’s attempt</span>
                 </Link>

@@ -99,7 +99,7 @@ function AttemptCard({ attempt }: { attempt: BoardAttempt }) {
             {formatSimTime(attempt.simTimeMs)}
           </p>
           <p className="text-xs text-slate-500">{attempt.currentTest ? DIAGNOSTIC_TEST_LABELS[attempt.currentTest] : 'Setting up'}</p>
-          <p className="text-xs text-slate-400">{sinceText(attempt.lastActivityAt, now)}</p>
+          <p className="text-xs text-slate-600">{sinceText(attempt.lastActivityAt, now)}</p>
         </div>
       </div>
       <dl className="mt-3 grid grid-cols-3 gap-2 sm:grid-cols-5">

@@ -16,7 +16,7 @@ export function ProgressList({ progress }: { progress: ProgressResponse }) {
         {progress.competencies.map((c) => (
           <li key={c.competency} className={`rounded-xl bg-white p-4 shadow-sm ring-1 ${c.signOff ? 'ring-live-300' : 'ring-slate-200'}`}>
             <div className="flex items-start justify-between gap-3">
-              <h3 className="font-semibold text-slate-900">{c.label}</h3>
+              <h2 className="font-semibold text-slate-900">{c.label}</h2>
               {c.signOff ? (
                 <span className="shrink-0 rounded-full bg-live-50 px-2 py-0.5 text-xs font-medium text-live-700">Signed off</span>
               ) : (

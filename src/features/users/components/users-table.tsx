@@ -10,10 +10,10 @@ function UserRow({ user, isSelf }: { user: User; isSelf: boolean }) {
   const update = useUpdateUser();
   const invite = useResendInvite();
   return (
-    <tr className={user.disabled ? 'bg-slate-50 text-slate-400' : ''}>
+    <tr className={user.disabled ? 'bg-slate-50 text-slate-600' : ''}>
       <td className="px-3 py-2 font-medium">{user.name}</td>
-      <td className="px-3 py-2 text-slate-600">{user.email}</td>
-      <td className="px-3 py-2">
+      <td data-label="E-mail" className="break-all px-3 py-2 text-slate-600">{user.email}</td>
+      <td data-label="Role" className="px-3 py-2">
         <label className="sr-only" htmlFor={`role-${user.id}`}>
           Role of {user.name}
         </label>
@@ -29,10 +29,10 @@ function UserRow({ user, isSelf }: { user: User; isSelf: boolean }) {
           <option value="admin">Admin</option>
         </select>
       </td>
-      <td className="px-3 py-2 text-sm">
+      <td data-label="Status" className="px-3 py-2 text-sm">
         {user.disabled ? <span className="text-warn-700">Disabled</span> : user.hasPassword ? 'Active' : <span className="text-slate-500">Invited</span>}
       </td>
-      <td className="space-x-2 whitespace-nowrap px-3 py-2 text-right">
+      <td className="space-x-2 whitespace-nowrap px-3 py-2 text-right max-sm:pt-1.5">
         {!user.hasPassword && !user.disabled && (
           <Button size="sm" variant="ghost" onClick={() => invite.mutate(user.id)} disabled={invite.isPending}>
             {invite.isSuccess ? 'Sent' : 'Resend invite'}
@@ -76,7 +76,7 @@ export function UsersTable({ selfId }: { selfId: number }) {
         <EmptyState title="No users match" />
       ) : (
         <div className="overflow-x-auto rounded-lg ring-1 ring-slate-200">
-          <table className="min-w-full divide-y divide-slate-200 bg-white text-sm">
+          <table className="stack-table min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Users">
             <thead className="bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-500">
               <tr>
                 <th scope="col" className="px-3 py-2">Name</th>
