@@ -22,7 +22,7 @@ import { conflict } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
 import { boardAttempts, boardVersionOf, boardVersions, className, classBoard, createBoardRuns } from '../services/live-board.ts';
-import { ATTEMPT_CHANNEL, INJECTION_CHANNEL, liveBusFor } from '../services/live-bus.ts';
+import { ATTEMPT_CHANNEL, BENCH_CLOCK_CHANNEL, INJECTION_CHANNEL, liveBusFor } from '../services/live-bus.ts';
 import { benchKeyOf, createClear, createInjection, injectionViews, listInjections, toBenchMessage, unappliedInjections } from '../services/live-injections.ts';
 import { openSse } from '../services/live-sse.ts';
 
@@ -120,6 +120,7 @@ export function liveRoutes(ctx: AppContext) {
     const unsubscribe = [
       await bus.subscribe(ATTEMPT_CHANNEL, (p) => schedule(Number(p))),
       await bus.subscribe(INJECTION_CHANNEL, (p) => schedule(Number(p.split(':')[0]))),
+      await bus.subscribe(BENCH_CLOCK_CHANNEL, (p) => schedule(Number(p))),
       bus.onReconnect(() => void resync()),
     ];
     // Without notifications, the whole board again every FALLBACK_POLL_MS; with them, a light check every BOARD_RECHECK_SECONDS.

@@ -62,6 +62,8 @@ const boardColumns = {
   status: attempts.status,
   startedAt: attempts.startedAt,
   simTimeMs: attempts.simTimeMs,
+  benchTimeMs: attempts.benchTimeMs,
+  benchSeenAt: attempts.benchSeenAt,
   lastSeq: attempts.lastSeq,
   seed: attempts.seed,
   scenarioVersionId: attempts.scenarioVersionId,
@@ -104,6 +106,7 @@ async function boardRows(db: DbOrTx, classId: number, where: ReturnType<typeof a
  * the one the database would give.
  */
 export function boardVersionOf(a: Pick<BoardAttempt, 'lastSeq' | 'simTimeMs' | 'injections'>): string {
+  // The board's sim time is already the later of the log's and the bench's clock (boardTimeMs).
   return versionOf(a.lastSeq, a.simTimeMs, a.injections.length, a.injections.filter((i) => i.appliedAt !== null).length);
 }
 
@@ -120,7 +123,7 @@ export async function boardVersions(db: DbOrTx, classId: number): Promise<Map<nu
     .select({
       attemptId: attempts.id,
       lastSeq: attempts.lastSeq,
-      simTimeMs: attempts.simTimeMs,
+      simTimeMs: sql<number>`greatest(${attempts.simTimeMs}, coalesce(${attempts.benchTimeMs}, 0))`,
       injections: sql<number>`(select count(*)::int from ${pendingInjections} p where p.attempt_id = ${attempts.id})`,
       applied: sql<number>`(select count(*)::int from ${pendingInjections} p where p.attempt_id = ${attempts.id} and p.applied_at is not null)`,
     })
@@ -162,16 +165,20 @@ function toBoardAttempt(r: BoardRow, live: LiveView | null, injections: readonly
     mode: r.mode,
     status: r.status === 'submitted' ? 'submitted' : 'running',
     startedAt: r.startedAt.toISOString(),
-    simTimeMs: r.simTimeMs,
+    simTimeMs: boardTimeMs(r),
     lastSeq: r.lastSeq,
     currentTest: live?.currentTest ?? null,
     readings: live?.readings ?? null,
     injections: injectionViews(injections),
     lastActivityAt: r.lastActivityAt ? r.lastActivityAt.toISOString() : null,
+    benchSeenAt: r.benchSeenAt ? r.benchSeenAt.toISOString() : null,
   };
 }
 
-export function liveReadings(r: Readings): LiveReadings {
+/** The moment the board shows: the bench's clock as last reported, or the latest stored event if that is later. */
+export const boardTimeMs = (r: { simTimeMs: number; benchTimeMs: number | null }): number => Math.max(r.simTimeMs, r.benchTimeMs ?? 0);
+
+export function liveReadings(r: Readings, linkBlown: boolean): LiveReadings {
   return {
     voltmeterV: r.voltmeterV,
     rippleVac: r.rippleVac,
@@ -181,6 +188,9 @@ export function liveReadings(r: Readings): LiveReadings {
     pileA: r.pileA,
     engine: r.engine,
     batterySoc01: r.batterySoc01,
+    pileHot: r.pileHot,
+    pileOverheated: r.pileOverheated,
+    linkBlown,
   };
 }
 
@@ -246,6 +256,7 @@ export interface BoardRunRow {
   scenarioVersionId: number;
   lastSeq: number;
   simTimeMs: number;
+  benchTimeMs: number | null;
 }
 
 /** Counts since the cache was made, for the benches and tests. */
@@ -391,7 +402,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
         }
         if (!takeIn(entry, fresh)) entry.point = startPoint(entry.params, entry.seed);
         entry.through = Math.max(entry.through, row.lastSeq);
-        views.set(row.attemptId, await carryTo(entry, row.simTimeMs, slices));
+        views.set(row.attemptId, await carryTo(entry, boardTimeMs(row), slices));
       } catch (err) {
         log('board re-run failed', err);
         views.set(row.attemptId, null);
@@ -424,7 +435,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
     }
     entry.point = point;
     const readings = readMeters(entry.params, entry.point.state);
-    return { currentTest: testOfSetup(entry.point.controls, readings), readings: liveReadings(readings) };
+    return { currentTest: testOfSetup(entry.point.controls, readings), readings: liveReadings(readings, entry.point.state.fusibleLinkBlown) };
   }
 
   return {

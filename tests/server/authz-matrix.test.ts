@@ -98,6 +98,7 @@ const EXPECTED: Record<string, Row> = {
   'GET /api/attempts/mine': ANY_STUDENT,
   'GET /api/attempts/:id': CLASS_MEMBER,
   'POST /api/attempts/:id/events': OWNER_ONLY,
+  'POST /api/attempts/:id/clock': OWNER_ONLY,
   'POST /api/attempts/:id/submit': OWNER_ONLY,
 
   'GET /api/compare/assignments/:id': CLASS_MEMBER,
@@ -237,6 +238,7 @@ const CALLS: Record<string, (actor: Actor) => Call | Promise<Call>> = {
   'GET /api/attempts/mine': () => ({ path: '/api/attempts/mine' }),
   'GET /api/attempts/:id': () => ({ path: `/api/attempts/${f.attemptId}` }),
   'POST /api/attempts/:id/events': () => ({ path: `/api/attempts/${f.attemptId}/events`, body: { events: [{ seq: 1, event: { kind: 'key', atMs: 0, position: 'on' } }] } }),
+  'POST /api/attempts/:id/clock': () => ({ path: `/api/attempts/${f.attemptId}/clock`, body: { simTimeMs: 1000 } }),
   'POST /api/attempts/:id/submit': async () => ({ path: `/api/attempts/${await makeAttempt(t.ctx.db, f.fx, f.studentId)}/submit`, body: submitBody }),
 
   'GET /api/compare/assignments/:id': () => ({ path: `/api/compare/assignments/${f.fx.assignmentId}` }),

@@ -64,7 +64,7 @@ async function fromTheStart(attemptId: number) {
   const targetMs = Math.ceil(Math.max(a!.simTimeMs, lastAtMs) / DT_MS) * DT_MS;
   const point = stateAt(run.params, run.seed, run.events, targetMs);
   const readings = readMeters(run.params, point.state);
-  return { currentTest: testOfSetup(point.controls, readings), readings: liveReadings(readings) };
+  return { currentTest: testOfSetup(point.controls, readings), readings: liveReadings(readings, point.state.fusibleLinkBlown) };
 }
 
 async function board(runs: BoardRuns, ids: number[]) {

@@ -19,7 +19,7 @@ export function LiveBoardPage() {
     <>
       <PageHeader
         title={`${name}: live`}
-        description="Running benches, updated as students work; the meters show each bench as of its last input. An injected fault is applied at the bench’s current time; the student is not told what changed."
+        description="Running benches, updated as students work: each open bench reports its clock every few seconds and the meters show it as it is now. Idle benches are marked; a hot or cut-out pile and a burnt link are flagged. An injected fault is applied at the bench’s current time; the student is not told what changed."
         actions={<StreamBadge state={board.stream} />}
       />
       <LiveBoard attempts={attempts} />

@@ -11,6 +11,7 @@ import type { AttemptBootstrap } from '../../../../shared/api/attempts.ts';
 import { unsealEvents, unsealFaults, unsealVehicle } from '../../../../shared/sealed-faults.ts';
 import { createOutbox, mergeForResume, readPersisted, type Outbox, type OutboxView } from '../api/event-outbox.ts';
 import { postEvents } from '../api/post-events.ts';
+import { startClockReports } from '../api/report-clock.ts';
 import { createBenchEngine, type BenchEngine } from '../stores/bench-engine.ts';
 import { connectLiveInjections } from '../live/live-injections.ts';
 
@@ -39,6 +40,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
     let cancelled = false;
     let built: BenchSession | null = null;
     let stopLive: (() => void) | null = null;
+    let stopClock: (() => void) | null = null;
     let saveTimer: number | undefined;
     const saveTime = () => built?.outbox.noteSimTime(built.engine.getSnapshot().timeMs);
     const onHidden = () => {
@@ -75,6 +77,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
         // Instructors' live faults arrive on the attempt's stream and go through the dispatcher.
         stopLive = connectLiveInjections({ attemptId, benchKey: boot.benchKey, engine });
         outbox.start();
+        stopClock = startClockReports(attemptId, engine, outbox);
         saveTimer = window.setInterval(saveTime, 1000);
         window.addEventListener('pagehide', saveTime);
         document.addEventListener('visibilitychange', onHidden);
@@ -93,6 +96,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
         saveTime();
         built.engine.stop();
         stopLive?.();
+        stopClock?.();
         built.outbox.stop();
       }
       setSession(null);
