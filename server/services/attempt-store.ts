@@ -16,6 +16,7 @@ import type { Db, DbOrTx } from '../db/client.ts';
 import { assignments, attempts, scenarioVersions } from '../db/schema.ts';
 import { scopedCache } from '../db/scoped-cache.ts';
 import { notFound } from '../http/errors.ts';
+import { extensionOf, termsFor } from './assignment-terms.ts';
 import { loadDefinition } from './definitions.ts';
 import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
 
@@ -101,7 +102,9 @@ export async function startAttempt(db: Db, user: SessionUser, input: StartAttemp
         .select({ n: sql<number>`count(*)::int` })
         .from(attempts)
         .where(and(eq(attempts.assignmentId, input.assignmentId), eq(attempts.userId, user.id)));
-      const assignment = await assertCanStartAssignment(tx, user, input.assignmentId, used?.n ?? 0);
+      const assignment = await assertCanStartAssignment(tx, user, input.assignmentId, used?.n ?? 0, new Date(), async (row) =>
+        termsFor(row, await extensionOf(tx, row.id, user.id)),
+      );
       const [row] = await tx
         .insert(attempts)
         .values({ userId: user.id, scenarioVersionId: assignment.scenarioVersionId, assignmentId: assignment.id, mode: 'assigned', seed: newSeed() })

@@ -92,6 +92,10 @@ const EXPECTED: Record<string, Row> = {
   'POST /api/assignments': CLASS_STAFF,
   'GET /api/assignments/:id': CLASS_MEMBER,
   'DELETE /api/assignments/:id': CLASS_STAFF,
+  'PATCH /api/assignments/:id': CLASS_STAFF,
+  'GET /api/assignments/:id/students': CLASS_STAFF,
+  'PUT /api/assignments/:id/extensions/:userId': CLASS_STAFF,
+  'DELETE /api/assignments/:id/extensions/:userId': CLASS_STAFF,
 
   // Only an enrolled student starts an attempt; staff are refused by role.
   'POST /api/attempts': OWNER_ONLY,
@@ -226,6 +230,10 @@ const CALLS: Record<string, (actor: Actor) => Call | Promise<Call>> = {
     },
   }),
   'GET /api/assignments/:id': () => ({ path: `/api/assignments/${f.fx.assignmentId}` }),
+  'PATCH /api/assignments/:id': () => ({ path: `/api/assignments/${f.fx.assignmentId}`, body: { attemptsAllowed: 4 } }),
+  'GET /api/assignments/:id/students': () => ({ path: `/api/assignments/${f.fx.assignmentId}/students` }),
+  'PUT /api/assignments/:id/extensions/:userId': () => ({ path: `/api/assignments/${f.fx.assignmentId}/extensions/${f.studentId}`, body: { dueAt: null, extraAttempts: 1 } }),
+  'DELETE /api/assignments/:id/extensions/:userId': () => ({ path: `/api/assignments/${f.fx.assignmentId}/extensions/${f.studentId}` }),
   'DELETE /api/assignments/:id': async () => {
     const [row] = await t.ctx.db
       .insert(assignments)
