@@ -2,12 +2,11 @@ import type { Assignment } from '../../../../shared/api/assignments.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { EmptyState } from '../../../components/ui/states.tsx';
 import { useDeleteAssignment } from '../api/create-assignment.ts';
-
-const when = (iso: string) => new Date(iso).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
+import { when } from './local-dates.ts';
 
 function state(a: Assignment, now: number): { label: string; tone: string } {
-  if (Date.parse(a.opensAt) > now) return { label: 'Not open yet', tone: 'text-slate-500' };
-  if (Date.parse(a.dueAt) < now) return { label: 'Closed', tone: 'text-slate-500' };
+  if (Date.parse(a.opensAt) > now) return { label: 'Not open yet', tone: 'text-slate-600' };
+  if (Date.parse(a.dueAt) < now) return { label: 'Closed', tone: 'text-slate-600' };
   return { label: 'Open', tone: 'text-live-700' };
 }
 
@@ -31,8 +30,7 @@ export function AssignmentsTable({
           <thead className="bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-500">
             <tr>
               <th scope="col" className="px-3 py-2">Assignment</th>
-              <th scope="col" className="px-3 py-2">Opens</th>
-              <th scope="col" className="px-3 py-2">Due</th>
+              <th scope="col" className="px-3 py-2">Dates</th>
               <th scope="col" className="px-3 py-2">Attempts</th>
               <th scope="col" className="px-3 py-2">State</th>
               <th scope="col" className="px-3 py-2 text-right">
@@ -51,8 +49,10 @@ export function AssignmentsTable({
                       {scenarioTitle(a.scenarioId) ?? 'Scenario'} · version {a.scenarioVersion}
                     </span>
                   </td>
-                  <td data-label="Opens" className="px-3 py-2 text-slate-600">{when(a.opensAt)}</td>
-                  <td data-label="Due" className="px-3 py-2 text-slate-600">{when(a.dueAt)}</td>
+                  <td data-label="Dates" className="px-3 py-2 text-slate-600">
+                    <span className="block">opens {when(a.opensAt)}</span>
+                    <span className="block">due {when(a.dueAt)}</span>
+                  </td>
                   <td data-label="Attempts" className="px-3 py-2">{a.attemptsAllowed}</td>
                   <td data-label="State" className={`px-3 py-2 font-medium ${s.tone}`}>{s.label}</td>
                   <td className="space-x-1 whitespace-nowrap px-3 py-2 text-right">
