@@ -61,7 +61,7 @@ async function replayOf(db: DbOrTx, attemptId: number): Promise<Omit<ReplayRespo
     },
     vehicle: run.params,
     events: run.events,
-    markers: replayMarkers(run.stored, readings, run.submittedAtMs === null ? null : Math.round(run.submittedAtMs)),
+    markers: replayMarkers(run.stored, readings, run.submittedAtMs === null ? null : Math.round(run.submittedAtMs), run.params.loads.accessories),
     readings,
   };
 }

@@ -184,8 +184,7 @@ export function signOffRoutes(ctx: AppContext) {
       rows.map((r) => [
         r.studentName,
         r.studentEmail,
-        r.competency,
-        isCompetency(r.competency) ? COMPETENCY_LABELS[r.competency] : r.competency,
+        isCompetency(r.competency) ? COMPETENCY_LABELS[r.competency] : 'Other competency',
         r.attemptId,
         r.signedBy,
         r.createdAt.toISOString(),

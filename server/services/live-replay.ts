@@ -6,26 +6,16 @@
 import { FAULT_CATALOG } from '../../sim/faults.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
 import type { Marker, ReplayReading } from '../../shared/api/replay.ts';
+import { CONDUCTOR_WORDS, POINT_WORDS } from '../../shared/bench-words.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../shared/scenario.ts';
 import type { StoredInput } from './live-attempt-run.ts';
 
-const POINT_LABELS: Record<string, string> = {
-  'battery-pos': 'battery +',
-  'battery-neg': 'battery −',
-  'jump-pos': 'jump post +',
-  'jump-neg': 'jump post −',
-  'alt-bplus': 'alternator B+',
-  'alt-case': 'alternator case',
-  'engine-ground': 'engine ground',
-  chassis: 'chassis',
-};
-
-function markerOf(e: InputEvent, source: string): Marker | null {
+function markerOf(e: InputEvent, source: string, accessories: readonly { id: string; label: string }[]): Marker | null {
   switch (e.kind) {
     case 'lead':
-      return e.point ? { atMs: e.atMs, kind: 'hook-up', label: `${e.which === 'red' ? 'Red' : 'Black'} lead on ${POINT_LABELS[e.point] ?? e.point}` } : null;
+      return e.point ? { atMs: e.atMs, kind: 'hook-up', label: `${e.which === 'red' ? 'Red' : 'Black'} lead on ${POINT_WORDS[e.point]}` } : null;
     case 'clamp':
-      return e.conductor ? { atMs: e.atMs, kind: 'hook-up', label: `Clamp on ${e.conductor.replace(/-/g, ' ')}` } : null;
+      return e.conductor ? { atMs: e.atMs, kind: 'hook-up', label: `Clamp on ${CONDUCTOR_WORDS[e.conductor]}, arrow ${e.arrow === 'toward-battery' ? 'toward the battery' : 'toward the alternator'}` } : null;
     case 'ammeter':
       return e.inSeries ? { atMs: e.atMs, kind: 'hook-up', label: 'Ammeter in series' } : null;
     case 'key':
@@ -33,7 +23,7 @@ function markerOf(e: InputEvent, source: string): Marker | null {
     case 'pile':
       return { atMs: e.atMs, kind: 'load', label: `Pile to ${Math.round(e.dial01 * 100)} %` };
     case 'accessory':
-      return { atMs: e.atMs, kind: 'load', label: `${e.id.replace(/-/g, ' ')} ${e.on ? 'on' : 'off'}` };
+      return { atMs: e.atMs, kind: 'load', label: `${accessories.find((a) => a.id === e.id)?.label ?? 'An accessory'} ${e.on ? 'on' : 'off'}` };
     case 'fault-inject':
       return source === 'instructor' ? { atMs: e.atMs, kind: 'fault', label: `Injected: ${FAULT_CATALOG[e.fault.kind].label}` } : null;
     case 'fault-clear':
@@ -43,10 +33,15 @@ function markerOf(e: InputEvent, source: string): Marker | null {
   }
 }
 
-export function replayMarkers(stored: readonly StoredInput[], readings: readonly ReplayReading[], submittedAtMs: number | null): Marker[] {
+export function replayMarkers(
+  stored: readonly StoredInput[],
+  readings: readonly ReplayReading[],
+  submittedAtMs: number | null,
+  accessories: readonly { id: string; label: string }[] = [],
+): Marker[] {
   const out: Marker[] = [];
   for (const s of stored) {
-    const m = markerOf(s.event, s.source);
+    const m = markerOf(s.event, s.source, accessories);
     if (!m) continue;
     // A run of pile turns within a second is one load change.
     const prev = out.at(-1);
@@ -57,7 +52,7 @@ export function replayMarkers(stored: readonly StoredInput[], readings: readonly
     out.push(m);
   }
   for (const r of readings) {
-    const label = r.test in DIAGNOSTIC_TEST_LABELS ? DIAGNOSTIC_TEST_LABELS[r.test as keyof typeof DIAGNOSTIC_TEST_LABELS] : r.test;
+    const label = r.test in DIAGNOSTIC_TEST_LABELS ? DIAGNOSTIC_TEST_LABELS[r.test as keyof typeof DIAGNOSTIC_TEST_LABELS] : 'Reading';
     out.push({ atMs: Math.round(r.atMs), kind: 'reading', label: `${label}: ${r.value} ${r.unit}` });
   }
   if (submittedAtMs !== null) out.push({ atMs: submittedAtMs, kind: 'submission', label: 'Submitted' });

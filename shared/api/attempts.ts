@@ -190,6 +190,20 @@ export const MISTAKE_KINDS = [
 export const mistakeKindSchema = z.enum(MISTAKE_KINDS);
 export type MistakeKind = z.infer<typeof mistakeKindSchema>;
 
+/** Short names of the mistakes, for tables and exports. */
+export const MISTAKE_LABELS: Readonly<Record<MistakeKind, string>> = {
+  'reversed-clamp': 'Clamp reversed',
+  'reversed-leads': 'Leads reversed',
+  'blown-fusible-link': 'Fusible link burnt open',
+  'pile-overheated': 'Pile overheated',
+  'battery-run-down': 'Battery run down',
+  'long-loaded-test': 'Load held too long',
+  'engine-stalled': 'Engine stalled',
+};
+
+/** A mistake kind's name, or a plain word for one this version does not know. */
+export const mistakeLabel = (kind: string): string => ((MISTAKE_KINDS as readonly string[]).includes(kind) ? MISTAKE_LABELS[kind as MistakeKind] : 'Other mistake');
+
 const outputCurvePointSchema = z.object({ altRpm: z.number(), currentA: z.number() }) satisfies z.ZodType<OutputCurvePoint>;
 
 export const attemptResultSchema = z.object({

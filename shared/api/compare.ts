@@ -121,17 +121,23 @@ export const progressResponseSchema = z.object({
 export type ProgressResponse = z.infer<typeof progressResponseSchema>;
 
 /** Columns of the CSV exports, in order. */
+/**
+ * The grades export: one row per submitted attempt, in words (no codes), the
+ * row that counts for each student marked (their latest submitted attempt).
+ */
 export const GRADES_CSV_COLUMNS = [
-  'attempt_id',
-  'student_name',
-  'student_email',
-  'assignment',
-  'submitted_at',
-  'grade',
-  'verified',
-  'fault_named',
-  'correct',
-  'time_to_diagnosis_s',
-  'mistakes',
+  'Attempt',
+  'Student',
+  'E-mail',
+  'Assignment',
+  'Submitted at',
+  'Counts for the grade',
+  'Grade',
+  'Readings verified',
+  'Fault named',
+  'Fault correct',
+  'Time to diagnosis (s)',
+  'Mistakes',
+  'Mistakes made',
 ] as const;
-export const SIGN_OFFS_CSV_COLUMNS = ['student_name', 'student_email', 'competency', 'competency_label', 'attempt_id', 'signed_by', 'signed_at', 'note'] as const;
+export const SIGN_OFFS_CSV_COLUMNS = ['Student', 'E-mail', 'Competency', 'Attempt', 'Signed by', 'Signed at', 'Note'] as const;

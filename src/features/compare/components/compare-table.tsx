@@ -3,12 +3,13 @@ import { useMemo, useState, type ReactNode } from 'react';
 import { Link } from 'react-router-dom';
 import { createColumnHelper, flexRender, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
 import { FAULT_CATALOG, FAULT_KINDS, type FaultKind } from '../../../../sim/faults.ts';
+import { mistakeLabel } from '../../../../shared/api/attempts.ts';
 import type { CompareRow } from '../../../../shared/api/compare.ts';
 import { paths } from '../../../config/paths.ts';
 
 export const formatMinutes = (ms: number | null) => (ms === null ? '—' : `${(ms / 60_000).toFixed(1)} min`);
 
-const faultName = (k: string | null) => (k === null ? '—' : k === 'none' ? 'No fault' : (FAULT_KINDS as readonly string[]).includes(k) ? FAULT_CATALOG[k as FaultKind].label : k);
+const faultName = (k: string | null) => (k === null ? '—' : k === 'none' ? 'No fault' : (FAULT_KINDS as readonly string[]).includes(k) ? FAULT_CATALOG[k as FaultKind].label : 'Another fault');
 
 const col = createColumnHelper<CompareRow>();
 
@@ -21,7 +22,7 @@ export function CompareTable({ rows, action }: { rows: readonly CompareRow[]; ac
       col.accessor((r) => (r.correct === null ? -1 : r.correct ? 1 : 0), { id: 'correct', header: 'Correct', cell: (c) => (c.row.original.correct === null ? '—' : c.row.original.correct ? 'Yes' : 'No') }),
       col.accessor((r) => faultName(r.faultGiven), { id: 'faultGiven', header: 'Fault named' }),
       col.accessor((r) => r.grade ?? -1, { id: 'grade', header: 'Grade', cell: (c) => (c.row.original.grade === null ? '—' : Math.round(c.row.original.grade)) }),
-      col.accessor('mistakes', { header: 'Mistakes', cell: (c) => (c.getValue() ? `${c.getValue()} (${c.row.original.mistakeKinds.join(', ')})` : '0') }),
+      col.accessor('mistakes', { header: 'Mistakes', cell: (c) => (c.getValue() ? `${c.getValue()} (${c.row.original.mistakeKinds.map(mistakeLabel).join(', ')})` : '0') }),
       col.accessor('attemptCount', { header: 'Attempts' }),
       col.accessor((r) => (r.verified ? 1 : 0), { id: 'verified', header: 'Readings verified', cell: (c) => (c.row.original.verified ? 'Yes' : 'No') }),
     ],
