@@ -352,11 +352,11 @@ export const scenarioSchema = z
   .superRefine((doc, ctx) => {
     for (const kind of new Set(doc.faults.map((f) => f.kind))) {
       if (!doc.diagnosisChoices.includes(kind)) {
-        ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: `Diagnosis choices must include the scenario's fault "${kind}"` });
+        ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: `Diagnosis choices must include the scenario’s fault “${FAULT_CATALOG[kind].label}”` });
       }
     }
     if (doc.faults.length === 0 && !doc.diagnosisChoices.includes('none')) {
-      ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: 'A scenario without faults must offer "none" among the diagnosis choices' });
+      ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: 'A scenario without faults must offer “no fault” among the diagnosis choices' });
     }
   });
 
@@ -554,4 +554,88 @@ export function studentScenarioView(def: ScenarioDefinition): StudentScenarioVie
     diagnosisChoices: [...FAULT_KINDS, 'none' as const].filter((c) => def.diagnosisChoices.includes(c)),
     hints: [...def.hints],
   };
+}
+
+// ---------------------------------------------------------------------------
+// Field names in words, for messages about a scenario file
+
+const SECTION_WORDS: Readonly<Record<string, string>> = {
+  format: 'File format',
+  formatVersion: 'File format version',
+  title: 'Title',
+  summary: 'Customer’s complaint',
+  difficulty: 'Difficulty',
+  vehicle: 'Vehicle',
+  faults: 'Faults',
+  testsExpected: 'Tests expected',
+  passRules: 'Pass rules',
+  diagnosisChoices: 'Diagnosis choices',
+  hints: 'Hints',
+  objectives: 'Learning objectives',
+};
+const VEHICLE_WORDS: Readonly<Record<string, string>> = { name: 'Name', kind: 'Kind', engineDescription: 'Engine description', params: 'Parameters' };
+const GROUP_WORDS: Readonly<Record<string, string>> = {
+  engine: 'Engine',
+  belt: 'Belt',
+  alternator: 'Alternator',
+  regulator: 'Regulator',
+  battery: 'Battery',
+  wiring: 'Wiring',
+  loads: 'Loads',
+  pile: 'Carbon pile',
+};
+const FAULT_FIELD_WORDS: Readonly<Record<string, string>> = { id: 'Id', kind: 'Kind', severity01: 'Severity', onsetS: 'Onset', intermittent: 'Intermittent', periodS: 'Period', onFraction01: 'Share of time present' };
+const ACCESSORY_WORDS: Readonly<Record<string, string>> = { id: 'Id', label: 'Name', currentA: 'Current', resistanceOhm: 'Resistance' };
+
+/**
+ * A dotted path of the scenario document in words: `vehicle.params.battery.cca`
+ * is "Vehicle › Battery › Cold-cranking amps", `faults.0.severity01` is
+ * "Fault 1 › Severity". Unknown keys are named as they stand in the file.
+ */
+export function scenarioFieldInWords(path: string): string {
+  const parts = path.replace(/^definition\.?/, '').split('.').filter(Boolean);
+  if (parts.length === 0) return 'The file';
+  const [top, ...rest] = parts;
+  const out: string[] = [];
+  const item = (word: string, index: string | undefined) => (index !== undefined && /^\d+$/.test(index) ? `${word} ${Number(index) + 1}` : word);
+  switch (top) {
+    case 'vehicle': {
+      out.push('Vehicle');
+      const [field, group, key, ...more] = rest;
+      if (field === 'params' && group !== undefined) {
+        const full = key !== undefined ? `${group}.${key}` : group;
+        const bound = (VEHICLE_PARAM_BOUNDS as Record<string, { label: string } | undefined>)[full];
+        if (group === 'loads' && key === 'accessories') {
+          out.push(item('Accessory', more[0]));
+          if (more[1] !== undefined) out.push(ACCESSORY_WORDS[more[1]] ?? more[1]);
+        } else {
+          if (GROUP_WORDS[group]) out.push(GROUP_WORDS[group]);
+          if (bound) out.push(bound.label);
+          else if (key !== undefined) out.push(key);
+          else if (!GROUP_WORDS[group]) out.push((VEHICLE_PARAM_BOUNDS as Record<string, { label: string } | undefined>)[group]?.label ?? group);
+        }
+      } else if (field !== undefined) out.push(VEHICLE_WORDS[field] ?? field);
+      break;
+    }
+    case 'faults':
+      out.push(rest[0] !== undefined ? item('Fault', rest[0]) : 'Faults');
+      for (const k of rest.slice(1)) out.push(FAULT_FIELD_WORDS[k] ?? k);
+      break;
+    case 'passRules': {
+      out.push('Pass rules');
+      const [rule, sub] = rest;
+      if (rule === 'output') out.push(sub === 'percent' ? PASS_RULE_BOUNDS.percent.label : sub === 'amps' ? PASS_RULE_BOUNDS.amps.label : 'Output rule');
+      else if (rule !== undefined) out.push((PASS_RULE_BOUNDS as Record<string, { label: string } | undefined>)[rule]?.label ?? rule);
+      break;
+    }
+    case 'hints':
+    case 'objectives':
+    case 'testsExpected':
+    case 'diagnosisChoices':
+      out.push(rest[0] !== undefined ? item(top === 'hints' ? 'Hint' : top === 'objectives' ? 'Objective' : top === 'testsExpected' ? 'Test expected' : 'Diagnosis choice', rest[0]) : SECTION_WORDS[top]!);
+      break;
+    default:
+      out.push(SECTION_WORDS[top!] ?? `“${top}”`);
+  }
+  return out.join(' › ');
 }

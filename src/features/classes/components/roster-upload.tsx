@@ -4,7 +4,13 @@ import { ApiError } from '../../../lib/api-client.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { useImportRoster, usePreviewRoster } from '../api/roster-upload.ts';
 
-const statusText: Record<RosterRow['status'], string> = { new: 'New: account made and invited', existing: 'Existing student: enrolled', enrolled: 'Already in the class', error: 'Error' };
+/** What the import will do with each line (the preview comes before anything is written). */
+const statusText: Record<RosterRow['status'], string> = {
+  new: 'New student: will be invited',
+  existing: 'Existing student: will be enrolled',
+  enrolled: 'Already in the class: nothing to do',
+  error: 'Error',
+};
 
 /** Roster CSV: preview every line with its errors, then import all or nothing. */
 export function RosterUpload({ classId }: { classId: number }) {
@@ -62,7 +68,7 @@ export function RosterUpload({ classId }: { classId: number }) {
       {data && (
         <div className="space-y-3">
           <p className="text-sm text-slate-700" role="status">
-            {data.fileName}: {data.newCount} new, {data.existingCount} existing, {data.alreadyEnrolledCount} already enrolled,{' '}
+            {data.fileName}: {data.newCount} new (will be invited), {data.existingCount} existing (will be enrolled), {data.alreadyEnrolledCount} already enrolled,{' '}
             <span className={data.errorCount ? 'font-medium text-stop-700' : ''}>
               {data.errorCount} {data.errorCount === 1 ? 'line' : 'lines'} with errors
             </span>
