@@ -55,6 +55,13 @@ function testsExpectedOf(definition: unknown): Competency[] {
 
 const isUniqueViolation = (err: unknown) => (err as { code?: string }).code === '23505' || (err as { cause?: { code?: string } }).cause?.code === '23505';
 
+/** Whether the student's verdict on a test was right; null when they gave none (the test was not run). */
+function verdictOn(result: ReturnType<typeof readResult>, test: string): boolean | null {
+  const v = (result.verdicts ?? []).find((x) => x.test === test) as { ok: boolean; given?: boolean | null } | undefined;
+  if (!v || v.given === null) return null;
+  return v.ok;
+}
+
 async function progressOf(db: DbOrTx, studentId: number): Promise<ProgressResponse> {
   const [student] = await db.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, studentId));
   if (!student) throw notFound('No such student');
@@ -68,6 +75,7 @@ async function progressOf(db: DbOrTx, studentId: number): Promise<ProgressRespon
       attemptId: attempts.id,
       grade: attempts.grade,
       submittedAt: attempts.submittedAt,
+      timeToDiagnosisMs: attempts.timeToDiagnosisMs,
       result: attempts.result,
       scenarioTitle: scenarioVersions.title,
       definition: scenarioVersions.definition,
@@ -100,10 +108,22 @@ async function progressOf(db: DbOrTx, studentId: number): Promise<ProgressRespon
         scenarioTitle: a.scenarioTitle,
         grade: a.grade,
         submittedAt: a.submittedAt ? a.submittedAt.toISOString() : null,
+        verdictOk: verdictOn(readResult(a.result), competency),
       })),
     };
   });
-  return { student, competencies };
+  const trend = graded
+    .filter((a) => a.grade !== null)
+    .reverse()
+    .map((a) => ({
+      attemptId: a.attemptId,
+      scenarioTitle: a.scenarioTitle,
+      grade: a.grade!,
+      submittedAt: a.submittedAt ? a.submittedAt.toISOString() : null,
+      timeToDiagnosisMs: a.timeToDiagnosisMs,
+      faultCorrect: readResult(a.result).fault?.ok ?? null,
+    }));
+  return { student, competencies, attempts: trend };
 }
 
 export function signOffRoutes(ctx: AppContext) {

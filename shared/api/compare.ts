@@ -109,14 +109,27 @@ export const competencyProgressSchema = z.object({
   /** Of their verdicts on this test, how many were right. */
   verdictsRight: z.number().int(),
   verdicts: z.number().int(),
-  /** Graded attempts an instructor could sign this competency off from, newest first. */
-  evidence: z.array(z.object({ attemptId: z.number().int(), scenarioTitle: z.string(), grade: z.number().nullable(), submittedAt: z.string().nullable() })),
+  /** Graded attempts an instructor could sign this competency off from, newest first, with whether the verdict on this test was right (null: none given). */
+  evidence: z.array(
+    z.object({ attemptId: z.number().int(), scenarioTitle: z.string(), grade: z.number().nullable(), submittedAt: z.string().nullable(), verdictOk: z.boolean().nullable() }),
+  ),
 });
 export type CompetencyProgress = z.infer<typeof competencyProgressSchema>;
 
 export const progressResponseSchema = z.object({
   student: z.object({ id: z.number().int(), name: z.string() }),
   competencies: z.array(competencyProgressSchema),
+  /** Every graded attempt, oldest first: the trend of grades and diagnosis times. */
+  attempts: z.array(
+    z.object({
+      attemptId: z.number().int(),
+      scenarioTitle: z.string(),
+      grade: z.number(),
+      submittedAt: z.string().nullable(),
+      timeToDiagnosisMs: z.number().int().nullable(),
+      faultCorrect: z.boolean().nullable(),
+    }),
+  ),
 });
 export type ProgressResponse = z.infer<typeof progressResponseSchema>;
 

@@ -49,6 +49,12 @@ describe('competency sign-off', () => {
     const regulated = progress.competencies.find((c) => c.competency === 'regulated-voltage')!;
     expect(regulated).toMatchObject({ signOff: null, verdicts: 1, verdictsRight: 0 });
     expect(regulated.evidence.map((e) => e.attemptId)).toEqual([graded]);
+    // Each attempt behind a competency says whether its verdict was right, and the trend lists the graded attempts.
+    expect(output.evidence[0]).toMatchObject({ attemptId: graded, verdictOk: true });
+    expect(regulated.evidence[0]).toMatchObject({ attemptId: graded, verdictOk: false });
+    expect(progress.attempts).toEqual([
+      expect.objectContaining({ attemptId: graded, grade: 88, timeToDiagnosisMs: 400_000, faultCorrect: true }),
+    ]);
 
     // The same competency twice is a conflict, named.
     const again = await teacher.post('/api/sign-offs').send({ attemptId: graded, competency: 'output' }).expect(409);
