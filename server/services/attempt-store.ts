@@ -8,8 +8,8 @@ import type pg from 'pg';
 import { and, desc, eq, sql } from 'drizzle-orm';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import type { AttemptBootstrap, AttemptResult, BenchScenarioView, MyAttemptRow, StartAttemptInput, StoredEvent } from '../../shared/api/attempts.ts';
-import { attemptResultSchema } from '../../shared/api/attempts.ts';
-import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
+import { attemptResultSchema, benchScenarioView } from '../../shared/api/attempts.ts';
+import type { ScenarioDefinition } from '../../shared/scenario.ts';
 import { deriveBenchKey, healthyVehicle, sealEvents, sealFaults, sealVehicle } from '../../shared/sealed-faults.ts';
 import { assertCanPractiseScenario, assertCanStartAssignment } from '../auth/access.ts';
 import type { Db, DbOrTx } from '../db/client.ts';
@@ -157,15 +157,6 @@ export async function loadAttemptWithEvents(ctx: { db: Db; pool: pg.Pool }, atte
     cache.set(attemptId, { throughSeq: attempt.lastSeq, events: events.filter((e) => e.seq <= attempt.lastSeq) });
   }
   return { attempt, events };
-}
-
-export function benchScenarioView(def: ScenarioDefinition): BenchScenarioView {
-  const view = studentScenarioView(def);
-  return {
-    ...view,
-    diagnosisChoices: view.diagnosisChoices.map((value) => ({ value, label: diagnosisLabel(value) })),
-    tests: DIAGNOSTIC_TESTS.map((test) => ({ test, label: DIAGNOSTIC_TEST_LABELS[test] })),
-  };
 }
 
 export function storedResult(raw: unknown): AttemptResult | null {

@@ -9,8 +9,8 @@ import type { ClampArrow, Conductor, ConnectionPoint, InputEvent, KeyPosition, L
 import { CONDUCTORS, CONNECTION_POINTS } from '../../sim/inputs.ts';
 import type { OutputCurvePoint } from '../../sim/instruments.ts';
 import type { VehicleParams } from '../../sim/params.ts';
-import type { DiagnosisChoice, StudentScenarioView } from '../scenario.ts';
-import { DIAGNOSTIC_TESTS, diagnosisChoiceSchema, diagnosticTestSchema, faultSchema } from '../scenario.ts';
+import type { DiagnosisChoice, ScenarioDefinition, StudentScenarioView } from '../scenario.ts';
+import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisChoiceSchema, diagnosisLabel, diagnosticTestSchema, faultSchema, studentScenarioView } from '../scenario.ts';
 
 // Imported from here by the live-session contract; the list itself lives with the scenario document.
 export { DIAGNOSTIC_TESTS };
@@ -255,6 +255,16 @@ export interface BenchScenarioView extends Omit<StudentScenarioView, 'diagnosisC
   tests: { test: DiagnosticTest; label: string }[];
 }
 export const benchScenarioViewSchema = z.custom<BenchScenarioView>((v) => typeof v === 'object' && v !== null);
+
+/** The bench's view of a scenario: the student's view with labelled diagnosis choices and every test of the family. */
+export function benchScenarioView(def: ScenarioDefinition): BenchScenarioView {
+  const view = studentScenarioView(def);
+  return {
+    ...view,
+    diagnosisChoices: view.diagnosisChoices.map((value) => ({ value, label: diagnosisLabel(value) })),
+    tests: DIAGNOSTIC_TESTS.map((test) => ({ test, label: DIAGNOSTIC_TEST_LABELS[test] })),
+  };
+}
 
 export const attemptModeSchema = z.enum(['assigned', 'practice']);
 export const attemptStatusSchema = z.enum(['running', 'submitted']);

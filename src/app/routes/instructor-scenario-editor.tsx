@@ -66,6 +66,13 @@ export function EditScenarioPage() {
             <Link to={paths.scenarios.href()} className="rounded-md px-3.5 py-2 text-sm font-medium text-slate-700 hover:bg-slate-200/70">
               Back to the library
             </Link>
+            <Link
+              to={paths.scenarioTry.href(s.id)}
+              className="rounded-md bg-slate-900 px-3.5 py-2 text-sm font-medium text-white hover:bg-slate-700"
+              title="Runs the latest saved version; save your changes first"
+            >
+              Try on the bench
+            </Link>
             <a href={scenarioExportHref(s.id)} download className="rounded-md bg-white px-3.5 py-2 text-sm font-medium text-slate-900 ring-1 ring-slate-300 hover:bg-slate-50">
               Export JSON
             </a>

@@ -30,6 +30,7 @@ export function DiagnosisForm({
   submitting,
   error,
   onSubmit,
+  submitLabel = 'Submit diagnosis',
 }: {
   tests: { test: DiagnosticTest; label: string }[];
   choices: { value: DiagnosisChoice; label: string }[];
@@ -37,6 +38,7 @@ export function DiagnosisForm({
   submitting: boolean;
   error: string | null;
   onSubmit: (values: DiagnosisValues) => void;
+  submitLabel?: string;
 }) {
   const form = useForm<DiagnosisFormValues>({
     resolver: zodResolver(diagnosisFormSchema),
@@ -96,10 +98,10 @@ export function DiagnosisForm({
       )}
       <div className="flex items-center gap-3">
         <Button type="submit" disabled={submitting}>
-          {submitting ? 'Submitting…' : 'Submit diagnosis'}
+          {submitting ? 'Submitting…' : submitLabel}
         </Button>
         <span className="text-xs text-slate-500">
-          {readingCount} reading{readingCount === 1 ? '' : 's'} recorded. Submitting ends the attempt.
+          {readingCount} reading{readingCount === 1 ? '' : 's'} recorded.{submitLabel === 'Submit diagnosis' ? ' Submitting ends the attempt.' : ''}
         </span>
       </div>
     </form>
