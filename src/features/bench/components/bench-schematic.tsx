@@ -38,22 +38,29 @@ export const selectBay = (s: { controls: Controls; linkBlownHere: boolean; readi
   pileOver: s.readings.pileOverheated,
 });
 
-/** CSS pixels per drawing unit of an SVG shown with the default "xMidYMid meet". */
-function useDrawingScale(ref: React.RefObject<SVGSVGElement | null>): number {
-  const [scale, setScale] = useState(0.5);
+/**
+ * The drawing's box in CSS pixels (the size of the box it fills), and the
+ * pixels per drawing unit of an SVG shown with the default "xMidYMid meet".
+ * The drawing gets its size in pixels rather than as a percentage, so the
+ * browser does not lay out its hundreds of shapes and labels again whenever
+ * a readout elsewhere on the bench changes.
+ */
+function useDrawingBox(ref: React.RefObject<SVGSVGElement | null>): { width: number; height: number; scale: number } | null {
+  const [box, setBox] = useState<{ width: number; height: number; scale: number } | null>(null);
   useEffect(() => {
-    const el = ref.current;
+    const el = ref.current?.parentElement;
     if (!el || typeof ResizeObserver === 'undefined') return;
     const measure = () => {
-      const { width, height } = el.getBoundingClientRect();
-      if (width > 0 && height > 0) setScale(Math.min(width / VIEW_W, height / VIEW_H));
+      const width = el.clientWidth;
+      const height = el.clientHeight;
+      if (width > 0 && height > 0) setBox((b) => (b && b.width === width && b.height === height ? b : { width, height, scale: Math.min(width / VIEW_W, height / VIEW_H) }));
     };
     measure();
     const ro = new ResizeObserver(measure);
     ro.observe(el);
     return () => ro.disconnect();
   }, [ref]);
-  return scale;
+  return box;
 }
 
 export function BenchSchematic({ accessories, className = '' }: { accessories: AccessoryParams[]; className?: string }) {
@@ -63,7 +70,8 @@ export function BenchSchematic({ accessories, className = '' }: { accessories: A
   const pickTool = useBenchUi((s) => s.pickTool);
   const svgRef = useRef<SVGSVGElement>(null);
   const [drag, setDrag] = useState<Drag | null>(null);
-  const targetR = targetRadius(useDrawingScale(svgRef));
+  const box = useDrawingBox(svgRef);
+  const targetR = targetRadius(box?.scale ?? 0.5);
 
   const toSvg = (e: PointerEvent): Pt => {
     const svg = svgRef.current;
@@ -137,7 +145,8 @@ export function BenchSchematic({ accessories, className = '' }: { accessories: A
       showPoints={leadInHand}
       hoverPoint={hoverPoint}
       clampPlaces={clampInHand ? (hoverConductor ?? 'all') : null}
-      className={`h-full w-full touch-none rounded-xl bg-stone-50 ring-1 ring-slate-200 ${tool ? 'cursor-crosshair' : ''} ${className}`}
+      style={box ? { width: box.width, height: box.height } : { width: '100%', height: '100%' }}
+      className={`touch-none rounded-xl bg-stone-50 ring-1 ring-slate-200 ${tool ? 'cursor-crosshair' : ''} ${className}`}
       onPointerMove={onMove}
       onPointerUp={onUp}
       onPointerCancel={() => setDrag(null)}

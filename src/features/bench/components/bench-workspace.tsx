@@ -150,18 +150,18 @@ export function BenchWorkspace(p: BenchWorkspaceProps) {
             {p.status}
           </div>
         </div>
-        <div className="max-lg:sticky max-lg:top-0 max-lg:z-20">
+        <div className="[contain:layout_paint] max-lg:sticky max-lg:top-0 max-lg:z-20">
           <ReadingStrip />
         </div>
         <div className="grid min-h-0 flex-1 gap-2 lg:grid-cols-[minmax(0,1fr)_21rem] xl:grid-cols-[minmax(0,1fr)_25rem]">
           <div className="flex min-h-0 min-w-0 flex-col gap-2">
-            <div className="relative aspect-[1000/540] w-full lg:aspect-auto lg:min-h-0 lg:flex-1">
-              <BenchSchematic accessories={vehicle.loads.accessories} className="absolute inset-0" />
+            <div className="relative aspect-[1000/540] w-full [contain:strict] lg:aspect-auto lg:min-h-0 lg:flex-1">
+              <BenchSchematic accessories={vehicle.loads.accessories} className="absolute inset-0 will-change-transform" />
               <div className="absolute left-2 right-2 top-2">
                 <BenchAlerts />
               </div>
             </div>
-            <section aria-label="Engine and load controls" className="grid gap-3 rounded-xl bg-white p-3 shadow-sm ring-1 ring-slate-200 sm:grid-cols-[minmax(0,1fr)_auto]">
+            <section aria-label="Engine and load controls" className="grid gap-3 rounded-xl [contain:layout_paint] bg-white p-3 shadow-sm ring-1 ring-slate-200 sm:grid-cols-[minmax(0,1fr)_auto]">
               <div className="min-w-0 space-y-2">
                 <KeySwitch />
                 <RpmControl idleRpm={vehicle.engine.idleRpm} maxRpm={Math.min(3000, vehicle.engine.maxHeldRpm)} />

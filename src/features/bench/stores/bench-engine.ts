@@ -137,6 +137,8 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
   let nextTraceMs = 0;
   let keyStartedAtMs: number | null = point.controls.key === 'start' ? point.state.timeMs : null;
   let frame: number | null = null;
+  /** An input dispatched while the loop runs, not yet published (the next frame publishes it). */
+  let pending = false;
   let lastFrameAt: number | null = null;
   /** The controls with every dispatched event applied (the next step applies them to the model). */
   let shownControls: Controls = point.controls;
@@ -164,6 +166,7 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
   let burst: PileBurst = snapshot.burst;
 
   function publish(): void {
+    pending = false;
     const readings = readMeters(params, point.state);
     const t = point.state.timeMs;
     if (readings.pileA > BURST_MIN_A) {
@@ -221,7 +224,10 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
     shownControls = applyInput(shownControls, event, rawClampReadingA(point.state, shownControls));
     onEvent?.(event);
     if (event.kind === 'lead') refreshTrace(true);
-    publish();
+    // While the loop runs, the next frame shows it (input arrives before the frame's callbacks, so that is
+    // the frame the student sees next): a dial dragged at the display's rate costs one render a frame, not two.
+    if (frame !== null) pending = true;
+    else publish();
     return event;
   }
 
@@ -229,7 +235,10 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
     const gap = Math.min(Math.max(frameGapMs, 0), MAX_FRAME_GAP_MS);
     accumulatorMs += gap;
     const steps = Math.floor(accumulatorMs / DT_MS);
-    if (steps <= 0) return;
+    if (steps <= 0) {
+      if (pending) publish();
+      return;
+    }
     accumulatorMs -= steps * DT_MS;
     stepBy(steps);
     publish();
@@ -265,6 +274,7 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
     stop() {
       if (frame !== null) cancelAnimationFrame(frame);
       frame = null;
+      if (pending) publish();
     },
     running: () => frame !== null,
   };
