@@ -9,6 +9,8 @@
 import { z } from 'zod';
 import { FAULT_CATALOG, FAULT_KINDS, type DiagnosticTest, type FaultKind } from '../sim/faults.ts';
 import { defaultVehicleParams, VEHICLE_PARAM_BOUNDS, type NumericParamPath, type VehicleParams } from '../sim/params.ts';
+import { vehicleDesignErrors } from './vehicle-rules.ts';
+import { crankTrial, inductanceForRatingH } from '../sim/vehicle-checks.ts';
 
 export const SCENARIO_FORMAT = 'loadline.scenario';
 export const SCENARIO_FORMAT_VERSION = 1;
@@ -31,6 +33,9 @@ export const DIAGNOSTIC_TESTS = [
   'key-off-draw',
   'cranking',
 ] as const satisfies readonly DiagnosticTest[];
+
+/** The tests that need the engine running (a car that does not start cannot be given them). */
+export const RUNNING_TESTS: readonly DiagnosticTest[] = ['regulated-voltage', 'output', 'voltage-drop-positive', 'voltage-drop-ground', 'ripple'];
 
 export const DIAGNOSTIC_TEST_LABELS: Readonly<Record<DiagnosticTest, string>> = {
   'battery-ocv': 'Battery state of charge (open-circuit voltage)',
@@ -101,10 +106,12 @@ const accessoryId = z
   .string({ error: 'Accessory id is required' })
   .regex(/^[a-z0-9][a-z0-9-]{0,39}$/, 'Accessory id: lower-case letters, digits and dashes, up to 40 characters');
 
+const keyOffFlag = z.boolean({ error: 'keyOff must be true (works with the key off) or false' }).optional();
+
 export const accessorySchema = z.union(
   [
-    z.strictObject({ id: accessoryId, label: text('Accessory name', 1, 60), currentA: boundedNumber(ACCESSORY_BOUNDS.currentA) }),
-    z.strictObject({ id: accessoryId, label: text('Accessory name', 1, 60), resistanceOhm: boundedNumber(ACCESSORY_BOUNDS.resistanceOhm) }),
+    z.strictObject({ id: accessoryId, label: text('Accessory name', 1, 60), currentA: boundedNumber(ACCESSORY_BOUNDS.currentA), keyOff: keyOffFlag }),
+    z.strictObject({ id: accessoryId, label: text('Accessory name', 1, 60), resistanceOhm: boundedNumber(ACCESSORY_BOUNDS.resistanceOhm), keyOff: keyOffFlag }),
   ],
   { error: 'An accessory has an id, a name and either currentA (a constant-current load) or resistanceOhm (a lamp or heater)' },
 );
@@ -120,7 +127,7 @@ export const vehicleParamsSchema = z.strictObject({
     minCrankVoltageV: p('engine.minCrankVoltageV'),
     crankToStartS: p('engine.crankToStartS'),
   }),
-  belt: z.strictObject({ pulleyRatio: p('belt.pulleyRatio'), gripNm: p('belt.gripNm') }),
+  belt: z.strictObject({ pulleyRatio: p('belt.pulleyRatio'), gripNm: p('belt.gripNm'), creep01: p('belt.creep01') }),
   alternator: z.strictObject({
     ratedCurrentA: p('alternator.ratedCurrentA'),
     ratedAltRpm: p('alternator.ratedAltRpm'),
@@ -160,6 +167,7 @@ export const vehicleParamsSchema = z.strictObject({
     internalResistanceOhmAt25C: p('battery.internalResistanceOhmAt25C'),
     initialSurfaceChargeV: p('battery.initialSurfaceChargeV'),
     surfaceChargeTimeConstantS: p('battery.surfaceChargeTimeConstantS'),
+    sulfation01: p('battery.sulfation01'),
   }),
   wiring: z.strictObject({
     bplusCableAwg: p('wiring.bplusCableAwg'),
@@ -317,7 +325,12 @@ export function outputPassMarkA(rule: OutputRule, ratedCurrentA: number): number
 const stringList = (label: string, maxItems: number, maxLength: number) =>
   z.array(text(label, 1, maxLength), { error: `${label}s must be a list of text` }).max(maxItems, `At most ${maxItems} ${label.toLowerCase()}s`);
 
-export const scenarioSchema = z
+/**
+ * A scenario document as stored: every field in its range and the document
+ * coherent. Stored versions are read with this one, so a version saved before
+ * a rule was added still opens.
+ */
+export const scenarioDocumentSchema = z
   .strictObject({
     format: z.literal(SCENARIO_FORMAT, { error: `format must be "${SCENARIO_FORMAT}"` }),
     formatVersion: z.literal(SCENARIO_FORMAT_VERSION, {
@@ -360,7 +373,33 @@ export const scenarioSchema = z
     }
   });
 
-export type ScenarioDefinition = z.infer<typeof scenarioSchema>;
+/**
+ * A scenario as the editor, the API and imports accept it: the stored shape
+ * plus the rules for the car as a whole (shared/vehicle-rules.ts), each
+ * reported at the parameter it is about.
+ */
+export const scenarioSchema = scenarioDocumentSchema.superRefine((doc, ctx) => {
+  // The car-wide rules only make sense once every number is in its own range (those issues are reported already).
+  if (!vehicleParamsSchema.safeParse(doc.vehicle.params).success) return;
+  const design = vehicleDesignErrors(doc.vehicle.params);
+  for (const issue of design) {
+    ctx.addIssue({ code: 'custom', path: ['vehicle', 'params', ...issue.path.split('.')], message: issue.message });
+  }
+  const running = doc.testsExpected.filter((t) => RUNNING_TESTS.includes(t));
+  if (design.length === 0 && running.length > 0) {
+    const steady = doc.faults.map((f) => ({ ...f, onsetS: 0, intermittent: null }));
+    if (!crankTrial(doc.vehicle.params, steady).started) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['testsExpected'],
+        message: `This car does not start with its faults, so it cannot be given tests that need the engine running (${running.map((t) => DIAGNOSTIC_TEST_LABELS[t].toLowerCase()).join('; ')}).`,
+      });
+    }
+  }
+});
+
+
+export type ScenarioDefinition = z.infer<typeof scenarioDocumentSchema>;
 export type ScenarioFault = z.infer<typeof faultSchema>;
 
 // Compile-time checks that the schema and the model agree on the parameter and fault shapes.
@@ -399,6 +438,26 @@ export function defaultDiagnosisChoices(faultKinds: readonly FaultKind[], count 
 }
 
 /**
+ * A partial file that gives a rating but not the stator: the stator sized
+ * for that rating, as the editor's button does (resistance scaled from the
+ * reference unit, inductance fitted so the machine delivers the rating).
+ */
+function statorSizedFor(params: Json, given: Json): Json {
+  const alternator = params.alternator as Json;
+  const rated = alternator.ratedCurrentA as number;
+  const bound = VEHICLE_PARAM_BOUNDS['alternator.synchronousInductanceH'];
+  if (!(rated >= VEHICLE_PARAM_BOUNDS['alternator.ratedCurrentA'].min && rated <= VEHICLE_PARAM_BOUNDS['alternator.ratedCurrentA'].max)) return params;
+  const ref = defaultVehicleParams().alternator;
+  const sized: Json = { ...alternator };
+  if (given.statorResistanceOhmAt20C === undefined) sized.statorResistanceOhmAt20C = Number(((ref.statorResistanceOhmAt20C * ref.ratedCurrentA) / rated).toPrecision(3));
+  const parsed = vehicleParamsSchema.safeParse({ ...params, alternator: sized });
+  if (!parsed.success) return params;
+  const h = inductanceForRatingH(parsed.data, bound.min, bound.max);
+  if (h !== null) sized.synchronousInductanceH = Number(h.toPrecision(3));
+  return { ...params, alternator: sized };
+}
+
+/**
  * Normalise a raw document (an older or partial file) so it can be parsed:
  * fills the format header, default pass rules, vehicle parameters, empty lists,
  * and diagnosis choices. Migrations between format versions go here.
@@ -423,7 +482,11 @@ export function normaliseScenario(raw: unknown): unknown {
   if (isObject(doc.vehicle)) {
     const vehicle: Json = { ...doc.vehicle };
     if (vehicle.params === undefined) vehicle.params = defaultVehicleParams();
-    else if (isObject(vehicle.params)) vehicle.params = fillDefaults(vehicle.params, defaultVehicleParams() as unknown as Json);
+    else if (isObject(vehicle.params)) {
+      const given = isObject(vehicle.params.alternator) ? vehicle.params.alternator : {};
+      const filled = fillDefaults(vehicle.params, defaultVehicleParams() as unknown as Json);
+      vehicle.params = given.synchronousInductanceH === undefined && typeof given.ratedCurrentA === 'number' ? statorSizedFor(filled, given) : filled;
+    }
     doc.vehicle = vehicle;
   }
   if (Array.isArray(doc.faults)) {
@@ -449,9 +512,12 @@ export function safeRestoreScenario(raw: unknown) {
   return scenarioSchema.safeParse(normaliseScenario(raw));
 }
 
-/** Normalise then parse; throws a ZodError (the API turns it into a 400 naming each path). */
+/**
+ * Normalise then parse a stored document (the car-wide rules are not applied:
+ * see scenarioDocumentSchema); throws a ZodError naming each path.
+ */
 export function restoreScenario(raw: unknown): ScenarioDefinition {
-  return scenarioSchema.parse(normaliseScenario(raw));
+  return scenarioDocumentSchema.parse(normaliseScenario(raw));
 }
 
 export interface FieldIssue {

@@ -679,3 +679,45 @@ export const CATALOG_TOPOLOGIES: readonly BridgeTopology[] = [
 export function prepareBridgeTables(topologies: readonly BridgeTopology[] = CATALOG_TOPOLOGIES): void {
   for (const t of topologies) bridgeTable(t);
 }
+
+// ---- Ripple with no load -----------------------------------------------------
+
+const openRippleRatios = new Map<string, number>();
+
+/**
+ * AC rms of the bridge's output voltage with no load, per volt of phase EMF
+ * peak: the envelope of the line-to-line voltages its working diodes can
+ * pass (six pulses a cycle when healthy: 4.2 % of the mean, trade-facts
+ * check value 3). This is the ripple a voltmeter finds at a B+ stud cut off
+ * from the battery, where nothing smooths it (an open fusible link or
+ * charging lead: about 2 V or more at idle, OEM Mitsubishi).
+ */
+export function openCircuitRippleRatio(topology: BridgeTopology): number {
+  const key = topologyKey(topology);
+  const known = openRippleRatios.get(key);
+  if (known !== undefined) return known;
+  const m = masksOf(topology);
+  const n = 720;
+  const sines = sineTable(n);
+  const v = new Float64Array(n);
+  let sum = 0;
+  for (let s = 0; s < n; s++) {
+    let top = -Infinity;
+    let bottom = Infinity;
+    for (let k = 0; k < 3; k++) {
+      if (m.phaseOpen[k]) continue;
+      const e = sines[k * (n + 1) + s]!;
+      if (m.topOk[k] || m.forcedTop[k]) top = Math.max(top, e);
+      if (m.botOk[k] || m.forcedBot[k]) bottom = Math.min(bottom, e);
+    }
+    const x = top > bottom ? top - bottom : 0;
+    v[s] = x;
+    sum += x;
+  }
+  const mean = sum / n;
+  let sq = 0;
+  for (let s = 0; s < n; s++) sq += (v[s]! - mean) * (v[s]! - mean);
+  const ratio = Math.sqrt(sq / n);
+  openRippleRatios.set(key, ratio);
+  return ratio;
+}

@@ -6,10 +6,15 @@
  *
  * Controls are what the events have set so far: the key, the rpm the
  * assistant holds, switches, the pile dial, where the leads and the clamp
- * are, and the faults injected so far.
+ * are, and the changes of the car in force (its schedule, and any applied
+ * since). A `fault-inject` is the same as a `change-apply` of the fault's
+ * change (faults.ts `faultChange`): tests and reference runs may speak of
+ * faults, the bench and the server's log speak of changes only.
  */
 
+import type { CarChange } from './car-changes.ts';
 import type { Fault } from './faults.ts';
+import { faultChange } from './faults.ts';
 
 /** Where a voltmeter lead can be clipped. */
 export type ConnectionPoint =
@@ -58,7 +63,11 @@ export type InputEvent =
   | { kind: 'clamp'; atMs: number; conductor: Conductor | null; arrow: ClampArrow }
   | { kind: 'clamp-zero'; atMs: number }
   | { kind: 'ammeter'; atMs: number; inSeries: boolean }
+  /** A new fuse in the series ammeter (its 10 A range fuse blew). */
+  | { kind: 'ammeter-fuse'; atMs: number }
   | { kind: 'bplus-disconnect'; atMs: number; connected: boolean }
+  | { kind: 'change-apply'; atMs: number; change: CarChange }
+  | { kind: 'change-clear'; atMs: number; changeId: string }
   | { kind: 'fault-inject'; atMs: number; fault: Fault }
   | { kind: 'fault-clear'; atMs: number; faultId: string };
 
@@ -75,11 +84,16 @@ export interface Controls {
   clamp: { conductor: Conductor | null; arrow: ClampArrow };
   /** Subtracted from the clamp's raw reading; set by clamp-zero. */
   clampZeroA: number;
+  /** The last clamp-zero was taken with the jaws around no conductor (false before any). */
+  clampZeroAway: boolean;
   /** Series ammeter between the battery negative post and its cable. */
   ammeterInSeries: boolean;
+  /** How many times the ammeter's fuse has been replaced (each replacement fits a good fuse). */
+  ammeterFusesFitted: number;
   /** The B+ lead at the alternator stud (false: removed to isolate a drain). */
   bplusConnected: boolean;
-  faults: Fault[];
+  /** The car's changes in force or scheduled, in the order they came. */
+  changes: CarChange[];
 }
 
 export function initialControls(): Controls {
@@ -91,9 +105,11 @@ export function initialControls(): Controls {
     leads: { red: null, black: null },
     clamp: { conductor: null, arrow: 'toward-battery' },
     clampZeroA: 0,
+    clampZeroAway: false,
     ammeterInSeries: false,
+    ammeterFusesFitted: 0,
     bplusConnected: true,
-    faults: [],
+    changes: [],
   };
 }
 
@@ -123,21 +139,29 @@ export function applyInput(controls: Controls, event: InputEvent, rawClampA: num
     case 'clamp':
       return { ...controls, clamp: { conductor: event.conductor, arrow: event.arrow } };
     case 'clamp-zero':
-      return { ...controls, clampZeroA: rawClampA };
+      return { ...controls, clampZeroA: rawClampA, clampZeroAway: controls.clamp.conductor === null };
     case 'ammeter':
       return { ...controls, ammeterInSeries: event.inSeries };
+    case 'ammeter-fuse':
+      return { ...controls, ammeterFusesFitted: controls.ammeterFusesFitted + 1 };
     case 'bplus-disconnect':
       return { ...controls, bplusConnected: event.connected };
+    case 'change-apply':
+      return withChange(controls, event.change);
+    case 'change-clear':
+      return { ...controls, changes: controls.changes.filter((c) => c.id !== event.changeId) };
     case 'fault-inject':
-      return {
-        ...controls,
-        faults: [...controls.faults.filter((f) => f.id !== event.fault.id), event.fault],
-      };
+      return withChange(controls, faultChange(event.fault));
     case 'fault-clear':
-      return { ...controls, faults: controls.faults.filter((f) => f.id !== event.faultId) };
+      return { ...controls, changes: controls.changes.filter((c) => c.id !== event.faultId) };
     default:
       return assertNever(event);
   }
+}
+
+/** A change added last, replacing one of the same id. */
+function withChange(controls: Controls, change: CarChange): Controls {
+  return { ...controls, changes: [...controls.changes.filter((c) => c.id !== change.id), change] };
 }
 
 function assertNever(x: never): never {

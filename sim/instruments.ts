@@ -12,8 +12,8 @@
  */
 
 import type { VehicleParams } from './params.ts';
-import type { Fault } from './faults.ts';
-import type { SimState, EngineStatus } from './step.ts';
+import type { CarChange } from './car-changes.ts';
+import type { SimState, EngineStatus, EngineStopCause } from './step.ts';
 import type { Controls, Conductor, ConnectionPoint } from './inputs.ts';
 import type { NodeName, NetworkSolution } from './network.ts';
 import { COLD_ALTERNATOR_C, FIELD_DRIVER_DROP_V, HOT_ALTERNATOR_C, copperAt, effectiveModel, fieldResistanceOhm, relativeFlux } from './model.ts';
@@ -35,6 +35,16 @@ export interface Readings {
   /** The carbon-pile tester's own ammeter. */
   pileA: number;
   engine: EngineStatus;
+  /** Why the engine will not crank or stopped (null while nothing is wrong). */
+  engineStopCause: EngineStopCause | null;
+  /** The series ammeter's fuse has blown (it reads nothing and breaks the battery circuit until a new fuse is fitted). */
+  ammeterFuseBlown: boolean;
+  /** The series ammeter carries more than its 10 A range. */
+  ammeterOverRange: boolean;
+  /** The belt slips enough to squeal. */
+  beltSquealing: boolean;
+  /** The battery is gassing (overcharged): hydrogen and oxygen, explosive near a spark. */
+  batteryGassing: boolean;
   fusibleLinkOpen: boolean;
   pileTempC: number;
   /** The pile's thermal cut-out has opened (turn the dial to zero and let it cool). */
@@ -69,6 +79,11 @@ export const CONNECTION_NODE: Readonly<Record<ConnectionPoint, NodeName>> = {
   'engine-ground': 'engine',
   chassis: 'chassis',
 };
+
+/** The series ammeter's range (its fuse is AMMETER_FUSE_A). */
+export const AMMETER_RANGE_A = 10;
+/** Gassing current above which the battery visibly bubbles and gives off gas. */
+const GASSING_SHOWN_A = 2;
 
 /** Ignition and injector noise on any DC reading with the engine running. */
 const RUNNING_NOISE_FLOOR_VAC = 0.004;
@@ -133,6 +148,11 @@ export function readMeters(params: VehicleParams, state: SimState, controls: Con
     ammeterA,
     pileA: net.branchA.pile,
     engine: state.engineStatus,
+    engineStopCause: state.engineStopCause,
+    ammeterFuseBlown: state.ammeterFuseBlown,
+    ammeterOverRange: ammeterA !== null && Math.abs(ammeterA) > AMMETER_RANGE_A,
+    beltSquealing: state.beltSlipping,
+    batteryGassing: state.batteryGassingA > GASSING_SHOWN_A,
     fusibleLinkOpen: state.fusibleLinkBlown || linkOpenByFault(params, state),
     pileTempC: state.pileTempC,
     pileOverheated: state.pileTripped,
@@ -145,12 +165,12 @@ export function readMeters(params: VehicleParams, state: SimState, controls: Con
 
 /** A link that a fault (or the scenario) has open at this moment. */
 function linkOpenByFault(params: VehicleParams, state: SimState): boolean {
-  return effectiveModel(params, state.controls.faults, state.timeMs / 1000).p.wiring.fusibleLinkOpen;
+  return effectiveModel(params, state.controls.changes, state.timeMs / 1000).p.wiring.fusibleLinkOpen;
 }
 
 /** The electrical operating point of the bridge in a state (shared with the rectifier circuit). */
 export function bridgeOperatingInputs(params: VehicleParams, state: SimState) {
-  const m = effectiveModel(params, state.controls.faults, state.timeMs / 1000);
+  const m = effectiveModel(params, state.controls.changes, state.timeMs / 1000);
   const a = m.p.alternator;
   const omegaE = (2 * Math.PI * a.polePairs * state.altRpm) / 60;
   const emfPeakV = m.emfConstantVsPerRad * omegaE * relativeFlux(m, state.fieldCurrentA);
@@ -195,9 +215,16 @@ export function rippleTrace(params: VehicleParams, state: SimState, samples: num
     dcResistanceOhm: op.dcResistanceOhm,
     stepsPerCycle: perCycle,
   });
+  // The waveform's shape from the periodic solution, its size what the meter reads between the leads (see readMeters).
+  let sq = 0;
+  for (let s = 0; s < perCycle; s++) sq += (res.waveformA[s]! - res.meanA) ** 2;
+  const rms = Math.sqrt(sq / perCycle);
+  // The AC current that reaches the network already carries the share a B+ cut off from the battery leaves it.
+  const wantRms = state.net.rippleCurrentRmsA * Math.abs(transfer);
+  const k = rms > 1e-12 ? (wantRms / rms) * Math.sign(transfer) : 0;
   const acV: number[] = [];
   for (let c = 0; c < cycles; c++) {
-    for (let s = 0; s < perCycle; s++) acV.push((res.waveformA[s]! - res.meanA) * transfer);
+    for (let s = 0; s < perCycle; s++) acV.push((res.waveformA[s]! - res.meanA) * k);
   }
   return { sampleIntervalS: 1 / op.electricalHz / perCycle, acV, electricalHz: op.electricalHz };
 }
@@ -209,10 +236,23 @@ const CURVE_TEST_V = 13.5;
 /**
  * The output available at 13.5 V held at the B+ stud against alternator
  * speed, full field, net of the field's own supply: what an output-curve
- * test stand measures. Faults apply in full (onsets and intermittency aside).
+ * test stand measures. The changes (faults.ts `faultChange` of a car's
+ * faults) apply in full, onsets and intermittency aside.
  */
-export function outputCurve(params: VehicleParams, faults: readonly Fault[], options: { hot: boolean }): OutputCurvePoint[] {
-  const steady = faults.map((f) => ({ ...f, onsetS: 0, intermittent: null }));
+export function outputCurve(params: VehicleParams, changes: readonly CarChange[], options: { hot: boolean }): OutputCurvePoint[] {
+  const at = outputAtSpeed(params, changes, options);
+  const points: OutputCurvePoint[] = [];
+  for (let rpm = 0; rpm <= CURVE_MAX_ALT_RPM; rpm += CURVE_STEP_ALT_RPM) points.push({ altRpm: rpm, currentA: at(rpm) });
+  return points;
+}
+
+/**
+ * The test stand's output at any alternator speed (see outputCurve), as a
+ * function of the speed; successive calls at nearby speeds start from the
+ * last answer.
+ */
+export function outputAtSpeed(params: VehicleParams, changes: readonly CarChange[], options: { hot: boolean }): (altRpm: number) => number {
+  const steady = changes.map((c) => ({ ...c, onsetS: 0, intermittent: null }));
   const m = effectiveModel(params, steady, 0);
   const a = m.p.alternator;
   const tempC = options.hot ? HOT_ALTERNATOR_C : COLD_ALTERNATOR_C;
@@ -221,9 +261,8 @@ export function outputCurve(params: VehicleParams, faults: readonly Fault[], opt
   const rPhase = copperAt(a.statorResistanceOhmAt20C, tempC) + a.diodeSeriesResistanceOhm;
   const diode = { saturationCurrentA: a.diodeSaturationCurrentA, emissionCoefficient: a.diodeEmissionCoefficient };
   const out: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0 };
-  const points: OutputCurvePoint[] = [];
   let guess = 0;
-  for (let rpm = 0; rpm <= CURVE_MAX_ALT_RPM; rpm += CURVE_STEP_ALT_RPM) {
+  return (rpm: number) => {
     const omegaE = (2 * Math.PI * a.polePairs * rpm) / 60;
     bridgeOperatingPoint(
       {
@@ -239,7 +278,6 @@ export function outputCurve(params: VehicleParams, faults: readonly Fault[], opt
       out,
     );
     guess = out.meanA;
-    points.push({ altRpm: rpm, currentA: Math.max(0, out.meanA - fieldA) });
-  }
-  return points;
+    return Math.max(0, out.meanA - fieldA);
+  };
 }

@@ -2,8 +2,8 @@
  * Derived constants of one set of effective parameters: cable resistances,
  * the alternator's EMF constant and field saturation, the bridge
  * characteristic of its diode topology. Compiled once per parameter set and
- * per combination of active faults, and cached, so the step does arithmetic
- * only.
+ * per combination of active changes (faults), and cached, so the step does
+ * arithmetic only.
  *
  * Units in names: V, A, Ohm, S (siemens), H, s, C, rad/s.
  */
@@ -11,10 +11,10 @@
 import { detExp, detTanh } from './det-math.ts';
 import type { VehicleParams } from './params.ts';
 import { copperResistanceOhm } from './params.ts';
-import type { Fault } from './faults.ts';
-import { activeFaultMask, applyFaults } from './faults.ts';
+import type { CarChange } from './car-changes.ts';
+import { activeChangeMask, applyChanges } from './car-changes.ts';
 import type { BridgeTable, BridgeTopology } from './bridge.ts';
-import { bridgeTable, diodeDropV } from './bridge.ts';
+import { bridgeTable, diodeDropV, openCircuitRippleRatio } from './bridge.ts';
 import { capacityAs } from './battery.ts';
 
 /** Copper's temperature coefficient of resistance near 20 C. */
@@ -42,6 +42,8 @@ export interface Model {
   p: VehicleParams;
   topology: BridgeTopology;
   table: BridgeTable;
+  /** AC rms of the bridge's unloaded output per volt of phase EMF peak. */
+  openRippleRatio: number;
   /** Phase EMF peak per electrical rad/s at reference flux. */
   emfConstantVsPerRad: number;
   fieldKneeA: number;
@@ -55,6 +57,8 @@ export interface Model {
   /** Accessories by id: conductance (S) and constant current (A). */
   accessoryG: Map<string, number>;
   accessoryI: Map<string, number>;
+  /** Accessories fed straight from the battery (they work with the key off). */
+  accessoryKeyOff: Set<string>;
   linkTimeConstantS: number;
   starterG: number;
   capacityAs: number;
@@ -121,7 +125,9 @@ export function compile(p: VehicleParams): Model {
   const referenceFieldA = (REFERENCE_FIELD_V - FIELD_DRIVER_DROP_V) / a.fieldResistanceOhmAt20C;
   const accessoryG = new Map<string, number>();
   const accessoryI = new Map<string, number>();
+  const accessoryKeyOff = new Set<string>();
   for (const acc of p.loads.accessories) {
+    if (acc.keyOff) accessoryKeyOff.add(acc.id);
     if ('resistanceOhm' in acc) accessoryG.set(acc.id, acc.resistanceOhm > 0 ? 1 / acc.resistanceOhm : 0);
     else accessoryI.set(acc.id, Math.max(0, acc.currentA));
   }
@@ -143,6 +149,7 @@ export function compile(p: VehicleParams): Model {
     p,
     topology,
     table: bridgeTable(topology),
+    openRippleRatio: openCircuitRippleRatio(topology),
     emfConstantVsPerRad: emfConstant,
     fieldKneeA: a.fieldKneeCurrentA,
     tanhReference: detTanh(referenceFieldA / a.fieldKneeCurrentA),
@@ -154,6 +161,7 @@ export function compile(p: VehicleParams): Model {
     gPileMaxS: p.pile.maxCurrentAAt12V / 12,
     accessoryG,
     accessoryI,
+    accessoryKeyOff,
     linkTimeConstantS: w.fusibleLinkI2tA2s / (w.fusibleLinkRatingA * w.fusibleLinkRatingA),
     starterG: p.engine.crankCurrentA / 10,
     capacityAs: capacityAs(p.battery),
@@ -184,7 +192,7 @@ export function fieldResistanceOhm(m: Model, tempC: number): number {
 }
 
 interface CacheEntry {
-  faults: readonly Fault[];
+  changes: readonly CarChange[];
   mask: number;
   model: Model;
 }
@@ -194,46 +202,46 @@ const CACHE_PER_PARAMS = 8;
 
 /**
  * The last answer, looked at before the cache: the step asks every 10 ms
- * with the same params and fault list, which stay the same objects until an
+ * with the same params and change list, which stay the same objects until an
  * event replaces them. Compiling is deterministic, so whichever copy of a
  * model is returned gives the same results. (It keeps the last params alive
  * until another set is asked for.)
  */
 const lastAnswer: CacheEntry & { params: VehicleParams | null } = {
   params: null,
-  faults: [],
+  changes: [],
   mask: -1,
   model: null as unknown as Model,
 };
 
 /**
- * The compiled model of `params` with the faults active at `timeS`. Reuses
- * the compiled model while the same fault list has the same active set.
+ * The compiled model of `params` with the changes active at `timeS`. Reuses
+ * the compiled model while the same change list has the same active set.
  */
-export function effectiveModel(params: VehicleParams, faults: readonly Fault[], timeS: number): Model {
-  if (faults.length > 30) return compile(applyFaults(params, faults, timeS));
-  const mask = activeFaultMask(faults, timeS);
+export function effectiveModel(params: VehicleParams, changes: readonly CarChange[], timeS: number): Model {
+  if (changes.length > 30) return compile(applyChanges(params, changes, timeS));
+  const mask = activeChangeMask(changes, timeS);
   const last = lastAnswer;
-  if (last.params === params && last.faults === faults && last.mask === mask) return last.model;
-  const model = cachedModel(params, faults, mask, timeS);
+  if (last.params === params && last.changes === changes && last.mask === mask) return last.model;
+  const model = cachedModel(params, changes, mask, timeS);
   last.params = params;
-  last.faults = faults;
+  last.changes = changes;
   last.mask = mask;
   last.model = model;
   return model;
 }
 
-function cachedModel(params: VehicleParams, faults: readonly Fault[], mask: number, timeS: number): Model {
+function cachedModel(params: VehicleParams, changes: readonly CarChange[], mask: number, timeS: number): Model {
   let entries = cache.get(params);
   if (!entries) {
     entries = [];
     cache.set(params, entries);
   }
   for (const e of entries) {
-    if (e.faults === faults && e.mask === mask) return e.model;
+    if (e.changes === changes && e.mask === mask) return e.model;
   }
-  const model = compile(mask === 0 ? params : applyFaults(params, faults, timeS));
-  entries.unshift({ faults, mask, model });
+  const model = compile(mask === 0 ? params : applyChanges(params, changes, timeS));
+  entries.unshift({ changes, mask, model });
   if (entries.length > CACHE_PER_PARAMS) entries.pop();
   return model;
 }

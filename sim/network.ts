@@ -13,6 +13,9 @@
  *   negCable  chassis -> battery-neg post (through the series ammeter when fitted)
  *   loads     positive junction -> chassis (vehicle loads)
  *   starter   positive junction -> engine block (starter motor)
+ *   fieldFeed positive junction -> alternator case (the field fed through the
+ *             ignition switch and the charge-lamp circuit, when that feed is
+ *             higher than the alternator's own B+)
  */
 
 import type { BridgePoint, BridgePointInput, BridgeTable, DiodeShockley } from './bridge.ts';
@@ -30,7 +33,8 @@ export type BranchName =
   | 'strap'
   | 'negCable'
   | 'loads'
-  | 'starter';
+  | 'starter'
+  | 'fieldFeed';
 
 export const NODE_NAMES: readonly NodeName[] = ['batteryPos', 'junction', 'bplus', 'altCase', 'engine', 'chassis', 'batteryNeg'];
 
@@ -45,6 +49,7 @@ export const NETWORK_BRANCHES: Readonly<Record<BranchName, { from: NodeName; to:
   negCable: { from: 'chassis', to: 'batteryNeg' },
   loads: { from: 'junction', to: 'chassis' },
   starter: { from: 'junction', to: 'engine' },
+  fieldFeed: { from: 'junction', to: 'altCase' },
 };
 
 export type NodeVoltages = Record<NodeName, number>;
@@ -60,10 +65,20 @@ export interface NetworkSolution {
   bridgeCurrentA: number;
   /** Field supply taken from B+ inside the alternator. */
   fieldSupplyA: number;
-  /** RMS of the AC part of the rectifier's output current. */
+  /**
+   * RMS of the AC part of the rectifier's output current that reaches the
+   * network: with a stiff DC side (a battery) all of it; with the B+ stud cut
+   * off from the battery, the stud's AC voltage is the bridge's own
+   * open-circuit ripple, which the bridge's output impedance sets (see
+   * solveNetworkInto).
+   */
   rippleCurrentRmsA: number;
   /** Largest AC component of the output, as a multiple of the electrical frequency (6 healthy). */
   rippleHarmonic: number;
+  /** The share of the bridge's AC current that reaches the network (1 with a battery on B+; see rippleCurrentRmsA). */
+  rippleShare01: number;
+  /** Current through the B+ load-dump clamp (0 unless the stud would rise above BPLUS_CLAMP_V). */
+  clampA: number;
 }
 
 /** Sum of currents into each node (A); every entry is ~0 when KCL holds. */
@@ -93,6 +108,10 @@ export interface NetworkInput {
   starterG: number;
   /** Field current drawn from B+ inside the alternator. */
   fieldSupplyA: number;
+  /** Field current drawn through the ignition and charge-lamp feed (junction to case). */
+  ignitionFieldA: number;
+  /** AC rms of the bridge's open-circuit output voltage per volt of phase EMF peak (its ripple with no load). */
+  openRippleRatio: number;
   table: BridgeTable;
   emfPeakV: number;
   reactanceOhm: number;
@@ -122,11 +141,14 @@ interface LinearResponses {
   key: Float64Array;
   perEmf: Float64Array;
   perBridgeA: Float64Array;
+  /** Per ampere of field current fed from the junction to the case. */
+  perFeedA: Float64Array;
   rippleOhm: NodeVoltages;
 }
 
 const mat = new Float64Array(N * N);
-const rhs = new Float64Array(N * 2);
+const COLS = 3;
+const rhs = new Float64Array(N * COLS);
 const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0 };
 /**
  * The responses of the last few sets of conductances, most recently used
@@ -157,10 +179,12 @@ function buildResponses(n: NetworkInput, key: Float64Array): LinearResponses {
   mat[CH * N + CH] = mat[CH * N + CH]! + n.negG;
   stamp(JN, CH, n.loadG);
   stamp(JN, EN, n.starterG);
-  // Two right-hand sides side by side: unit battery EMF, unit bridge current.
-  rhs[BP * 2] = gb;
-  rhs[BPL * 2 + 1] = 1;
-  rhs[AC * 2 + 1] = -1;
+  // Three right-hand sides side by side: unit battery EMF, unit bridge current, unit ignition-fed field current.
+  rhs[BP * COLS] = gb;
+  rhs[BPL * COLS + 1] = 1;
+  rhs[AC * COLS + 1] = -1;
+  rhs[JN * COLS + 2] = -1;
+  rhs[AC * COLS + 2] = 1;
   // Gaussian elimination; the conductance matrix is symmetric positive definite.
   for (let k = 0; k < N; k++) {
     const pivot = mat[k * N + k]!;
@@ -168,27 +192,30 @@ function buildResponses(n: NetworkInput, key: Float64Array): LinearResponses {
       const f = mat[i * N + k]! / pivot;
       if (f === 0) continue;
       for (let j = k; j < N; j++) mat[i * N + j] = mat[i * N + j]! - f * mat[k * N + j]!;
-      for (let c = 0; c < 2; c++) rhs[i * 2 + c] = rhs[i * 2 + c]! - f * rhs[k * 2 + c]!;
+      for (let c = 0; c < COLS; c++) rhs[i * COLS + c] = rhs[i * COLS + c]! - f * rhs[k * COLS + c]!;
     }
   }
   for (let k = N - 1; k >= 0; k--) {
     const d = mat[k * N + k]!;
-    for (let c = 0; c < 2; c++) {
-      let sum = rhs[k * 2 + c]!;
-      for (let j = k + 1; j < N; j++) sum -= mat[k * N + j]! * rhs[j * 2 + c]!;
-      rhs[k * 2 + c] = sum / d;
+    for (let c = 0; c < COLS; c++) {
+      let sum = rhs[k * COLS + c]!;
+      for (let j = k + 1; j < N; j++) sum -= mat[k * N + j]! * rhs[j * COLS + c]!;
+      rhs[k * COLS + c] = sum / d;
     }
   }
   const perEmf = new Float64Array(N);
   const perBridgeA = new Float64Array(N);
+  const perFeedA = new Float64Array(N);
   for (let k = 0; k < N; k++) {
-    perEmf[k] = rhs[k * 2]!;
-    perBridgeA[k] = rhs[k * 2 + 1]!;
+    perEmf[k] = rhs[k * COLS]!;
+    perBridgeA[k] = rhs[k * COLS + 1]!;
+    perFeedA[k] = rhs[k * COLS + 2]!;
   }
   return {
     key: new Float64Array(key),
     perEmf,
     perBridgeA,
+    perFeedA,
     rippleOhm: Object.freeze({
       batteryPos: perBridgeA[BP]!,
       junction: perBridgeA[JN]!,
@@ -239,7 +266,8 @@ function responsesFor(n: NetworkInput): LinearResponses {
 function portVolts(n: NetworkInput, lr: LinearResponses, ifs: number, ib: number): number {
   const we = lr.perEmf;
   const wb = lr.perBridgeA;
-  return n.batteryEmfV * (we[BPL]! - we[AC]!) + (ib - ifs) * (wb[BPL]! - wb[AC]!);
+  const wf = lr.perFeedA;
+  return n.batteryEmfV * (we[BPL]! - we[AC]!) + (ib - ifs) * (wb[BPL]! - wb[AC]!) + n.ignitionFieldA * (wf[BPL]! - wf[AC]!);
 }
 
 // Reused for every bridge solve (bridgeOperatingPoint keeps nothing of it).
@@ -264,8 +292,35 @@ function solveBridge(n: NetworkInput, lr: LinearResponses, ifs: number): void {
   b.reactanceOhm = n.reactanceOhm;
   b.phaseResistanceOhm = n.phaseResistanceOhm;
   b.diode = n.diode;
-  b.dcTheveninV = n.batteryEmfV * (we[BPL]! - we[AC]!) - ifs * (wb[BPL]! - wb[AC]!);
+  const wf = lr.perFeedA;
+  b.dcTheveninV = n.batteryEmfV * (we[BPL]! - we[AC]!) - ifs * (wb[BPL]! - wb[AC]!) + n.ignitionFieldA * (wf[BPL]! - wf[AC]!);
   b.dcResistanceOhm = wb[BPL]! - wb[AC]!;
+  b.guessA = n.guessA;
+  bridgeOperatingPoint(b, point);
+}
+
+/**
+ * Load-dump protection: the rectifier's diodes are avalanche (Zener) types
+ * that conduct from B+ to the case above this voltage, as main-current Zener
+ * diodes do in alternators built for it ("Load dump", after Borgeest,
+ * Elektronik in der Fahrzeugtechnik; the voltage is from memory: ISO 16750-2
+ * caps a suppressed load dump at 35 V for 12 V systems). With B+ cut off from
+ * the battery and the field stuck full on, nothing else would bound the stud.
+ */
+export const BPLUS_CLAMP_V = 30;
+/** Dynamic resistance of the clamp while it conducts (for the ripple it lets through). */
+const CLAMP_DYNAMIC_OHM = 0.05;
+
+/** The bridge's operating point with its port held at `portV` (the clamp conducting), into `point`. */
+function solveBridgeHeld(n: NetworkInput, portV: number): void {
+  const b = bridgeInput;
+  b.table = n.table;
+  b.emfPeakV = n.emfPeakV;
+  b.reactanceOhm = n.reactanceOhm;
+  b.phaseResistanceOhm = n.phaseResistanceOhm;
+  b.diode = n.diode;
+  b.dcTheveninV = portV;
+  b.dcResistanceOhm = 0;
   b.guessA = n.guessA;
   bridgeOperatingPoint(b, point);
 }
@@ -277,12 +332,14 @@ const NO_RIPPLE: NodeVoltages = Object.freeze({ batteryPos: 0, junction: 0, bplu
 export function blankSolution(): NetworkSolution {
   return {
     nodeV: { batteryPos: 0, junction: 0, bplus: 0, altCase: 0, engine: 0, chassis: 0, batteryNeg: 0 },
-    branchA: { battery: 0, pile: 0, posCable: 0, bplusCable: 0, alternator: 0, mount: 0, strap: 0, negCable: 0, loads: 0, starter: 0 },
+    branchA: { battery: 0, pile: 0, posCable: 0, bplusCable: 0, alternator: 0, mount: 0, strap: 0, negCable: 0, loads: 0, starter: 0, fieldFeed: 0 },
     rippleOhm: NO_RIPPLE,
     bridgeCurrentA: 0,
     fieldSupplyA: 0,
     rippleCurrentRmsA: 0,
     rippleHarmonic: 6,
+    rippleShare01: 1,
+    clampA: 0,
   };
 }
 
@@ -312,14 +369,31 @@ export function solveNetworkInto(n: NetworkInput, out: NetworkSolution): Network
     ifs = 0;
     solveBridge(n, lr, ifs);
   }
-  const ib = point.meanA;
-  const src = ib - ifs;
-  const vBp = e * we[BP]! + src * wb[BP]!;
-  const vJn = e * we[JN]! + src * wb[JN]!;
-  const vBpl = e * we[BPL]! + src * wb[BPL]!;
-  const vAc = e * we[AC]! + src * wb[AC]!;
-  const vEn = e * we[EN]! + src * wb[EN]!;
-  const vCh = e * we[CH]! + src * wb[CH]!;
+  const wf = lr.perFeedA;
+  const ig = n.ignitionFieldA;
+  const zPort = wb[BPL]! - wb[AC]!;
+  let ib = point.meanA;
+  let src = ib - ifs;
+  let clampA = 0;
+  if (portVolts(n, lr, ifs, ib) > BPLUS_CLAMP_V) {
+    // The clamp holds the port: the bridge gives what it can at the clamp's
+    // voltage, the network takes the current that puts its port there, and
+    // the clamp conducts the difference.
+    solveBridgeHeld(n, BPLUS_CLAMP_V);
+    ib = point.meanA;
+    src = (BPLUS_CLAMP_V - e * (we[BPL]! - we[AC]!) - ig * (wf[BPL]! - wf[AC]!)) / zPort;
+    clampA = ib - ifs - src;
+    if (clampA < 0) {
+      clampA = 0;
+      src = ib - ifs;
+    }
+  }
+  const vBp = e * we[BP]! + src * wb[BP]! + ig * wf[BP]!;
+  const vJn = e * we[JN]! + src * wb[JN]! + ig * wf[JN]!;
+  const vBpl = e * we[BPL]! + src * wb[BPL]! + ig * wf[BPL]!;
+  const vAc = e * we[AC]! + src * wb[AC]! + ig * wf[AC]!;
+  const vEn = e * we[EN]! + src * wb[EN]! + ig * wf[EN]!;
+  const vCh = e * we[CH]! + src * wb[CH]! + ig * wf[CH]!;
   const gb = 1 / n.batteryR;
   const v = out.nodeV;
   v.batteryPos = vBp;
@@ -334,16 +408,29 @@ export function solveNetworkInto(n: NetworkInput, out: NetworkSolution): Network
   a.pile = n.pileG * vBp;
   a.posCable = n.posG * (vBp - vJn);
   a.bplusCable = n.bplusG * (vBpl - vJn);
-  a.alternator = ib - ifs - n.internalG * (vBpl - vAc);
+  a.alternator = src - n.internalG * (vBpl - vAc);
   a.mount = n.mountG * (vEn - vAc);
   a.strap = n.strapG * (vCh - vEn);
   a.negCable = n.negG * vCh;
   a.loads = n.loadG * (vJn - vCh);
   a.starter = n.starterG * (vJn - vEn);
+  a.fieldFeed = ig;
   out.rippleOhm = lr.rippleOhm;
   out.bridgeCurrentA = ib;
   out.fieldSupplyA = ifs;
-  out.rippleCurrentRmsA = point.acRmsA;
+  // The bridge's AC output as a Norton source: its AC current in parallel
+  // with its own output impedance, which the open-circuit ripple fixes
+  // (Z = open-circuit AC volts / AC current). A battery on the port takes
+  // nearly all of the AC current; a port cut off from the battery shows the
+  // open-circuit ripple and never more.
+  const openAcV = n.openRippleRatio * n.emfPeakV;
+  const acA = point.acRmsA;
+  const share = acA > 0 && zPort > 0 && openAcV > 0 ? openAcV / (openAcV + acA * zPort) : 1;
+  // A conducting clamp shunts the port with its small dynamic resistance.
+  const clampShare = clampA > 0 ? CLAMP_DYNAMIC_OHM / (CLAMP_DYNAMIC_OHM + zPort) : 1;
+  out.rippleShare01 = share * clampShare;
+  out.rippleCurrentRmsA = acA * share * clampShare;
+  out.clampA = clampA;
   out.rippleHarmonic = point.dominantHarmonic;
   return out;
 }

@@ -29,8 +29,14 @@ export interface EngineParams {
 export interface BeltParams {
   /** Crank pulley diameter over alternator pulley diameter. */
   pulleyRatio: number;
-  /** Largest torque the belt passes to the alternator pulley before slipping. */
+  /**
+   * Largest torque the belt can pass to the alternator pulley (its grip):
+   * the belt's torque follows grip x tanh(slip / creep), so it creeps a little
+   * under any load and slides once the torque asked reaches the grip.
+   */
   gripNm: number;
+  /** Slip at which the belt passes tanh(1) = 76 % of its grip: about 1 % for a good belt, more for a glazed or loose one. */
+  creep01: number;
 }
 
 export interface AlternatorParams {
@@ -100,6 +106,8 @@ export interface BatteryParams {
   initialSurfaceChargeV: number;
   /** Time constant of the surface (polarisation) charge. */
   surfaceChargeTimeConstantS: number;
+  /** Sulfation, 0 healthy to 1: acid locked in the plates (rests lower) and slow to take charge. */
+  sulfation01: number;
 }
 
 export interface WiringParams {
@@ -135,10 +143,15 @@ export interface WiringParams {
   senseLineOhm: number;
 }
 
-/** A switchable vehicle load: either a constant current (electronics) or a resistance (lamps, heaters). */
+/**
+ * A switchable vehicle load: either a constant current (electronics) or a
+ * resistance (lamps, heaters). `keyOff`: fed straight from the battery, so it
+ * works with the key off too (the headlamps on most cars); otherwise it is
+ * fed through the ignition switch.
+ */
 export type AccessoryParams =
-  | { id: string; label: string; currentA: number }
-  | { id: string; label: string; resistanceOhm: number };
+  | { id: string; label: string; currentA: number; keyOff?: boolean }
+  | { id: string; label: string; resistanceOhm: number; keyOff?: boolean };
 
 export interface LoadParams {
   /** Engine-management and body electronics with the key on. */
@@ -194,7 +207,7 @@ export function defaultVehicleParams(): VehicleParams {
       minCrankVoltageV: 8.5,
       crankToStartS: 0.9,
     },
-    belt: { pulleyRatio: 2.8, gripNm: 28 },
+    belt: { pulleyRatio: 2.8, gripNm: 28, creep01: 0.01 },
     alternator: {
       ratedCurrentA: 150,
       ratedAltRpm: 6000,
@@ -234,6 +247,7 @@ export function defaultVehicleParams(): VehicleParams {
       internalResistanceOhmAt25C: 0.0035,
       initialSurfaceChargeV: 0,
       surfaceChargeTimeConstantS: 20,
+      sulfation01: 0,
     },
     wiring: {
       bplusCableAwg: 4,
@@ -262,8 +276,8 @@ export function defaultVehicleParams(): VehicleParams {
       keyOffSleepA: 0.025,
       moduleSleepDelayS: 180,
       accessories: [
-        { id: 'headlamps', label: 'Headlamps (low beam)', resistanceOhm: 1.3 },
-        { id: 'high-beams', label: 'High beams', resistanceOhm: 1.2 },
+        { id: 'headlamps', label: 'Headlamps (low beam)', resistanceOhm: 1.3, keyOff: true },
+        { id: 'high-beams', label: 'High beams', resistanceOhm: 1.2, keyOff: true },
         { id: 'blower', label: 'Heater blower (high)', resistanceOhm: 0.75 },
         { id: 'rear-defrost', label: 'Rear window defroster', resistanceOhm: 0.9 },
         { id: 'wipers', label: 'Wipers', currentA: 5 },
@@ -313,6 +327,7 @@ export const VEHICLE_PARAM_BOUNDS: Record<NumericParamPath, ParamBound> = {
   'engine.crankToStartS': { min: 0.2, max: 5, unit: 's', label: 'Cranking time to start' },
   'belt.pulleyRatio': { min: 1.3, max: 3.5, unit: ':1', label: 'Pulley ratio' },
   'belt.gripNm': { min: 2, max: 60, unit: 'N·m', label: 'Belt grip at the alternator pulley' },
+  'belt.creep01': { min: 0.002, max: 0.2, unit: '', label: 'Belt creep (slip at 76 % of grip)' },
   'alternator.ratedCurrentA': { min: 60, max: 250, unit: 'A', label: 'Rated output' },
   'alternator.ratedAltRpm': { min: 4000, max: 8000, unit: 'rpm', label: 'Speed of the rating', integer: true },
   'alternator.polePairs': { min: 4, max: 9, unit: 'pairs', label: 'Rotor pole pairs', integer: true },
@@ -343,6 +358,7 @@ export const VEHICLE_PARAM_BOUNDS: Record<NumericParamPath, ParamBound> = {
   'battery.internalResistanceOhmAt25C': { min: 0.002, max: 0.05, unit: 'Ω', label: 'Internal resistance (new, full, 25 °C)' },
   'battery.initialSurfaceChargeV': { min: 0, max: 0.6, unit: 'V', label: 'Surface charge at start' },
   'battery.surfaceChargeTimeConstantS': { min: 5, max: 600, unit: 's', label: 'Surface-charge time constant' },
+  'battery.sulfation01': { min: 0, max: 1, unit: '', label: 'Sulfation (0 healthy, 1 badly sulfated)' },
   'wiring.bplusCableAwg': { min: 0, max: 10, unit: 'AWG', label: 'B+ cable gauge', integer: true },
   'wiring.bplusCableLengthM': { min: 0.2, max: 4, unit: 'm', label: 'B+ cable length' },
   'wiring.fusibleLinkAwg': { min: 4, max: 18, unit: 'AWG', label: 'Fusible link gauge', integer: true },

@@ -44,7 +44,7 @@ export function rectifierCircuitAt(params: VehicleParams, state: SimState): Rect
     shortedDiodes: [...a.shortedDiodes],
     openPhases: [...a.openPhases],
     battery: {
-      ocvV: openCircuitVoltageV(state.batterySoc01, m.p.battery.tempC) + state.batteryPolarizationV,
+      ocvV: openCircuitVoltageV(state.batterySoc01, m.p.battery.tempC, m.p.battery.sulfation01) + state.batteryPolarizationV + state.batterySurfaceChargeV,
       internalResistanceOhm: internalResistanceOhm(m.p.battery, state.batterySoc01),
     },
     bplusResistanceOhm: m.rBplusOhm + m.rPosOhm,

@@ -6,13 +6,15 @@
  * own time accumulator and asks for a whole number of steps per frame.
  *
  * Event timing: an event applies before the first step whose start time is
- * >= its atMs; events with equal atMs apply in log order. Scenario faults
- * are `fault-inject` events at atMs 0 (their onsetS delays them).
+ * >= its atMs; events with equal atMs apply in log order. A compiled car's
+ * schedule of changes (compiled-car.ts) is in the controls from the start
+ * (`startPoint`'s `changes`), so it is in force from the first state.
  *
  * Units: ms of sim time.
  */
 
 import type { VehicleParams } from './params.ts';
+import type { CarChange } from './car-changes.ts';
 import type { Controls, InputEvent } from './inputs.ts';
 import { applyInput } from './inputs.ts';
 import type { SimState } from './step.ts';
@@ -34,13 +36,13 @@ export interface AttemptRun {
   snapshots: ReplayPoint[];
 }
 
-export function startPoint(params: VehicleParams, seed: number): ReplayPoint {
-  const state = initialState(params, seed);
+export function startPoint(params: VehicleParams, seed: number, changes: readonly CarChange[] = []): ReplayPoint {
+  const state = initialState(params, seed, changes);
   return { state, controls: state.controls, nextEventIndex: 0 };
 }
 
 /** Events in time order; a stable sort keeps the order of equal times. */
-export function orderEvents(events: readonly InputEvent[]): readonly InputEvent[] {
+export function orderEvents<E extends { atMs: number }>(events: readonly E[]): readonly E[] {
   for (let i = 1; i < events.length; i++) {
     if (events[i]!.atMs < events[i - 1]!.atMs) {
       return events.map((e, k) => ({ e, k })).sort((a, b) => a.e.atMs - b.e.atMs || a.k - b.k).map((x) => x.e);
@@ -101,12 +103,12 @@ export function runAttempt(
   seed: number,
   events: readonly InputEvent[],
   untilMs: number,
-  options: { snapshotEveryMs: number },
+  options: { snapshotEveryMs: number; changes?: readonly CarChange[] },
 ): AttemptRun {
   const ordered = orderEvents(events);
   const every = Math.max(1, Math.round(options.snapshotEveryMs / DT_MS));
   const total = stepsBetween(0, untilMs);
-  let point = startPoint(params, seed);
+  let point = startPoint(params, seed, options.changes);
   const snapshots: ReplayPoint[] = [point];
   for (let done = 0; done < total; ) {
     const n = Math.min(every, total - done);
@@ -120,7 +122,7 @@ export function runAttempt(
 /**
  * The moment at `atMs` (the step boundary at or before it), reached from the
  * latest snapshot not after it, or from the start without snapshots. The
- * snapshots must come from a run of the same params, seed and events.
+ * snapshots must come from a run of the same params, seed, changes and events.
  */
 export function stateAt(
   params: VehicleParams,
@@ -128,6 +130,7 @@ export function stateAt(
   events: readonly InputEvent[],
   atMs: number,
   snapshots?: readonly ReplayPoint[],
+  changes: readonly CarChange[] = [],
 ): ReplayPoint {
   const ordered = orderEvents(events);
   let from: ReplayPoint | null = null;
@@ -143,7 +146,7 @@ export function stateAt(
       } else hi = mid - 1;
     }
   }
-  from ??= startPoint(params, seed);
+  from ??= startPoint(params, seed, changes);
   return advance(params, from, ordered, stepsBetween(from.state.timeMs, atMs));
 }
 

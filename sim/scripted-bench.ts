@@ -7,6 +7,7 @@
  * Units are in the names: s, ms, V.
  */
 import type { VehicleParams } from './params.ts';
+import type { CarChange } from './car-changes.ts';
 import type { ClampArrow, Conductor, ConnectionPoint, InputEvent, KeyPosition } from './inputs.ts';
 import { readMeters, type Readings } from './instruments.ts';
 import { advance, startPoint, type ReplayPoint } from './replay.ts';
@@ -17,6 +18,8 @@ export interface ScriptedBenchOptions {
   seed: number;
   /** Events already in the log at the start (faults present from time zero, say). */
   events?: readonly InputEvent[];
+  /** The car's schedule of changes (a compiled car's), in force from the first state. */
+  changes?: readonly CarChange[];
   /**
    * Take at least one step on every wait. Without it a wait shorter than half
    * a step rounds to no steps and lets no time pass.
@@ -33,7 +36,7 @@ export class ScriptedBench {
     readonly params: VehicleParams,
     options: ScriptedBenchOptions,
   ) {
-    this.point = startPoint(params, options.seed);
+    this.point = startPoint(params, options.seed, options.changes);
     this.events = [...(options.events ?? [])];
     this.atLeastOneStep = options.atLeastOneStep ?? false;
   }
@@ -71,6 +74,10 @@ export class ScriptedBench {
   }
   ammeter(inSeries: boolean): this {
     return this.push({ kind: 'ammeter', atMs: this.timeMs, inSeries });
+  }
+  /** Fit a new fuse in the series ammeter. */
+  replaceAmmeterFuse(): this {
+    return this.push({ kind: 'ammeter-fuse', atMs: this.timeMs });
   }
   bplus(connected: boolean): this {
     return this.push({ kind: 'bplus-disconnect', atMs: this.timeMs, connected });

@@ -4,10 +4,10 @@
  * throws 404 when the thing does not exist and 403 when it is not theirs.
  * Admins pass every instructor check.
  */
-import { and, eq, inArray, sql } from 'drizzle-orm';
+import { and, eq, gt, inArray, sql } from 'drizzle-orm';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import type { DbOrTx } from '../db/client.ts';
-import { assignments, attempts, classes, classInstructors, enrollments, scenarios, scenarioVersions } from '../db/schema.ts';
+import { assignmentPool, assignments, attempts, classes, classInstructors, enrollments, scenarios, scenarioVersions } from '../db/schema.ts';
 import { forbidden, HttpError, notFound } from '../http/errors.ts';
 
 /** Whether the user teaches the class (admins teach every class). */
@@ -252,14 +252,42 @@ export async function assertCanSeeScenarioVersion(
 }
 
 /**
- * A published, shared scenario anyone signed in may practise. Returns the
- * published version's id (what a practice attempt runs).
+ * The scenario versions a student may not practise now: those an open or
+ * upcoming assignment of one of their classes runs (its own version or one
+ * of its pool), unless its instructor allows practice for it. Practising one
+ * would hand over that assignment's answer key.
+ */
+export async function versionsWithheldFromPractice(db: DbOrTx, userId: number, now = new Date()): Promise<Set<number>> {
+  const open = and(eq(enrollments.userId, userId), gt(assignments.dueAt, now), eq(assignments.allowPractice, false));
+  const [own, pooled] = await Promise.all([
+    db
+      .select({ versionId: assignments.scenarioVersionId })
+      .from(assignments)
+      .innerJoin(enrollments, eq(enrollments.classId, assignments.classId))
+      .where(open),
+    db
+      .select({ versionId: assignmentPool.scenarioVersionId })
+      .from(assignmentPool)
+      .innerJoin(assignments, eq(assignments.id, assignmentPool.assignmentId))
+      .innerJoin(enrollments, eq(enrollments.classId, assignments.classId))
+      .where(open),
+  ]);
+  return new Set([...own, ...pooled].map((r) => r.versionId));
+}
+
+/**
+ * A published, shared scenario anyone signed in may practise, unless its
+ * published version is withheld from this student (versionsWithheldFromPractice).
+ * Returns the published version's id (what a practice attempt runs).
  */
 export async function assertCanPractiseScenario(db: DbOrTx, user: Who, scenarioId: number): Promise<{ scenarioId: number; scenarioVersionId: number }> {
   const row = await loadScenario(db, scenarioId);
   const visible = row.visibility === 'shared' || user.role === 'admin' || row.ownerId === user.id;
   if (!visible || row.archived) throw notFound('No such scenario');
   if (row.publishedVersionId === null) throw new HttpError(409, 'This scenario has no published version yet', { field: 'scenarioId' });
+  if ((await versionsWithheldFromPractice(db, user.id)).has(row.publishedVersionId)) {
+    throw new HttpError(409, 'scenarioId: this scenario is set in an open or upcoming assignment of your class; it can be practised once that assignment closes', { field: 'scenarioId' });
+  }
   return { scenarioId: row.id, scenarioVersionId: row.publishedVersionId };
 }
 
@@ -273,6 +301,7 @@ export interface AssignmentRow {
   attemptsAllowed: number;
   showCurveAfter: boolean;
   showFeedbackAfter: boolean;
+  poolSeed: number;
 }
 
 async function loadAssignment(db: DbOrTx, assignmentId: number): Promise<AssignmentRow> {
@@ -287,6 +316,7 @@ async function loadAssignment(db: DbOrTx, assignmentId: number): Promise<Assignm
       attemptsAllowed: assignments.attemptsAllowed,
       showCurveAfter: assignments.showCurveAfter,
       showFeedbackAfter: assignments.showFeedbackAfter,
+      poolSeed: assignments.poolSeed,
     })
     .from(assignments)
     .where(eq(assignments.id, assignmentId));

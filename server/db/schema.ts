@@ -168,6 +168,10 @@ export const assignments = pgTable(
     attemptsAllowed: integer('attempts_allowed').notNull().default(3),
     showCurveAfter: boolean('show_curve_after').notNull().default(true),
     showFeedbackAfter: boolean('show_feedback_after').notNull().default(true),
+    /** Students of the class may practise the assignment's scenario versions while it is open or upcoming. */
+    allowPractice: boolean('allow_practice').notNull().default(false),
+    /** Seed of the per-student draw from the assignment's pool (assignment_pool). */
+    poolSeed: integer('pool_seed').notNull().default(0),
     createdBy: integer('created_by').references(() => users.id, { onDelete: 'set null' }),
     ...timestamps,
   },
@@ -192,6 +196,25 @@ export const assignmentExtensions = pgTable(
     updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [primaryKey({ columns: [t.assignmentId, t.userId] })],
+);
+
+/**
+ * The scenario versions an assignment draws each student's car from (one
+ * vehicle, several fault sets). An assignment without rows here gives every
+ * student its own scenario version.
+ */
+export const assignmentPool = pgTable(
+  'assignment_pool',
+  {
+    assignmentId: integer('assignment_id')
+      .notNull()
+      .references(() => assignments.id, { onDelete: 'cascade' }),
+    scenarioVersionId: integer('scenario_version_id')
+      .notNull()
+      .references(() => scenarioVersions.id, { onDelete: 'restrict' }),
+    position: integer('position').notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.assignmentId, t.scenarioVersionId] })],
 );
 
 export const attempts = pgTable(
@@ -246,7 +269,11 @@ export const attemptEvents = pgTable(
   (t) => [uniqueIndex('attempt_events_seq').on(t.attemptId, t.seq)],
 );
 
-/** Faults an instructor has sent to a running attempt and the bench has not yet logged. */
+/**
+ * Faults an instructor has sent to a running attempt. The server is the
+ * authority on when each reached the bench (delivered_at, and the sim time
+ * of the attempt's log then); the bench's log of it sets applied_at.
+ */
 export const pendingInjections = pgTable('pending_injections', {
   id: serial('id').primaryKey(),
   attemptId: integer('attempt_id')
@@ -256,6 +283,10 @@ export const pendingInjections = pgTable('pending_injections', {
   createdBy: integer('created_by').references(() => users.id, { onDelete: 'set null' }),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   appliedAt: timestamp('applied_at', { withTimezone: true }),
+  /** When the server first sent it down the bench's stream. */
+  deliveredAt: timestamp('delivered_at', { withTimezone: true }),
+  /** The sim time of the attempt's log at that moment (the latest stored event's). */
+  deliveredSimMs: integer('delivered_sim_ms'),
 });
 
 export const comments = pgTable(

@@ -1,4 +1,5 @@
 /** Assignments: a scenario version given to a class, with dates, attempts allowed and what is shown after submission. */
+import { randomInt } from 'node:crypto';
 import { and, asc, desc, eq, inArray, lte, sql } from 'drizzle-orm';
 import {
   assignmentIdParamsSchema,
@@ -11,12 +12,14 @@ import {
   type AssignmentStudent,
   type MyAssignment,
 } from '../../shared/api/assignments.ts';
-import { studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
+import { NO_FAULT_LABEL, restoreScenario, studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
+import { FAULT_CATALOG } from '../../sim/faults.ts';
 import { assertCanManageAssignment, assertCanManageClass, assertCanSeeAssignment, assertCanSeeScenario, isEnrolled } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
 import type { DbOrTx } from '../db/client.ts';
-import { assignmentExtensions, assignments, attempts, classes, enrollments, scenarioVersions, users } from '../db/schema.ts';
+import { assignmentExtensions, assignmentPool, assignments, attempts, classes, enrollments, scenarioVersions, users } from '../db/schema.ts';
+import { healthyParams } from '../services/grade-run.ts';
 import { badRequest, HttpError, notFound } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams, parseQuery } from '../http/validate.ts';
@@ -37,8 +40,11 @@ const assignmentColumns = {
   attemptsAllowed: assignments.attemptsAllowed,
   showCurveAfter: assignments.showCurveAfter,
   showFeedbackAfter: assignments.showFeedbackAfter,
+  allowPractice: assignments.allowPractice,
   createdAt: assignments.createdAt,
 };
+
+const faultLabelsOf = (def: ScenarioDefinition) => (def.faults.length ? [...new Set(def.faults.map((f) => FAULT_CATALOG[f.kind].label))] : [NO_FAULT_LABEL]);
 
 async function loadAssignments(db: DbOrTx, where: ReturnType<typeof eq>): Promise<Assignment[]> {
   const rows = await db
@@ -48,7 +54,61 @@ async function loadAssignments(db: DbOrTx, where: ReturnType<typeof eq>): Promis
     .innerJoin(scenarioVersions, eq(scenarioVersions.id, assignments.scenarioVersionId))
     .where(where)
     .orderBy(asc(assignments.dueAt), asc(assignments.id));
-  return rows.map((r) => ({ ...r, opensAt: r.opensAt.toISOString(), dueAt: r.dueAt.toISOString(), createdAt: r.createdAt.toISOString() }));
+  const ids = rows.map((r) => r.id);
+  const pools = ids.length
+    ? await db
+        .select({ assignmentId: assignmentPool.assignmentId, scenarioVersionId: assignmentPool.scenarioVersionId, title: scenarioVersions.title, definition: scenarioVersions.definition })
+        .from(assignmentPool)
+        .innerJoin(scenarioVersions, eq(scenarioVersions.id, assignmentPool.scenarioVersionId))
+        .where(inArray(assignmentPool.assignmentId, ids))
+        .orderBy(asc(assignmentPool.assignmentId), asc(assignmentPool.position))
+    : [];
+  return rows.map((r) => ({
+    ...r,
+    opensAt: r.opensAt.toISOString(),
+    dueAt: r.dueAt.toISOString(),
+    createdAt: r.createdAt.toISOString(),
+    pool: pools
+      .filter((p) => p.assignmentId === r.id)
+      .map((p) => ({ scenarioVersionId: p.scenarioVersionId, title: p.title, faultLabels: faultLabelsOf(restoreScenario(p.definition)) })),
+  }));
+}
+
+/** Two cars are one vehicle: the same name and kind and the same parameters apart from what faults work through. */
+function sameVehicle(a: ScenarioDefinition, b: ScenarioDefinition): boolean {
+  const spec = (d: ScenarioDefinition) => JSON.stringify({ name: d.vehicle.name, kind: d.vehicle.kind, params: { ...healthyParams(d.vehicle.params), label: '' } });
+  return spec(a) === spec(b);
+}
+
+/**
+ * The versions of a fault pool, the assignment's own first: each scenario
+ * seen by the instructor, at its published version or the one named, all of
+ * the first one's vehicle. A 400 names the entry at fault.
+ */
+async function resolvePool(tx: DbOrTx, user: Parameters<typeof assertCanSeeScenario>[1], baseVersionId: number, pool: readonly { scenarioId: number; scenarioVersionId?: number }[]): Promise<number[]> {
+  if (pool.length === 0) return [baseVersionId];
+  const [base] = await tx.select({ definition: scenarioVersions.definition, title: scenarioVersions.title }).from(scenarioVersions).where(eq(scenarioVersions.id, baseVersionId));
+  const baseDef = restoreScenario(base!.definition);
+  const out = [baseVersionId];
+  for (const [i, entry] of pool.entries()) {
+    const field = `pool.${i}`;
+    const scenario = await assertCanSeeScenario(tx, user, entry.scenarioId).catch(() => {
+      throw badRequest(`${field}.scenarioId: no scenario ${entry.scenarioId} you can assign`, { field: `${field}.scenarioId` });
+    });
+    const versionId = entry.scenarioVersionId ?? scenario.publishedVersionId;
+    if (versionId === null) throw badRequest(`${field}.scenarioVersionId: that scenario has no published version; publish one or name the version`, { field: `${field}.scenarioVersionId` });
+    const [version] = await tx
+      .select({ id: scenarioVersions.id, title: scenarioVersions.title, definition: scenarioVersions.definition })
+      .from(scenarioVersions)
+      .where(and(eq(scenarioVersions.id, versionId), eq(scenarioVersions.scenarioId, scenario.id)));
+    if (!version) throw badRequest(`${field}.scenarioVersionId: that version does not belong to that scenario`, { field: `${field}.scenarioVersionId` });
+    const def = restoreScenario(version.definition);
+    if (!sameVehicle(baseDef, def)) {
+      throw badRequest(`${field}: "${version.title}" is on the ${def.vehicle.name}, not the ${baseDef.vehicle.name} of "${base!.title}": a pool is one vehicle with several fault sets`, { field });
+    }
+    if (!out.includes(version.id)) out.push(version.id);
+  }
+  return out;
 }
 
 export function assignmentRoutes(ctx: AppContext) {
@@ -118,6 +178,7 @@ export function assignmentRoutes(ctx: AppContext) {
         .from(scenarioVersions)
         .where(and(eq(scenarioVersions.id, versionId), eq(scenarioVersions.scenarioId, scenario.id)));
       if (!version) throw badRequest('scenarioVersionId: that version does not belong to this scenario', { field: 'scenarioVersionId' });
+      const pool = await resolvePool(tx, user, version.id, input.pool);
       const [row] = await tx
         .insert(assignments)
         .values({
@@ -129,10 +190,13 @@ export function assignmentRoutes(ctx: AppContext) {
           attemptsAllowed: input.attemptsAllowed,
           showCurveAfter: input.showCurveAfter,
           showFeedbackAfter: input.showFeedbackAfter,
+          allowPractice: input.allowPractice,
+          poolSeed: randomInt(0, 2 ** 31),
           createdBy: user.id,
         })
         .returning({ id: assignments.id });
       if (!row) throw new HttpError(500, 'Assignment was not created');
+      if (pool.length > 1) await tx.insert(assignmentPool).values(pool.map((scenarioVersionId, position) => ({ assignmentId: row.id, scenarioVersionId, position })));
       return row.id;
     });
     const [created] = await loadAssignments(ctx.db, eq(assignments.id, id));

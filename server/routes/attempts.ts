@@ -22,7 +22,7 @@ export function attemptRoutes(ctx: AppContext) {
   g.post('/', ['student'], async (req, res) => {
     const input = parseBody(startAttemptSchema, req);
     const id = await startAttempt(ctx.db, currentUser(req), input);
-    res.status(201).json(await attemptBootstrap(ctx, ctx.env.SESSION_SECRET, id));
+    res.status(201).json(await attemptBootstrap(ctx, id));
   });
 
   g.get('/mine', ['student'], async (req, res) => {
@@ -33,8 +33,8 @@ export function attemptRoutes(ctx: AppContext) {
     const { id } = parseParams(attemptIdParamsSchema, req);
     const read = await loadAttemptWithEvents(ctx, id);
     const { attempt } = read;
-    await attemptReaderAccess(ctx.db, currentUser(req), { attemptId: id, ownerId: attempt.userId, assignmentId: attempt.assignmentId, status: attempt.status });
-    res.json(await attemptBootstrap(ctx, ctx.env.SESSION_SECRET, read));
+    const access = await attemptReaderAccess(ctx.db, currentUser(req), { attemptId: id, ownerId: attempt.userId, assignmentId: attempt.assignmentId, status: attempt.status });
+    res.json(await attemptBootstrap(ctx, read, { isOwner: access.isOwner }));
   });
 
   // The owner is checked from memory (requireOwnAttempt), and again by the statement that stores the batch.

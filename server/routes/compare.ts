@@ -11,12 +11,16 @@ import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseParams } from '../http/validate.ts';
+import { and, eq } from 'drizzle-orm';
+import { assignments } from '../db/schema.ts';
+import { hiddenFor } from '../services/result-views.ts';
 import {
   accuracyByFault,
   accuracyByTest,
   assignmentHeader,
   countedRows,
   distribution,
+  drawnGroups,
   faultLabel,
   submittedAttempts,
   toCsv,
@@ -39,12 +43,20 @@ export function compareRoutes(ctx: AppContext) {
         viewer: 'instructor',
         assignment,
         rows,
+        groups: drawnGroups(rows, counted),
         distribution: distribution(rows, null),
         accuracyByFault: accuracyByFault(counted),
         accuracyByTest: accuracyByTest(counted),
       };
     } else {
-      const mine = rows.find((r) => r.studentId === user.id) ?? null;
+      // A student sees their own row, without the fault they drew, and without the grade or the right answer while the assignment hides results.
+      const [showing] = await ctx.db
+        .select({ showFeedbackAfter: assignments.showFeedbackAfter, dueAt: assignments.dueAt })
+        .from(assignments)
+        .where(and(eq(assignments.id, id)));
+      const hidden = hiddenFor({ mode: 'assigned', showFeedbackAfter: showing?.showFeedbackAfter ?? true, dueAt: showing?.dueAt ?? null });
+      const own = rows.find((r) => r.studentId === user.id) ?? null;
+      const mine = own && { ...own, drawnFault: null, ...(hidden ? { grade: null, correct: null, verified: false } : {}) };
       body = { viewer: 'student', assignment, mine, distribution: distribution(rows, mine) };
     }
     res.json(body);
@@ -64,6 +76,7 @@ export function compareRoutes(ctx: AppContext) {
         a.studentName,
         a.studentEmail,
         assignment.title,
+        a.drawnFault,
         a.submittedAt ? a.submittedAt.toISOString() : null,
         yesNo(counting.has(a.attemptId)),
         a.grade,

@@ -23,7 +23,8 @@ import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
 import { boardAttempts, boardVersionOf, boardVersions, className, classBoard, createBoardRuns } from '../services/live-board.ts';
 import { ATTEMPT_CHANNEL, BENCH_CLOCK_CHANNEL, INJECTION_CHANNEL, liveBusFor } from '../services/live-bus.ts';
-import { benchKeyOf, createClear, createInjection, injectionViews, listInjections, toBenchMessage, unappliedInjections } from '../services/live-injections.ts';
+import { createClear, createInjection, injectionViews, listInjections, markDelivered, resolveRows, toBenchMessage, unappliedInjections } from '../services/live-injections.ts';
+import { loadStoredInputs } from '../services/live-attempt-run.ts';
 import { openSse } from '../services/live-sse.ts';
 
 /** While the notification connection is down, streams look for news this often. */
@@ -147,7 +148,8 @@ export function liveRoutes(ctx: AppContext) {
   g.get('/attempts/:id/injections', INSTRUCTORS, async (req, res) => {
     const { id } = parseParams(attemptParamsSchema, req);
     await requireAttemptInstructor(ctx.db, currentUser(req), id);
-    res.json({ injections: injectionViews(await listInjections(ctx.db, id)) });
+    const [rows, stored] = await Promise.all([listInjections(ctx.db, id), loadStoredInputs(ctx.db, id)]);
+    res.json({ injections: injectionViews(rows, resolveRows(rows, stored)) });
   });
 
   g.post('/attempts/:id/inject', INSTRUCTORS, async (req, res) => {
@@ -170,15 +172,15 @@ export function liveRoutes(ctx: AppContext) {
   });
 
   /**
-   * The bench's stream: every injection not yet logged, sealed, once per
-   * connection (a reconnect gets again those still unlogged; the bench skips
-   * any it has already applied), then a `status` event when the attempt ends.
+   * The bench's stream: every injection not yet logged, as the change it
+   * makes, once per connection (a reconnect gets again those still unlogged;
+   * the bench skips any it has already applied), then a `status` event when
+   * the attempt ends. The first sending of each is recorded as its delivery.
    */
   g.get('/attempts/:id/stream', ['student'], async (req, res) => {
     const { id } = parseParams(attemptParamsSchema, req);
     const access = await requireAttemptOwner(ctx.db, currentUser(req), id);
     if (access.status !== 'running') throw conflict('The attempt is no longer running', 'id');
-    const benchKey = await benchKeyOf(ctx.env.SESSION_SECRET, id);
     const sse = openSse(req, res);
     const bus = liveBusFor(ctx);
     const sent = new Set<number>();
@@ -198,7 +200,8 @@ export function liveRoutes(ctx: AppContext) {
           for (const row of rows) {
             if (sent.has(row.id) || sse.closed()) continue;
             sent.add(row.id);
-            const message: BenchInjection = await toBenchMessage(row, benchKey);
+            const message: BenchInjection = toBenchMessage(row);
+            await markDelivered(ctx.db, row);
             sse.send('injection', message, row.id);
           }
           const [a] = await ctx.db.select({ status: attempts.status }).from(attempts).where(eq(attempts.id, id));

@@ -12,8 +12,12 @@ import { assignments, attempts, comments, scenarioVersions, users } from '../db/
 import { badRequest, conflict } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
-import { loadAttemptRun } from '../services/live-attempt-run.ts';
-import { replayMarkers, storedReadings } from '../services/live-replay.ts';
+import { FAULT_CATALOG } from '../../sim/faults.ts';
+import { isPermanent } from '../../sim/compiled-car.ts';
+import { storedResult } from '../services/attempt-store.ts';
+import { loadAttemptRun, serverRunOf, type AttemptRunInputs } from '../services/live-attempt-run.ts';
+import { replayMarkers, replayReadings } from '../services/live-replay.ts';
+import { hiddenFor, studentResult, type ResultShowing } from '../services/result-views.ts';
 
 async function commentsOf(db: DbOrTx, attemptId: number): Promise<ReplayComment[]> {
   const rows = await db
@@ -25,7 +29,16 @@ async function commentsOf(db: DbOrTx, attemptId: number): Promise<ReplayComment[
   return rows.map((r) => ({ ...r, createdAt: r.createdAt.toISOString() }));
 }
 
-async function replayOf(db: DbOrTx, attemptId: number): Promise<Omit<ReplayResponse, 'canComment' | 'comments'>> {
+/** What each change of the car stands for: the scenario's scheduled faults (c1, c2 …) and the instructor's injections. */
+function changeLabelsOf(run: AttemptRunInputs): Record<string, string> {
+  const out: Record<string, string> = {};
+  run.definition.faults.filter((f) => !isPermanent(f)).forEach((f, i) => (out[`c${i + 1}`] = FAULT_CATALOG[f.kind].label));
+  for (const r of run.injections) if (r.action.type === 'inject') out[r.action.faultId] = FAULT_CATALOG[r.action.kind].label;
+  return out;
+}
+
+/** A submitted attempt's replay as the viewer may see it (its student: as result-views.ts allows). */
+async function replayOf(db: DbOrTx, attemptId: number, viewer: { isOwner: boolean }): Promise<Omit<ReplayResponse, 'canComment' | 'comments'>> {
   const run = await loadAttemptRun(db, attemptId);
   if (run.status !== 'submitted') throw conflict('Only a submitted attempt can be replayed', 'id');
   const [a] = await db
@@ -34,19 +47,28 @@ async function replayOf(db: DbOrTx, attemptId: number): Promise<Omit<ReplayRespo
       studentName: users.name,
       scenarioTitle: scenarioVersions.title,
       assignmentTitle: assignments.title,
-      grade: attempts.grade,
+      mode: attempts.mode,
       readings: attempts.readings,
-      diagnosis: attempts.diagnosis,
+      result: attempts.result,
+      showFeedbackAfter: assignments.showFeedbackAfter,
+      dueAt: assignments.dueAt,
     })
     .from(attempts)
     .innerJoin(users, eq(users.id, attempts.userId))
     .innerJoin(scenarioVersions, eq(scenarioVersions.id, attempts.scenarioVersionId))
     .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
     .where(eq(attempts.id, attemptId));
-  const readings = storedReadings(a!.readings ?? a!.diagnosis);
-  const lastEventMs = run.events.reduce((m, e) => Math.max(m, e.atMs), 0);
+  const stored = storedResult(a!.result);
+  const showing: ResultShowing = { mode: a!.mode === 'practice' ? 'practice' : 'assigned', showFeedbackAfter: a!.showFeedbackAfter ?? true, dueAt: a!.dueAt };
+  const hidden = viewer.isOwner ? hiddenFor(showing) : null;
+  const result = stored && viewer.isOwner ? studentResult(stored, showing) : stored;
+  const server = serverRunOf(run, { now: new Date(), closing: true });
+  const readings = replayReadings(result?.readings ?? null, a!.readings);
+  const lastEventMs = server.events.reduce((m, e) => Math.max(m, e.atMs), 0);
   const lastReadingMs = readings.reduce((m, r) => Math.max(m, r.atMs), 0);
   const durationMs = Math.ceil(Math.max(run.submittedAtMs ?? 0, lastEventMs, lastReadingMs));
+  const changeLabels = hidden ? {} : changeLabelsOf(run);
+  const submittedAtMs = run.submittedAtMs === null ? null : Math.round(run.submittedAtMs);
   return {
     attempt: {
       id: attemptId,
@@ -56,12 +78,15 @@ async function replayOf(db: DbOrTx, attemptId: number): Promise<Omit<ReplayRespo
       assignmentTitle: a!.assignmentTitle,
       seed: run.seed,
       durationMs,
-      submittedAtMs: run.submittedAtMs === null ? null : Math.round(run.submittedAtMs),
-      grade: a!.grade,
+      submittedAtMs,
+      grade: result?.grade ?? null,
+      resultsAt: hidden?.reason === 'until-close' ? hidden.until : null,
     },
-    vehicle: run.params,
-    events: run.events,
-    markers: replayMarkers(run.stored, readings, run.submittedAtMs === null ? null : Math.round(run.submittedAtMs), run.params.loads.accessories),
+    car: run.car,
+    events: server.events,
+    faultLabels: hidden ? [] : (stored?.fault.labels ?? []),
+    changeLabels,
+    markers: replayMarkers(server.events, readings, submittedAtMs, changeLabels, run.definition.vehicle.params.loads.accessories),
     readings,
   };
 }
@@ -72,7 +97,7 @@ export function replayRoutes(ctx: AppContext) {
   g.get('/attempts/:id', ['student', 'instructor', 'admin'], async (req, res) => {
     const { id } = parseParams(replayParamsSchema, req);
     const access = await requireAttemptReader(ctx.db, currentUser(req), id);
-    const body: ReplayResponse = { ...(await replayOf(ctx.db, id)), comments: await commentsOf(ctx.db, id), canComment: access.teaches };
+    const body: ReplayResponse = { ...(await replayOf(ctx.db, id, access)), comments: await commentsOf(ctx.db, id), canComment: access.teaches };
     res.json(body);
   });
 
@@ -87,7 +112,7 @@ export function replayRoutes(ctx: AppContext) {
     const user = currentUser(req);
     await requireAttemptInstructor(ctx.db, user, id);
     const input = parseBody(createCommentSchema, req);
-    const replay = await replayOf(ctx.db, id);
+    const replay = await replayOf(ctx.db, id, { isOwner: false });
     if (input.simTimeMs > replay.attempt.durationMs) {
       throw badRequest(`simTimeMs: the attempt lasts ${replay.attempt.durationMs} ms of sim time`, { field: 'simTimeMs' });
     }

@@ -16,7 +16,7 @@ import {
   type PracticeScenario,
 } from '../../shared/api/scenarios.ts';
 import type { ScenarioDefinition } from '../../shared/scenario.ts';
-import { assertCanEditScenario, assertCanSeeScenario, assertCanSeeScenarioVersion } from '../auth/access.ts';
+import { assertCanEditScenario, assertCanSeeScenario, assertCanSeeScenarioVersion, versionsWithheldFromPractice } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
 import { scenarios, scenarioVersions, users } from '../db/schema.ts';
@@ -73,14 +73,16 @@ export function scenarioRoutes(ctx: AppContext) {
     res.json({ scenarios: items });
   });
 
-  // Anyone signed in may practise a published, shared scenario; the list carries no faults.
-  g.get('/practice', 'signed-in', async (_req, res) => {
-    const rows = await ctx.db
-      .select({ id: scenarios.id, definition: scenarioVersions.definition })
+  // Anyone signed in may practise a published, shared scenario, except one an open or upcoming assignment of their class runs; the list carries no faults.
+  g.get('/practice', 'signed-in', async (req, res) => {
+    const withheld = await versionsWithheldFromPractice(ctx.db, currentUser(req).id);
+    const all = await ctx.db
+      .select({ id: scenarios.id, versionId: scenarioVersions.id, definition: scenarioVersions.definition })
       .from(scenarios)
       .innerJoin(scenarioVersions, eq(scenarioVersions.id, scenarios.publishedVersionId))
       .where(and(eq(scenarios.visibility, 'shared'), eq(scenarios.archived, false), isNotNull(scenarios.publishedVersionId)))
       .orderBy(asc(scenarios.id));
+    const rows = all.filter((r) => !withheld.has(r.versionId));
     const order = { intro: 0, core: 1, advanced: 2 } as const;
     const list: PracticeScenario[] = rows
       .map((r) => {

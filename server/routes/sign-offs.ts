@@ -20,11 +20,12 @@ import { requireAttemptInstructor, requireClassInstructor, requireStudentReader,
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
 import type { DbOrTx } from '../db/client.ts';
-import { attempts, enrollments, scenarioVersions, signOffs, users } from '../db/schema.ts';
+import { assignments, attempts, enrollments, scenarioVersions, signOffs, users } from '../db/schema.ts';
 import { badRequest, conflict, forbidden, notFound } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
 import { readResult, toCsv } from '../services/live-results.ts';
+import { hiddenFor } from '../services/result-views.ts';
 
 const signer = alias(users, 'signer');
 
@@ -62,7 +63,13 @@ function verdictOn(result: ReturnType<typeof readResult>, test: string): boolean
   return v.ok;
 }
 
-async function progressOf(db: DbOrTx, studentId: number): Promise<ProgressResponse> {
+/**
+ * A student's progress by competency. Read by the student themselves
+ * (`forStudent`), it leaves out attempts whose results are still hidden (an
+ * assignment that shows results when it closes): which tests were expected,
+ * and whether the verdicts were right, are part of its answer key.
+ */
+async function progressOf(db: DbOrTx, studentId: number, forStudent = false): Promise<ProgressResponse> {
   const [student] = await db.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, studentId));
   if (!student) throw notFound('No such student');
   const signed = await db
@@ -79,11 +86,18 @@ async function progressOf(db: DbOrTx, studentId: number): Promise<ProgressRespon
       result: attempts.result,
       scenarioTitle: scenarioVersions.title,
       definition: scenarioVersions.definition,
+      mode: attempts.mode,
+      showFeedbackAfter: assignments.showFeedbackAfter,
+      dueAt: assignments.dueAt,
     })
     .from(attempts)
     .innerJoin(scenarioVersions, eq(scenarioVersions.id, attempts.scenarioVersionId))
+    .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
     .where(and(eq(attempts.userId, studentId), eq(attempts.status, 'submitted')))
-    .orderBy(desc(attempts.submittedAt), desc(attempts.id));
+    .orderBy(desc(attempts.submittedAt), desc(attempts.id))
+    .then((rows) =>
+      forStudent ? rows.filter((a) => !hiddenFor({ mode: a.mode === 'practice' ? 'practice' : 'assigned', showFeedbackAfter: a.showFeedbackAfter ?? true, dueAt: a.dueAt })) : rows,
+    );
   const competencies: CompetencyProgress[] = COMPETENCIES.map((competency) => {
     const row = signed.find((s) => s.competency === competency);
     const expected = graded.filter((a) => a.grade !== null && testsExpectedOf(a.definition).includes(competency));
@@ -130,13 +144,13 @@ export function signOffRoutes(ctx: AppContext) {
   const g = routeGroup('/api/sign-offs');
 
   g.get('/me', ['student'], async (req, res) => {
-    res.json(await progressOf(ctx.db, currentUser(req).id));
+    res.json(await progressOf(ctx.db, currentUser(req).id, true));
   });
 
   g.get('/students/:userId', ['student', 'instructor', 'admin'], async (req, res) => {
     const { userId } = parseParams(studentParamsSchema, req);
-    await requireStudentReader(ctx.db, currentUser(req), userId);
-    res.json(await progressOf(ctx.db, userId));
+    const { self } = await requireStudentReader(ctx.db, currentUser(req), userId);
+    res.json(await progressOf(ctx.db, userId, self));
   });
 
   g.post('/', ['instructor', 'admin'], async (req, res) => {

@@ -1,22 +1,24 @@
 /**
- * The event log of a running attempt. A batch is stored by one statement
- * that locks the attempt's row; the unique (attempt, seq) index and `on
- * conflict do nothing` store each event once however often, and however
- * concurrently, a batch is sent. Gaps are stored as they come:
- * `lastSeq` is the highest seq up to which every event from 1 is stored, so
- * the bench knows to resend everything after it, and submission waits for
- * the gaps to fill. Fault events are taken only as the log of an
- * instructor's pending injection.
+ * The event log of a running attempt: the model's inputs and the readings
+ * the student records, each stored as it comes. A batch is stored by one
+ * statement that locks the attempt's row; the unique (attempt, seq) index and
+ * `on conflict do nothing` store each event once however often, and however
+ * concurrently, a batch is sent. Gaps are stored as they come: `lastSeq` is
+ * the highest seq up to which every event from 1 is stored, so the bench
+ * knows to resend everything after it, and submission waits for the gaps to
+ * fill. Sim times never run back along the log: a batch with an event
+ * earlier than one before it is refused whole with a 409 naming the event. A
+ * change of the car is taken only as the log of an instructor's injection
+ * delivered to this bench, with the injection's own operations.
  */
 import type pg from 'pg';
 import type { DiagnosticTest } from '../../sim/faults.ts';
-import type { Controls, InputEvent } from '../../sim/inputs.ts';
+import type { Controls } from '../../sim/inputs.ts';
 import { applyInput, initialControls } from '../../sim/inputs.ts';
 import { orderEvents } from '../../sim/replay.ts';
-import { postEventsSchema, type PostEventsResponse } from '../../shared/api/attempts.ts';
+import { modelEvents, postEventsSchema, READING_LAG_MS, type LogEvent, type PostEventsResponse } from '../../shared/api/attempts.ts';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import { pendingActionSchema, type PendingAction } from '../../shared/api/live.ts';
-import type { ScenarioDefinition } from '../../shared/scenario.ts';
 import type { Db } from '../db/client.ts';
 import { scopedCache } from '../db/scoped-cache.ts';
 import { badRequest, conflict, forbidden, notFound } from '../http/errors.ts';
@@ -24,25 +26,38 @@ import { parseValue } from '../http/validate.ts';
 import { loadDefinition } from './definitions.ts';
 import { batchWriterOf } from './event-batch-writer.ts';
 import { sendAhead } from './grading-pool.ts';
-import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
+import { injectionChange } from './injection-authority.ts';
+import { carOf, rowToLogEvent } from './live-attempt-run.ts';
 import { testOfSetup } from './live-board.ts';
 
-async function pendingActions(pool: pg.Pool, attemptId: number): Promise<PendingAction[]> {
-  const { rows } = await pool.query<{ action: unknown }>({ name: 'events-pending-actions', text: 'select action from pending_injections where attempt_id = $1', values: [attemptId] });
+/** The instructor's injections of an attempt that the server has delivered to its bench. */
+async function deliveredActions(pool: pg.Pool, attemptId: number): Promise<PendingAction[]> {
+  const { rows } = await pool.query<{ action: unknown }>({
+    name: 'events-delivered-actions',
+    text: 'select action from pending_injections where attempt_id = $1 and delivered_at is not null',
+    values: [attemptId],
+  });
   return rows.flatMap((r) => {
     const parsed = pendingActionSchema.safeParse(r.action);
     return parsed.success ? [parsed.data] : [];
   });
 }
 
-/** Whether a fault event from the bench logs one of the instructor's injections for this attempt. */
-export function matchesInjection(event: InputEvent, actions: readonly PendingAction[]): boolean {
-  if (event.kind === 'fault-inject') {
-    return actions.some(
-      (a) => a.type === 'inject' && a.faultId === event.fault.id && a.kind === event.fault.kind && Math.abs(a.severity01 - event.fault.severity01) < 1e-9,
-    );
+/**
+ * Whether a change from the bench logs one of the instructor's injections
+ * delivered to it: the same id, and for an injection the same operations and
+ * pattern (its onset is judged later, against the server's delivery).
+ */
+export function matchesInjection(event: LogEvent, actions: readonly PendingAction[]): boolean {
+  if (event.kind === 'change-apply') {
+    const c = event.change;
+    return actions.some((a) => {
+      if (a.type !== 'inject' || a.faultId !== c.id) return false;
+      const expected = injectionChange(a, event.atMs);
+      return JSON.stringify(expected.ops) === JSON.stringify(c.ops) && JSON.stringify(expected.intermittent ?? null) === JSON.stringify(c.intermittent ?? null);
+    });
   }
-  if (event.kind === 'fault-clear') return actions.some((a) => a.type === 'clear' && a.faultId === event.faultId);
+  if (event.kind === 'change-clear') return actions.some((a) => a.type === 'clear' && a.faultId === event.changeId);
   return true;
 }
 
@@ -57,13 +72,14 @@ export interface Setup {
 
 export const initialSetup = (): Setup => ({ controls: initialControls(), engineGuess: 'off', maxAtMs: 0 });
 
-/** The set-up after `events` too, taken in time order (equal times in the order given). */
-export function foldSetup(from: Setup, events: readonly InputEvent[]): Setup {
+/** The set-up after `events` too, taken in time order (equal times in the order given); readings change nothing of it. */
+export function foldSetup(from: Setup, events: readonly LogEvent[]): Setup {
   let { controls, engineGuess, maxAtMs } = from;
   for (const e of orderEvents(events)) {
+    maxAtMs = Math.max(maxAtMs, e.atMs);
+    if (e.kind === 'reading' || e.kind === 'reading-remove') continue;
     controls = applyInput(controls, e, 0);
     if (e.kind === 'key') engineGuess = e.position === 'start' ? 'cranking' : e.position === 'off' ? 'off' : engineGuess === 'cranking' ? 'running' : engineGuess;
-    maxAtMs = Math.max(maxAtMs, e.atMs);
   }
   return { controls, engineGuess, maxAtMs };
 }
@@ -72,12 +88,12 @@ export function foldSetup(from: Setup, events: readonly InputEvent[]): Setup {
  * The set-up after the whole log: enough to name the test being set up for
  * the live board's list, which re-runs the model for anything finer.
  */
-export function setupAfter(events: readonly InputEvent[]): Setup {
+export function setupAfter(events: readonly LogEvent[]): Setup {
   return foldSetup(initialSetup(), events);
 }
 
 /** The set-up after `base` and then `added`, when it can be carried on: none of `added` is earlier in sim time than the events folded into `base`. */
-function carryOn(base: Setup, added: readonly InputEvent[]): Setup | null {
+function carryOn(base: Setup, added: readonly LogEvent[]): Setup | null {
   return added.every((e) => e.atMs >= base.maxAtMs) ? foldSetup(base, added) : null;
 }
 
@@ -104,11 +120,11 @@ async function setupThrough(
   attemptId: number,
   oldLastSeq: number,
   newLastSeq: number,
-  fresh: ReadonlyMap<number, InputEvent>,
+  fresh: ReadonlyMap<number, LogEvent>,
 ): Promise<Setup> {
   const cached = oldLastSeq === 0 ? { lastSeq: 0, setup: initialSetup() } : setups.of(ctx.db)?.get(attemptId);
   if (cached && cached.lastSeq === oldLastSeq) {
-    const added: InputEvent[] = [];
+    const added: LogEvent[] = [];
     for (let seq = oldLastSeq + 1; seq <= newLastSeq; seq++) {
       const e = fresh.get(seq);
       if (!e) break;
@@ -122,7 +138,7 @@ async function setupThrough(
     text: 'select kind, sim_time_ms as "simTimeMs", payload from attempt_events where attempt_id = $1 and seq <= $2 order by seq',
     values: [attemptId, newLastSeq],
   });
-  return setupAfter(rows.flatMap((r) => rowToInput(r) ?? []));
+  return setupAfter(rows.flatMap((r) => rowToLogEvent(r) ?? []));
 }
 
 /** What never changes of an attempt: its owner, scenario version and seed. */
@@ -166,7 +182,7 @@ export async function requireOwnAttempt(ctx: { db: Db; pool: pg.Pool }, user: Se
  */
 function predictMoveOn(
   cached: { lastSeq: number; setup: Setup } | undefined,
-  events: readonly { seq: number; event: InputEvent }[],
+  events: readonly { seq: number; event: LogEvent }[],
 ): { fromSeq: number; lastSeq: number; setup: Setup; simTimeMs: number } | null {
   const base = cached ?? (events[0]?.seq === 1 ? { lastSeq: 0, setup: initialSetup() } : undefined);
   if (!base || events.length === 0) return null;
@@ -177,18 +193,27 @@ function predictMoveOn(
 }
 
 /**
- * Sends events fromSeq+1.. of the stored log to the grading worker, which
- * runs the attempt ahead so that its submission re-runs only the tail
- * (run-ahead.ts checks them against the submission's own log).
+ * Sends the model's events of seqs fromSeq+1..toSeq of the stored log to the
+ * grading worker, which runs the attempt ahead so that its submission re-runs
+ * only the tail (run-ahead.ts checks them against the submission's own run).
  */
-function runAhead(attemptId: number, owner: AttemptOwner, def: ScenarioDefinition, fromSeq: number, events: InputEvent[]): void {
-  sendAhead({
-    attemptId,
-    seed: owner.seed,
-    fromSeq,
-    events,
-    ...(fromSeq === 0 ? { start: { params: def.vehicle.params, scenarioEvents: scenarioFaultEvents(def) } } : {}),
-  });
+function runAhead(attemptId: number, owner: AttemptOwner, car: ReturnType<typeof carOf>, fromSeq: number, toSeq: number, events: readonly LogEvent[]): void {
+  sendAhead({ attemptId, seed: owner.seed, fromSeq, toSeq, events: modelEvents(events), ...(fromSeq === 0 ? { start: { car } } : {}) });
+}
+
+/** The events of a batch, by seq, must not run back in sim time among themselves: else a 409 naming the first that does. */
+function assertInTimeOrder(events: readonly { seq: number; event: LogEvent }[]): void {
+  const bySeq = events.map((e, i) => ({ ...e, i })).sort((a, b) => a.seq - b.seq);
+  for (let k = 1; k < bySeq.length; k++) {
+    const prev = bySeq[k - 1]!;
+    const e = bySeq[k]!;
+    if (e.event.atMs < prev.event.atMs) {
+      throw conflict(
+        `events.${e.i}.event.atMs: event ${e.seq} (${e.event.kind}) at ${e.event.atMs} ms runs back before event ${prev.seq} at ${prev.event.atMs} ms; the log's sim times never go back`,
+        `events.${e.i}.event.atMs`,
+      );
+    }
+  }
 }
 
 /**
@@ -217,17 +242,24 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
   const input = parseValue(postEventsSchema, body, 'body');
 
   const def = await loadDefinition(ctx.db, owner.scenarioVersionId);
+  const car = carOf(def);
   const accessoryIds = new Set(def.vehicle.params.loads.accessories.map((a) => a.id));
-  const hasFaultEvents = input.events.some((e) => e.event.kind === 'fault-inject' || e.event.kind === 'fault-clear');
-  const actions = hasFaultEvents ? await pendingActions(ctx.pool, attemptId) : [];
+  const hasChanges = input.events.some((e) => e.event.kind === 'change-apply' || e.event.kind === 'change-clear');
+  const actions = hasChanges ? await deliveredActions(ctx.pool, attemptId) : [];
   input.events.forEach(({ event }, i) => {
     if (event.kind === 'accessory' && !accessoryIds.has(event.id)) {
       throw badRequest(`events.${i}.event.id: this car has no accessory "${event.id}"`, { field: `events.${i}.event.id` });
     }
     if (!matchesInjection(event, actions)) {
-      throw badRequest(`events.${i}.event: fault events are taken only as the log of an instructor's injection`, { field: `events.${i}.event` });
+      throw badRequest(`events.${i}.event: a change of the car is taken only as the log of an instructor's injection delivered to this bench`, { field: `events.${i}.event` });
+    }
+    if (event.kind === 'reading' && (event.reading.atMs > event.atMs || event.reading.atMs < event.atMs - READING_LAG_MS)) {
+      throw badRequest(`events.${i}.event.reading.atMs: a reading is logged within ${READING_LAG_MS} ms after the moment it shows, not at ${event.atMs} ms for ${event.reading.atMs} ms`, {
+        field: `events.${i}.event.reading.atMs`,
+      });
     }
   });
+  assertInTimeOrder(input.events);
 
   const predicted = predictMoveOn(setups.of(ctx.db)?.get(attemptId), input.events);
   const currentTestPredicted: DiagnosticTest | null = predicted ? testOfSetup(predicted.setup.controls, { engine: predicted.setup.engineGuess }) : null;
@@ -240,9 +272,18 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
   });
   if (!attempt) throw notFound('No such attempt');
   if (attempt.status === 'submitted') throw conflict('This attempt has been submitted; it takes no more events');
+  if (attempt.backdated) {
+    const b = attempt.backdated;
+    const i = input.events.findIndex((e) => e.seq === b.seq);
+    const field = `events.${i}.event.atMs`;
+    throw conflict(
+      `${field}: event ${b.seq} at ${b.atMs} ms runs back before event ${b.storedSeq} at ${b.storedAtMs} ms, already in the log; the log's sim times never go back, so nothing of this batch was stored`,
+      field,
+    );
+  }
   if (predicted && attempt.movedOn) {
     setups.of(ctx.db)?.set(attemptId, { lastSeq: predicted.lastSeq, setup: predicted.setup });
-    runAhead(attemptId, owner, def, predicted.fromSeq, input.events.map((e) => e.event));
+    runAhead(attemptId, owner, car, predicted.fromSeq, predicted.lastSeq, input.events.map((e) => e.event));
     return { lastSeq: predicted.lastSeq, stored: input.events.length };
   }
 
@@ -272,9 +313,9 @@ export async function postEvents(ctx: { db: Db; pool: pg.Pool }, user: SessionUs
     // The same lastSeq, whoever wrote it, means the same stored prefix and so the same set-up.
     if (setup && moved.rows[0]?.lastSeq === lastSeq) {
       setups.of(ctx.db)?.set(attemptId, { lastSeq, setup });
-      const added: InputEvent[] = [];
+      const added: LogEvent[] = [];
       for (let seq = attempt.lastSeq + 1; seq <= lastSeq && fresh.has(seq); seq++) added.push(fresh.get(seq)!);
-      if (added.length === lastSeq - attempt.lastSeq) runAhead(attemptId, owner, def, attempt.lastSeq, added);
+      if (added.length === lastSeq - attempt.lastSeq) runAhead(attemptId, owner, car, attempt.lastSeq, lastSeq, added);
     }
   }
   return { lastSeq, stored: insertedSeqs.size };

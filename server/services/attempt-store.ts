@@ -1,24 +1,25 @@
 /**
- * Attempts in the database: starting one, the bootstrap the bench runs from,
- * and a student's list. The bootstrap sends the healthy car and the faults
- * sealed (docs/decisions/001-sealed-faults.md).
+ * Attempts in the database: starting one (an assignment's own scenario
+ * version, or the one its pool draws for the student), the bootstrap the
+ * bench runs from, and a student's list. The bootstrap sends the car to
+ * simulate, compiled: never the fault list (docs/decisions/001-sealed-faults.md).
  */
-import { randomInt } from 'node:crypto';
+import { createHash, randomInt } from 'node:crypto';
 import type pg from 'pg';
-import { and, desc, eq, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, sql } from 'drizzle-orm';
 import type { SessionUser } from '../../shared/api/auth.ts';
-import type { AttemptBootstrap, AttemptResult, BenchScenarioView, MyAttemptRow, StartAttemptInput, StoredEvent } from '../../shared/api/attempts.ts';
+import type { AttemptBootstrap, AttemptResult, MyAttemptRow, StartAttemptInput, StoredEvent } from '../../shared/api/attempts.ts';
 import { attemptResultSchema, benchScenarioView } from '../../shared/api/attempts.ts';
 import type { ScenarioDefinition } from '../../shared/scenario.ts';
-import { deriveBenchKey, healthyVehicle, sealEvents, sealFaults, sealVehicle } from '../../shared/sealed-faults.ts';
 import { assertCanPractiseScenario, assertCanStartAssignment } from '../auth/access.ts';
 import type { Db, DbOrTx } from '../db/client.ts';
-import { assignments, attempts, scenarioVersions } from '../db/schema.ts';
+import { assignmentPool, assignments, attempts, scenarioVersions } from '../db/schema.ts';
 import { scopedCache } from '../db/scoped-cache.ts';
 import { notFound } from '../http/errors.ts';
 import { extensionOf, termsFor } from './assignment-terms.ts';
 import { loadDefinition } from './definitions.ts';
-import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
+import { carOf, rowToLogEvent } from './live-attempt-run.ts';
+import { hiddenFor, studentGrade, studentResult, type ResultShowing } from './result-views.ts';
 
 export interface AttemptRow {
   id: number;
@@ -60,34 +61,71 @@ export async function loadAttempt(db: DbOrTx, attemptId: number, opts: { lock?: 
   return asAttemptRow(row);
 }
 
-/** What the assignment shows after submission (practice shows everything). */
-export async function showAfter(db: DbOrTx, assignmentId: number | null): Promise<{ showCurveAfter: boolean; showFeedbackAfter: boolean }> {
-  if (assignmentId === null) return { showCurveAfter: true, showFeedbackAfter: true };
+/** What an attempt's assignment shows after submission, and when (practice shows what a live car would, at once). */
+export interface AttemptShowing {
+  showCurveAfter: boolean;
+  showFeedbackAfter: boolean;
+  /** The assignment's due date: a result hidden until it closes shows then. */
+  dueAt: Date | null;
+}
+
+/** What the assignment shows after submission. */
+export async function showAfter(db: DbOrTx, assignmentId: number | null): Promise<AttemptShowing> {
+  if (assignmentId === null) return { showCurveAfter: true, showFeedbackAfter: true, dueAt: null };
   const [row] = await db
-    .select({ showCurveAfter: assignments.showCurveAfter, showFeedbackAfter: assignments.showFeedbackAfter })
+    .select({ showCurveAfter: assignments.showCurveAfter, showFeedbackAfter: assignments.showFeedbackAfter, dueAt: assignments.dueAt })
     .from(assignments)
     .where(eq(assignments.id, assignmentId));
-  return row ?? { showCurveAfter: true, showFeedbackAfter: true };
+  return row ?? { showCurveAfter: true, showFeedbackAfter: true, dueAt: null };
 }
 
 /** An attempt's row and what its assignment shows after submission (as `showAfter`), in one query. */
-export async function loadAttemptShowing(db: DbOrTx, attemptId: number): Promise<{ attempt: AttemptRow; show: { showCurveAfter: boolean; showFeedbackAfter: boolean } }> {
+export async function loadAttemptShowing(db: DbOrTx, attemptId: number): Promise<{ attempt: AttemptRow; show: AttemptShowing }> {
   const [row] = await db
     .select({
       ...attemptColumns,
       showCurveAfter: sql<boolean>`coalesce(${assignments.showCurveAfter}, true)`,
       showFeedbackAfter: sql<boolean>`coalesce(${assignments.showFeedbackAfter}, true)`,
+      dueAt: assignments.dueAt,
     })
     .from(attempts)
     .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
     .where(eq(attempts.id, attemptId));
   if (!row) throw notFound('No such attempt');
-  const { showCurveAfter, showFeedbackAfter, ...attempt } = row;
-  return { attempt: asAttemptRow(attempt), show: { showCurveAfter, showFeedbackAfter } };
+  const { showCurveAfter, showFeedbackAfter, dueAt, ...attempt } = row;
+  return { attempt: asAttemptRow(attempt), show: { showCurveAfter, showFeedbackAfter, dueAt } };
 }
+
+/** How an attempt's result is shown to its student. */
+export const resultShowing = (attempt: Pick<AttemptRow, 'mode'>, show: AttemptShowing): ResultShowing => ({
+  mode: attempt.mode,
+  showFeedbackAfter: show.showFeedbackAfter,
+  dueAt: show.dueAt,
+});
 
 /** A random 31-bit seed for the model's generator. */
 export const newSeed = (): number => randomInt(0, 2 ** 31);
+
+/**
+ * The pool draw: which of `n` pool entries a student gets, fixed by the
+ * assignment's pool seed and the student, so every attempt of theirs runs the
+ * same car and neighbours mostly do not.
+ */
+export function poolIndex(poolSeed: number, userId: number, n: number): number {
+  const digest = createHash('sha256').update(`loadline-pool:${poolSeed}:${userId}`).digest();
+  return digest.readUInt32BE(0) % n;
+}
+
+/** The scenario version an assignment gives a student: its own, or its pool's draw for them. */
+export async function drawnVersion(db: DbOrTx, assignment: { id: number; scenarioVersionId: number; poolSeed: number }, userId: number): Promise<number> {
+  const pool = await db
+    .select({ versionId: assignmentPool.scenarioVersionId })
+    .from(assignmentPool)
+    .where(eq(assignmentPool.assignmentId, assignment.id))
+    .orderBy(asc(assignmentPool.position), asc(assignmentPool.scenarioVersionId));
+  if (pool.length === 0) return assignment.scenarioVersionId;
+  return pool[poolIndex(assignment.poolSeed, userId, pool.length)]!.versionId;
+}
 
 /**
  * Starts an attempt: of an assignment (enrolled, open, not past due, attempts
@@ -105,9 +143,10 @@ export async function startAttempt(db: Db, user: SessionUser, input: StartAttemp
       const assignment = await assertCanStartAssignment(tx, user, input.assignmentId, used?.n ?? 0, new Date(), async (row) =>
         termsFor(row, await extensionOf(tx, row.id, user.id)),
       );
+      const scenarioVersionId = await drawnVersion(tx, assignment, user.id);
       const [row] = await tx
         .insert(attempts)
-        .values({ userId: user.id, scenarioVersionId: assignment.scenarioVersionId, assignmentId: assignment.id, mode: 'assigned', seed: newSeed() })
+        .values({ userId: user.id, scenarioVersionId, assignmentId: assignment.id, mode: 'assigned', seed: newSeed() })
         .returning({ id: attempts.id });
       return row!.id;
     }
@@ -148,7 +187,7 @@ export async function loadAttemptWithEvents(ctx: { db: Db; pool: pg.Pool }, atte
   const { after, ...rest } = row;
   const attempt = asAttemptRow(rest);
   const fresh = after.flatMap(([seq, kind, simTimeMs, payload]) => {
-    const event = rowToInput({ kind, simTimeMs, payload });
+    const event = rowToLogEvent({ kind, simTimeMs, payload });
     return event ? [{ seq, event }] : [];
   });
   const events = kept.events.length ? [...kept.events, ...fresh] : fresh;
@@ -159,58 +198,43 @@ export async function loadAttemptWithEvents(ctx: { db: Db; pool: pg.Pool }, atte
   return { attempt, events };
 }
 
+/**
+ * The diagnosis choices of every version of an assignment's fault pool, in
+ * the catalog's order (null without a pool): the bench offers them all, so the
+ * list says nothing of which car was drawn.
+ */
+export async function poolChoices(db: DbOrTx, assignmentId: number | null): Promise<ScenarioDefinition['diagnosisChoices'] | null> {
+  if (assignmentId === null) return null;
+  const pool = await db.select({ versionId: assignmentPool.scenarioVersionId }).from(assignmentPool).where(eq(assignmentPool.assignmentId, assignmentId));
+  if (pool.length === 0) return null;
+  const defs = await Promise.all(pool.map((p) => loadDefinition(db, p.versionId)));
+  return [...new Set(defs.flatMap((d) => d.diagnosisChoices))];
+}
+
 export function storedResult(raw: unknown): AttemptResult | null {
   if (raw === null || raw === undefined) return null;
   const parsed = attemptResultSchema.safeParse(raw);
   return parsed.success ? parsed.data : null;
 }
 
-interface SealedCar {
-  benchKey: string;
-  view: BenchScenarioView;
-  healthy: AttemptBootstrap['vehicle'];
-  sealedFaults: string;
-  sealedVehicle: string | null;
-}
-
-/**
- * What a bootstrap sends of the car: the same for every read of one attempt
- * (its key, its scenario version), so it is sealed once and kept.
- */
-const sealedCars = scopedCache<number, SealedCar>(2_000);
-
-async function sealedCar(db: DbOrTx, secret: string, attemptId: number, def: ScenarioDefinition): Promise<SealedCar> {
-  const cache = sealedCars.of(db);
-  const hit = cache?.get(attemptId);
-  if (hit) return hit;
-  const benchKey = await deriveBenchKey(secret, attemptId);
-  const { healthy, differs } = healthyVehicle(def.vehicle.params, def.vehicle.name);
-  // Exactly the faults the server's re-run injects at 0 ms.
-  const faults = scenarioFaultEvents(def).flatMap((e) => (e.kind === 'fault-inject' ? [e.fault] : []));
-  const car: SealedCar = {
-    benchKey,
-    view: benchScenarioView(def),
-    healthy,
-    sealedFaults: await sealFaults(faults, benchKey),
-    sealedVehicle: differs ? await sealVehicle(def.vehicle.params, benchKey) : null,
-  };
-  cache?.set(attemptId, car);
-  return car;
+/** Who reads a bootstrap: its student sees the result as result-views.ts allows; instructors see it whole. */
+export interface BootstrapReader {
+  isOwner: boolean;
 }
 
 /** The bootstrap of an attempt, by id or from its row and log already read. */
 export async function attemptBootstrap(
   ctx: { db: Db; pool: pg.Pool },
-  secret: string,
   attempt: number | { attempt: AttemptRow; events: readonly StoredEvent[] },
+  reader: BootstrapReader = { isOwner: true },
 ): Promise<AttemptBootstrap> {
   const { db } = ctx;
   const { attempt: a, events } = typeof attempt === 'number' ? await loadAttemptWithEvents(ctx, attempt) : attempt;
   const def = await loadDefinition(db, a.scenarioVersionId);
   const show = await showAfter(db, a.assignmentId);
-  const sealed = await sealedCar(db, secret, a.id, def);
-  const isFault = (e: StoredEvent) => e.event.kind === 'fault-inject' || e.event.kind === 'fault-clear';
-  const faultEvents = events.filter(isFault);
+  const showing = resultShowing(a, show);
+  const hidden = hiddenFor(showing);
+  const stored = a.status === 'submitted' ? storedResult(a.result) : null;
   return {
     attempt: {
       id: a.id,
@@ -220,20 +244,19 @@ export async function attemptBootstrap(
       startedAt: a.startedAt.toISOString(),
       assignmentId: a.assignmentId,
       lastSeq: a.lastSeq,
-      ...show,
+      showCurveAfter: show.showCurveAfter,
+      showFeedbackAfter: show.showFeedbackAfter,
+      resultsAt: hidden?.reason === 'until-close' ? hidden.until : null,
     },
-    scenario: sealed.view,
-    vehicle: sealed.healthy,
-    sealedFaults: sealed.sealedFaults,
-    sealedVehicle: sealed.sealedVehicle,
-    benchKey: sealed.benchKey,
-    events: events.filter((e) => !isFault(e)),
-    sealedEvents: faultEvents.length ? await sealEvents(faultEvents, sealed.benchKey) : null,
-    result: a.status === 'submitted' ? storedResult(a.result) : null,
+    scenario: benchScenarioView(def, await poolChoices(db, a.assignmentId)),
+    car: carOf(def),
+    events: [...events],
+    result: stored && reader.isOwner ? studentResult(stored, showing) : stored,
   };
 }
 
 export async function myAttempts(db: DbOrTx, userId: number): Promise<MyAttemptRow[]> {
+  const now = new Date();
   const rows = await db
     .select({
       id: attempts.id,
@@ -245,21 +268,29 @@ export async function myAttempts(db: DbOrTx, userId: number): Promise<MyAttemptR
       timeToDiagnosisMs: attempts.timeToDiagnosisMs,
       grade: attempts.grade,
       assignmentTitle: assignments.title,
+      showFeedbackAfter: assignments.showFeedbackAfter,
+      dueAt: assignments.dueAt,
     })
     .from(attempts)
     .innerJoin(scenarioVersions, eq(scenarioVersions.id, attempts.scenarioVersionId))
     .leftJoin(assignments, eq(assignments.id, attempts.assignmentId))
     .where(eq(attempts.userId, userId))
     .orderBy(desc(attempts.startedAt), desc(attempts.id));
-  return rows.map((r) => ({
-    id: r.id,
-    scenarioTitle: r.scenarioTitle,
-    mode: r.mode === 'practice' ? 'practice' : 'assigned',
-    status: r.status === 'submitted' ? 'submitted' : 'running',
-    startedAt: r.startedAt.toISOString(),
-    submittedAt: r.submittedAt ? r.submittedAt.toISOString() : null,
-    timeToDiagnosisMs: r.timeToDiagnosisMs,
-    grade: r.grade,
-    assignmentTitle: r.assignmentTitle,
-  }));
+  return rows.map((r) => {
+    const mode = r.mode === 'practice' ? 'practice' : 'assigned';
+    const showing: ResultShowing = { mode, showFeedbackAfter: r.showFeedbackAfter ?? true, dueAt: r.dueAt };
+    const hidden = hiddenFor(showing, now);
+    return {
+      id: r.id,
+      scenarioTitle: r.scenarioTitle,
+      mode,
+      status: r.status === 'submitted' ? 'submitted' : 'running',
+      startedAt: r.startedAt.toISOString(),
+      submittedAt: r.submittedAt ? r.submittedAt.toISOString() : null,
+      timeToDiagnosisMs: r.timeToDiagnosisMs,
+      grade: studentGrade(r.grade, showing, now),
+      assignmentTitle: r.assignmentTitle,
+      resultsAt: hidden?.reason === 'until-close' ? hidden.until : null,
+    };
+  });
 }

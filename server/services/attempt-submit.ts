@@ -1,9 +1,12 @@
 /**
  * Submission: check the log is complete, grade (server/services/grade-run.ts,
- * on the grading pool: the model re-run over the stored log up to the
- * submission's sim time, the right verdicts, the curves), then store the
- * readings, diagnosis and result. Time to diagnosis is the sim time of the
- * submission (what the student spent at the bench, pauses and reloads aside).
+ * on the grading pool: the attempt's compiled car re-run over the stored log,
+ * with the instructor's injections where the server says they were delivered,
+ * up to the submission's sim time; the right verdicts; the curves), then
+ * store the readings of the log, the diagnosis and the result, and answer
+ * with the result as the student may see it (result-views.ts). Time to
+ * diagnosis is the sim time of the submission (what the student spent at the
+ * bench, pauses and reloads aside).
  *
  * The grading runs with no transaction open and no row locked, so a queue of
  * submissions waiting for the grading workers holds no database connection
@@ -21,32 +24,45 @@
  * grading itself, inside the worker) and `store`.
  */
 import { sql } from 'drizzle-orm';
-import type { AttemptResult, SubmitInput } from '../../shared/api/attempts.ts';
+import type { AttemptResult, RecordedReading, SubmitInput } from '../../shared/api/attempts.ts';
 import type { Db } from '../db/client.ts';
+import { MAX_READINGS } from '../../shared/api/attempts.ts';
 import { badRequest, conflict, notFound } from '../http/errors.ts';
 import type { ServerTiming } from '../http/server-timing.ts';
-import { loadAttemptShowing, type AttemptRow } from './attempt-store.ts';
+import { loadAttemptShowing, resultShowing, type AttemptRow, type AttemptShowing } from './attempt-store.ts';
 import { loadDefinition } from './definitions.ts';
 import type { GradeJob } from './grade-run.ts';
 import { gradeSubmission, type OnWorkerMs } from './grading-pool.ts';
-import { attemptRunOf, loadStoredInputs, type AttemptRunInputs } from './live-attempt-run.ts';
+import { attemptRunOf, faultsAt, loadInjectionRecords, loadStoredInputs, serverRunOf, type AttemptRunInputs } from './live-attempt-run.ts';
+import { studentResult } from './result-views.ts';
 
-/** The grading job of a submission: the attempt's stored log re-run to the submission, graded as its assignment says. */
+/**
+ * The grading job of a submission: the attempt's stored log re-run to the
+ * submission on its compiled car, graded as its assignment says. The stored
+ * result is whole (feedback included); what the student sees of it is
+ * decided when it is read.
+ */
 export function gradeJobOf(
   attemptId: number,
   attempt: Pick<AttemptRow, 'mode'>,
-  run: Pick<AttemptRunInputs, 'definition' | 'seed' | 'events'>,
-  show: { showCurveAfter: boolean; showFeedbackAfter: boolean },
+  run: Pick<AttemptRunInputs, 'definition' | 'car' | 'seed' | 'stored' | 'injections'>,
+  show: Pick<AttemptShowing, 'showCurveAfter'>,
   submission: SubmitInput,
+  now = new Date(),
 ): GradeJob {
+  const server = serverRunOf(run, { now, closing: true });
   return {
     attemptId,
     definition: run.definition,
+    car: run.car,
     seed: run.seed,
-    events: run.events,
+    events: server.events,
+    readings: server.readings.slice(0, MAX_READINGS),
     submission,
+    faults: faultsAt(run, server.resolved, submission.atMs),
+    flags: server.flags,
     mode: attempt.mode,
-    showFeedback: show.showFeedbackAfter,
+    showFeedback: true,
     showCurve: show.showCurveAfter,
   };
 }
@@ -75,10 +91,10 @@ export async function submitAttempt(db: Db, attemptId: number, input: SubmitInpu
 async function tryStore(db: Db, attemptId: number, input: SubmitInput, grade: Grader, timing: ServerTiming | undefined): Promise<AttemptResult | null> {
   // The attempt (with what its assignment shows) and its log at once; the definition is kept in memory.
   const readStarted = performance.now();
-  const [{ attempt, show }, stored] = await Promise.all([loadAttemptShowing(db, attemptId), loadStoredInputs(db, attemptId)]);
+  const [{ attempt, show }, stored, injections] = await Promise.all([loadAttemptShowing(db, attemptId), loadStoredInputs(db, attemptId), loadInjectionRecords(db, attemptId)]);
   if (attempt.status === 'submitted') throw conflict('This attempt has already been submitted');
   // A running attempt has no diagnosis yet: that is what this stores.
-  const run = attemptRunOf(attemptId, { ...attempt, diagnosis: null }, await loadDefinition(db, attempt.scenarioVersionId), stored);
+  const run = attemptRunOf(attemptId, { ...attempt, diagnosis: null }, await loadDefinition(db, attempt.scenarioVersionId), stored, injections);
   timing?.add('read', performance.now() - readStarted);
   const seqs = run.stored.map((s) => s.seq);
   const missing = seqs.findIndex((seq, i) => seq !== i + 1);
@@ -97,7 +113,8 @@ async function tryStore(db: Db, attemptId: number, input: SubmitInput, grade: Gr
 
   const storeStarted = performance.now();
   try {
-    return await storeResult(db, attemptId, input, seqs, result);
+    const kept = await storeResult(db, attemptId, input, job.readings, seqs, result);
+    return kept && studentResult(kept, resultShowing(attempt, show));
   } finally {
     timing?.add('store', performance.now() - storeStarted);
   }
@@ -108,13 +125,13 @@ async function tryStore(db: Db, attemptId: number, input: SubmitInput, grade: Gr
  * 0005): it locks the attempt, and stores nothing when it was submitted
  * meanwhile (409) or its log is no longer `seqs` (null: grade again).
  */
-async function storeResult(db: Db, attemptId: number, input: SubmitInput, seqs: number[], result: AttemptResult): Promise<AttemptResult | null> {
+async function storeResult(db: Db, attemptId: number, input: SubmitInput, readings: readonly RecordedReading[], seqs: number[], result: AttemptResult): Promise<AttemptResult | null> {
   const diagnosis = { atMs: input.atMs, ...input.diagnosis };
   const { rows } = await db.execute<{ outcome: string }>(sql`
     select loadline_store_submission(
       ${attemptId}::integer, ${seqs.length}::integer, ${seqs.at(-1) ?? 0}::integer, ${input.atMs}::integer,
-      ${JSON.stringify(input.readings)}::jsonb, ${JSON.stringify(diagnosis)}::jsonb, ${JSON.stringify(result)}::jsonb,
-      ${result.grade}::real, ${result.verified}::boolean, ${result.timeToDiagnosisMs}::integer
+      ${JSON.stringify(readings)}::jsonb, ${JSON.stringify(diagnosis)}::jsonb, ${JSON.stringify(result)}::jsonb,
+      ${result.grade}::real, ${result.verified ?? false}::boolean, ${result.timeToDiagnosisMs}::integer
     ) as outcome`);
   const outcome = rows[0]?.outcome;
   if (outcome === 'stored') return result;

@@ -23,7 +23,7 @@
  */
 import type pg from 'pg';
 import type { DiagnosticTest } from '../../sim/faults.ts';
-import type { InputEvent } from '../../sim/inputs.ts';
+import type { LogEvent } from '../../shared/api/attempts.ts';
 
 /** The most batches in one statement, so one statement stays short. */
 export const MAX_GROUP = 64;
@@ -33,9 +33,17 @@ export interface BatchToStore {
   attemptId: number;
   /** The signed-in student: the batch is stored only on an attempt of theirs. */
   userId: number;
-  events: readonly { seq: number; event: InputEvent }[];
+  events: readonly { seq: number; event: LogEvent }[];
   /** The lastSeq the batch follows on from and what it moves the attempt to, or null to store only. */
   predicted: { fromSeq: number; lastSeq: number; currentTest: DiagnosticTest | null; simTimeMs: number } | null;
+}
+
+/** A new event of a batch whose sim time runs back before an event stored before it in the log (or after a stored later one). */
+export interface Backdated {
+  seq: number;
+  atMs: number;
+  storedSeq: number;
+  storedAtMs: number;
 }
 
 /** The attempt's row as the batch found it once locked, what the batch stored, and what it moved on. */
@@ -49,6 +57,8 @@ export interface StoredBatch {
   earlier: number[];
   /** Whether the prediction held and the attempt was moved on. */
   movedOn: boolean;
+  /** Set when the batch was refused (nothing of it stored): its first event out of time order against the stored log. */
+  backdated: Backdated | null;
 }
 
 /** Counts since the writer was made, for tests and the benchmarks. */
@@ -79,8 +89,12 @@ type Row = StoredBatch & { attemptId: number };
  * `{attempt_id, seq, payload}`, the payload being the event itself (its kind
  * and sim time are read from it): one JSON text is far cheaper to send than a
  * column of JSON texts, each escaped as an array element. `a` locks the
- * attempts in id order; `ins` stores the events of those still running, each
- * seq once; `predicted` moves on each attempt whose batch was wholly new and
+ * attempts in id order; `back` finds, per attempt, the first new event whose
+ * sim time runs back before the stored event just before it in the log (or
+ * past the stored event just after it, when it fills a gap), one step along
+ * the (attempt, seq) index each way; `ins` stores the events of those still
+ * running and not refused so, each seq once (the batch's own order is checked
+ * before it comes here); `predicted` moves on each attempt whose batch was wholly new and
  * followed on from its lastSeq, with nothing stored after it before (a
  * statement does not see its own rows, so `earlier` and that check see only
  * what was there before it).
@@ -93,11 +107,25 @@ const STORE_BATCHES = `with b as (
       from attempts t join b on b.attempt_id = t.id and b.user_id = t.user_id
      order by t.id
        for update of t
+  ), ev as (
+    select e.attempt_id, e.seq, (e.payload->>'atMs')::int as at_ms, e.payload
+      from jsonb_to_recordset($8::jsonb) as e(attempt_id int, seq int, payload jsonb)
+  ), back as (
+    select distinct on (ev.attempt_id) ev.attempt_id, ev.seq, ev.at_ms,
+           coalesce(p.seq, n.seq) as stored_seq, coalesce(p.sim_time_ms, n.sim_time_ms) as stored_ms
+      from ev join a on a.id = ev.attempt_id
+      left join lateral (select x.seq, x.sim_time_ms from attempt_events x
+                          where x.attempt_id = ev.attempt_id and x.seq < ev.seq order by x.seq desc limit 1) p on true
+      left join lateral (select y.seq, y.sim_time_ms from attempt_events y
+                          where y.attempt_id = ev.attempt_id and y.seq > ev.seq order by y.seq limit 1) n on true
+     where (p.sim_time_ms > ev.at_ms or n.sim_time_ms < ev.at_ms)
+       and not exists (select 1 from attempt_events z where z.attempt_id = ev.attempt_id and z.seq = ev.seq)
+     order by ev.attempt_id, ev.seq
   ), ins as (
     insert into attempt_events (attempt_id, seq, sim_time_ms, kind, payload)
-    select e.attempt_id, e.seq, (e.payload->>'atMs')::int, e.payload->>'kind', e.payload
-      from jsonb_to_recordset($8::jsonb) as e(attempt_id int, seq int, payload jsonb)
-      join a on a.id = e.attempt_id and a.status = 'running'
+    select ev.attempt_id, ev.seq, ev.at_ms, ev.payload->>'kind', ev.payload
+      from ev join a on a.id = ev.attempt_id and a.status = 'running'
+     where not exists (select 1 from back where back.attempt_id = ev.attempt_id)
     on conflict (attempt_id, seq) do nothing
     returning attempt_id, seq
   ), stored as (
@@ -113,7 +141,8 @@ const STORE_BATCHES = `with b as (
   select a.id as "attemptId", a.status, a.last_seq as "lastSeq", a.sim_time_ms as "simTimeMs",
          coalesce((select s.seqs from stored s where s.attempt_id = a.id), '{}') as inserted,
          coalesce((select array_agg(e.seq order by e.seq) from attempt_events e where e.attempt_id = a.id and e.seq > a.last_seq), '{}') as earlier,
-         exists (select 1 from predicted p where p.id = a.id) as "movedOn"
+         exists (select 1 from predicted p where p.id = a.id) as "movedOn",
+         (select json_build_object('seq', b.seq, 'atMs', b.at_ms, 'storedSeq', b.stored_seq, 'storedAtMs', b.stored_ms) from back b where b.attempt_id = a.id) as backdated
     from a`;
 
 function parametersOf(batches: readonly BatchToStore[]): unknown[] {
@@ -124,7 +153,7 @@ function parametersOf(batches: readonly BatchToStore[]): unknown[] {
   const tests: (DiagnosticTest | null)[] = [];
   const simTimes: (number | null)[] = [];
   const counts: number[] = [];
-  const events: { attempt_id: number; seq: number; payload: InputEvent }[] = [];
+  const events: { attempt_id: number; seq: number; payload: LogEvent }[] = [];
   for (const b of batches) {
     attemptIds.push(b.attemptId);
     userIds.push(b.userId);
@@ -165,7 +194,9 @@ export function createBatchWriter(pool: pg.Pool): BatchWriter {
     const byAttempt = new Map(rows.map((r) => [r.attemptId, r]));
     for (const m of members) {
       const row = byAttempt.get(m.batch.attemptId);
-      m.resolve(row ? { status: row.status, lastSeq: row.lastSeq, simTimeMs: row.simTimeMs, inserted: row.inserted, earlier: row.earlier, movedOn: row.movedOn } : null);
+      m.resolve(
+        row ? { status: row.status, lastSeq: row.lastSeq, simTimeMs: row.simTimeMs, inserted: row.inserted, earlier: row.earlier, movedOn: row.movedOn, backdated: row.backdated ?? null } : null,
+      );
     }
   }
 

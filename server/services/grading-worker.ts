@@ -81,7 +81,7 @@ if (parentPort) {
     try {
       const cursor =
         job.attemptId !== undefined
-          ? ahead.take({ attemptId: job.attemptId, params: job.definition.vehicle.params, seed: job.seed, events: job.events, atMs: job.submission.atMs })
+          ? ahead.take({ attemptId: job.attemptId, car: job.car, seed: job.seed, events: job.events, atMs: job.submission.atMs })
           : null;
       const aheadToMs = cursor ? cursor.point.state.timeMs : null;
       reply = { kind: 'done', id: msg.id, result: gradeRun(job, cursor), ms: performance.now() - started, aheadToMs };

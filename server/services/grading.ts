@@ -1,18 +1,47 @@
 /**
- * Grading a submitted attempt from the server's own re-run of the model:
- * each recorded reading against what the meters showed then, the verdicts
- * against what the reference procedures show on the car with its faults, the fault named, and the mistakes
- * the re-run shows (a reversed clamp, a blown link, an overheated pile ...).
+ * Grading a submitted attempt from the server's own re-run of the model.
+ *
+ * A recorded reading is evidence for its test when two things hold at the
+ * display tick it shows: the value written down is what the bench showed
+ * (shared/meter-display.ts, the same rounding as the bench's), and the test's
+ * set-up held (shared/test-setups.ts). A reading outside its set-up is kept
+ * and shown with the reason, and earns nothing.
+ *
+ * The grade of an assigned attempt (weights in GRADE_WEIGHTS, explained in
+ * docs/grading.md), with E the share of the expected tests that have
+ * evidence:
+ * - evidence: 40 x E;
+ * - verdicts: 20 x the share of expected tests with evidence and the right verdict;
+ * - fault named: 20 x E when the fault named is the car's, else 0;
+ * - process: 20 x E, less 10 for each kind of process mistake the re-run
+ *   shows (a reversed clamp left uncorrected, a load held past the pile's or
+ *   the fusible link's limits, a link blown, B+ removed with the engine
+ *   running), at least 0.
+ * So a right answer with no evidence earns nothing, and work done without
+ * naming the fault earns at most 80.
+ *
  * Pure: the re-run's samples come in, an AttemptResult goes out.
  */
-import type { DiagnosticTest, Fault, FaultKind } from '../../sim/faults.ts';
+import type { DiagnosticTest, FaultKind } from '../../sim/faults.ts';
 import { FAULT_CATALOG } from '../../sim/faults.ts';
-import type { Controls } from '../../sim/inputs.ts';
 import type { OutputCurvePoint, Readings } from '../../sim/instruments.ts';
-import type { AttemptResult, MistakeKind, RecordedReading, SubmitInput } from '../../shared/api/attempts.ts';
+import {
+  GRADE_WEIGHTS,
+  PROCESS_DEDUCTION,
+  type AttemptResult,
+  type IntegrityFlag,
+  type MistakeKind,
+  type ReadingCheck,
+  type RecordedReading,
+  type SubmitInput,
+} from '../../shared/api/attempts.ts';
+import { meterShows, sameShown, shownWithUnit, type MeterQuantity } from '../../shared/meter-display.ts';
 import type { DiagnosisChoice } from '../../shared/scenario.ts';
 import type { ReferenceMeasurements } from '../../shared/reference-procedures.ts';
 import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, NO_FAULT_LABEL } from '../../shared/scenario.ts';
+import { SETUP_TICK_MS, SetupTracker, TEST_SETUPS, type SetupCar, type SetupSample, type SetupStatus } from '../../shared/test-setups.ts';
+
+export { GRADE_WEIGHTS, PROCESS_DEDUCTION };
 
 /** The meters grading reads at a moment of the re-run. */
 export type SampleReadings = Pick<
@@ -20,139 +49,91 @@ export type SampleReadings = Pick<
   'voltmeterV' | 'rippleVac' | 'clampA' | 'ammeterA' | 'pileA' | 'tachRpm' | 'batterySoc01' | 'engine' | 'pileOverheated'
 >;
 
-/** One moment of the re-run: what the reading and mistake checks read of it. */
+/** One display tick of the re-run: the meters, the set-up's inputs and what the process checks read. */
 export interface RunSample {
   atMs: number;
   readings: SampleReadings;
-  controls: { clamp: Pick<Controls['clamp'], 'conductor'> };
+  setup: SetupSample;
   /** The link burnt open by current in this run (not a fault that came with the car). */
   linkBurnt: boolean;
+  /** Heat in the fusible link as a share of what melts it. */
+  linkHeat01: number;
+  bplusConnected: boolean;
 }
 
-/** How far around a reading's moment a matching meter value is accepted (meters move). */
-export const READING_WINDOW_MS = 1500;
-
-/** Points of the grade of an assigned attempt. */
-export const GRADE_WEIGHTS = { verdicts: 40, fault: 30, evidence: 30 } as const;
-export const MISTAKE_PENALTY = 5;
-export const MAX_MISTAKE_PENALTY = 20;
-export const UNVERIFIED_PENALTY = 5;
-export const MAX_UNVERIFIED_PENALTY = 20;
-
-type MeterName = 'voltmeter' | 'ripple' | 'clamp' | 'pile ammeter' | 'series ammeter' | 'tachometer';
-
-interface Meter {
-  name: MeterName;
-  /** In the base unit of the quantity: V, V AC, A or rpm. */
-  read: (r: SampleReadings) => number | null;
-}
-
-const METERS: Readonly<Record<RecordedReading['quantity'], readonly Meter[]>> = {
-  voltage: [{ name: 'voltmeter', read: (r) => r.voltmeterV }],
-  ripple: [{ name: 'ripple', read: (r) => r.rippleVac }],
-  current: [
-    { name: 'clamp', read: (r) => r.clampA },
-    { name: 'pile ammeter', read: (r) => r.pileA },
-    { name: 'series ammeter', read: (r) => r.ammeterA },
-  ],
-  draw: [
-    { name: 'series ammeter', read: (r) => r.ammeterA },
-    { name: 'clamp', read: (r) => r.clampA },
-  ],
-  rpm: [{ name: 'tachometer', read: (r) => r.tachRpm }],
+const QUANTITY_WORDS: Readonly<Record<MeterQuantity, string>> = {
+  voltage: 'DC volts',
+  current: 'amps on the clamp',
+  ripple: 'AC ripple',
+  draw: 'the series ammeter’s draw',
+  rpm: 'engine speed',
 };
 
 /**
- * Tolerance of a written-down reading: the larger of a share of the meter's
- * value and an absolute floor, in the base unit. Voltage takes 1 %, not 2 %:
- * a tenth of a volt at the battery is a quarter of its state of charge.
+ * Checks every reading against the re-run: the tracker is fed every sample
+ * in order, and each reading is judged at its own tick.
  */
-const RELATIVE_TOLERANCE: Readonly<Record<RecordedReading['quantity'], number>> = {
-  voltage: 0.01,
-  current: 0.02,
-  ripple: 0.02,
-  draw: 0.02,
-  rpm: 0.02,
-};
-
-const ABSOLUTE_TOLERANCE: Readonly<Record<RecordedReading['quantity'], number>> = {
-  voltage: 0.05,
-  current: 1,
-  ripple: 0.01,
-  draw: 0.01,
-  rpm: 50,
-};
-
-const UNIT_SCALE: Readonly<Record<RecordedReading['unit'], number>> = { V: 1, A: 1, mV: 0.001, mA: 0.001, rpm: 1 };
-
-export function toleranceFor(quantity: RecordedReading['quantity'], meterValue: number): number {
-  return Math.max(RELATIVE_TOLERANCE[quantity] * Math.abs(meterValue), ABSOLUTE_TOLERANCE[quantity]);
+export function checkReadings(readings: readonly RecordedReading[], samples: readonly RunSample[], car: SetupCar, untilMs: number): ReadingCheck[] {
+  const byTick = new Map<number, RecordedReading[]>();
+  for (const r of readings) {
+    const list = byTick.get(r.atMs);
+    if (list) list.push(r);
+    else byTick.set(r.atMs, [r]);
+  }
+  const checks = new Map<string, ReadingCheck>();
+  const tracker = new SetupTracker(car);
+  for (const s of samples) {
+    tracker.feed(s.setup);
+    const due = s.atMs % SETUP_TICK_MS === 0 ? byTick.get(s.atMs) : undefined;
+    if (!due) continue;
+    for (const r of due) if (r.atMs <= untilMs) checks.set(r.id, judge(r, s, tracker.status(r.test)));
+  }
+  return readings.map((r) => checks.get(r.id) ?? notATick(r));
 }
 
-/** The sample at or just before `atMs` (samples are in time order). */
-export function sampleAt(samples: readonly RunSample[], atMs: number): RunSample | null {
-  let lo = 0;
-  let hi = samples.length - 1;
-  let found: RunSample | null = null;
-  while (lo <= hi) {
-    const mid = (lo + hi) >> 1;
-    const s = samples[mid]!;
-    if (s.atMs <= atMs) {
-      found = s;
-      lo = mid + 1;
-    } else hi = mid - 1;
-  }
-  return found ?? samples[0] ?? null;
-}
-
-function samplesAround(samples: readonly RunSample[], atMs: number): RunSample[] {
-  return samples.filter((s) => s.atMs >= atMs - READING_WINDOW_MS && s.atMs <= atMs + READING_WINDOW_MS);
-}
-
-const fmt = (x: number, unit: string) => {
-  const digits = unit === 'rpm' || unit === 'mA' || unit === 'mV' ? 0 : unit === 'A' ? 1 : 2;
-  return `${x.toFixed(digits)} ${unit}`;
-};
-
-export type ReadingCheck = AttemptResult['readings'][number];
-
-/** Whether a recorded reading is what one of the meters for its quantity showed within the window around its moment. */
-export function checkReading(reading: RecordedReading, samples: readonly RunSample[]): ReadingCheck {
-  const scale = UNIT_SCALE[reading.unit];
-  const given = reading.value * scale;
-  const meters = METERS[reading.quantity];
-  const base = { id: reading.id, test: reading.test, value: reading.value, unit: reading.unit };
-  const window = samplesAround(samples, reading.atMs);
-  for (const meter of meters) {
-    for (const s of window) {
-      const m = meter.read(s.readings);
-      if (m !== null && Math.abs(given - m) <= toleranceFor(reading.quantity, m)) {
-        return { ...base, expectedValue: round(m / scale), ok: true, message: `Matches the ${meter.name} (${fmt(m / scale, reading.unit)}).` };
-      }
-    }
-  }
-  // Not matched: report the meter, at the reading's own moment, closest to what was written down.
-  const at = sampleAt(samples, reading.atMs);
-  let best: { name: MeterName; value: number } | null = null;
-  if (at) {
-    for (const meter of meters) {
-      const m = meter.read(at.readings);
-      if (m !== null && (best === null || Math.abs(m - given) < Math.abs(best.value - given))) best = { name: meter.name, value: m };
-    }
-  }
-  if (!best) {
-    return { ...base, expectedValue: null, ok: false, message: `No meter for ${reading.quantity} was connected at that moment.` };
-  }
+function notATick(r: RecordedReading): ReadingCheck {
   return {
-    ...base,
-    expectedValue: round(best.value / scale),
-    ok: false,
-    message: `The ${best.name} showed ${fmt(best.value / scale, reading.unit)} then, not ${fmt(reading.value, reading.unit)}.`,
+    ...base(r),
+    shown: null,
+    valueOk: false,
+    inSetup: false,
+    evidence: false,
+    reason: 'The bench showed nothing at that moment: a reading is the value on the display at one of its ticks, before the submission.',
+    unmet: [],
   };
 }
 
-function round(x: number): number {
-  return Math.round(x * 1000) / 1000;
+const base = (r: RecordedReading) => ({ id: r.id, test: r.test, quantity: r.quantity, value: r.value, unit: r.unit, atMs: r.atMs });
+
+/** One reading at its tick, with the test's set-up there. */
+export function judge(r: RecordedReading, sample: RunSample, status: SetupStatus): ReadingCheck {
+  const setup = TEST_SETUPS[r.test];
+  const label = DIAGNOSTIC_TEST_LABELS[r.test];
+  const rightQuantity = r.quantity === setup.quantity;
+  const shownNow =
+    rightQuantity && setup.reading === 'crank-minimum'
+      ? status.crankMinV === null
+        ? null
+        : { value: status.crankMinV, unit: 'V' as const }
+      : meterShows(r.quantity, sample.readings);
+  const valueOk = shownNow !== null && sameShown(r, shownNow);
+  const inSetup = rightQuantity && status.holds;
+  const evidence = valueOk && inSetup;
+  let reason: string;
+  if (!rightQuantity) reason = `${label} is read as ${QUANTITY_WORDS[setup.quantity]} on ${setup.meter}, not as ${QUANTITY_WORDS[r.quantity]}: this reading is not evidence for it.`;
+  else if (shownNow === null) reason = `No meter for ${QUANTITY_WORDS[r.quantity]} was connected at that moment.`;
+  else if (!valueOk) reason = `The bench showed ${shownWithUnit(shownNow.value, shownNow.unit)} then, not ${shownWithUnit(r.value, r.unit)}.`;
+  else if (!inSetup) reason = `Taken outside the test’s set-up: ${status.unmet[0] ?? 'the set-up did not hold'}.`;
+  else reason = `Inside the set-up; the bench showed ${shownWithUnit(shownNow.value, shownNow.unit)}.`;
+  return {
+    ...base(r),
+    shown: shownNow === null ? null : shownNow.unit === r.unit ? shownNow.value : null,
+    valueOk,
+    inSetup,
+    evidence,
+    reason,
+    unmet: rightQuantity ? status.unmet : [],
+  };
 }
 
 export type Mistake = AttemptResult['mistakes'][number];
@@ -187,22 +168,38 @@ export const LOADED_PILE_A = 50;
  * we allow 5 s more for the student to read and write the value down.
  */
 export const LONG_LOAD_MS = 20_000;
+/** A reversed clamp (negative charging current on the B+ cable) left this long is left uncorrected (common practice, no source). */
+export const REVERSED_CLAMP_MS = 5_000;
+/** Heat in the fusible link, as a share of what melts it, past which a load the student switched on was held beyond the link's limit (common practice, no source). */
+export const LINK_OVERLOAD_HEAT = 0.8;
 /** A drop of state of charge during the attempt counted as running the battery down. */
 export const RUN_DOWN_SOC_DROP = 0.15;
 
 const MISTAKE_TEXT: Readonly<Record<MistakeKind, string>> = {
   'reversed-clamp':
-    'The clamp read negative on the B+ cable: its arrow pointed away from the battery. Charging current flows from the alternator to the battery; turn the clamp round.',
+    'The clamp read negative on the B+ cable and was left so: its arrow pointed away from the battery. Charging current flows from the alternator to the battery; turn the clamp round.',
   'reversed-leads': 'The voltmeter read negative: the red lead was on the negative side. Red goes to the positive point.',
   'blown-fusible-link': 'The fusible link burnt open during the attempt: too much current for too long through the B+ circuit.',
+  'link-overloaded': 'A load was held long enough to heat the fusible link close to melting: stop loading once the output reaches the rating.',
   'pile-overheated': 'The carbon pile overheated and cut out: keep load bursts short and let it cool between tests.',
-  'battery-run-down': 'The battery was run down during the attempt (key on with the engine stopped, or long heavy loads).',
   'long-loaded-test': 'A heavy load was held for more than 20 s: keep load bursts to about 15 s.',
+  'bplus-removed-running': 'The B+ lead was taken off with the engine running: that can spike the voltage and damage the electronics. Remove it only with the engine stopped.',
+  'battery-run-down': 'The battery was run down during the attempt (key on with the engine stopped, or long heavy loads).',
   'engine-stalled': 'The engine stalled.',
 };
 
+/** The mistakes that cost process points; the others are noted only. */
+export const PROCESS_MISTAKES: ReadonlySet<MistakeKind> = new Set<MistakeKind>([
+  'reversed-clamp',
+  'blown-fusible-link',
+  'link-overloaded',
+  'pile-overheated',
+  'long-loaded-test',
+  'bplus-removed-running',
+]);
+
 /** Mistakes the re-run shows, each kind once at its first moment. */
-export function findMistakes(samples: readonly RunSample[], readings: readonly RecordedReading[]): Mistake[] {
+export function findMistakes(samples: readonly RunSample[]): Mistake[] {
   const found = new Map<MistakeKind, number>();
   const note = (kind: MistakeKind, atMs: number | null) => {
     if (atMs === null) return;
@@ -211,22 +208,22 @@ export function findMistakes(samples: readonly RunSample[], readings: readonly R
   };
   note(
     'reversed-clamp',
-    firstSustained(samples, 1000, (s) => s.controls.clamp.conductor === 'bplus-cable' && s.readings.engine === 'running' && (s.readings.clampA ?? 0) < -5),
+    firstSustained(samples, REVERSED_CLAMP_MS, (s) => s.setup.clampOn === 'bplus-cable' && s.readings.engine === 'running' && (s.readings.clampA ?? 0) < -5),
   );
   note('reversed-leads', firstSustained(samples, 1000, (s) => (s.readings.voltmeterV ?? 0) < -1));
-  for (const r of readings) {
-    if (r.quantity === 'current' && r.test === 'output' && r.value < -1) note('reversed-clamp', r.atMs);
-    if (r.quantity === 'voltage' && r.value * UNIT_SCALE[r.unit] < -1) note('reversed-leads', r.atMs);
-  }
   note('blown-fusible-link', firstTransition(samples, (s) => s.linkBurnt));
+  if (!found.has('blown-fusible-link')) note('link-overloaded', samples.find((s) => s.linkHeat01 >= LINK_OVERLOAD_HEAT && s.setup.switchedLoadA > 0)?.atMs ?? null);
   note('pile-overheated', firstTransition(samples, (s) => s.readings.pileOverheated));
   note('engine-stalled', firstTransition(samples, (s) => s.readings.engine === 'stalled'));
   note('long-loaded-test', firstSustained(samples, LONG_LOAD_MS, (s) => s.readings.pileA > LOADED_PILE_A));
+  note('bplus-removed-running', samples.find((s) => !s.bplusConnected && s.readings.engine === 'running')?.atMs ?? null);
   const startSoc = samples[0]?.readings.batterySoc01;
   if (startSoc !== undefined) {
     note('battery-run-down', samples.find((s) => s.readings.batterySoc01 < startSoc - RUN_DOWN_SOC_DROP)?.atMs ?? null);
   }
-  return [...found.entries()].sort((a, b) => a[1] - b[1]).map(([kind, atMs]) => ({ kind, atMs, message: MISTAKE_TEXT[kind] }));
+  return [...found.entries()]
+    .sort((a, b) => a[1] - b[1])
+    .map(([kind, atMs]) => ({ kind, atMs: Math.round(atMs), message: MISTAKE_TEXT[kind], process: PROCESS_MISTAKES.has(kind) }));
 }
 
 /**
@@ -240,95 +237,100 @@ export function correctVerdicts(measurements: ReferenceMeasurements): Record<Dia
   return out;
 }
 
-/** The fault kinds the car had by the submission: scenario and injected faults still in place whose onset has passed. */
-export function actualFaultKinds(faults: readonly Fault[], atMs: number): FaultKind[] {
-  return [...new Set(faults.filter((f) => f.onsetS * 1000 <= atMs).map((f) => f.kind))];
-}
-
 export interface GradeInput {
   mode: 'assigned' | 'practice';
   submission: SubmitInput;
+  /** The readings of the attempt's log (recorded and not struck out). */
+  readings: readonly RecordedReading[];
   testsExpected: readonly DiagnosticTest[];
   /** The right verdict of each test (`correctVerdicts` of the reference measurements). */
   correctVerdicts: Readonly<Record<DiagnosticTest, boolean>>;
-  /** The faults in place at the submission (scenario and live), as the re-run saw them. */
-  faults: readonly Fault[];
+  /** The kinds of the faults the car had by the submission (scenario and live). */
+  actualKinds: readonly FaultKind[];
   samples: readonly RunSample[];
+  car: SetupCar;
+  /** Injections the bench did not log as the server sent them. */
+  flags: readonly IntegrityFlag[];
   showFeedback: boolean;
   /** Both curves, when the assignment shows the output curve. */
   curve: { healthy: OutputCurvePoint[]; fitted: OutputCurvePoint[] } | null;
   pulleyRatio: number;
 }
 
+const round1 = (x: number) => Math.round(x * 10) / 10;
+
 export function gradeAttempt(input: GradeInput): AttemptResult {
   const { submission, samples } = input;
   const atMs = submission.atMs;
-  const readingChecks = submission.readings.map((r) => checkReading(r, samples));
-  const verified = readingChecks.every((c) => c.ok);
-  const actual = actualFaultKinds(input.faults, atMs);
-  const actualChoices: DiagnosisChoice[] = actual.length ? actual : ['none'];
+  const checks = checkReadings(input.readings, samples, input.car, atMs);
+  const evidencedTests = new Set(checks.filter((c) => c.evidence).map((c) => c.test));
+  const expected = input.testsExpected;
+  const n = Math.max(1, expected.length);
+  const share = expected.filter((t) => evidencedTests.has(t)).length / n;
 
+  const actualChoices: DiagnosisChoice[] = input.actualKinds.length ? [...input.actualKinds] : ['none'];
   const given = new Map(submission.diagnosis.verdicts.map((v) => [v.test, v.pass]));
-  const verdicts = input.testsExpected.map((test) => {
+  const verdicts = expected.map((test) => {
     const correct = input.correctVerdicts[test];
     const g = given.get(test);
-    return { test, given: g ?? null, correct, ok: g === correct };
+    return { test, given: g ?? null, correct, ok: g === correct, evidenced: evidencedTests.has(test) };
   });
-
   const faultGiven = submission.diagnosis.faultKind;
-  const faultOk = faultGiven === 'none' ? actual.length === 0 : actual.includes(faultGiven);
-  const labels = actual.length ? actual.map((k) => FAULT_CATALOG[k].label) : [NO_FAULT_LABEL];
+  const faultOk = faultGiven === 'none' ? input.actualKinds.length === 0 : input.actualKinds.includes(faultGiven);
+  const labels = input.actualKinds.length ? input.actualKinds.map((k) => FAULT_CATALOG[k].label) : [NO_FAULT_LABEL];
 
-  const mistakes = findMistakes(samples, submission.readings);
-  const verifiedTests = new Set(readingChecks.filter((c) => c.ok).map((c) => c.test));
-  const evidenced = input.testsExpected.filter((t) => verifiedTests.has(t));
+  const mistakes = findMistakes(samples);
+  const processMistakes = mistakes.filter((m) => m.process).length;
+  const verified = share === 1 && checks.every((c) => c.valueOk) && input.flags.length === 0;
 
   let grade: number | null = null;
+  let scoring: AttemptResult['scoring'] = null;
   if (input.mode === 'assigned') {
-    const n = Math.max(1, input.testsExpected.length);
-    const points =
-      (GRADE_WEIGHTS.verdicts * verdicts.filter((v) => v.ok).length) / n +
-      (faultOk ? GRADE_WEIGHTS.fault : 0) +
-      (GRADE_WEIGHTS.evidence * evidenced.length) / n -
-      Math.min(MAX_MISTAKE_PENALTY, MISTAKE_PENALTY * mistakes.length) -
-      Math.min(MAX_UNVERIFIED_PENALTY, UNVERIFIED_PENALTY * readingChecks.filter((c) => !c.ok).length);
-    grade = Math.round(Math.min(100, Math.max(0, points)));
+    const w = GRADE_WEIGHTS;
+    const pts = {
+      evidence: round1(w.evidence * share),
+      verdicts: round1((w.verdicts * verdicts.filter((v) => v.ok && v.evidenced).length) / n),
+      fault: round1(faultOk ? w.fault * share : 0),
+      process: round1(Math.max(0, w.process * share - PROCESS_DEDUCTION * processMistakes)),
+    };
+    grade = Math.round(Math.min(100, Math.max(0, pts.evidence + pts.verdicts + pts.fault + pts.process)));
+    scoring = { weights: { ...w }, points: pts, processDeduction: PROCESS_DEDUCTION };
   }
 
   const feedback: string[] = [];
   if (input.showFeedback) {
-    feedback.push(
-      faultOk ? `Right diagnosis: ${labels.join(', ')}.` : `The car had: ${labels.join(', ')}. You named: ${diagnosisLabel(faultGiven)}.`,
-    );
+    feedback.push(faultOk ? `Right diagnosis: ${labels.join(', ')}.` : `The car had: ${labels.join(', ')}. You named: ${diagnosisLabel(faultGiven)}.`);
     for (const v of verdicts) {
       const label = DIAGNOSTIC_TEST_LABELS[v.test];
-      if (v.given === null) feedback.push(`${label}: no verdict given (it ${v.correct ? 'passes' : 'fails'} on this car).`);
+      if (!v.evidenced) feedback.push(`${label}: no reading inside its set-up, so its verdict and the diagnosis it supports earn nothing.`);
+      else if (v.given === null) feedback.push(`${label}: no verdict given (it ${v.correct ? 'passes' : 'fails'} on this car).`);
       else if (!v.ok) feedback.push(`${label}: you marked it ${v.given ? 'pass' : 'fail'}, but it ${v.correct ? 'passes' : 'fails'} on this car.`);
     }
-    for (const t of input.testsExpected) {
-      if (!verifiedTests.has(t)) feedback.push(`${DIAGNOSTIC_TEST_LABELS[t]}: no verified reading was recorded.`);
-    }
-    for (const c of readingChecks) if (!c.ok) feedback.push(`Reading of ${fmt(c.value, c.unit)} (${DIAGNOSTIC_TEST_LABELS[c.test]}): ${c.message}`);
+    for (const c of checks) if (!c.evidence) feedback.push(`Reading of ${shownWithUnit(c.value, c.unit)} (${DIAGNOSTIC_TEST_LABELS[c.test]}): ${c.reason}`);
     for (const m of mistakes) feedback.push(m.message);
+    for (const f of input.flags) feedback.push(f.message);
   }
 
   const result: AttemptResult = {
     grade,
     verified,
-    readings: readingChecks,
+    scoring,
+    hidden: null,
+    readings: checks,
     verdicts,
     fault: { given: faultGiven, actual: actualChoices, ok: faultOk, labels },
-    timeToDiagnosisMs: atMs,
+    timeToDiagnosisMs: Math.round(atMs),
     mistakes,
+    flags: [...input.flags],
     feedback,
   };
   if (input.curve) {
     result.outputCurve = input.curve;
-    result.measuredPoints = readingChecks.flatMap((c, i) => {
-      const r = submission.readings[i]!;
-      if (!c.ok || r.test !== 'output' || r.quantity !== 'current') return [];
-      const s = sampleAt(samples, r.atMs);
-      return s ? [{ altRpm: Math.round(s.readings.tachRpm * input.pulleyRatio), currentA: r.value }] : [];
+    const byTick = new Map(samples.map((s) => [s.atMs, s] as const));
+    result.measuredPoints = checks.flatMap((c) => {
+      if (!c.evidence || c.test !== 'output') return [];
+      const s = byTick.get(c.atMs);
+      return s ? [{ altRpm: Math.round(s.readings.tachRpm * input.pulleyRatio), currentA: c.value }] : [];
     });
   }
   return result;

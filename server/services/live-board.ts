@@ -1,8 +1,10 @@
 /**
  * The class board: every running attempt of a class (its assignments, and
  * practice by its students) with the student, scenario, sim time, the test the
- * bench is set up for and the meters, as the server's own re-run of the
- * stored events shows them. A refresh handles every changed attempt at once:
+ * bench is set up for, the meters as the server's own re-run of the stored
+ * events shows them (on the attempt's compiled car, as the bench ran it), the
+ * readings recorded so far, and each injection with what the server makes of
+ * it (delivered, logged by the bench, or flagged). A refresh handles every changed attempt at once:
  * one query for their rows (with the time of each one's latest event), one
  * for the events the re-run cache has not seen yet, one for their injections.
  * The re-run is kept per attempt and carried forward as events arrive, so an
@@ -17,13 +19,16 @@ import type { VehicleParams } from '../../sim/params.ts';
 import type { ReplayPoint } from '../../sim/replay.ts';
 import { advance, orderEvents, startPoint } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
+import type { CarChange } from '../../sim/car-changes.ts';
+import { readingsOfLog, type LogEvent } from '../../shared/api/attempts.ts';
 import type { BoardAttempt, LiveReadings } from '../../shared/api/live.ts';
 import type { DbOrTx } from '../db/client.ts';
 import { assignments, attemptEvents, attempts, classes, enrollments, pendingInjections, scenarioVersions, users } from '../db/schema.ts';
 import { notFound } from '../http/errors.ts';
 import { loadDefinition } from './definitions.ts';
-import { rowToInput, scenarioFaultEvents } from './live-attempt-run.ts';
-import { injectionsByAttempt, injectionViews, type InjectionRow } from './live-injections.ts';
+import type { LoggedEvent } from './injection-authority.ts';
+import { carOf, rowToLogEvent } from './live-attempt-run.ts';
+import { injectionsByAttempt, injectionViews, resolveRows, type InjectionRow } from './live-injections.ts';
 
 /** A re-run longer than this many steps is not made for the board (it would hold the process). */
 const MAX_BOARD_STEPS = 400_000;
@@ -155,6 +160,13 @@ async function toBoardAttempts(db: DbOrTx, rows: readonly BoardRow[], runs: Boar
 }
 
 function toBoardAttempt(r: BoardRow, live: LiveView | null, injections: readonly InjectionRow[]): BoardAttempt {
+  // The bench's logs of the injections, stored when each was marked applied.
+  const logged: LoggedEvent[] = (live?.changes ?? []).flatMap((c) => {
+    const id = c.event.kind === 'change-apply' ? c.event.change.id : c.event.kind === 'change-clear' ? c.event.changeId : null;
+    const row = injections.find((i) => i.action.faultId === id && (i.action.type === 'inject') === (c.event.kind === 'change-apply'));
+    return row?.appliedAt ? [{ seq: c.seq, storedAt: row.appliedAt, event: c.event }] : [];
+  });
+  const views = injectionViews(injections, r.status === 'running' ? resolveRows(injections, logged) : undefined);
   return {
     attemptId: r.attemptId,
     studentId: r.studentId,
@@ -169,7 +181,9 @@ function toBoardAttempt(r: BoardRow, live: LiveView | null, injections: readonly
     lastSeq: r.lastSeq,
     currentTest: live?.currentTest ?? null,
     readings: live?.readings ?? null,
-    injections: injectionViews(injections),
+    recorded: live?.recorded ?? [],
+    injections: views,
+    flagged: views.some((v) => v.status === 'flagged'),
     lastActivityAt: r.lastActivityAt ? r.lastActivityAt.toISOString() : null,
     benchSeenAt: r.benchSeenAt ? r.benchSeenAt.toISOString() : null,
   };
@@ -220,7 +234,7 @@ export function testOfSetup(c: Controls, r: Pick<Readings, 'engine'>): Diagnosti
   return null;
 }
 
-/** An event as the re-run holds it; the scenario's own faults come first with seq 0 and below. */
+/** An event as the re-run holds it, with its seq in the log. */
 interface RunItem {
   seq: number;
   event: InputEvent;
@@ -233,6 +247,10 @@ interface RunCacheEntry {
   seed: number;
   scenarioVersionId: number;
   params: VehicleParams;
+  /** The car's schedule, in force from the first state. */
+  changes: readonly CarChange[];
+  /** The readings' events and the changes' events held, by seq (the model ignores the first; the injections' statuses read the second). */
+  notes: { seq: number; event: LogEvent }[];
   /** Every stored event with a seq up to this one is held (later ones past a gap may be held too). */
   through: number;
   seqs: Set<number>;
@@ -247,6 +265,9 @@ interface RunCacheEntry {
 export interface LiveView {
   currentTest: DiagnosticTest | null;
   readings: LiveReadings;
+  recorded: BoardAttempt['recorded'];
+  /** The bench's logged changes, by seq. */
+  changes: { seq: number; event: LogEvent }[];
 }
 
 /** What the re-run cache needs of an attempt's row. */
@@ -310,19 +331,19 @@ async function eventsAfter(db: DbOrTx, after: ReadonlyMap<number, number>): Prom
 }
 
 async function newEntry(db: DbOrTx, row: BoardRunRow): Promise<RunCacheEntry> {
-  const definition = await loadDefinition(db, row.scenarioVersionId);
-  const scenario = scenarioFaultEvents(definition);
-  const items = scenario.map((event, i) => ({ seq: i - scenario.length + 1, event }));
+  const car = carOf(await loadDefinition(db, row.scenarioVersionId));
   return {
     seed: row.seed,
     scenarioVersionId: row.scenarioVersionId,
-    params: definition.vehicle.params,
+    params: car.params,
+    changes: car.changes,
+    notes: [],
     through: 0,
     seqs: new Set(),
-    items,
-    events: items.map((i) => i.event),
-    lastAtMs: items.reduce((m, i) => Math.max(m, i.event.atMs), 0),
-    point: startPoint(definition.vehicle.params, row.seed),
+    items: [],
+    events: [],
+    lastAtMs: 0,
+    point: startPoint(car.params, row.seed, car.changes),
   };
 }
 
@@ -397,10 +418,16 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
         for (const r of byAttempt.get(row.attemptId) ?? []) {
           if (entry.seqs.has(r.seq)) continue;
           entry.seqs.add(r.seq);
-          const event = rowToInput(r);
-          if (event) fresh.push({ seq: r.seq, event });
+          const event = rowToLogEvent(r);
+          if (!event) continue;
+          if (event.kind === 'reading' || event.kind === 'reading-remove') entry.notes.push({ seq: r.seq, event });
+          else {
+            if (event.kind === 'change-apply' || event.kind === 'change-clear') entry.notes.push({ seq: r.seq, event });
+            fresh.push({ seq: r.seq, event });
+          }
         }
-        if (!takeIn(entry, fresh)) entry.point = startPoint(entry.params, entry.seed);
+        entry.notes.sort((a, b) => a.seq - b.seq);
+        if (!takeIn(entry, fresh)) entry.point = startPoint(entry.params, entry.seed, entry.changes);
         entry.through = Math.max(entry.through, row.lastSeq);
         views.set(row.attemptId, await carryTo(entry, boardTimeMs(row), slices));
       } catch (err) {
@@ -423,7 +450,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
     if (targetMs / DT_MS > MAX_BOARD_STEPS) return null;
     let point = entry.point;
     if (point.state.timeMs === 0 || point.state.timeMs > targetMs) {
-      point = startPoint(entry.params, entry.seed);
+      point = startPoint(entry.params, entry.seed, entry.changes);
       stats.fullRuns++;
     } else stats.carried++;
     const events = orderEvents(entry.events);
@@ -435,7 +462,9 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
     }
     entry.point = point;
     const readings = readMeters(entry.params, entry.point.state);
-    return { currentTest: testOfSetup(entry.point.controls, readings), readings: liveReadings(readings, entry.point.state.fusibleLinkBlown) };
+    const recorded = readingsOfLog(entry.notes.map((n) => n.event)).map((r) => ({ id: r.id, test: r.test, value: r.value, unit: r.unit, atMs: r.atMs }));
+    const changes = entry.notes.filter((n) => n.event.kind === 'change-apply' || n.event.kind === 'change-clear');
+    return { currentTest: testOfSetup(entry.point.controls, readings), readings: liveReadings(readings, entry.point.state.fusibleLinkBlown), recorded, changes };
   }
 
   return {

@@ -1,11 +1,12 @@
 /**
  * Injections: an instructor's fault (or the clearing of one) for a running
- * attempt, kept in pending_injections until the bench logs it. The bench gets
- * each one sealed with its attempt's key; storing the logged event marks the
- * row applied (a trigger of the `live_notify` migration).
+ * attempt, kept in pending_injections. The bench's stream sends each as the
+ * change it makes to the car (no kind, no severity) and the server records
+ * when it delivered it; storing the bench's log of it marks the row applied
+ * (a trigger of the migrations). What counts is decided by
+ * injection-authority.ts.
  */
 import { and, asc, eq, inArray, isNull, sql } from 'drizzle-orm';
-import type { Fault } from '../../sim/faults.ts';
 import {
   liveFaultId,
   pendingActionSchema,
@@ -14,11 +15,11 @@ import {
   type PendingAction,
   type injectSchema,
 } from '../../shared/api/live.ts';
-import { deriveBenchKey, sealFaults } from '../../shared/sealed-faults.ts';
 import type { z } from 'zod';
 import type { Db, DbOrTx } from '../db/client.ts';
 import { attempts, pendingInjections } from '../db/schema.ts';
 import { conflict, notFound } from '../http/errors.ts';
+import { injectionChange, resolveInjections, type LoggedEvent, type ResolvedInjection } from './injection-authority.ts';
 
 type InjectBody = z.output<typeof injectSchema>;
 
@@ -28,6 +29,8 @@ export interface InjectionRow {
   action: PendingAction;
   createdAt: Date;
   appliedAt: Date | null;
+  deliveredAt: Date | null;
+  deliveredSimMs: number | null;
 }
 
 const injectionColumns = {
@@ -36,9 +39,11 @@ const injectionColumns = {
   action: pendingInjections.action,
   createdAt: pendingInjections.createdAt,
   appliedAt: pendingInjections.appliedAt,
+  deliveredAt: pendingInjections.deliveredAt,
+  deliveredSimMs: pendingInjections.deliveredSimMs,
 };
 
-function parseRow(row: { id: number; attemptId: number; action: unknown; createdAt: Date; appliedAt: Date | null }): InjectionRow | null {
+function parseRow(row: Omit<InjectionRow, 'action'> & { action: unknown }): InjectionRow | null {
   const action = pendingActionSchema.safeParse(row.action);
   return action.success ? { ...row, action: action.data } : null;
 }
@@ -73,9 +78,14 @@ export async function unappliedInjections(db: DbOrTx, attemptId: number): Promis
   return rows.flatMap((r) => parseRow(r) ?? []);
 }
 
-/** What the instructor sees of the injections of one attempt. */
-export function injectionViews(rows: readonly InjectionRow[]): InjectionView[] {
+/**
+ * What the instructor sees of the injections of one attempt: each with what
+ * the server makes of it (`resolved`, from the attempt's logged changes; when
+ * not given, from the rows alone: logged or waiting).
+ */
+export function injectionViews(rows: readonly InjectionRow[], resolved?: readonly ResolvedInjection[]): InjectionView[] {
   const clearedIds = new Set(rows.flatMap((r) => (r.action.type === 'clear' ? [r.action.targetInjectionId] : [])));
+  const byId = new Map((resolved ?? []).map((x) => [x.id, x]));
   return rows.map((r) => ({
     injectionId: r.id,
     type: r.action.type,
@@ -85,9 +95,21 @@ export function injectionViews(rows: readonly InjectionRow[]): InjectionView[] {
     delayS: r.action.type === 'inject' ? r.action.delayS : null,
     intermittent: r.action.type === 'inject' ? r.action.intermittent : null,
     createdAt: r.createdAt.toISOString(),
+    deliveredAt: r.deliveredAt ? r.deliveredAt.toISOString() : null,
     appliedAt: r.appliedAt ? r.appliedAt.toISOString() : null,
     cleared: r.action.type === 'inject' && clearedIds.has(r.id),
+    status: byId.get(r.id)?.status ?? (r.appliedAt ? 'applied' : r.deliveredAt ? 'delivered' : 'waiting'),
+    appliedAtMs: byId.get(r.id)?.atMs ?? null,
+    flag: (() => {
+      const f = byId.get(r.id)?.flag;
+      return f ? { kind: f.kind, message: f.message } : null;
+    })(),
   }));
+}
+
+/** What the server makes of an attempt's injections now, from its rows and the changes its log holds. */
+export function resolveRows(rows: readonly InjectionRow[], logged: readonly LoggedEvent[], now = new Date()): ResolvedInjection[] {
+  return resolveInjections(rows, logged, { now, closing: false });
 }
 
 async function lockRunningAttempt(tx: DbOrTx, attemptId: number): Promise<void> {
@@ -129,18 +151,20 @@ export async function createClear(db: Db, attemptId: number, createdBy: number, 
   });
 }
 
-/** The key the attempt's bench opens sealed faults with (the same derivation as the bootstrap's). */
-export const benchKeyOf = (secret: string, attemptId: number) => deriveBenchKey(secret, attemptId);
+/** An injection as the bench's stream carries it: the change it makes (onset as a delay from now), never the fault's kind or severity. */
+export function toBenchMessage(row: InjectionRow): BenchInjection {
+  if (row.action.type === 'clear') return { type: 'clear', injectionId: row.id, changeId: row.action.faultId };
+  return { type: 'inject', injectionId: row.id, change: injectionChange(row.action, 0) };
+}
 
-/** An injection as the bench's stream carries it: an inject sealed, so its kind and severity stay unread. */
-export async function toBenchMessage(row: InjectionRow, benchKey: string): Promise<BenchInjection> {
-  if (row.action.type === 'clear') return { type: 'clear', injectionId: row.id, faultId: row.action.faultId };
-  const fault: Fault = {
-    id: row.action.faultId,
-    kind: row.action.kind,
-    severity01: row.action.severity01,
-    onsetS: row.action.delayS,
-    intermittent: row.action.intermittent,
-  };
-  return { type: 'inject', injectionId: row.id, faultId: row.action.faultId, sealed: await sealFaults([fault], benchKey) };
+/**
+ * Records that the server has sent an injection down the bench's stream: the
+ * first delivery counts, at the sim time the attempt's log has reached.
+ */
+export async function markDelivered(db: DbOrTx, row: InjectionRow): Promise<void> {
+  await db.execute(sql`
+    update pending_injections p
+       set delivered_at = now(), delivered_sim_ms = a.sim_time_ms
+      from attempts a
+     where p.id = ${row.id} and a.id = p.attempt_id and p.delivered_at is null`);
 }

@@ -1,16 +1,17 @@
 /**
  * The moments of an attempt worth jumping to in a replay: hook-ups (leads,
  * clamp, series ammeter), engine starts, load changes (pile and accessories),
- * injected faults, recorded readings and the submission.
+ * the instructor's injections (where the server applied them), recorded
+ * readings and the submission.
  */
-import { FAULT_CATALOG } from '../../sim/faults.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
+import { recordedReadingSchema } from '../../shared/api/attempts.ts';
 import type { Marker, ReplayReading } from '../../shared/api/replay.ts';
 import { CONDUCTOR_WORDS, POINT_WORDS } from '../../shared/bench-words.ts';
+import { shownWithUnit } from '../../shared/meter-display.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../shared/scenario.ts';
-import type { StoredInput } from './live-attempt-run.ts';
 
-function markerOf(e: InputEvent, source: string, accessories: readonly { id: string; label: string }[]): Marker | null {
+function markerOf(e: InputEvent, changeLabels: Readonly<Record<string, string>>, accessories: readonly { id: string; label: string }[]): Marker | null {
   switch (e.kind) {
     case 'lead':
       return e.point ? { atMs: e.atMs, kind: 'hook-up', label: `${e.which === 'red' ? 'Red' : 'Black'} lead on ${POINT_WORDS[e.point]}` } : null;
@@ -24,24 +25,25 @@ function markerOf(e: InputEvent, source: string, accessories: readonly { id: str
       return { atMs: e.atMs, kind: 'load', label: `Pile to ${Math.round(e.dial01 * 100)} %` };
     case 'accessory':
       return { atMs: e.atMs, kind: 'load', label: `${accessories.find((a) => a.id === e.id)?.label ?? 'An accessory'} ${e.on ? 'on' : 'off'}` };
-    case 'fault-inject':
-      return source === 'instructor' ? { atMs: e.atMs, kind: 'fault', label: `Injected: ${FAULT_CATALOG[e.fault.kind].label}` } : null;
-    case 'fault-clear':
-      return source === 'instructor' ? { atMs: e.atMs, kind: 'fault', label: 'Injected fault cleared' } : null;
+    case 'change-apply':
+      return { atMs: e.atMs, kind: 'fault', label: changeLabels[e.change.id] ? `Injected: ${changeLabels[e.change.id]}` : 'Instructor’s injection' };
+    case 'change-clear':
+      return { atMs: e.atMs, kind: 'fault', label: 'Injected fault cleared' };
     default:
       return null;
   }
 }
 
 export function replayMarkers(
-  stored: readonly StoredInput[],
+  events: readonly InputEvent[],
   readings: readonly ReplayReading[],
   submittedAtMs: number | null,
+  changeLabels: Readonly<Record<string, string>>,
   accessories: readonly { id: string; label: string }[] = [],
 ): Marker[] {
   const out: Marker[] = [];
-  for (const s of stored) {
-    const m = markerOf(s.event, s.source, accessories);
+  for (const e of events) {
+    const m = markerOf(e, changeLabels, accessories);
     if (!m) continue;
     // A run of pile turns within a second is one load change.
     const prev = out.at(-1);
@@ -52,30 +54,34 @@ export function replayMarkers(
     out.push(m);
   }
   for (const r of readings) {
-    const label = r.test in DIAGNOSTIC_TEST_LABELS ? DIAGNOSTIC_TEST_LABELS[r.test as keyof typeof DIAGNOSTIC_TEST_LABELS] : 'Reading';
-    out.push({ atMs: Math.round(r.atMs), kind: 'reading', label: `${label}: ${r.value} ${r.unit}` });
+    const verdict = r.evidence === true ? 'evidence' : r.evidence === false ? 'not evidence' : r.inSetup ? 'inside the set-up' : 'outside the set-up';
+    out.push({ atMs: Math.round(r.atMs), kind: 'reading', label: `${DIAGNOSTIC_TEST_LABELS[r.test]}: ${shownWithUnit(r.value, r.unit)} (${verdict})` });
   }
   if (submittedAtMs !== null) out.push({ atMs: submittedAtMs, kind: 'submission', label: 'Submitted' });
   return out.sort((a, b) => a.atMs - b.atMs);
 }
 
-/** Recorded readings from the stored submission (read leniently). */
-export function storedReadings(raw: unknown): ReplayReading[] {
-  const list = Array.isArray(raw) ? raw : Array.isArray((raw as { readings?: unknown } | null)?.readings) ? (raw as { readings: unknown[] }).readings : [];
-  return list.flatMap((x) => {
-    if (typeof x !== 'object' || x === null) return [];
-    const r = x as Record<string, unknown>;
-    if (typeof r.value !== 'number' || typeof r.atMs !== 'number') return [];
-    return [
-      {
-        id: String(r.id ?? ''),
-        test: String(r.test ?? ''),
-        quantity: String(r.quantity ?? ''),
-        value: r.value,
-        unit: String(r.unit ?? ''),
-        atMs: r.atMs,
-        where: String(r.where ?? ''),
-      },
-    ];
+/**
+ * The readings of a result with where each was taken (from the stored
+ * readings). A result from before readings were checked against their
+ * set-ups has no checks: its stored readings are listed as they were written.
+ */
+export function replayReadings(checks: readonly Omit<ReplayReading, 'where'>[] | null, stored: unknown): ReplayReading[] {
+  const parsed = (Array.isArray(stored) ? stored : []).flatMap((x) => {
+    const r = recordedReadingSchema.safeParse(x);
+    return r.success ? [r.data] : [];
   });
+  if (checks === null || (checks.length === 0 && parsed.length > 0)) {
+    return parsed.map((r) => ({
+      ...r,
+      shown: null,
+      valueOk: null,
+      inSetup: false,
+      evidence: null,
+      reason: 'Recorded before readings were checked against their test’s set-up.',
+      unmet: [],
+    }));
+  }
+  const where = new Map(parsed.map((r) => [r.id, r.where]));
+  return checks.map((c) => ({ ...c, where: where.get(c.id) ?? '' }));
 }

@@ -13,9 +13,11 @@ import { NO_FAULT_LABEL } from '../../shared/scenario.ts';
 import type { DbOrTx } from '../db/client.ts';
 import { assignments, attempts, classes, enrollments, scenarioVersions, users } from '../db/schema.ts';
 import { notFound } from '../http/errors.ts';
+import { loadDefinition } from './definitions.ts';
 
 const storedResultSchema = z.object({
   timeToDiagnosisMs: z.number().optional(),
+  flags: z.array(z.object({ kind: z.string() }).loose()).optional(),
   fault: z.object({ given: z.string(), actual: z.array(z.string()), ok: z.boolean() }).partial().optional(),
   verdicts: z.array(z.object({ test: z.enum(COMPETENCIES), ok: z.boolean() }).loose()).optional(),
   mistakes: z.array(z.object({ kind: z.string() }).loose()).optional(),
@@ -34,6 +36,10 @@ export function faultLabel(kind: string): string {
 
 export interface SubmittedAttempt {
   attemptId: number;
+  scenarioVersionId: number;
+  scenarioTitle: string;
+  /** The labels of the drawn version's faults. */
+  drawnFault: string;
   studentId: number;
   studentName: string;
   studentEmail: string;
@@ -71,6 +77,8 @@ export async function submittedAttempts(db: DbOrTx, assignmentId: number): Promi
   const rows = await db
     .select({
       attemptId: attempts.id,
+      scenarioVersionId: attempts.scenarioVersionId,
+      scenarioTitle: scenarioVersions.title,
       studentId: attempts.userId,
       studentName: users.name,
       studentEmail: users.email,
@@ -82,12 +90,44 @@ export async function submittedAttempts(db: DbOrTx, assignmentId: number): Promi
     })
     .from(attempts)
     .innerJoin(users, eq(users.id, attempts.userId))
+    .innerJoin(scenarioVersions, eq(scenarioVersions.id, attempts.scenarioVersionId))
     .where(and(eq(attempts.assignmentId, assignmentId), eq(attempts.status, 'submitted')))
     .orderBy(asc(users.name), asc(attempts.id));
+  const drawn = new Map<number, string>();
+  for (const id of new Set(rows.map((r) => r.scenarioVersionId))) {
+    const def = await loadDefinition(db, id);
+    drawn.set(id, def.faults.length ? [...new Set(def.faults.map((f) => faultLabel(f.kind)))].join('; ') : NO_FAULT_LABEL);
+  }
   return rows.map((r) => {
     const result = readResult(r.result);
-    return { ...r, result, timeToDiagnosisMs: r.timeToDiagnosisMs ?? (result.timeToDiagnosisMs !== undefined ? Math.round(result.timeToDiagnosisMs) : null) };
+    return {
+      ...r,
+      drawnFault: drawn.get(r.scenarioVersionId)!,
+      result,
+      timeToDiagnosisMs: r.timeToDiagnosisMs ?? (result.timeToDiagnosisMs !== undefined ? Math.round(result.timeToDiagnosisMs) : null),
+    };
   });
+}
+
+/** The counted rows grouped by the fault each student drew (an assignment's pool), in order of first appearance. */
+export function drawnGroups(rows: readonly CompareRow[], counted: readonly SubmittedAttempt[]) {
+  const groups = new Map<string, { drawnFault: string; scenarioVersionId: number; scenarioTitle: string; rows: CompareRow[] }>();
+  for (const row of rows) {
+    const a = counted.find((c) => c.attemptId === row.attemptId);
+    if (!a) continue;
+    const key = `${a.scenarioVersionId}`;
+    const g = groups.get(key) ?? { drawnFault: a.drawnFault, scenarioVersionId: a.scenarioVersionId, scenarioTitle: a.scenarioTitle, rows: [] };
+    g.rows.push(row);
+    groups.set(key, g);
+  }
+  return [...groups.values()].map((g) => ({
+    drawnFault: g.drawnFault,
+    scenarioVersionId: g.scenarioVersionId,
+    scenarioTitle: g.scenarioTitle,
+    students: g.rows.length,
+    correct: g.rows.filter((r) => r.correct === true).length,
+    medianMs: distribution(g.rows, null).medianMs,
+  }));
 }
 
 /** Each student's latest submitted attempt, as a comparison row. */
@@ -115,6 +155,8 @@ export function toRow(a: SubmittedAttempt, attemptCount: number): CompareRow {
     verified: a.verified,
     mistakes: mistakes.length,
     mistakeKinds: [...new Set(mistakes.map((m) => m.kind))],
+    drawnFault: a.drawnFault,
+    flagged: (a.result.flags?.length ?? 0) > 0,
   };
 }
 

@@ -15,8 +15,8 @@
  * Memory is bounded: past `budgetBytes` the attempts fed longest ago are
  * dropped (about 0.4 MB per 10 minutes of sim time).
  */
+import type { CompiledCar } from '../../sim/compiled-car.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
-import type { VehicleParams } from '../../sim/params.ts';
 import { carryRerun, SAMPLE_EVERY_MS, startRerun, type RerunCursor } from './attempt-replay.ts';
 
 /** A batch just stored, as sent to the grading worker. */
@@ -25,18 +25,20 @@ export interface AheadFeed {
   seed: number;
   /** The log's lastSeq before this batch; 0 starts the attempt's re-run. */
   fromSeq: number;
-  /** Events fromSeq+1 onwards of the stored log, by seq. */
+  /** The log's lastSeq after it. */
+  toSeq: number;
+  /** The model's events among seqs fromSeq+1..toSeq of the stored log, by seq (readings left out). */
   events: InputEvent[];
-  /** With fromSeq 0: the car, and the scenario's faults as events at 0 ms (what a grading job's events start with). */
-  start?: { params: VehicleParams; scenarioEvents: InputEvent[] };
+  /** With fromSeq 0: the attempt's compiled car (what a grading job runs). */
+  start?: { car: CompiledCar };
 }
 
 /** What a submission's job says about its attempt, to check a re-run carried ahead against. */
 export interface AheadClaim {
   attemptId: number;
-  params: VehicleParams;
+  car: CompiledCar;
   seed: number;
-  /** The scenario's fault events, then the stored log by seq. */
+  /** The model's events, by seq. */
   events: readonly InputEvent[];
   /** The submission's sim time. */
   atMs: number;
@@ -97,12 +99,11 @@ export class RunAhead {
     if (f.fromSeq === 0) {
       this.drop(f.attemptId);
       if (!f.start) return;
-      const events = [...f.start.scenarioEvents];
-      if (!inTimeOrder(events, 0)) return;
-      const cursor = startRerun(f.start.params, f.seed, events);
+      const events: InputEvent[] = [];
+      const cursor = startRerun(f.start.car.params, f.seed, events, f.start.car.changes);
       // startRerun keeps an array in order as it is; the cursor must read the one appended to here.
       if (cursor.events !== events) return;
-      e = { seed: f.seed, lastSeq: 0, maxAtMs: maxAt(events, 0), events, cursor, bytes: 0 };
+      e = { seed: f.seed, lastSeq: 0, maxAtMs: 0, events, cursor, bytes: 0 };
     } else if (!e || e.lastSeq !== f.fromSeq || e.seed !== f.seed) {
       this.drop(f.attemptId);
       return;
@@ -114,7 +115,7 @@ export class RunAhead {
       return;
     }
     e.events.push(...f.events);
-    e.lastSeq = f.fromSeq + f.events.length;
+    e.lastSeq = f.toSeq;
     e.maxAtMs = maxAt(f.events, e.maxAtMs);
     this.entries.set(f.attemptId, e);
     this.resize(e);
@@ -160,7 +161,7 @@ export class RunAhead {
     const e = this.entries.get(claim.attemptId);
     if (!e) return null;
     this.drop(claim.attemptId);
-    if (e.seed !== claim.seed || !sameData(e.cursor.params, claim.params)) return null;
+    if (e.seed !== claim.seed || !sameData(e.cursor.params, claim.car.params) || !sameData(e.cursor.changes, claim.car.changes)) return null;
     const n = e.events.length;
     if (claim.events.length < n) return null;
     for (let i = 0; i < n; i++) if (!sameData(claim.events[i], e.events[i])) return null;

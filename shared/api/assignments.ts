@@ -18,7 +18,25 @@ export const createAssignmentSchema = z
     dueAt: isoDate('dueAt'),
     attemptsAllowed: z.number({ error: 'attemptsAllowed is required' }).int('attemptsAllowed must be a whole number').min(1, 'attemptsAllowed must be at least 1').max(20, 'attemptsAllowed must be at most 20'),
     showCurveAfter: z.boolean().default(true),
+    /** False: the grade, the fault, the expected verdicts and the values stay hidden from students until the due date. */
     showFeedbackAfter: z.boolean().default(true),
+    /** Let the class practise the assignment's scenario versions while it is open or upcoming (off: they are withheld from practice). */
+    allowPractice: z.boolean().default(false),
+    /**
+     * A fault pool: each student's car is drawn from these scenarios (their
+     * published version, or the version named), fixed per student. They must
+     * be one vehicle with several fault sets; the assignment's own scenario
+     * is the first of the pool.
+     */
+    pool: z
+      .array(
+        z.strictObject({
+          scenarioId: z.number({ error: 'pool: scenarioId is required' }).int().positive('pool: scenarioId must be a positive whole number'),
+          scenarioVersionId: z.number().int().positive('pool: scenarioVersionId must be a positive whole number').optional(),
+        }),
+      )
+      .max(12, 'pool: at most 12 scenarios')
+      .default([]),
   })
   .refine((a) => Date.parse(a.dueAt) > Date.parse(a.opensAt), { error: 'dueAt must be after opensAt', path: ['dueAt'] });
 export type CreateAssignmentInput = z.input<typeof createAssignmentSchema>;
@@ -89,6 +107,9 @@ export const assignmentSchema = z.object({
   attemptsAllowed: z.number().int(),
   showCurveAfter: z.boolean(),
   showFeedbackAfter: z.boolean(),
+  allowPractice: z.boolean(),
+  /** The versions a fault pool draws from (empty: every student gets the assignment's own version). */
+  pool: z.array(z.object({ scenarioVersionId: z.number().int(), title: z.string(), faultLabels: z.array(z.string()) })),
   createdAt: z.string(),
 });
 export type Assignment = z.infer<typeof assignmentSchema>;

@@ -1,14 +1,16 @@
 /**
- * The bench's contract with the server: starting an attempt, the event log,
- * submission and the graded result. The bootstrap never carries the
- * scenario's faults in readable form (see docs/decisions/001-sealed-faults.md).
+ * The bench's contract with the server: starting an attempt, the event log
+ * (the model's inputs and the readings the student records, each stored as
+ * it is taken), submission and the graded result. The bootstrap carries the
+ * car to simulate, never the fault list (docs/decisions/001-sealed-faults.md).
  */
 import { z } from 'zod';
 import type { DiagnosticTest } from '../../sim/faults.ts';
 import type { ClampArrow, Conductor, ConnectionPoint, InputEvent, KeyPosition, LeadColour } from '../../sim/inputs.ts';
 import { CONDUCTORS, CONNECTION_POINTS } from '../../sim/inputs.ts';
 import type { OutputCurvePoint } from '../../sim/instruments.ts';
-import type { VehicleParams } from '../../sim/params.ts';
+import type { CompiledCar } from '../../sim/compiled-car.ts';
+import { carChangeSchema } from '../car.ts';
 import type { DiagnosisChoice, ScenarioDefinition, StudentScenarioView } from '../scenario.ts';
 import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisChoiceSchema, diagnosisLabel, diagnosticTestSchema, faultSchema, studentScenarioView } from '../scenario.ts';
 
@@ -40,8 +42,7 @@ const clampArrowSchema = z.enum(['toward-battery', 'toward-alternator'] as const
 const connectionPointSchema = z.enum(CONNECTION_POINTS as unknown as [ConnectionPoint, ...ConnectionPoint[]]);
 const conductorSchema = z.enum(CONDUCTORS as unknown as [Conductor, ...Conductor[]]);
 
-/** Every kind and field of the model's input events, with bounds. */
-export const inputEventSchema = z.discriminatedUnion('kind', [
+const carInputs = [
   z.object({ kind: z.literal('key'), atMs: simTimeMsSchema, position: keyPositionSchema }),
   z.object({ kind: z.literal('rpm'), atMs: simTimeMsSchema, rpm: z.number().min(0).max(MAX_EVENT_RPM) }),
   z.object({ kind: z.literal('accessory'), atMs: simTimeMsSchema, id: idSchema, on: z.boolean() }),
@@ -50,21 +51,100 @@ export const inputEventSchema = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('clamp'), atMs: simTimeMsSchema, conductor: conductorSchema.nullable(), arrow: clampArrowSchema }),
   z.object({ kind: z.literal('clamp-zero'), atMs: simTimeMsSchema }),
   z.object({ kind: z.literal('ammeter'), atMs: simTimeMsSchema, inSeries: z.boolean() }),
+  z.object({ kind: z.literal('ammeter-fuse'), atMs: simTimeMsSchema }),
   z.object({ kind: z.literal('bplus-disconnect'), atMs: simTimeMsSchema, connected: z.boolean() }),
+  z.object({ kind: z.literal('change-apply'), atMs: simTimeMsSchema, change: carChangeSchema }),
+  z.object({ kind: z.literal('change-clear'), atMs: simTimeMsSchema, changeId: idSchema }),
+] as const;
+
+/** Every kind and field of the model's input events, with bounds (faults as events are the model's and the tests' own: the log speaks of changes). */
+export const inputEventSchema = z.discriminatedUnion('kind', [
+  ...carInputs,
   z.object({ kind: z.literal('fault-inject'), atMs: simTimeMsSchema, fault: faultSchema }),
   z.object({ kind: z.literal('fault-clear'), atMs: simTimeMsSchema, faultId: idSchema }),
 ]) satisfies z.ZodType<InputEvent>;
 
+export const READING_UNITS = {
+  voltage: ['V'],
+  current: ['A'],
+  ripple: ['mV', 'V'],
+  rpm: ['rpm'],
+  draw: ['mA', 'A'],
+} as const;
+export type ReadingQuantity = keyof typeof READING_UNITS;
+export const readingQuantitySchema = z.enum(['voltage', 'current', 'ripple', 'rpm', 'draw']);
+export const readingUnitSchema = z.enum(['V', 'A', 'mV', 'mA', 'rpm']);
+
+export const recordedReadingSchema = z
+  .object({
+    /** Made by the bench (a uuid), so a reading can be matched to its result. */
+    id: z.string().min(1).max(64),
+    test: diagnosticTestSchema,
+    quantity: readingQuantitySchema,
+    value: z.number().finite(),
+    unit: readingUnitSchema,
+    /** The display tick whose value was written down (sim ms). */
+    atMs: simTimeMsSchema,
+    /** Where it was taken, in words: "battery posts, engine at 2,000 rpm, pile loaded". */
+    where: z.string().max(200).default(''),
+  })
+  .superRefine((r, ctx) => {
+    const allowed: readonly string[] = READING_UNITS[r.quantity];
+    if (!allowed.includes(r.unit)) {
+      ctx.addIssue({ code: 'custom', path: ['unit'], message: `a ${r.quantity} reading is in ${allowed.join(' or ')}` });
+    }
+  });
+export type RecordedReading = z.infer<typeof recordedReadingSchema>;
+
+/** A reading as the log stores it: recorded, or struck out. `atMs` is when it was logged; the reading's own `atMs` is the tick it shows. */
+export type ReadingEvent =
+  | { kind: 'reading'; atMs: number; reading: RecordedReading }
+  | { kind: 'reading-remove'; atMs: number; readingId: string };
+
+/** The model's inputs a log holds (faults as events are the model's and the tests' own; the log speaks of changes). */
+export type CarInput = Exclude<InputEvent, { kind: 'fault-inject' } | { kind: 'fault-clear' }>;
+
+/** What the attempt's log holds: the car's inputs and the readings. */
+export type LogEvent = CarInput | ReadingEvent;
+
+/** Longest a reading may be written down after the tick it shows. */
+export const READING_LAG_MS = 1000;
+
+export const readingEventSchema = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('reading'), atMs: simTimeMsSchema, reading: recordedReadingSchema }),
+  z.object({ kind: z.literal('reading-remove'), atMs: simTimeMsSchema, readingId: z.string().min(1).max(64) }),
+]);
+
+/** What a bench may log: the car's inputs, changes that log an instructor's injection, and readings. */
+export const logEventSchema = z.discriminatedUnion('kind', [...carInputs, ...readingEventSchema.options]);
+
+/** The model's events of a log, in order (readings are the student's notes, not inputs). */
+export function modelEvents(events: readonly LogEvent[]): CarInput[] {
+  return events.filter((e): e is CarInput => e.kind !== 'reading' && e.kind !== 'reading-remove');
+}
+
+/** The readings a log ends with: each recorded one not struck out since, in the order recorded. */
+export function readingsOfLog(events: readonly LogEvent[]): RecordedReading[] {
+  const kept = new Map<string, RecordedReading>();
+  for (const e of events) {
+    if (e.kind === 'reading') kept.set(e.reading.id, e.reading);
+    else if (e.kind === 'reading-remove') kept.delete(e.readingId);
+  }
+  return [...kept.values()];
+}
+
 export const storedEventSchema = z.object({
   seq: z.number().int().positive('seq must be a positive whole number'),
-  event: inputEventSchema,
+  event: logEventSchema,
 });
-export type StoredEvent = z.infer<typeof storedEventSchema>;
+export type StoredEvent = { seq: number; event: LogEvent };
 
 /**
  * POST /api/attempts/:id/events. Idempotent: an event whose seq is already
- * stored is skipped, so a retried batch is stored once. Fault events are
- * accepted only when they log an instructor's pending injection.
+ * stored is skipped, so a retried batch is stored once. A change is taken
+ * only as the log of an instructor's injection delivered to this bench. Sim
+ * times never run back: a batch with an event earlier than one before it in
+ * the log is refused (409, naming the event).
  */
 export const postEventsSchema = z.object({
   events: z
@@ -89,45 +169,12 @@ export type PostEventsInput = z.infer<typeof postEventsSchema>;
 export const postEventsResponseSchema = z.object({ lastSeq: z.number().int(), stored: z.number().int() });
 export type PostEventsResponse = z.infer<typeof postEventsResponseSchema>;
 
-export const READING_UNITS = {
-  voltage: ['V'],
-  current: ['A'],
-  ripple: ['mV', 'V'],
-  rpm: ['rpm'],
-  draw: ['mA', 'A'],
-} as const;
-export type ReadingQuantity = keyof typeof READING_UNITS;
-export const readingQuantitySchema = z.enum(['voltage', 'current', 'ripple', 'rpm', 'draw']);
-export const readingUnitSchema = z.enum(['V', 'A', 'mV', 'mA', 'rpm']);
-
-export const recordedReadingSchema = z
-  .object({
-    /** Made by the bench (a uuid), so a reading can be matched to its result. */
-    id: z.string().min(1).max(64),
-    test: diagnosticTestSchema,
-    quantity: readingQuantitySchema,
-    value: z.number().finite(),
-    unit: readingUnitSchema,
-    /** Sim time at which the reading was written down. */
-    atMs: simTimeMsSchema,
-    /** Where it was taken, in words: "battery posts, engine at 2,000 rpm, pile loaded". */
-    where: z.string().max(200).default(''),
-  })
-  .superRefine((r, ctx) => {
-    const allowed: readonly string[] = READING_UNITS[r.quantity];
-    if (!allowed.includes(r.unit)) {
-      ctx.addIssue({ code: 'custom', path: ['unit'], message: `a ${r.quantity} reading is in ${allowed.join(' or ')}` });
-    }
-  });
-export type RecordedReading = z.infer<typeof recordedReadingSchema>;
-
 export const verdictSchema = z.object({ test: diagnosticTestSchema, pass: z.boolean() });
 
 export const submitSchema = z
   .object({
     /** Sim time at which the student submitted. */
     atMs: simTimeMsSchema,
-    readings: z.array(recordedReadingSchema).max(MAX_READINGS, `record at most ${MAX_READINGS} readings`),
     diagnosis: z.object({
       verdicts: z.array(verdictSchema).max(DIAGNOSTIC_TESTS.length),
       faultKind: diagnosisChoiceSchema,
@@ -135,14 +182,6 @@ export const submitSchema = z
     }),
   })
   .superRefine((s, ctx) => {
-    const ids = new Set<string>();
-    s.readings.forEach((r, i) => {
-      if (ids.has(r.id)) ctx.addIssue({ code: 'custom', path: ['readings', i, 'id'], message: `reading id ${r.id} appears twice` });
-      ids.add(r.id);
-      if (r.atMs > s.atMs) {
-        ctx.addIssue({ code: 'custom', path: ['readings', i, 'atMs'], message: 'a reading cannot be later than the submission' });
-      }
-    });
     const tests = new Set<string>();
     s.diagnosis.verdicts.forEach((v, i) => {
       if (tests.has(v.test)) ctx.addIssue({ code: 'custom', path: ['diagnosis', 'verdicts', i, 'test'], message: `${v.test} has two verdicts` });
@@ -182,9 +221,11 @@ export const MISTAKE_KINDS = [
   'reversed-clamp',
   'reversed-leads',
   'blown-fusible-link',
+  'link-overloaded',
   'pile-overheated',
-  'battery-run-down',
   'long-loaded-test',
+  'bplus-removed-running',
+  'battery-run-down',
   'engine-stalled',
 ] as const;
 export const mistakeKindSchema = z.enum(MISTAKE_KINDS);
@@ -195,50 +236,97 @@ export const MISTAKE_LABELS: Readonly<Record<MistakeKind, string>> = {
   'reversed-clamp': 'Clamp reversed',
   'reversed-leads': 'Leads reversed',
   'blown-fusible-link': 'Fusible link burnt open',
+  'link-overloaded': 'Fusible link held over its rating',
   'pile-overheated': 'Pile overheated',
-  'battery-run-down': 'Battery run down',
   'long-loaded-test': 'Load held too long',
+  'bplus-removed-running': 'B+ lead removed with the engine running',
+  'battery-run-down': 'Battery run down',
   'engine-stalled': 'Engine stalled',
 };
 
 /** A mistake kind's name, or a plain word for one this version does not know. */
 export const mistakeLabel = (kind: string): string => ((MISTAKE_KINDS as readonly string[]).includes(kind) ? MISTAKE_LABELS[kind as MistakeKind] : 'Other mistake');
 
+/** Points of the grade of an assigned attempt; how each part is earned is in docs/grading.md and the result's `scoring`. */
+export const GRADE_WEIGHTS = { evidence: 40, verdicts: 20, fault: 20, process: 20 } as const;
+/** Process points lost per kind of process mistake found in the re-run. */
+export const PROCESS_DEDUCTION = 10;
+
 const outputCurvePointSchema = z.object({ altRpm: z.number(), currentA: z.number() }) satisfies z.ZodType<OutputCurvePoint>;
 
+/** Why the server did not take a bench's log of an instructor's injection as it stands. */
+export const INTEGRITY_FLAG_KINDS = ['injection-not-logged', 'injection-logged-late', 'injection-other-onset', 'injection-out-of-order'] as const;
+export const integrityFlagSchema = z.object({
+  kind: z.enum(INTEGRITY_FLAG_KINDS),
+  injectionId: z.number().int(),
+  /** The sim time the server applied the injection at. */
+  appliedAtMs: z.number().int(),
+  message: z.string(),
+});
+export type IntegrityFlag = z.infer<typeof integrityFlagSchema>;
+
+const points = z.object({ evidence: z.number(), verdicts: z.number(), fault: z.number(), process: z.number() });
+
+export const readingCheckSchema = z.object({
+  id: z.string(),
+  test: diagnosticTestSchema,
+  quantity: readingQuantitySchema,
+  value: z.number(),
+  unit: readingUnitSchema,
+  /** The display tick the reading shows. */
+  atMs: z.number().int(),
+  /** What the bench showed then, in the reading's unit (null: no meter for that quantity, or hidden). */
+  shown: z.number().nullable(),
+  /** The value written down is what the bench showed (null: hidden until results show). */
+  valueOk: z.boolean().nullable(),
+  /** The test's set-up held at that moment. */
+  inSetup: z.boolean(),
+  /** Counts as evidence for its test (value right, inside the set-up; null: hidden). */
+  evidence: z.boolean().nullable(),
+  /** In words: why it counts or does not. */
+  reason: z.string(),
+  /** What was missing of the set-up then. */
+  unmet: z.array(z.string()),
+});
+export type ReadingCheck = z.infer<typeof readingCheckSchema>;
+
 export const attemptResultSchema = z.object({
-  /** 0..100 for an assigned attempt; null in practice mode (ungraded). */
+  /** 0..100 for an assigned attempt; null in practice mode (ungraded) and while results are hidden. */
   grade: z.number().min(0).max(100).nullable(),
-  /** Every reading matched the server's re-run of the model within tolerance. */
-  verified: z.boolean(),
-  readings: z.array(
-    z.object({
-      id: z.string(),
-      test: diagnosticTestSchema,
-      value: z.number(),
-      unit: readingUnitSchema,
-      /** What the meter showed at the reading's moment in the re-run (null: no meter gave that quantity). */
-      expectedValue: z.number().nullable(),
-      ok: z.boolean(),
-      message: z.string(),
-    }),
-  ),
+  /** Every expected test has evidence, every reading was what the bench showed, and the bench logged what the server sent it (null while hidden). */
+  verified: z.boolean().nullable(),
+  /** How the grade was made: the weights and the points of each part (null in practice and while hidden). */
+  scoring: z.object({ weights: points, points, processDeduction: z.number() }).nullable(),
+  /** Set when the student may not see everything yet: practice results reveal nothing a live car would not; an assignment may hide results until it closes. */
+  hidden: z.object({ reason: z.enum(['practice', 'until-close']), until: z.string().nullable() }).nullable(),
+  readings: z.array(readingCheckSchema),
   verdicts: z.array(
-    z.object({ test: diagnosticTestSchema, given: z.boolean().nullable(), correct: z.boolean(), ok: z.boolean() }),
+    z.object({
+      test: diagnosticTestSchema,
+      given: z.boolean().nullable(),
+      /** The right verdict on this car (null while hidden). */
+      correct: z.boolean().nullable(),
+      ok: z.boolean().nullable(),
+      /** The test has evidence (a verdict counts only then). */
+      evidenced: z.boolean(),
+    }),
   ),
   fault: z.object({
     given: diagnosisChoiceSchema,
-    actual: z.array(diagnosisChoiceSchema),
-    ok: z.boolean(),
-    /** Labels of the actual faults (or the healthy label). */
+    /** The car's faults (null while hidden). */
+    actual: z.array(diagnosisChoiceSchema).nullable(),
+    ok: z.boolean().nullable(),
+    /** Labels of the actual faults, or the healthy label (empty while hidden). */
     labels: z.array(z.string()),
   }),
   /** Sim time from the start of the attempt to the submission. */
   timeToDiagnosisMs: z.number().int(),
-  mistakes: z.array(z.object({ kind: mistakeKindSchema, atMs: z.number().int(), message: z.string() })),
-  /** Empty when the assignment hides feedback until later. */
+  /** What the re-run shows of how the work was done; `process` ones cost process points. */
+  mistakes: z.array(z.object({ kind: mistakeKindSchema, atMs: z.number().int(), message: z.string(), process: z.boolean() })),
+  /** The bench did not log an instructor's injection as the server sent it: graded on the server's time, for the instructor to look at. */
+  flags: z.array(integrityFlagSchema),
   feedback: z.array(z.string()),
-  /** Only when the assignment shows the curve (always in practice). */
+  /** Only when the assignment shows the curve, once results show. */
   outputCurve: z.object({ healthy: z.array(outputCurvePointSchema), fitted: z.array(outputCurvePointSchema) }).optional(),
   /** The student's own output readings placed on the curve. */
   measuredPoints: z.array(outputCurvePointSchema).optional(),
@@ -256,9 +344,14 @@ export interface BenchScenarioView extends Omit<StudentScenarioView, 'diagnosisC
 }
 export const benchScenarioViewSchema = z.custom<BenchScenarioView>((v) => typeof v === 'object' && v !== null);
 
-/** The bench's view of a scenario: the student's view with labelled diagnosis choices and every test of the family. */
-export function benchScenarioView(def: ScenarioDefinition): BenchScenarioView {
-  const view = studentScenarioView(def);
+/**
+ * The bench's view of a scenario: the student's view with labelled diagnosis
+ * choices and every test of the family. An assignment with a fault pool offers
+ * the choices of the whole pool (`choices`), so the list says nothing of which
+ * car was drawn.
+ */
+export function benchScenarioView(def: ScenarioDefinition, choices: ScenarioDefinition['diagnosisChoices'] | null = null): BenchScenarioView {
+  const view = studentScenarioView(choices ? { ...def, diagnosisChoices: choices } : def);
   return {
     ...view,
     diagnosisChoices: view.diagnosisChoices.map((value) => ({ value, label: diagnosisLabel(value) })),
@@ -281,26 +374,18 @@ export const attemptBootstrapSchema = z.object({
     lastSeq: z.number().int(),
     showCurveAfter: z.boolean(),
     showFeedbackAfter: z.boolean(),
+    /** When results show, for an assignment that hides them until it closes (null: at submission). */
+    resultsAt: z.string().nullable(),
   }),
   scenario: benchScenarioViewSchema,
-  /** The healthy car; the scenario's faults come sealed. */
-  vehicle: z.custom<VehicleParams>((v) => typeof v === 'object' && v !== null),
-  /** The faults, AES-256-GCM sealed; open with `unsealFaults(sealedFaults, benchKey)` from shared/sealed-faults.ts. */
-  sealedFaults: z.string(),
   /**
-   * Null unless the scenario sets fault-like parameters directly; then the
-   * car to run is `unsealVehicle(sealedVehicle, benchKey)` rather than `vehicle`.
+   * The car to simulate: its parameters with the permanent faults applied,
+   * and a schedule of parameter changes for the rest (shared/car.ts). No
+   * fault kind, label or severity.
    */
-  sealedVehicle: z.string().nullable(),
-  benchKey: z.string(),
-  /**
-   * Everything stored so far, ordered by seq (for resuming after a reload),
-   * except fault events: those (an instructor's injections) are in
-   * `sealedEvents`, to open with `unsealEvents(sealedEvents, benchKey)` and
-   * merge by seq. Null when there are none.
-   */
+  car: z.custom<CompiledCar>((v) => typeof v === 'object' && v !== null),
+  /** Everything stored so far, ordered by seq (for resuming after a reload or on another device), readings included. */
   events: z.array(storedEventSchema),
-  sealedEvents: z.string().nullable(),
   result: attemptResultSchema.nullable(),
 });
 export type AttemptBootstrap = z.infer<typeof attemptBootstrapSchema>;
@@ -313,8 +398,11 @@ export const myAttemptRowSchema = z.object({
   startedAt: z.string(),
   submittedAt: z.string().nullable(),
   timeToDiagnosisMs: z.number().int().nullable(),
+  /** Null in practice and while the assignment hides results. */
   grade: z.number().nullable(),
   assignmentTitle: z.string().nullable(),
+  /** When a hidden result shows (the assignment's due date), else null. */
+  resultsAt: z.string().nullable(),
 });
 export type MyAttemptRow = z.infer<typeof myAttemptRowSchema>;
 export const myAttemptsResponseSchema = z.object({ attempts: z.array(myAttemptRowSchema) });

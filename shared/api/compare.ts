@@ -29,6 +29,10 @@ export const compareRowSchema = z.object({
   verified: z.boolean(),
   mistakes: z.number().int(),
   mistakeKinds: z.array(z.string()),
+  /** The fault(s) of the scenario version the student drew (instructors only; null for a student). */
+  drawnFault: z.string().nullable(),
+  /** The attempt was flagged: an instructor's injection not logged by the bench as the server sent it. */
+  flagged: z.boolean(),
 });
 export type CompareRow = z.infer<typeof compareRowSchema>;
 
@@ -56,10 +60,22 @@ export const compareHeaderSchema = z.object({
   submitted: z.number().int(),
 });
 
+/** Results of one drawn fault (an assignment with a fault pool has several). */
+export const drawnGroupSchema = z.object({
+  drawnFault: z.string(),
+  scenarioVersionId: z.number().int(),
+  scenarioTitle: z.string(),
+  students: z.number().int(),
+  correct: z.number().int(),
+  medianMs: z.number().nullable(),
+});
+
 export const instructorCompareSchema = z.object({
   viewer: z.literal('instructor'),
   assignment: compareHeaderSchema,
   rows: z.array(compareRowSchema),
+  /** The results grouped by the fault each student drew. */
+  groups: z.array(drawnGroupSchema),
   distribution: distributionSchema,
   accuracyByFault: z.array(accuracyByFaultSchema),
   accuracyByTest: z.array(accuracyByTestSchema),
@@ -143,6 +159,7 @@ export const GRADES_CSV_COLUMNS = [
   'Student',
   'E-mail',
   'Assignment',
+  'Fault drawn',
   'Submitted at',
   'Counts for the grade',
   'Grade',

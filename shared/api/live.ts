@@ -3,14 +3,18 @@
  * injection into a running bench, and what the bench's stream carries.
  *
  * An injection is a row of pending_injections whose `action` is a
- * `PendingAction`. The bench receives it sealed with its attempt's bench key
- * (it learns neither the kind nor the severity), applies it at its current
- * sim time and logs it as an ordinary `fault-inject` / `fault-clear` event
- * whose fault id is `liveFaultId(injectionId)` of the inject. Storing that
- * event marks the injection applied.
+ * `PendingAction`. The server sends the bench the change the injection makes
+ * to the car (parameter operations under the id `liveFaultId(injectionId)`,
+ * never the fault's kind or severity) and records when it delivered it. The
+ * bench applies it at its current sim time, the onset counted from there, and
+ * logs it as a `change-apply` / `change-clear` event; storing that event marks
+ * the injection applied. The server is the authority on when it counts:
+ * server/services/injection-authority.ts.
  */
 import { z } from 'zod';
 import { FAULT_KINDS, type FaultKind } from '../../sim/faults.ts';
+import { INTEGRITY_FLAG_KINDS } from './attempts.ts';
+import { carChangeSchema } from '../car.ts';
 import { DIAGNOSTIC_TESTS } from '../scenario.ts';
 import { MAX_ATTEMPT_MS } from './attempts.ts';
 
@@ -87,12 +91,12 @@ export type PendingAction = z.infer<typeof pendingActionSchema>;
 
 /**
  * One message on the bench's stream (SSE event `injection`). For an inject,
- * `sealed` opens with `unsealFaults(sealed, benchKey)` to one fault whose
- * `onsetS` is the delay after the bench's current sim time.
+ * the change to apply: its `onsetS` is the delay after the bench's current
+ * sim time. For a clear, the id of the change to take away.
  */
 export const benchInjectionSchema = z.discriminatedUnion('type', [
-  z.object({ type: z.literal('inject'), injectionId: z.number().int(), faultId: z.string(), sealed: z.string() }),
-  z.object({ type: z.literal('clear'), injectionId: z.number().int(), faultId: z.string() }),
+  z.object({ type: z.literal('inject'), injectionId: z.number().int(), change: carChangeSchema }),
+  z.object({ type: z.literal('clear'), injectionId: z.number().int(), changeId: z.string() }),
 ]);
 export type BenchInjection = z.infer<typeof benchInjectionSchema>;
 
@@ -108,9 +112,19 @@ export const injectionViewSchema = z.object({
   delayS: z.number().nullable(),
   intermittent: intermittentSchema.nullable(),
   createdAt: z.string(),
+  /** When the server sent it to the bench (null: the bench has not connected since). */
+  deliveredAt: z.string().nullable(),
   appliedAt: z.string().nullable(),
   /** For an inject: a later clear of it exists. */
   cleared: z.boolean(),
+  /**
+   * waiting: not delivered yet; delivered: sent, the bench has not logged it yet;
+   * applied: the bench logged it as sent; flagged: it did not, and the server applies it at its own time.
+   */
+  status: z.enum(['waiting', 'delivered', 'applied', 'flagged']),
+  /** The sim time it applies from in the server's runs. */
+  appliedAtMs: z.number().int().nullable(),
+  flag: z.object({ kind: z.enum(INTEGRITY_FLAG_KINDS), message: z.string() }).nullable(),
 });
 export type InjectionView = z.infer<typeof injectionViewSchema>;
 
@@ -150,7 +164,11 @@ export const boardAttemptSchema = z.object({
   currentTest: z.enum(DIAGNOSTIC_TESTS).nullable(),
   /** The meters at that moment in the server's re-run (null while the model cannot run). */
   readings: liveReadingsSchema.nullable(),
+  /** The readings the student has recorded so far, as stored in the log (newest last). */
+  recorded: z.array(z.object({ id: z.string(), test: z.enum(DIAGNOSTIC_TESTS), value: z.number(), unit: z.string(), atMs: z.number() })),
   injections: z.array(injectionViewSchema),
+  /** An injection was not logged by the bench as the server sent it. */
+  flagged: z.boolean(),
   /** When the last batch of events arrived. */
   lastActivityAt: z.string().nullable(),
   /** When the bench, open in a browser, last reported its clock (null: never). */

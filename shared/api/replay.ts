@@ -1,12 +1,13 @@
 /**
  * Replays of submitted attempts (/api/replay): everything the model needs to
- * re-run the attempt in the browser (the vehicle, the seed, the events with
- * the scenario's faults first), the moments worth jumping to, the readings the
- * student wrote down, and the instructors' comments on moments.
+ * re-run the attempt in the browser as the server graded it (the compiled
+ * car, the seed, the model's events with the instructor's injections where
+ * the server applied them), the moments worth jumping to, the readings the
+ * student recorded each with its verdict, and the instructors' comments.
  */
 import { z } from 'zod';
-import type { VehicleParams } from '../../sim/params.ts';
-import { inputEventSchema } from './attempts.ts';
+import type { CompiledCar } from '../../sim/compiled-car.ts';
+import { inputEventSchema, readingCheckSchema } from './attempts.ts';
 
 export const replayParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
 
@@ -24,15 +25,8 @@ export const MARKER_LABELS: Readonly<Record<MarkerKind, string>> = {
 export const markerSchema = z.object({ atMs: z.number().int(), kind: z.enum(MARKER_KINDS), label: z.string() });
 export type Marker = z.infer<typeof markerSchema>;
 
-export const replayReadingSchema = z.object({
-  id: z.string(),
-  test: z.string(),
-  quantity: z.string(),
-  value: z.number(),
-  unit: z.string(),
-  atMs: z.number(),
-  where: z.string(),
-});
+/** A recorded reading with its verdict as graded (what was missing of the set-up, what the bench showed). */
+export const replayReadingSchema = readingCheckSchema.extend({ where: z.string() });
 export type ReplayReading = z.infer<typeof replayReadingSchema>;
 
 export const commentSchema = z.object({
@@ -65,11 +59,19 @@ export const replayResponseSchema = z.object({
     /** Sim time the replay runs to: the submission, or the last event. */
     durationMs: z.number().int(),
     submittedAtMs: z.number().int().nullable(),
+    /** Null while the result is hidden from the viewer. */
     grade: z.number().nullable(),
+    /** When results show, for an assignment that hides them until it closes. */
+    resultsAt: z.string().nullable(),
   }),
-  vehicle: z.custom<VehicleParams>((v) => typeof v === 'object' && v !== null),
-  /** The scenario's faults at 0 ms, then the stored log in order. */
+  /** The car the bench ran. */
+  car: z.custom<CompiledCar>((v) => typeof v === 'object' && v !== null),
+  /** The model's events the server graded on, in order. */
   events: z.array(inputEventSchema),
+  /** The faults of the car (empty while hidden from the viewer). */
+  faultLabels: z.array(z.string()),
+  /** What each scheduled or injected change stands for, by change id (empty while hidden). */
+  changeLabels: z.record(z.string(), z.string()),
   markers: z.array(markerSchema),
   readings: z.array(replayReadingSchema),
   comments: z.array(commentSchema),

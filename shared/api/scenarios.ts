@@ -1,6 +1,6 @@
 /** Payloads of the scenario library API (/api/scenarios). */
 import { z } from 'zod';
-import { DIFFICULTIES, diagnosticTestSchema, faultKindSchema, scenarioSchema, VEHICLE_KINDS } from '../scenario.ts';
+import { DIFFICULTIES, diagnosticTestSchema, faultKindSchema, scenarioDocumentSchema, VEHICLE_KINDS } from '../scenario.ts';
 
 export const VISIBILITIES = ['private', 'shared'] as const;
 export const visibilitySchema = z.enum(VISIBILITIES, { error: 'Visibility must be "private" or "shared"' });
@@ -73,11 +73,11 @@ export const scenarioDetailSchema = z.object({
   latestVersionId: z.number().int(),
   publishedVersionId: z.number().int().nullable(),
   versions: z.array(scenarioVersionSummarySchema),
-  definition: scenarioSchema,
+  definition: scenarioDocumentSchema,
 });
 export type ScenarioDetail = z.infer<typeof scenarioDetailSchema>;
 
-export const scenarioVersionDetailSchema = scenarioVersionSummarySchema.extend({ scenarioId: z.number().int(), definition: scenarioSchema });
+export const scenarioVersionDetailSchema = scenarioVersionSummarySchema.extend({ scenarioId: z.number().int(), definition: scenarioDocumentSchema });
 export type ScenarioVersionDetail = z.infer<typeof scenarioVersionDetailSchema>;
 
 const noteSchema = z.string().trim().max(500, 'note must be at most 500 characters').default('');

@@ -13,7 +13,7 @@ afterEach(cleanup);
 const params = defaultVehicleParams();
 
 function mount(children: React.ReactNode): BenchEngine {
-  const engine = createBenchEngine({ params, seed: 3, scenarioEvents: [] });
+  const engine = createBenchEngine({ params, seed: 3 });
   render(<BenchEngineContext.Provider value={engine}>{children}</BenchEngineContext.Provider>);
   return engine;
 }

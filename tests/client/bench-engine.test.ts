@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { defaultVehicleParams } from '../../sim/params.ts';
+import { compileCar } from '../../sim/compiled-car.ts';
 import { readMeters } from '../../sim/instruments.ts';
 import { stateAt } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
@@ -16,7 +17,7 @@ function frames(engine: ReturnType<typeof createBenchEngine>, count: number, gap
 
 describe('the live bench engine', () => {
   it('steps the model a whole number of fixed steps per frame and carries the remainder', () => {
-    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    const engine = createBenchEngine({ params, seed: SEED });
     engine.tick(16.7);
     expect(engine.getSnapshot().timeMs).toBe(10);
     engine.tick(16.7);
@@ -27,14 +28,14 @@ describe('the live bench engine', () => {
   });
 
   it('cuts an oversized frame gap instead of leaping ahead', () => {
-    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    const engine = createBenchEngine({ params, seed: SEED });
     engine.tick(5000);
     expect(engine.getSnapshot().timeMs).toBe(MAX_FRAME_GAP_MS);
   });
 
   it('stamps each input with the sim time and shows its effect at once', () => {
     const seen: InputEvent[] = [];
-    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [], onEvent: (e) => seen.push(e) });
+    const engine = createBenchEngine({ params, seed: SEED, onEvent: (e) => seen.push(e) });
     frames(engine, 30);
     const event = engine.dispatch(benchActions.clipLead('red', 'battery-pos'));
     expect(event).toEqual({ kind: 'lead', which: 'red', point: 'battery-pos', atMs: engine.getSnapshot().timeMs });
@@ -44,7 +45,7 @@ describe('the live bench engine', () => {
   });
 
   it('springs the key back from start to on', () => {
-    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    const engine = createBenchEngine({ params, seed: SEED });
     engine.dispatch(benchActions.turnKey('start'));
     frames(engine, Math.ceil(START_HOLD_MS / 16) + 10);
     const keys = engine.studentEvents().filter((e) => e.kind === 'key');
@@ -53,7 +54,7 @@ describe('the live bench engine', () => {
   });
 
   it('ends in exactly the state a replay of its own event log reaches', () => {
-    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    const engine = createBenchEngine({ params, seed: SEED });
     engine.dispatch(benchActions.clipLead('red', 'battery-pos'));
     engine.dispatch(benchActions.clipLead('black', 'battery-neg'));
     engine.dispatch(benchActions.placeClamp('bplus-cable', 'toward-battery'));
@@ -74,7 +75,7 @@ describe('the live bench engine', () => {
   });
 
   it('resumes from a stored log at the saved sim time with the same readings', () => {
-    const first = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    const first = createBenchEngine({ params, seed: SEED });
     first.dispatch(benchActions.clipLead('red', 'battery-pos'));
     first.dispatch(benchActions.clipLead('black', 'battery-neg'));
     first.dispatch(benchActions.turnKey('on'));
@@ -82,24 +83,23 @@ describe('the live bench engine', () => {
     first.dispatch(benchActions.switchAccessory('headlamps', true));
     frames(first, 100);
     const at = first.readNow();
-    const second = createBenchEngine({ params, seed: SEED, scenarioEvents: [], studentEvents: first.studentEvents(), resumeAtMs: at.atMs });
+    const second = createBenchEngine({ params, seed: SEED, studentEvents: first.studentEvents(), resumeAtMs: at.atMs });
     expect(second.readNow()).toEqual(at);
     expect(second.getSnapshot().controls.accessoriesOn).toEqual(['headlamps']);
   });
 
   it('does not show a link that was open before the student arrived, only one burnt open on the bench', () => {
-    const engine = createBenchEngine({
-      params,
-      seed: SEED,
-      scenarioEvents: [{ kind: 'fault-inject', atMs: 0, fault: { id: 'f', kind: 'fusible-link-open', severity01: 1, onsetS: 0 } }],
-    });
+    const car = compileCar(params, [{ id: 'f', kind: 'fusible-link-open', severity01: 1, onsetS: 0 }], 'car');
+    const engine = createBenchEngine({ params: car.params, seed: SEED, changes: car.changes });
+    // In force from the first state.
+    expect(engine.getSnapshot().readings.fusibleLinkOpen).toBe(true);
     frames(engine, 10);
     expect(engine.getSnapshot().readings.fusibleLinkOpen).toBe(true);
     expect(engine.getSnapshot().linkBlownHere).toBe(false);
   });
 
   it('lets sim time pass quickly in whole steps', () => {
-    const engine = createBenchEngine({ params, seed: SEED, scenarioEvents: [] });
+    const engine = createBenchEngine({ params, seed: SEED });
     engine.skipAhead(60_000);
     expect(engine.getSnapshot().timeMs).toBe(60_000);
     expect(engine.getSnapshot().timeMs % DT_MS).toBe(0);

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import type { InputEvent } from '../../sim/inputs.ts';
+import type { LogEvent as InputEvent, RecordedReading } from '../../shared/api/attempts.ts';
+import { createReadingsLog } from '../../src/features/bench/hooks/use-bench-session.ts';
 import {
   backoffMs,
   createOutbox,
@@ -246,5 +247,42 @@ describe('backoff and resume helpers', () => {
     const { events, unsent } = mergeForResume(server, local);
     expect(events.map((e) => e.seq)).toEqual([1, 2, 3, 4]);
     expect(unsent.map((e) => e.seq)).toEqual([3, 4]);
+  });
+});
+
+describe('the readings of the log', () => {
+  const reading = (id: string, atMs: number): RecordedReading => ({ id, test: 'battery-ocv', quantity: 'voltage', value: 12.61, unit: 'V', atMs, where: 'posts' });
+
+  it('logs each reading through the outbox and shows it saved only once the server has stored it', async () => {
+    const server = fakeServer();
+    const timer = new ManualTimer();
+    const outbox = createOutbox({ attemptId: 3, storage: new MemoryStorage(), send: server.send, timer, serverSeq: 0, intervalMs: 1000 });
+    outbox.start();
+    let now = 5000;
+    const log = createReadingsLog([], outbox, () => now);
+    log.record(reading('a', 4900));
+    expect(log.list()).toMatchObject([{ reading: { id: 'a' }, seq: 1, stored: false }]);
+    await timer.advance(1000);
+    expect(log.list()).toMatchObject([{ seq: 1, stored: true }]);
+    expect(server.stored.get(1)).toEqual({ kind: 'reading', atMs: 5000, reading: reading('a', 4900) });
+    now = 7000;
+    log.remove('a');
+    expect(log.list()).toEqual([]);
+    await timer.advance(1000);
+    expect(server.stored.get(2)).toEqual({ kind: 'reading-remove', atMs: 7000, readingId: 'a' });
+  });
+
+  it('takes the readings of a log from another device (the bootstrap’s events)', () => {
+    const outbox = createOutbox({ attemptId: 4, storage: new MemoryStorage(), send: fakeServer().send, timer: new ManualTimer(), serverSeq: 3 });
+    const log = createReadingsLog(
+      [
+        { seq: 1, event: { kind: 'reading', atMs: 100, reading: reading('a', 100) } },
+        { seq: 2, event: { kind: 'reading', atMs: 200, reading: reading('b', 200) } },
+        { seq: 3, event: { kind: 'reading-remove', atMs: 300, readingId: 'a' } },
+      ],
+      outbox,
+      () => 400,
+    );
+    expect(log.list()).toMatchObject([{ reading: { id: 'b' }, seq: 2, stored: true }]);
   });
 });

@@ -29,7 +29,7 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await page.getByRole('button', { name: 'Zero clamp' }).click();
     await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
     values.ocv = await reading(page, 'volts');
-    await recordReading(page, 'battery-ocv', 'voltage');
+    await recordReading(page, 'battery-ocv');
 
     // 2. Load test: half the CCA for 15 s, engine off.
     await dial.focus();
@@ -38,7 +38,7 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await page.getByRole('button', { name: 'Let 10 s pass on the bench' }).click();
     await page.waitForTimeout(5200);
     values.loaded = await reading(page, 'volts');
-    await recordReading(page, 'battery-load', 'voltage');
+    await recordReading(page, 'battery-load');
     await page.getByRole('button', { name: 'Load off' }).click();
     await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
 
@@ -48,13 +48,13 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
     await page.waitForTimeout(1000);
     values.regulated = await reading(page, 'volts');
-    await recordReading(page, 'regulated-voltage', 'voltage');
+    await recordReading(page, 'regulated-voltage');
 
     // 4. Output: load to about 12 V, read the clamp, load off quickly.
     await loadDownTo(page, 12.05);
     await page.waitForTimeout(600);
     values.output = await reading(page, 'amps');
-    await recordReading(page, 'output', 'current');
+    await recordReading(page, 'output');
     await page.getByRole('button', { name: 'Load off' }).click();
 
     // 5 and 6. Voltage drops with the headlamps and blower on.
@@ -65,17 +65,17 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await hookUp(page, { red: 'alt-bplus', black: 'battery-pos' });
     await page.waitForTimeout(1500);
     values.dropPositive = await reading(page, 'volts');
-    await recordReading(page, 'voltage-drop-positive', 'voltage');
+    await recordReading(page, 'voltage-drop-positive');
     await hookUp(page, { red: 'alt-case', black: 'battery-neg' });
     await page.waitForTimeout(1500);
     values.dropGround = await reading(page, 'volts');
-    await recordReading(page, 'voltage-drop-ground', 'voltage');
+    await recordReading(page, 'voltage-drop-ground');
 
     // 7. Ripple at the B+ stud against the case.
     await hookUp(page, { red: 'alt-bplus', black: 'alt-case' });
     await page.waitForTimeout(1500);
     values.rippleMv = await reading(page, 'ripple');
-    await recordReading(page, 'ripple', 'ripple');
+    await recordReading(page, 'ripple');
     await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-full-diagnosis.png`, fullPage: true });
 
     // A healthy car reads like one.

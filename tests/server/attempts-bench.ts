@@ -5,11 +5,11 @@
  */
 import { eq } from 'drizzle-orm';
 import { FAULT_CATALOG, FAULT_KINDS, type DiagnosticTest } from '../../sim/faults.ts';
-import type { ConnectionPoint, InputEvent } from '../../sim/inputs.ts';
+import type { ConnectionPoint } from '../../sim/inputs.ts';
 import { readMeters, type Readings } from '../../sim/instruments.ts';
 import { stateAt } from '../../sim/replay.ts';
-import type { AttemptBootstrap, RecordedReading, StoredEvent } from '../../shared/api/attempts.ts';
-import { unsealFaults, unsealVehicle } from '../../shared/sealed-faults.ts';
+import { modelEvents, type AttemptBootstrap, type CarInput, type LogEvent, type RecordedReading, type StoredEvent } from '../../shared/api/attempts.ts';
+import { meterShows } from '../../shared/meter-display.ts';
 import type { AppContext } from '../../server/context.ts';
 import { assignments, scenarios } from '../../server/db/schema.ts';
 
@@ -26,10 +26,16 @@ export async function scenarioId(ctx: AppContext, slug: string): Promise<number>
 }
 
 /** Numbers events from `firstSeq`. */
-export const numbered = (events: readonly InputEvent[], firstSeq = 1): StoredEvent[] => events.map((event, i) => ({ seq: firstSeq + i, event }));
+export const numbered = (events: readonly LogEvent[], firstSeq = 1): StoredEvent[] => events.map((event, i) => ({ seq: firstSeq + i, event }));
+
+/** A reading as the bench logs it, at the moment it shows (or `loggedAtMs`). */
+export const readingEvent = (reading: RecordedReading, loggedAtMs = reading.atMs): LogEvent => ({ kind: 'reading', atMs: loggedAtMs, reading });
+
+/** Log events in sim-time order (equal times: in the order given), as a bench logs them. */
+export const inTimeOrder = (events: readonly LogEvent[]): LogEvent[] => events.map((e, i) => ({ e, i })).sort((a, b) => a.e.atMs - b.e.atMs || a.i - b.i).map((x) => x.e);
 
 /** Key on, crank, let it fire, then hold `rpm`. */
-export function startEngine(atMs: number, rpm: number): InputEvent[] {
+export function startEngine(atMs: number, rpm: number): CarInput[] {
   return [
     { kind: 'key', atMs, position: 'start' },
     { kind: 'key', atMs: atMs + 2000, position: 'on' },
@@ -37,7 +43,7 @@ export function startEngine(atMs: number, rpm: number): InputEvent[] {
   ];
 }
 
-export function leads(atMs: number, red: ConnectionPoint | null, black: ConnectionPoint | null): InputEvent[] {
+export function leads(atMs: number, red: ConnectionPoint | null, black: ConnectionPoint | null): CarInput[] {
   return [
     { kind: 'lead', atMs, which: 'red', point: red },
     { kind: 'lead', atMs, which: 'black', point: black },
@@ -45,36 +51,26 @@ export function leads(atMs: number, red: ConnectionPoint | null, black: Connecti
 }
 
 /** Turn the pile dial up a step a second from `fromMs`. */
-export function pileRamp(fromMs: number, steps: number, perStep: number): InputEvent[] {
+export function pileRamp(fromMs: number, steps: number, perStep: number): CarInput[] {
   return Array.from({ length: steps }, (_, i) => ({ kind: 'pile' as const, atMs: fromMs + i * 1000, dial01: Math.min(1, (i + 1) * perStep) }));
 }
 
-/** The car the bench runs: the sealed faults at 0 ms and, when sent, the sealed parameters. */
-export async function benchModel(boot: AttemptBootstrap) {
-  const faults = await unsealFaults(boot.sealedFaults, boot.benchKey);
-  const params = boot.sealedVehicle ? await unsealVehicle(boot.sealedVehicle, boot.benchKey) : boot.vehicle;
-  const faultEvents: InputEvent[] = faults.map((fault) => ({ kind: 'fault-inject', atMs: 0, fault }));
+/** The car the bench runs (the bootstrap's compiled car), and its meters at a moment of a log. */
+export function benchModel(boot: AttemptBootstrap) {
+  const { params, changes } = boot.car;
   return {
     params,
-    faults,
-    meters(events: readonly InputEvent[], atMs: number): Readings {
-      const point = stateAt(params, boot.attempt.seed, [...faultEvents, ...events], atMs);
+    changes,
+    meters(events: readonly LogEvent[], atMs: number): Readings {
+      const point = stateAt(params, boot.attempt.seed, modelEvents(events), atMs, undefined, changes);
       return readMeters(params, point.state);
     },
   };
 }
 
 type Quantity = RecordedReading['quantity'];
-const METER: Record<Quantity, (r: Readings) => number | null> = {
-  voltage: (r) => r.voltmeterV,
-  current: (r) => r.clampA,
-  ripple: (r) => (r.rippleVac === null ? null : r.rippleVac * 1000),
-  rpm: (r) => r.tachRpm,
-  draw: (r) => (r.ammeterA === null ? null : r.ammeterA * 1000),
-};
-const UNIT: Record<Quantity, RecordedReading['unit']> = { voltage: 'V', current: 'A', ripple: 'mV', rpm: 'rpm', draw: 'mA' };
 
-/** A reading written down from the meter as the bench shows it, rounded as a student would. */
+/** A reading written down from the display at a tick (shared/meter-display.ts: what the bench shows). */
 export function readingFrom(
   meters: (atMs: number) => Readings,
   id: string,
@@ -83,10 +79,9 @@ export function readingFrom(
   atMs: number,
   where: string,
 ): RecordedReading {
-  const raw = METER[quantity](meters(atMs));
-  if (raw === null) throw new Error(`no ${quantity} meter connected at ${atMs} ms`);
-  const digits = quantity === 'voltage' ? 100 : 1;
-  return { id, test, quantity, value: Math.round(raw * digits) / digits, unit: UNIT[quantity], atMs, where };
+  const shown = meterShows(quantity, meters(atMs));
+  if (shown === null) throw new Error(`no ${quantity} meter connected at ${atMs} ms`);
+  return { id, test, quantity, value: shown.value, unit: shown.unit, atMs, where };
 }
 
 /**
@@ -113,6 +108,7 @@ export function answerKeyFound(body: unknown): string[] {
     if (text.includes(kind)) found.push(kind);
     if (text.toLowerCase().includes(FAULT_CATALOG[kind].label.toLowerCase())) found.push(FAULT_CATALOG[kind].label);
   }
-  for (const key of ['"faults"', '"severity01"', '"onsetS"', '"fault"']) if (text.includes(key)) found.push(key);
+  // A change's onset may travel (the car's schedule); a fault list, a fault and its severity may not.
+  for (const key of ['"faults"', '"severity01"', '"fault"', '"kind":"fault-']) if (text.includes(key)) found.push(key);
   return found;
 }

@@ -1,12 +1,11 @@
 import { and, eq, sql } from 'drizzle-orm';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { InputEvent } from '../../sim/inputs.ts';
-import type { AttemptBootstrap } from '../../shared/api/attempts.ts';
+import type { AttemptBootstrap, CarInput } from '../../shared/api/attempts.ts';
 import { forgetSetups, setupAfter } from '../../server/services/attempt-events.ts';
 import { testOfSetup } from '../../server/services/live-board.ts';
 import { DIAGNOSTIC_TESTS } from '../../shared/scenario.ts';
-import { unsealEvents } from '../../shared/sealed-faults.ts';
+import { faultOps } from '../../sim/faults.ts';
 import { assignments, attemptEvents, attempts, pendingInjections } from '../../server/db/schema.ts';
 import { answerKeyFound, assignmentId, benchModel, leads, numbered, pileRamp, scenarioId, startEngine } from './attempts-bench.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
@@ -39,29 +38,30 @@ afterAll(async () => {
 });
 
 describe('starting an attempt', () => {
-  it('starts an assigned attempt with a seed, the healthy car and the faults sealed', async () => {
+  it('starts an assigned attempt with a seed and the car to simulate, compiled: no fault list', async () => {
     expect(boot.attempt).toMatchObject({ mode: 'assigned', status: 'running', assignmentId: week1, lastSeq: 0, showCurveAfter: true, showFeedbackAfter: true });
     expect(Number.isInteger(boot.attempt.seed)).toBe(true);
     expect(boot.attempt.seed).toBeGreaterThanOrEqual(0);
     expect(boot.attempt.seed).toBeLessThan(2 ** 31);
     expect(boot.events).toEqual([]);
     expect(boot.result).toBeNull();
-    expect(boot.sealedVehicle).toBeNull();
-    expect(boot.sealedEvents).toBeNull();
+    expect(boot).not.toHaveProperty('sealedFaults');
+    expect(boot).not.toHaveProperty('benchKey');
     expect(boot.scenario.title).toBeTruthy();
     expect(boot.scenario.tests.map((x) => x.test)).toEqual([...DIAGNOSTIC_TESTS]);
     expect(boot.scenario.diagnosisChoices.length).toBeGreaterThanOrEqual(3);
     expect(boot.scenario.diagnosisChoices.every((c) => c.label.length > 0)).toBe(true);
-    // The bench opens the faults with its key: the week 1 car has an open field.
-    const { faults } = await benchModel(boot);
-    expect(faults.map((f) => f.kind)).toEqual(['field-open']);
+    // The week 1 car has an open field: the car the bench runs has it, as parameters, from the first moment.
+    const { params, changes } = benchModel(boot);
+    expect(params.alternator.brushResistanceOhm).toBeGreaterThan(1e5);
+    expect(changes).toEqual([]);
+    expect(params.label).toBe(boot.scenario.vehicle.name);
     const [row] = await t.ctx.db.select({ seed: attempts.seed, userId: attempts.userId }).from(attempts).where(eq(attempts.id, boot.attempt.id));
     expect(row?.seed).toBe(boot.attempt.seed);
   });
 
   it('never lets the answer key reach the student before submission', async () => {
     expect(answerKeyFound(boot)).toEqual([]);
-    expect(boot.vehicle.alternator.brushResistanceOhm).toBeLessThan(1);
     const again = await ada.get(`/api/attempts/${boot.attempt.id}`).expect(200);
     expect(answerKeyFound(again.body)).toEqual([]);
     const posted = await ada.post(`/api/attempts/${boot.attempt.id}/events`).send({ events: numbered(leads(0, 'battery-pos', 'battery-neg'), 1) }).expect(200);
@@ -214,7 +214,7 @@ describe('the event log', () => {
   it('names the set-up the same whether it is carried on from the last batch or rebuilt from the stored log', async () => {
     const practice = await scenarioId(t.ctx, 'healthy-control-corvane-linden');
     // Through several tests: battery at rest, running, loaded, a drop across the B+ side, key off.
-    const tour: InputEvent[] = [
+    const tour: CarInput[] = [
       ...leads(0, 'battery-pos', 'battery-neg'),
       ...startEngine(1000, 2000),
       { kind: 'clamp', atMs: 5000, conductor: 'bplus-cable', arrow: 'toward-battery' },
@@ -312,8 +312,12 @@ describe('the event log', () => {
       [{ seq: 0, event: { kind: 'key', atMs: 1, position: 'on' } }, 'events.0.seq'],
       [{ seq: 200, event: { kind: 'jump', atMs: 1 } }, 'events.0.event.kind'],
       [{ seq: 200, event: { kind: 'accessory', atMs: 1, id: 'jet-engine', on: true } }, 'events.0.event.id'],
-      [{ seq: 200, event: { kind: 'fault-clear', atMs: 1, faultId: 'field-open-1' } }, 'events.0.event'],
-      [{ seq: 200, event: { kind: 'fault-inject', atMs: 1, fault: { id: 'mine', kind: 'belt-slip', severity01: 1, onsetS: 0 } } }, 'events.0.event'],
+      // A bench may not log faults at all, nor a change of the car that is no instructor's injection.
+      [{ seq: 200, event: { kind: 'fault-clear', atMs: 1, faultId: 'field-open-1' } }, 'events.0.event.kind'],
+      [{ seq: 200, event: { kind: 'fault-inject', atMs: 1, fault: { id: 'mine', kind: 'belt-slip', severity01: 1, onsetS: 0 } } }, 'events.0.event.kind'],
+      [{ seq: 200, event: { kind: 'change-apply', atMs: 30_000, change: { id: 'mine', onsetS: 30, intermittent: null, ops: faultOps({ kind: 'belt-slip', severity01: 1 }) } } }, 'events.0.event'],
+      [{ seq: 200, event: { kind: 'change-clear', atMs: 30_000, changeId: 'c1' } }, 'events.0.event'],
+      [{ seq: 200, event: { kind: 'reading', atMs: 30_000, reading: { id: 'r', test: 'output', quantity: 'current', value: 1, unit: 'A', atMs: 20_000, where: '' } } }, 'events.0.event.reading.atMs'],
     ];
     for (const [event, field] of cases) {
       const r = await ada.post(`/api/attempts/${id}/events`).send({ events: [event] });
@@ -330,21 +334,21 @@ describe('the event log', () => {
     expect(await count(id)).toBe(before);
   });
 
-  it('takes a fault event that logs an instructor injection, marked as the instructor’s', async () => {
-    const [inj] = await t.ctx.db
-      .insert(pendingInjections)
-      .values({ attemptId: id, action: { type: 'inject', faultId: 'live-1', kind: 'belt-slip', severity01: 0.5, delayS: 0, intermittent: null } })
-      .returning({ id: pendingInjections.id });
+  it('takes a change that logs an instructor injection delivered to the bench, marked as the instructor’s', async () => {
+    const action = (faultId: string) => ({ type: 'inject' as const, faultId, kind: 'belt-slip' as const, severity01: 0.5, delayS: 0, intermittent: null });
+    const [inj] = await t.ctx.db.insert(pendingInjections).values({ attemptId: id, action: action('live-1') }).returning({ id: pendingInjections.id });
     const faultId = `live-${inj!.id}`;
-    await t.ctx.db.update(pendingInjections).set({ action: { type: 'inject', faultId, kind: 'belt-slip', severity01: 0.5, delayS: 0, intermittent: null } }).where(eq(pendingInjections.id, inj!.id));
-    const wrongSeverity = await ada
+    await t.ctx.db.update(pendingInjections).set({ action: action(faultId) }).where(eq(pendingInjections.id, inj!.id));
+    const change = { id: faultId, onsetS: 12, intermittent: null, ops: faultOps({ kind: 'belt-slip', severity01: 0.5 }) };
+    // Not delivered to the bench yet: nothing to log.
+    const undelivered = await ada.post(`/api/attempts/${id}/events`).send({ events: [{ seq: 12, event: { kind: 'change-apply', atMs: 12_000, change } }] });
+    expect(undelivered.status).toBe(400);
+    await t.ctx.db.update(pendingInjections).set({ deliveredAt: new Date(), deliveredSimMs: 11_000 }).where(eq(pendingInjections.id, inj!.id));
+    const otherChange = await ada
       .post(`/api/attempts/${id}/events`)
-      .send({ events: [{ seq: 12, event: { kind: 'fault-inject', atMs: 12_000, fault: { id: faultId, kind: 'belt-slip', severity01: 0.1, onsetS: 12 } } }] });
-    expect(wrongSeverity.status).toBe(400);
-    await ada
-      .post(`/api/attempts/${id}/events`)
-      .send({ events: [{ seq: 12, event: { kind: 'fault-inject', atMs: 12_000, fault: { id: faultId, kind: 'belt-slip', severity01: 0.5, onsetS: 12 } } }] })
-      .expect(200);
+      .send({ events: [{ seq: 12, event: { kind: 'change-apply', atMs: 12_000, change: { ...change, ops: faultOps({ kind: 'belt-slip', severity01: 0.1 }) } } }] });
+    expect(otherChange.status).toBe(400);
+    await ada.post(`/api/attempts/${id}/events`).send({ events: [{ seq: 12, event: { kind: 'change-apply', atMs: 12_000, change } }] }).expect(200);
     const [stored] = await t.ctx.db
       .select({ source: attemptEvents.source })
       .from(attemptEvents)
@@ -353,18 +357,16 @@ describe('the event log', () => {
     const [applied] = await t.ctx.db.select({ appliedAt: pendingInjections.appliedAt }).from(pendingInjections).where(eq(pendingInjections.id, inj!.id));
     expect(applied?.appliedAt).not.toBeNull();
 
-    // Reloaded, the bench gets the injected fault only sealed.
+    // Reloaded, the bench gets the change it logged back, as parameter operations: no kind, no severity.
     const reload = await ada.get(`/api/attempts/${id}`).expect(200);
     expect(answerKeyFound(reload.body)).toEqual([]);
-    expect(reload.body.events.map((e: { seq: number }) => e.seq)).not.toContain(12);
-    const logged = await unsealEvents(reload.body.sealedEvents, reload.body.benchKey);
-    expect(logged).toEqual([{ seq: 12, event: { kind: 'fault-inject', atMs: 12_000, fault: { id: faultId, kind: 'belt-slip', severity01: 0.5, onsetS: 12 } } }]);
+    expect(reload.body.events.find((e: { seq: number }) => e.seq === 12)).toEqual({ seq: 12, event: { kind: 'change-apply', atMs: 12_000, change } });
   });
 
   it('answers 409 to events for a submitted attempt', async () => {
     const done = await ada.post('/api/attempts').send({ scenarioId: await scenarioId(t.ctx, 'healthy-control-corvane-linden'), mode: 'practice' }).expect(201);
     const did = done.body.attempt.id as number;
-    await ada.post(`/api/attempts/${did}/submit`).send({ atMs: 0, readings: [], diagnosis: { verdicts: [], faultKind: 'none', notes: '' } }).expect(200);
+    await ada.post(`/api/attempts/${did}/submit`).send({ atMs: 0, diagnosis: { verdicts: [], faultKind: 'none', notes: '' } }).expect(200);
     const res = await ada.post(`/api/attempts/${did}/events`).send({ events: numbered(leads(0, 'battery-pos', 'battery-neg')) }).expect(409);
     expect(res.body.error.message).toMatch(/submitted/);
   });
@@ -376,7 +378,7 @@ describe('who may see an attempt', () => {
     const path = `/api/attempts/${boot.attempt.id}`;
     await bo.get(path).expect(403);
     await bo.post(`${path}/events`).send({ events: numbered(leads(0, 'battery-pos', 'battery-neg'), 50) }).expect(403);
-    await bo.post(`${path}/submit`).send({ atMs: 0, readings: [], diagnosis: { verdicts: [], faultKind: 'none', notes: '' } }).expect(403);
+    await bo.post(`${path}/submit`).send({ atMs: 0, diagnosis: { verdicts: [], faultKind: 'none', notes: '' } }).expect(403);
     const faye = await signIn(t.app, FAYE);
     await faye.get(path).expect(403);
     await bo.get('/api/attempts/999999').expect(404);

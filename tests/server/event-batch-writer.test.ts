@@ -7,7 +7,7 @@
 import { eq } from 'drizzle-orm';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { InputEvent } from '../../sim/inputs.ts';
+import type { CarInput as InputEvent } from '../../shared/api/attempts.ts';
 import { attemptEvents, attempts, users } from '../../server/db/schema.ts';
 import { createBatchWriter, MAX_GROUP, type BatchToStore } from '../../server/services/event-batch-writer.ts';
 import { numbered, pileRamp, scenarioId } from './attempts-bench.ts';

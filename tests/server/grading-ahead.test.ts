@@ -6,15 +6,14 @@
  * stored by another process leave the result just as exact.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { InputEvent } from '../../sim/inputs.ts';
-import type { AttemptBootstrap, AttemptResult, SubmitInput } from '../../shared/api/attempts.ts';
+import type { AttemptBootstrap, AttemptResult, LogEvent, SubmitInput } from '../../shared/api/attempts.ts';
 import { gradeRun } from '../../server/services/grade-run.ts';
 import { openSharedGradingPool, type GradingPool } from '../../server/services/grading-pool.ts';
 import { loadAttemptRun } from '../../server/services/live-attempt-run.ts';
 import { loadAttempt, showAfter } from '../../server/services/attempt-store.ts';
 import { gradeJobOf } from '../../server/services/attempt-submit.ts';
 import { parseServerTiming } from '../../server/http/server-timing.ts';
-import { assignmentId, leads, numbered, pileRamp, startEngine } from './attempts-bench.ts';
+import { assignmentId, leads, numbered, pileRamp, readingEvent, startEngine } from './attempts-bench.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
 
 let t: TestApp;
@@ -32,13 +31,14 @@ afterAll(async () => {
 });
 
 /** The output test by the book, then two minutes more at 2,000 rpm with the pile stepped, about 3 minutes in all. */
-const LOG: InputEvent[] = [
+const LOG: LogEvent[] = [
   ...leads(0, 'battery-pos', 'battery-neg'),
   ...startEngine(2000, 2000),
   { kind: 'clamp', atMs: 6000, conductor: 'bplus-cable', arrow: 'toward-battery' },
   ...pileRamp(8000, 10, 0.08),
+  readingEvent({ id: 'o', test: 'output', quantity: 'current', value: 60, unit: 'A', atMs: 17_000, where: 'B+ cable, pile at about 12 V' }),
   { kind: 'pile', atMs: 20_000, dial01: 0 },
-  ...Array.from({ length: 40 }, (_, k): InputEvent => ({ kind: 'pile', atMs: 30_000 + k * 3000, dial01: (k % 5) / 6 })),
+  ...Array.from({ length: 40 }, (_, k): LogEvent => ({ kind: 'pile', atMs: 30_000 + k * 3000, dial01: (k % 5) / 6 })),
   { kind: 'pile', atMs: 160_000, dial01: 0 },
   { kind: 'rpm', atMs: 170_000, rpm: 0 },
 ];
@@ -46,7 +46,6 @@ const SUBMIT_MS = 175_400;
 
 const submission = (atMs: number): SubmitInput => ({
   atMs,
-  readings: [{ id: 'o', test: 'output', quantity: 'current', value: 60, unit: 'A', atMs: 17_000, where: 'B+ cable, pile at about 12 V' }],
   diagnosis: { faultKind: 'diode-open', verdicts: [{ test: 'output', pass: false }], notes: 'low output, ripple high' },
 });
 
@@ -54,6 +53,11 @@ async function begin(email: string): Promise<{ agent: Agent; id: number }> {
   const agent = await signIn(t.app, email);
   const res = await agent.post('/api/attempts').send({ assignmentId: week2 }).expect(201);
   return { agent, id: (res.body as AttemptBootstrap).attempt.id };
+}
+
+/** The whole result stored for an attempt. */
+async function storedResultOf(id: number): Promise<AttemptResult> {
+  return (await loadAttempt(t.ctx.db, id)).result as AttemptResult;
 }
 
 /** What grading the stored log from the start, in this thread, gives. */
@@ -75,7 +79,9 @@ describe('an attempt run ahead while the student works', () => {
     expect(after.gradedAhead - before.gradedAhead).toBe(1);
     // It had been run ahead to the sample boundary at or before the last event (170 s).
     expect(after.lastAheadToMs).toBe(170_000);
-    const result = res.body as AttemptResult;
+    // Week 2 shows results when it closes: the student's answer hides them, the stored result is whole.
+    expect((res.body as AttemptResult).hidden?.reason).toBe('until-close');
+    const result = await storedResultOf(id);
     // Exactly what the re-run from the start gives, and a result with substance (a reading checked, a curve drawn).
     expect(result).toEqual(await gradedFromStart(id, submission(SUBMIT_MS)));
     expect(result.readings).toHaveLength(1);
@@ -98,8 +104,8 @@ describe('an attempt run ahead while the student works', () => {
     await post(10, 20); // fills it
     await post(10, 20); // and again, as after a lost answer
     await post(30, all.length);
-    const res = await agent.post(`/api/attempts/${id}/submit`).send(submission(SUBMIT_MS)).expect(200);
-    expect(res.body).toEqual(await gradedFromStart(id, submission(SUBMIT_MS)));
+    await agent.post(`/api/attempts/${id}/submit`).send(submission(SUBMIT_MS)).expect(200);
+    expect(await storedResultOf(id)).toEqual(await gradedFromStart(id, submission(SUBMIT_MS)));
   });
 
   it('stays exact when some batches were stored by another process (here: written straight to the database)', async () => {
@@ -113,8 +119,8 @@ describe('an attempt run ahead while the student works', () => {
     await t.ctx.pool.query('update attempts set last_seq = 24 where id = $1', [id]);
     await agent.post(`/api/attempts/${id}/events`).send({ events: all.slice(24) }).expect(200);
     const before = grading.pool.stats();
-    const res = await agent.post(`/api/attempts/${id}/submit`).send(submission(SUBMIT_MS)).expect(200);
-    expect(res.body).toEqual(await gradedFromStart(id, submission(SUBMIT_MS)));
+    await agent.post(`/api/attempts/${id}/submit`).send(submission(SUBMIT_MS)).expect(200);
+    expect(await storedResultOf(id)).toEqual(await gradedFromStart(id, submission(SUBMIT_MS)));
     // The run ahead had stopped at event 12 and was dropped at the batch that did not follow on; the job re-ran from the start.
     expect(grading.pool.stats().gradedAhead).toBe(before.gradedAhead);
   });

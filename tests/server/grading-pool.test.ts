@@ -7,6 +7,8 @@
  */
 import { afterEach, describe, expect, it } from 'vitest';
 import type { InputEvent } from '../../sim/inputs.ts';
+import { compileCar } from '../../sim/compiled-car.ts';
+import { faultChange } from '../../sim/faults.ts';
 import { HttpError } from '../../server/http/errors.ts';
 import { gradeRun, warmUpJob, type GradeJob } from '../../server/services/grade-run.ts';
 import { gradeSubmission, openSharedGradingPool, startGradingPool, type GradingPool } from '../../server/services/grading-pool.ts';
@@ -28,25 +30,23 @@ afterEach(async () => {
 function liveFaultJob(): GradeJob {
   const job = warmUpJob(600);
   job.definition.faults = [{ id: 'weak', kind: 'battery-weak', severity01: 0.6, onsetS: 0, intermittent: null }];
-  const live: InputEvent = { kind: 'fault-inject', atMs: 240_000, fault: { id: 'slip', kind: 'belt-slip', severity01: 0.8, onsetS: 240, intermittent: null } };
+  job.car = compileCar(job.definition.vehicle.params, job.definition.faults, job.definition.vehicle.name);
+  const slip = { id: 'live-3', kind: 'belt-slip' as const, severity01: 0.8, onsetS: 240, intermittent: null };
   const events: InputEvent[] = [
-    { kind: 'fault-inject', atMs: 0, fault: job.definition.faults[0]! },
-    ...job.events.filter((e) => e.kind !== 'fault-inject'),
-    live,
+    ...job.events,
+    { kind: 'change-apply', atMs: 240_000, change: faultChange(slip) },
     { kind: 'clamp', atMs: 300_000, conductor: 'bplus-cable', arrow: 'toward-battery' },
   ];
   job.events = events.sort((a, b) => a.atMs - b.atMs);
+  job.faults = [...job.definition.faults, slip];
   job.mode = 'practice';
   job.showCurve = false;
   job.seed = 1234;
-  job.submission = {
-    atMs: 600_000,
-    readings: [
-      { id: 'r1', test: 'regulated-voltage', quantity: 'voltage', value: 14.1, unit: 'V', atMs: 200_000, where: 'battery posts, 2,000 rpm' },
-      { id: 'r2', test: 'output', quantity: 'current', value: 90, unit: 'A', atMs: 400_000, where: 'B+ cable' },
-    ],
-    diagnosis: { faultKind: 'belt-slip', verdicts: [{ test: 'regulated-voltage', pass: true }], notes: 'belt squeals under load' },
-  };
+  job.readings = [
+    { id: 'r1', test: 'regulated-voltage', quantity: 'voltage', value: 14.1, unit: 'V', atMs: 200_000, where: 'battery posts, 2,000 rpm' },
+    { id: 'r2', test: 'output', quantity: 'current', value: 90, unit: 'A', atMs: 400_000, where: 'B+ cable' },
+  ];
+  job.submission = { atMs: 600_000, diagnosis: { faultKind: 'belt-slip', verdicts: [{ test: 'regulated-voltage', pass: true }], notes: 'belt squeals under load' } };
   return job;
 }
 

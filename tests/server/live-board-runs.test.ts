@@ -5,6 +5,7 @@
  * event from the start, as the replay and the grader do. One board refresh
  * costs a fixed number of queries however many attempts it covers.
  */
+import { modelEvents } from '../../shared/api/attempts.ts';
 import { eq } from 'drizzle-orm';
 import { drizzle } from 'drizzle-orm/node-postgres';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -59,11 +60,12 @@ async function store(attemptId: number, batch: { seq: number; event: InputEvent 
 /** What the board showed before it kept re-runs: every stored event run from the start, with no cache. */
 async function fromTheStart(attemptId: number) {
   const run = await loadAttemptRun(t.ctx.db, attemptId);
+  const events = modelEvents(run.stored.map((s) => s.event));
   const [a] = await t.ctx.db.select({ simTimeMs: attempts.simTimeMs }).from(attempts).where(eq(attempts.id, attemptId));
-  const lastAtMs = run.events.reduce((m, e) => Math.max(m, e.atMs), 0);
+  const lastAtMs = run.stored.reduce((m, e) => Math.max(m, e.event.atMs), 0);
   const targetMs = Math.ceil(Math.max(a!.simTimeMs, lastAtMs) / DT_MS) * DT_MS;
-  const point = stateAt(run.params, run.seed, run.events, targetMs);
-  const readings = readMeters(run.params, point.state);
+  const point = stateAt(run.car.params, run.seed, events, targetMs, undefined, run.car.changes);
+  const readings = readMeters(run.car.params, point.state);
   return { currentTest: testOfSetup(point.controls, readings), readings: liveReadings(readings, point.state.fusibleLinkBlown) };
 }
 

@@ -1,9 +1,8 @@
 import { and, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { attemptEvents, attempts, pendingInjections } from '../../server/db/schema.ts';
-import { benchInjectionSchema, boardAttemptSchema, boardSnapshotSchema, liveFaultId } from '../../shared/api/live.ts';
-import { deriveBenchKey, unsealFaults } from '../../shared/sealed-faults.ts';
-import { FAULT_CATALOG } from '../../sim/faults.ts';
+import { benchInjectionSchema, boardAttemptSchema, boardSnapshotSchema, liveFaultId, type BenchInjection } from '../../shared/api/live.ts';
+import { FAULT_CATALOG, faultOps } from '../../sim/faults.ts';
 import { startTestApp, type TestApp } from './support.ts';
 import {
   httpSignIn,
@@ -38,16 +37,14 @@ afterAll(async () => {
   await t.close();
 });
 
-/** What the bench does with an injection: open it and log it as a fault-inject at its sim time. */
-async function benchLogs(client: HttpClient, attemptId: number, seq: number, atMs: number, sealed: string) {
-  const key = await deriveBenchKey(t.env.SESSION_SECRET, attemptId);
-  const [fault] = await unsealFaults(sealed, key);
-  const event = { kind: 'fault-inject', atMs, fault: { ...fault!, onsetS: atMs / 1000 + fault!.onsetS } };
+/** What the bench does with an injection: apply the change at its sim time (the onset a delay from then) and log it. */
+async function benchLogs(client: HttpClient, attemptId: number, seq: number, atMs: number, injection: Extract<BenchInjection, { type: 'inject' }>) {
+  const event = { kind: 'change-apply', atMs, change: { ...injection.change, onsetS: atMs / 1000 + injection.change.onsetS } };
   return client.post(`/api/attempts/${attemptId}/events`, { events: [{ seq, event }] });
 }
 
 describe('live fault injection', () => {
-  it('reaches the running bench sealed, lands in the event log once, and is not sent again after a reconnect', async () => {
+  it('reaches the running bench as a change of the car, records its delivery, lands in the event log once, and is not sent again after a reconnect', async () => {
     const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
     const stream = await openStream(ada, `/api/live/attempts/${attemptId}/stream`);
     expect(stream.status).toBe(200);
@@ -59,29 +56,32 @@ describe('live fault injection', () => {
 
     const msg = await stream.next((m) => m.event === 'injection', 2_000);
     const injection = benchInjectionSchema.parse(msg.data);
-    expect(injection).toMatchObject({ type: 'inject', injectionId, faultId: liveFaultId(injectionId) });
-    // The student is not told what was injected: no kind or label in what the stream carries.
+    expect(injection).toEqual({ type: 'inject', injectionId, change: { id: liveFaultId(injectionId), onsetS: 2, intermittent: null, ops: faultOps({ kind: 'fusible-link-open', severity01: 1 }) } });
+    // The student is not told what was injected: no kind, label or severity in what the stream carries.
     const raw = JSON.stringify(msg.data);
-    expect(raw).not.toContain('fusible');
+    expect(raw).not.toContain('fusible-link-open');
     expect(raw).not.toContain(FAULT_CATALOG['fusible-link-open'].label);
+    expect(raw).not.toContain('severity');
     if (injection.type !== 'inject') throw new Error('expected an inject');
-
-    const key = await deriveBenchKey(t.env.SESSION_SECRET, attemptId);
-    const [fault] = await unsealFaults(injection.sealed, key);
-    expect(fault).toMatchObject({ id: liveFaultId(injectionId), kind: 'fusible-link-open', severity01: 1, onsetS: 2 });
+    // The server recorded when it delivered it, at the sim time of the log then.
+    const [delivered] = await t.ctx.db.select({ at: pendingInjections.deliveredAt, simMs: pendingInjections.deliveredSimMs }).from(pendingInjections).where(eq(pendingInjections.id, injectionId));
+    expect(delivered!.at).toBeInstanceOf(Date);
+    expect(delivered!.simMs).toBe(0);
 
     // The bench logs it in its normal batch; a retried batch is stored once.
-    const first = await benchLogs(ada, attemptId, 1, 12_340, injection.sealed);
+    const first = await benchLogs(ada, attemptId, 1, 12_340, injection);
     expect(first.status, first.text).toBe(200);
-    const retry = await benchLogs(ada, attemptId, 1, 12_340, injection.sealed);
+    const retry = await benchLogs(ada, attemptId, 1, 12_340, injection);
     expect(retry.status, retry.text).toBe(200);
     const logged = await t.ctx.db
       .select({ seq: attemptEvents.seq, kind: attemptEvents.kind, source: attemptEvents.source, simTimeMs: attemptEvents.simTimeMs })
       .from(attemptEvents)
       .where(eq(attemptEvents.attemptId, attemptId));
-    expect(logged).toEqual([{ seq: 1, kind: 'fault-inject', source: 'instructor', simTimeMs: 12_340 }]);
+    expect(logged).toEqual([{ seq: 1, kind: 'change-apply', source: 'instructor', simTimeMs: 12_340 }]);
     const [pending] = await t.ctx.db.select({ appliedAt: pendingInjections.appliedAt }).from(pendingInjections).where(eq(pendingInjections.id, injectionId));
     expect(pending!.appliedAt).not.toBeNull();
+    const list = await teacher.get(`/api/live/attempts/${attemptId}/injections`);
+    expect((list.body as { injections: { status: string; appliedAtMs: number | null }[] }).injections[0]).toMatchObject({ status: 'applied', appliedAtMs: 12_340 });
     stream.close();
 
     // A reconnect does not hand the logged injection out again.
@@ -104,8 +104,7 @@ describe('live fault injection', () => {
     const msg = await stream.next((m) => m.event === 'injection', 2_000);
     const injection = benchInjectionSchema.parse(msg.data);
     if (injection.type !== 'inject') throw new Error('expected an inject');
-    const [fault] = await unsealFaults(injection.sealed, await deriveBenchKey(t.env.SESSION_SECRET, attemptId));
-    expect(fault).toMatchObject({ kind: 'belt-slip', severity01: 0.4, intermittent: { periodS: 10, onFraction01: 0.5 } });
+    expect(injection.change).toEqual({ id: liveFaultId(injection.injectionId), onsetS: 0, intermittent: { periodS: 10, onFraction01: 0.5 }, ops: faultOps({ kind: 'belt-slip', severity01: 0.4 }) });
     stream.close();
   });
 
@@ -116,13 +115,13 @@ describe('live fault injection', () => {
     const stream = await openStream(ada, `/api/live/attempts/${attemptId}/stream`);
     const inj = benchInjectionSchema.parse((await stream.next((m) => m.event === 'injection')).data);
     if (inj.type !== 'inject') throw new Error('expected an inject');
-    expect((await benchLogs(ada, attemptId, 1, 1_000, inj.sealed)).status).toBe(200);
+    expect((await benchLogs(ada, attemptId, 1, 1_000, inj)).status).toBe(200);
 
     const cleared = await teacher.post(`/api/live/attempts/${attemptId}/clear`, { injectionId });
     expect(cleared.status, cleared.text).toBe(201);
     const clear = benchInjectionSchema.parse((await stream.next((m) => m.event === 'injection')).data);
-    expect(clear).toMatchObject({ type: 'clear', faultId: liveFaultId(injectionId) });
-    const logged = await ada.post(`/api/attempts/${attemptId}/events`, { events: [{ seq: 2, event: { kind: 'fault-clear', atMs: 5_000, faultId: liveFaultId(injectionId) } }] });
+    expect(clear).toMatchObject({ type: 'clear', changeId: liveFaultId(injectionId) });
+    const logged = await ada.post(`/api/attempts/${attemptId}/events`, { events: [{ seq: 2, event: { kind: 'change-clear', atMs: 5_000, changeId: liveFaultId(injectionId) } }] });
     expect(logged.status, logged.text).toBe(200);
     const rows = await t.ctx.db
       .select({ appliedAt: pendingInjections.appliedAt })
@@ -172,12 +171,19 @@ describe('live fault injection', () => {
     closed.close();
   });
 
-  it('a bench cannot log a fault of its own: a fault event that matches no injection is refused', async () => {
+  it('a bench cannot change its car of its own accord: a fault event, or a change that logs no injection, is refused', async () => {
     const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
     const forged = await ada.post(`/api/attempts/${attemptId}/events`, {
       events: [{ seq: 1, event: { kind: 'fault-inject', atMs: 0, fault: { id: 'live-999999', kind: 'diode-open', severity01: 1, onsetS: 0, intermittent: null } } }],
     });
-    expect([400, 403, 409]).toContain(forged.status);
+    expect(forged.status).toBe(400);
+    // Healing the car: clearing the scenario's own scheduled change.
+    const healed = await ada.post(`/api/attempts/${attemptId}/events`, { events: [{ seq: 1, event: { kind: 'change-clear', atMs: 0, changeId: 'c1' } }] });
+    expect(healed.status).toBe(400);
+    const own = await ada.post(`/api/attempts/${attemptId}/events`, {
+      events: [{ seq: 1, event: { kind: 'change-apply', atMs: 0, change: { id: 'live-999999', onsetS: 0, intermittent: null, ops: faultOps({ kind: 'diode-open', severity01: 1 }) } } }],
+    });
+    expect(own.status).toBe(400);
     const rows = await t.ctx.db.select({ id: attemptEvents.id }).from(attemptEvents).where(and(eq(attemptEvents.attemptId, attemptId)));
     expect(rows).toEqual([]);
   });

@@ -72,11 +72,19 @@ async function fetchReplay(email: string, id = attemptId): Promise<ReplayRespons
 }
 
 describe('replay', () => {
-  it('gives the student the vehicle, seed, events with the scenario fault first, and markers of every kind', async () => {
+  it('gives the student the compiled car, the seed, the events as the server ran them, and markers of every kind', async () => {
     const replay = await fetchReplay(students[0]!.email);
     expect(replay.attempt).toMatchObject({ id: attemptId, seed: 4242, durationMs: SUBMITTED_AT_MS, submittedAtMs: SUBMITTED_AT_MS });
-    expect(replay.events[0]).toMatchObject({ kind: 'fault-inject', atMs: 0, fault: { kind: 'diode-open' } });
-    expect(replay.events).toHaveLength(1 + benchSession('x').length);
+    // The scenario's open diode is in the car itself; the injection logged (before deliveries were recorded) is an event.
+    expect(replay.car.params.alternator.openDiodes).toEqual([0]);
+    expect(replay.events).toHaveLength(benchSession('x').length);
+    expect(replay.events.find((e) => e.kind === 'change-apply')).toMatchObject({ atMs: 22_000 });
+    expect(replay.faultLabels).toEqual(['Open rectifier diode']);
+    // Readings stored before they were checked against their set-ups are listed as written.
+    expect(replay.readings.map((r) => [r.id, r.evidence])).toEqual([
+      ['r1', null],
+      ['r2', null],
+    ]);
     expect(new Set(replay.markers.map((m) => m.kind))).toEqual(new Set(MARKER_KINDS));
     // Two pile turns within a second make one load change.
     expect(replay.markers.filter((m) => m.kind === 'load').map((m) => m.atMs)).toEqual([15_000, 30_000]);
@@ -86,16 +94,17 @@ describe('replay', () => {
 
   it('the state at every marker, reached by seeking from a snapshot, equals the state of the original run', async () => {
     const replay = await fetchReplay(instructor.email);
-    const { vehicle, events } = replay;
+    const { car, events } = replay;
+    const vehicle = car.params;
     const seed = replay.attempt.seed;
-    const seekRun = runAttempt(vehicle, seed, events, replay.attempt.durationMs, { snapshotEveryMs: 5_000 });
+    const seekRun = runAttempt(vehicle, seed, events, replay.attempt.durationMs, { snapshotEveryMs: 5_000, changes: car.changes });
     expect(seekRun.snapshots.length).toBeGreaterThan(5);
     // The original run: the bench stepping frame by frame (two steps a frame) from the start.
     const times = [...new Set(replay.markers.map((m) => Math.ceil(m.atMs / DT_MS) * DT_MS))].sort((a, b) => a - b);
-    let bench = startPoint(vehicle, seed);
+    let bench = startPoint(vehicle, seed, car.changes);
     for (const at of times) {
       while (bench.state.timeMs < at) bench = advance(vehicle, bench, events, Math.min(2, (at - bench.state.timeMs) / DT_MS));
-      const seeked = stateAt(vehicle, seed, events, at, seekRun.snapshots);
+      const seeked = stateAt(vehicle, seed, events, at, seekRun.snapshots, car.changes);
       expect(seeked.state.timeMs).toBe(at);
       expect(seeked).toEqual(bench);
     }

@@ -7,7 +7,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import pg from 'pg';
-import type { InputEvent } from '../../sim/inputs.ts';
+import type { CarInput as InputEvent } from '../../shared/api/attempts.ts';
 import type { AttemptBootstrap, AttemptResult, SubmitInput } from '../../shared/api/attempts.ts';
 import { HttpError } from '../../server/http/errors.ts';
 import { gradeRun, type GradeJob } from '../../server/services/grade-run.ts';
@@ -42,7 +42,7 @@ const LATE: InputEvent[] = [
   { kind: 'pile', atMs: 16_000, dial01: 0.4 },
   { kind: 'pile', atMs: 19_000, dial01: 0 },
 ];
-const SUBMIT: SubmitInput = { atMs: 25_000, readings: [], diagnosis: { faultKind: 'none', verdicts: [], notes: 'healthy' } };
+const SUBMIT: SubmitInput = { atMs: 25_000, diagnosis: { faultKind: 'none', verdicts: [], notes: 'healthy' } };
 
 async function attemptWith(events: InputEvent[]): Promise<number> {
   const res = await agent.post('/api/attempts').send({ scenarioId: scenario, mode: 'practice' }).expect(201);

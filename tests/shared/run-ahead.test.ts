@@ -13,10 +13,11 @@ import type { InputEvent } from '../../sim/inputs.ts';
 import { readMeters } from '../../sim/instruments.ts';
 import { advance, orderEvents, startPoint } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
+import { setupSampleOf } from '../../shared/test-setups.ts';
 import { carryRerun, finishRerun, rerunAttempt, SAMPLE_BYTES, SAMPLE_EVERY_MS, SampleLog, startRerun } from '../../server/services/attempt-replay.ts';
 import { gradeRun, warmUpJob, type GradeJob } from '../../server/services/grade-run.ts';
 import { RunAhead, sameData, type AheadFeed } from '../../server/services/run-ahead.ts';
-import { scenarioFaultEvents } from '../../server/services/live-attempt-run.ts';
+import { compileCar } from '../../sim/compiled-car.ts';
 
 const MB = 1024 * 1024;
 
@@ -62,25 +63,24 @@ const FAULTS: readonly FaultKind[] = ['diode-open', 'belt-slip', 'regulator-set-
 function jobFor(log: InputEvent[], fault: FaultKind, seed: number, tailMs: number, attemptId = 1): GradeJob {
   const job = warmUpJob(60);
   job.definition.faults = [{ id: 'f', kind: fault, severity01: 0.7, onsetS: 0, intermittent: null }];
-  job.events = [...scenarioFaultEvents(job.definition), ...log];
+  job.faults = job.definition.faults;
+  job.car = compileCar(job.definition.vehicle.params, job.definition.faults, job.definition.vehicle.name);
+  job.events = [...log];
   job.seed = seed;
   job.attemptId = attemptId;
   const last = log.at(-1)!.atMs;
-  job.submission = {
-    ...job.submission,
-    atMs: last + tailMs,
-    readings: [
-      { id: 'v', test: 'regulated-voltage', quantity: 'voltage', value: 14.2, unit: 'V', atMs: Math.max(0, last - 500), where: 'battery posts' },
-      { id: 'a', test: 'output', quantity: 'current', value: 40, unit: 'A', atMs: last, where: 'B+ cable' },
-    ],
-  };
+  const tick = (ms: number) => Math.floor(ms / 100) * 100;
+  job.submission = { ...job.submission, atMs: last + tailMs };
+  job.readings = [
+    { id: 'v', test: 'regulated-voltage', quantity: 'voltage', value: 14.2, unit: 'V', atMs: tick(Math.max(0, last - 500)), where: 'battery posts' },
+    { id: 'a', test: 'output', quantity: 'current', value: 40, unit: 'A', atMs: tick(last), where: 'B+ cable' },
+  ];
   return job;
 }
 
 /** The job's log as stored batches (cut at `cuts`), each as the events route sends it ahead. */
 function feedsFor(job: GradeJob, cuts: number[]): AheadFeed[] {
-  const scenarioEvents = scenarioFaultEvents(job.definition);
-  const log = job.events.slice(scenarioEvents.length);
+  const log = job.events;
   const bounds = [...new Set([0, ...cuts.map((c) => c % (log.length + 1)), log.length])].sort((a, b) => a - b);
   const feeds: AheadFeed[] = [];
   for (let i = 0; i + 1 < bounds.length; i++) {
@@ -89,15 +89,17 @@ function feedsFor(job: GradeJob, cuts: number[]): AheadFeed[] {
       attemptId: job.attemptId!,
       seed: job.seed,
       fromSeq: from,
+      toSeq: bounds[i + 1]!,
       // Copied as a worker receives them, so nothing is shared with the job.
       events: structuredClone(log.slice(from, bounds[i + 1])),
-      ...(from === 0 ? { start: structuredClone({ params: job.definition.vehicle.params, scenarioEvents }) } : {}),
+      ...(from === 0 ? { start: structuredClone({ car: job.car }) } : {}),
     });
   }
   return feeds;
 }
 
-const claimOf = (job: GradeJob) => ({ attemptId: job.attemptId!, params: job.definition.vehicle.params, seed: job.seed, events: job.events, atMs: job.submission.atMs });
+const claimOf = (job: GradeJob) => ({ attemptId: job.attemptId!, car: job.car, seed: job.seed, events: job.events, atMs: job.submission.atMs });
+const rerunOf = (job: GradeJob, events: readonly InputEvent[], untilMs: number) => rerunAttempt(job.car.params, job.seed, events, untilMs, job.car.changes);
 
 describe('an attempt run ahead', () => {
   it('gives the samples, end state and grade of a re-run from the start, however its batches and slices fall', () => {
@@ -128,16 +130,14 @@ describe('an attempt run ahead', () => {
           const aheadTo = cursor!.point.state.timeMs;
           // It had got as far as the sample boundary at or before the last event.
           expect(aheadTo).toBe(Math.floor(log.at(-1)!.atMs / SAMPLE_EVERY_MS) * SAMPLE_EVERY_MS);
-          const fromStart = rerunAttempt(job.definition.vehicle.params, job.seed, job.events, job.submission.atMs);
+          const fromStart = rerunOf(job, job.events, job.submission.atMs);
           const carried = finishRerun(cursor!, job.submission.atMs);
           expect(carried.samples).toEqual(fromStart.samples);
           expect(carried.final).toEqual(fromStart.final);
           // The other attempt is still held and is still right.
           const otherCursor = ahead.take(claimOf(other));
           expect(otherCursor).not.toBeNull();
-          expect(finishRerun(otherCursor!, other.submission.atMs).samples).toEqual(
-            rerunAttempt(other.definition.vehicle.params, other.seed, other.events, other.submission.atMs).samples,
-          );
+          expect(finishRerun(otherCursor!, other.submission.atMs).samples).toEqual(rerunOf(other, other.events, other.submission.atMs).samples);
           expect(ahead.stats()).toMatchObject({ attempts: 0, bytes: 0 });
         },
       ),
@@ -186,12 +186,15 @@ describe('an attempt run ahead', () => {
       return ahead;
     };
     const changed = structuredClone(job);
-    (changed.events[3] as { rpm: number }).rpm = 2100; // a logged event (index 3: the fault first) that is not what ran
+    (changed.events[3] as { rpm: number }).rpm = 2100; // a logged event that is not what ran
     expect(runAheadOf(job).take(claimOf(changed))).toBeNull();
     expect(runAheadOf(job).take({ ...claimOf(job), seed: 6 })).toBeNull();
-    const otherCar = structuredClone(job.definition.vehicle.params);
-    otherCar.belt.pulleyRatio += 0.1;
-    expect(runAheadOf(job).take({ ...claimOf(job), params: otherCar })).toBeNull();
+    const otherCar = structuredClone(job.car);
+    otherCar.params.belt.pulleyRatio += 0.1;
+    expect(runAheadOf(job).take({ ...claimOf(job), car: otherCar })).toBeNull();
+    const otherSchedule = structuredClone(job.car);
+    otherSchedule.changes.push({ id: 'c1', onsetS: 5, intermittent: null, ops: [{ path: 'wiring.bplusExtraOhm', op: 'add', value: 0.01 }] });
+    expect(runAheadOf(job).take({ ...claimOf(job), car: otherSchedule })).toBeNull();
     // A later event earlier in sim time than the run had got to.
     expect(runAheadOf(job).take({ ...claimOf(job), events: [...job.events, { kind: 'rpm', atMs: 8000, rpm: 0 }] })).toBeNull();
     // A submission before the point the run reached.
@@ -202,7 +205,7 @@ describe('an attempt run ahead', () => {
     const more = [...job.events, { kind: 'rpm' as const, atMs: 9000, rpm: 0 }, { kind: 'key' as const, atMs: 9500, position: 'off' as const }];
     const cursor = runAheadOf(job).take({ ...claimOf(job), events: more, atMs: 10_000 });
     expect(cursor).not.toBeNull();
-    expect(finishRerun(cursor!, 10_000).samples).toEqual(rerunAttempt(job.definition.vehicle.params, 5, more, 10_000).samples);
+    expect(finishRerun(cursor!, 10_000).samples).toEqual(rerunOf(job, more, 10_000).samples);
   });
 
   it('drops an attempt whose batches leave a gap, go back in sim time or change seed, and starts again from seq 1', () => {
@@ -246,7 +249,7 @@ describe('an attempt run ahead', () => {
       ];
       return jobFor(log, 'belt-slip', id, 0, id);
     };
-    // 6,000 samples of 10 minutes take about 0.4 MB (the log grows by doubling, so a little more is held).
+    // 6,000 samples of 10 minutes take about 0.7 MB (the log grows by doubling, so a little more is held).
     const budget = 1.2 * MB;
     const ahead = new RunAhead(budget);
     for (const id of [1, 2, 3, 4]) {
@@ -285,12 +288,12 @@ describe('the re-run’s samples', () => {
       3,
       40_000,
     );
-    const params = job.definition.vehicle.params;
+    const params = job.car.params;
     const untilMs = job.submission.atMs + 37; // ends between two sample times
-    const { samples } = rerunAttempt(params, job.seed, job.events, untilMs);
+    const { samples } = rerunOf(job, job.events, untilMs);
     // The same moments read straight off the model.
     const ordered = orderEvents(job.events);
-    let point = startPoint(params, job.seed);
+    let point = startPoint(params, job.seed, job.car.changes);
     const direct = [point];
     const total = Math.floor(untilMs / DT_MS);
     for (let done = 0; done < total; ) {
@@ -314,14 +317,16 @@ describe('the re-run’s samples', () => {
         engine: r.engine,
         pileOverheated: r.pileOverheated,
       });
-      expect(s.controls.clamp.conductor).toBe(direct[i]!.state.controls.clamp.conductor);
+      expect(s.setup).toEqual(setupSampleOf(params, direct[i]!.state, r));
       expect(s.linkBurnt).toBe(direct[i]!.state.fusibleLinkBlown);
+      expect(s.linkHeat01).toBe(direct[i]!.state.fusibleLinkHeat01);
+      expect(s.bplusConnected).toBe(direct[i]!.state.controls.bplusConnected);
     });
     // Some of each kind of value: nulls (a meter not connected at 0 ms) and numbers, several engine states, the clamp on and off.
     expect(samples[0]!.readings.clampA).toBeNull();
     expect(samples.some((s) => s.readings.ammeterA !== null)).toBe(true);
     expect(new Set(samples.map((s) => s.readings.engine)).size).toBeGreaterThan(1);
-    expect(new Set(samples.map((s) => s.controls.clamp.conductor))).toEqual(new Set([null, 'bplus-cable']));
+    expect(new Set(samples.map((s) => s.setup.clampOn))).toEqual(new Set([null, 'bplus-cable']));
   });
 
   it('grow past their first capacity and report the memory they hold', () => {

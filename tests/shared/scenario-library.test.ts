@@ -1,6 +1,6 @@
 import { readdirSync, readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { FAULT_KINDS, type FaultKind } from '../../sim/faults.ts';
+import { FAULT_KINDS, faultChange, type FaultKind } from '../../sim/faults.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
 import { outputCurve, readMeters, type OutputCurvePoint } from '../../sim/instruments.ts';
 import { runAttempt } from '../../sim/replay.ts';
@@ -65,7 +65,7 @@ describe('the demo library in scenarios/', () => {
       expect(r.voltmeterV!).toBeGreaterThan(5);
       expect(r.voltmeterV!).toBeLessThan(20);
       expect(Number.isFinite(r.batterySoc01)).toBe(true);
-      for (const curve of [outputCurve(p, [], { hot: false }), outputCurve(p, def.faults, { hot: true })]) {
+      for (const curve of [outputCurve(p, [], { hot: false }), outputCurve(p, def.faults.map((f) => faultChange(f)), { hot: true })]) {
         expect(curve.length).toBeGreaterThan(10);
         expect(curve.every((pt) => Number.isFinite(pt.currentA) && pt.currentA >= 0)).toBe(true);
       }
@@ -92,7 +92,7 @@ describe('the demo library in scenarios/', () => {
       const p = def.vehicle.params;
       const idleAlt = p.engine.idleRpm * p.belt.pulleyRatio;
       const healthy = at(outputCurve(p, [], { hot: false }), idleAlt);
-      const faulted = at(outputCurve(p, def.faults, { hot: false }), idleAlt);
+      const faulted = at(outputCurve(p, def.faults.map((f) => faultChange(f)), { hot: false }), idleAlt);
       expect(faulted, file).toBeLessThan(0.9 * healthy);
     }
   });

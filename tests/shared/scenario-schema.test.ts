@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { FAULT_KINDS } from '../../sim/faults.ts';
+import { FAULT_CATALOG, FAULT_KINDS } from '../../sim/faults.ts';
 import {
   blankScenario,
   defaultPassRules,
@@ -121,10 +121,50 @@ describe('scenario document schema', () => {
   it('knows every fault kind of the model', () => {
     for (const kind of FAULT_KINDS) {
       const doc = blankScenario();
-      doc.faults = [{ id: 'f', kind, severity01: 0.5, onsetS: 0, intermittent: null }];
+      doc.faults = [{ id: 'f', kind, severity01: FAULT_CATALOG[kind].librarySeverity01, onsetS: 0, intermittent: null }];
+      doc.testsExpected = [...FAULT_CATALOG[kind].revealedBy];
       doc.diagnosisChoices = [kind, 'none', kind === 'belt-slip' ? 'diode-open' : 'belt-slip'];
       expect(scenarioSchema.safeParse(doc).success, kind).toBe(true);
     }
+  });
+
+  it('refuses a car whose machine constants do not deliver its nameplate rating, and names the inductance that would', () => {
+    // SAE J56: the rating is the output at the rating's speed, cold, 13.5 V; the editor allows 15 %.
+    const doc = blankScenario();
+    doc.vehicle.params.alternator.synchronousInductanceH /= 2;
+    const r = safeRestoreScenario(doc);
+    expect(r.success).toBe(false);
+    if (r.success) return;
+    const issue = formatIssues(r.error).find((i) => i.path === 'vehicle.params.alternator.ratedCurrentA');
+    expect(issue?.message).toMatch(/deliver \d+ A at 6000 rpm .* synchronous inductance of about \d+ µH/);
+  });
+
+  it('refuses a battery whose resistance does not suit its CCA, and a starter its battery cannot turn at -18 °C', () => {
+    // The CCA definition (7.2 V after 30 s at -18 °C: OEM GM 1999 Chevrolet Prizm) bounds the resistance of a new battery.
+    const weak = blankScenario();
+    weak.vehicle.params.battery.internalResistanceOhmAt25C = 0.02;
+    const a = safeRestoreScenario(weak);
+    expect(a.success).toBe(false);
+    if (!a.success) expect(formatIssues(a.error).map((i) => i.path)).toContain('vehicle.params.battery.internalResistanceOhmAt25C');
+    const hungry = blankScenario();
+    hungry.vehicle.params.engine.crankCurrentA = 400;
+    hungry.vehicle.params.engine.minCrankVoltageV = 10.5;
+    const b = safeRestoreScenario(hungry);
+    expect(b.success).toBe(false);
+    if (!b.success) expect(formatIssues(b.error).find((i) => i.path === 'vehicle.params.engine.crankCurrentA')?.message).toMatch(/cannot start .* −18 °C/);
+  });
+
+  it('refuses running tests on a car that does not start with its faults, and still opens such a version once stored', () => {
+    const doc = blankScenario();
+    doc.faults = [{ id: 'post', kind: 'post-corroded', severity01: 0.6, onsetS: 0, intermittent: null }];
+    doc.diagnosisChoices = ['post-corroded', 'battery-weak', 'none'];
+    doc.testsExpected = ['cranking', 'output'];
+    const r = safeRestoreScenario(doc);
+    expect(r.success).toBe(false);
+    if (!r.success) expect(formatIssues(r.error)).toEqual([{ path: 'testsExpected', message: expect.stringContaining('does not start') }]);
+    expect(restoreScenario(doc).testsExpected).toEqual(['cranking', 'output']);
+    doc.testsExpected = ['cranking', 'battery-load'];
+    expect(safeRestoreScenario(doc).success).toBe(true);
   });
 });
 

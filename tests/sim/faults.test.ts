@@ -38,7 +38,8 @@ describe('fault transforms', () => {
     const p = defaultVehicleParams();
     const q = applyFaults(p, [fault('bplus-high-resistance', { id: 'a', severity01: 0.2 }), fault('bplus-high-resistance', { id: 'b', severity01: 0.4 }), fault('battery-weak')], 0);
     expect(q.wiring.bplusExtraOhm).toBeCloseTo(0.03, 10);
-    expect(q.battery.internalResistanceOhmAt25C).toBeCloseTo(3 * p.battery.internalResistanceOhmAt25C, 10);
+    // battery-weak at its default severity 0.5: resistance x (2.8 + 4 x 0.5).
+    expect(q.battery.internalResistanceOhmAt25C).toBeCloseTo(4.8 * p.battery.internalResistanceOhmAt25C, 10);
   });
 });
 

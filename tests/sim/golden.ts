@@ -544,10 +544,10 @@ export function digestRun(run: GoldenRun): RunDigest {
     h.update(exactJson(b));
   }
 
-  // The output curves for the faults in place at the end.
-  const faults = attempt.final.controls.faults;
-  h.update(exactJson(outputCurve(params, faults, { hot: false })));
-  h.update(exactJson(outputCurve(params, faults, { hot: true })));
+  // The output curves for the changes (faults) in place at the end.
+  const changes = attempt.final.controls.changes;
+  h.update(exactJson(outputCurve(params, changes, { hot: false })));
+  h.update(exactJson(outputCurve(params, changes, { hot: true })));
   return { digest: h.digest('hex'), reached, consistent };
 }
 

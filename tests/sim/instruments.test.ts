@@ -5,6 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import { defaultVehicleParams } from '../../sim/params';
 import { outputCurve, rippleTrace } from '../../sim/instruments';
+import { faultChange } from '../../sim/faults';
 import { Bench, outputTest } from './bench';
 
 const RATED_A = defaultVehicleParams().alternator.ratedCurrentA;
@@ -70,7 +71,7 @@ describe('the output curve of the invented 150 A unit', () => {
 
   it('drops when a lower-rated unit is fitted', () => {
     // Wrong-rating fault (common practice, no source): the fitted unit's own curve.
-    const small = outputCurve(defaultVehicleParams(), [{ id: 'w', kind: 'wrong-rating', severity01: 2 / 3, onsetS: 0 }], { hot: false });
+    const small = outputCurve(defaultVehicleParams(), [faultChange({ id: 'w', kind: 'wrong-rating', severity01: 2 / 3, onsetS: 0 })], { hot: false });
     expect(at(small, 6000)).toBeLessThan(0.75 * at(cold, 6000));
   });
 });

@@ -1,7 +1,7 @@
 /** /attempts/:attemptId/replay — a submitted attempt replayed read-only, with markers and comments. `?at=` opens at a moment (ms). */
 import { useParams, useSearchParams } from 'react-router-dom';
-import type { DiagnosticTest } from '../../../sim/faults.ts';
 import type { ReplayResponse } from '../../../shared/api/replay.ts';
+import { shownWithUnit } from '../../../shared/meter-display.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../../shared/scenario.ts';
 import { ErrorState, PageHeader, Panel, Spinner } from '../../components/ui/states.tsx';
 import { useMe } from '../../features/auth/api/get-me.ts';
@@ -14,17 +14,19 @@ import { useReplayPlayer } from '../../features/replay/hooks/use-replay-player.t
 
 function Player({ replay, initialMs }: { replay: ReplayResponse; initialMs: number }) {
   const a = replay.attempt;
-  const player = useReplayPlayer(replay.vehicle, a.seed, replay.events, a.durationMs, initialMs);
+  const player = useReplayPlayer(replay.car.params, a.seed, replay.events, a.durationMs, initialMs, replay.car.changes);
   return (
     <>
       <PageHeader
         title={`Replay: ${a.scenarioTitle}`}
-        description={`${a.studentName}${a.assignmentTitle ? ` · ${a.assignmentTitle}` : ' · practice'}${a.grade !== null ? ` · grade ${Math.round(a.grade)}` : ''}. The bench re-run from the stored events; nothing here changes the attempt.`}
+        description={`${a.studentName}${a.assignmentTitle ? ` · ${a.assignmentTitle}` : ' · practice'}${a.grade !== null ? ` · grade ${Math.round(a.grade)}` : ''}${
+          a.resultsAt ? ` · results show when the assignment closes, ${new Date(a.resultsAt).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' })}` : ''
+        }. The bench re-run from the stored events as the server graded it; nothing here changes the attempt.`}
       />
       <div className="grid gap-6 lg:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
         <div className="space-y-4">
           <Panel>
-            <ReplayBenchView frame={player.frame} accessories={replay.vehicle.loads.accessories} showFaults />
+            <ReplayBenchView frame={player.frame} accessories={replay.car.params.loads.accessories} faultLabels={replay.faultLabels} changeLabels={replay.changeLabels} />
           </Panel>
           <Panel>
             <ReplayControls player={player} markers={replay.markers} comments={replay.comments} />
@@ -36,16 +38,25 @@ function Player({ replay, initialMs }: { replay: ReplayResponse; initialMs: numb
           </Panel>
           {replay.readings.length > 0 && (
             <Panel title="Readings recorded">
-              <ul className="space-y-1 text-sm">
+              <ul className="space-y-2 text-sm">
                 {replay.readings.map((r) => (
-                  <li key={r.id}>
+                  <li key={r.id} data-testid="replay-reading" data-at-ms={r.atMs}>
                     <button type="button" onClick={() => player.seek(r.atMs)} className="text-left hover:underline">
-                      <span className="font-mono text-live-700">
-                        {r.value} {r.unit}
+                      <span className="font-mono text-live-700" data-testid="replay-reading-value">
+                        {shownWithUnit(r.value, r.unit)}
                       </span>{' '}
-                      <span className="text-slate-700">{DIAGNOSTIC_TEST_LABELS[r.test as DiagnosticTest] ?? 'Reading'}</span>
+                      <span className="text-slate-700">{DIAGNOSTIC_TEST_LABELS[r.test]}</span>
                       {r.where && <span className="block text-xs text-slate-600">{r.where}</span>}
                     </button>
+                    <p className="text-xs text-slate-500">
+                      <span
+                        className={`mr-1 inline-block rounded px-1 py-0.5 font-semibold ${r.evidence ? 'bg-live-50 text-live-700' : r.evidence === false || !r.inSetup ? 'bg-warn-100 text-warn-700' : 'bg-slate-100 text-slate-600'}`}
+                        data-testid="replay-reading-verdict"
+                      >
+                        {r.evidence ? 'Evidence' : r.evidence === false || !r.inSetup ? 'Not evidence' : 'Inside the set-up'}
+                      </span>
+                      {r.reason}
+                    </p>
                   </li>
                 ))}
               </ul>

@@ -1,5 +1,6 @@
 /**
- * The attempt's outbox: every bench event gets the next sequence number, is
+ * The attempt's outbox: every bench event (an input to the car, or a reading
+ * recorded or struck out) gets the next sequence number, is
  * written to storage within `persistEveryMs` and at once on `persistNow` (the
  * bench calls it when the page is hidden or unloaded, so a reload loses
  * nothing; a fast dial drag does not write storage every frame), and is posted in
@@ -9,11 +10,11 @@
  *
  * Pure of the browser: storage, the sender and the timer are passed in.
  */
-import type { InputEvent } from '../../../../sim/inputs.ts';
+import type { LogEvent } from '../../../../shared/api/attempts.ts';
 
 export interface SequencedEvent {
   seq: number;
-  event: InputEvent;
+  event: LogEvent;
 }
 
 export interface OutboxStorage {
@@ -102,7 +103,7 @@ export function mergeForResume(serverEvents: readonly SequencedEvent[], local: r
 }
 
 export interface Outbox {
-  push(event: InputEvent): SequencedEvent;
+  push(event: LogEvent): SequencedEvent;
   /** Post what is waiting now; resolves true when nothing is left. */
   flush(): Promise<boolean>;
   view(): OutboxView;

@@ -1,4 +1,9 @@
-/** The diagnosis: pass or fail for each test run, the fault picked from the scenario's list, then submit. */
+/**
+ * The diagnosis: pass or fail for each test run, the fault picked from the
+ * scenario's list, then submit. With no reading recorded, submitting asks
+ * first: a diagnosis without evidence earns nothing.
+ */
+import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
@@ -23,10 +28,13 @@ export interface DiagnosisValues {
   notes: string;
 }
 
+const when = (iso: string) => new Date(iso).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' });
+
 export function DiagnosisForm({
   tests,
   choices,
   readingCount,
+  resultsAt = null,
   submitting,
   error,
   onSubmit,
@@ -35,6 +43,8 @@ export function DiagnosisForm({
   tests: { test: DiagnosticTest; label: string }[];
   choices: { value: DiagnosisChoice; label: string }[];
   readingCount: number;
+  /** When results show, for an assignment that hides them until it closes. */
+  resultsAt?: string | null;
   submitting: boolean;
   error: string | null;
   onSubmit: (values: DiagnosisValues) => void;
@@ -45,12 +55,17 @@ export function DiagnosisForm({
     defaultValues: { verdicts: Object.fromEntries(tests.map((t) => [t.test, 'skip'])), faultKind: '', notes: '' },
   });
   const { register, handleSubmit, formState } = form;
+  /** Waiting for the student to confirm a submission with no reading recorded. */
+  const [confirming, setConfirming] = useState<DiagnosisValues | null>(null);
   const submit = handleSubmit((v) => {
     const verdicts = tests.flatMap((t) => {
       const given = v.verdicts[t.test];
       return given === 'pass' || given === 'fail' ? [{ test: t.test, pass: given === 'pass' }] : [];
     });
-    onSubmit({ verdicts, faultKind: v.faultKind as DiagnosisChoice, notes: v.notes });
+    const values = { verdicts, faultKind: v.faultKind as DiagnosisChoice, notes: v.notes };
+    // An ungraded try-out has nothing to lose: only a graded submission asks first.
+    if (readingCount === 0 && submitLabel === 'Submit diagnosis') setConfirming(values);
+    else onSubmit(values);
   });
   return (
     <form onSubmit={submit} className="space-y-4" aria-label="Diagnosis">
@@ -96,14 +111,40 @@ export function DiagnosisForm({
           {error}
         </p>
       )}
-      <div className="flex items-center gap-3">
-        <Button type="submit" disabled={submitting}>
-          {submitting ? 'Submitting…' : submitLabel}
-        </Button>
-        <span className="text-xs text-slate-500">
-          {readingCount} reading{readingCount === 1 ? '' : 's'} recorded.{submitLabel === 'Submit diagnosis' ? ' Submitting ends the attempt.' : ''}
-        </span>
-      </div>
+      {confirming ? (
+        <div role="alertdialog" aria-labelledby="no-readings-title" className="space-y-2 rounded-md bg-warn-100 px-3 py-3 text-sm text-warn-700" data-testid="confirm-no-readings">
+          <p id="no-readings-title" className="font-medium">
+            You have recorded no readings. A diagnosis without readings taken inside each test’s set-up earns nothing. Submit anyway?
+          </p>
+          <div className="flex gap-2">
+            <Button
+              type="button"
+              variant="secondary"
+              disabled={submitting}
+              onClick={() => {
+                const values = confirming;
+                setConfirming(null);
+                onSubmit(values);
+              }}
+            >
+              Submit without readings
+            </Button>
+            <Button type="button" variant="ghost" onClick={() => setConfirming(null)}>
+              Back to the bench
+            </Button>
+          </div>
+        </div>
+      ) : (
+        <div className="flex flex-wrap items-center gap-3">
+          <Button type="submit" disabled={submitting}>
+            {submitting ? 'Submitting…' : submitLabel}
+          </Button>
+          <span className="text-xs text-slate-500">
+            {readingCount} reading{readingCount === 1 ? '' : 's'} recorded.{submitLabel === 'Submit diagnosis' ? ' Submitting ends the attempt.' : ''}
+            {resultsAt ? ` Results show when the assignment closes, ${when(resultsAt)}.` : ''}
+          </span>
+        </div>
+      )}
     </form>
   );
 }

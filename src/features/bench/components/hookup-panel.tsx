@@ -12,7 +12,8 @@ import { useBenchUi } from '../stores/bench-ui-store.ts';
 import { shallowEqual, useBench, useBenchDispatch } from '../hooks/use-bench.ts';
 import { CONDUCTOR_LABELS, POINT_LABELS } from '../../../components/schematic/layout.ts';
 
-const selectHookup = (s: { controls: Controls }) => ({
+const selectHookup = (s: { controls: Controls; readings: { ammeterFuseBlown: boolean } }) => ({
+  fuseBlown: s.readings.ammeterFuseBlown,
   red: s.controls.leads.red,
   black: s.controls.leads.black,
   conductor: s.controls.clamp.conductor,
@@ -79,6 +80,11 @@ export function HookupPanel() {
         <Button variant="secondary" size="sm" aria-pressed={h.ammeter} onClick={() => dispatch(benchActions.fitAmmeter(!h.ammeter))}>
           {h.ammeter ? 'Remove series ammeter' : 'Fit series ammeter at battery −'}
         </Button>
+        {h.fuseBlown && (
+          <Button variant="secondary" size="sm" onClick={() => dispatch(benchActions.replaceAmmeterFuse())}>
+            Fit a new fuse in the ammeter
+          </Button>
+        )}
         <Button variant="secondary" size="sm" aria-pressed={!h.bplus} onClick={() => dispatch(benchActions.connectBplus(!h.bplus))}>
           {h.bplus ? 'Remove B+ lead at the stud' : 'Refit B+ lead'}
         </Button>

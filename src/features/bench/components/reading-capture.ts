@@ -1,11 +1,14 @@
 /**
- * Turning the meters into a recorded reading: the quantity a test usually
- * records, its value as the strip shows it, and words for where it was taken.
+ * Turning the meters into a recorded reading: the quantity each test reads
+ * (its set-up's, shared/test-setups.ts), its value exactly as the strip shows
+ * it (shared/meter-display.ts), and words for where it was taken.
  */
 import type { DiagnosticTest } from '../../../../sim/faults.ts';
 import type { Controls } from '../../../../sim/inputs.ts';
 import type { Readings } from '../../../../sim/instruments.ts';
-import type { ReadingQuantity, RecordedReading } from '../../../../shared/api/attempts.ts';
+import type { ReadingQuantity } from '../../../../shared/api/attempts.ts';
+import { meterShows, type MeterShown } from '../../../../shared/meter-display.ts';
+import { TEST_SETUPS, type SetupStatus } from '../../../../shared/test-setups.ts';
 import { CONDUCTOR_WORDS, POINT_WORDS } from '../../../components/schematic/layout.ts';
 
 export const QUANTITY_LABELS: Record<ReadingQuantity, string> = {
@@ -16,34 +19,21 @@ export const QUANTITY_LABELS: Record<ReadingQuantity, string> = {
   draw: 'Key-off draw (series ammeter)',
 };
 
-export const DEFAULT_QUANTITY: Record<DiagnosticTest, ReadingQuantity> = {
-  'battery-ocv': 'voltage',
-  'battery-load': 'voltage',
-  'regulated-voltage': 'voltage',
-  output: 'current',
-  'voltage-drop-positive': 'voltage',
-  'voltage-drop-ground': 'voltage',
-  ripple: 'ripple',
-  'key-off-draw': 'draw',
-  cranking: 'voltage',
-};
+/** The quantity each test's reading is. */
+export const TEST_QUANTITY: Record<DiagnosticTest, ReadingQuantity> = Object.fromEntries(
+  Object.values(TEST_SETUPS).map((s) => [s.test, s.quantity]),
+) as Record<DiagnosticTest, ReadingQuantity>;
 
-const round = (x: number, decimals: number) => Number(x.toFixed(decimals));
-
-/** The meter's value for a quantity, rounded as displayed, or null when that meter gives no reading. */
-export function meterValue(quantity: ReadingQuantity, r: Readings): { value: number; unit: RecordedReading['unit'] } | null {
-  switch (quantity) {
-    case 'voltage':
-      return r.voltmeterV === null ? null : { value: round(r.voltmeterV, 2), unit: 'V' };
-    case 'current':
-      return r.clampA === null ? null : { value: round(r.clampA, Math.abs(r.clampA) < 100 ? 1 : 0), unit: 'A' };
-    case 'ripple':
-      return r.rippleVac === null ? null : { value: Math.round(r.rippleVac * 1000), unit: 'mV' };
-    case 'rpm':
-      return { value: Math.round(r.tachRpm / 10) * 10, unit: 'rpm' };
-    case 'draw':
-      return r.ammeterA === null ? null : { value: round(r.ammeterA * 1000, 1), unit: 'mA' };
+/**
+ * What a test's reading would record now: the meter's value as displayed, or
+ * for the cranking test the lowest voltage shown during the last crank (the
+ * meter's min hold). Null when that meter gives no reading.
+ */
+export function valueToRecord(test: DiagnosticTest, r: Readings, setup: SetupStatus): MeterShown | null {
+  if (TEST_SETUPS[test].reading === 'crank-minimum') {
+    return setup.crankMinV === null ? null : { value: setup.crankMinV, unit: 'V', text: setup.crankMinV.toFixed(2) };
   }
+  return meterShows(TEST_QUANTITY[test], r);
 }
 
 /** Words for the hook-up at the moment of a reading (names, never the model's codes). */
@@ -63,12 +53,3 @@ export function describeSetup(c: Controls, r: Readings, accessories: readonly { 
   return parts.join('; ').slice(0, 200);
 }
 
-/** A recorded reading plus what the bench keeps for its own plot. */
-export interface LocalReading extends RecordedReading {
-  /** Engine speed at the moment (for the output curve). */
-  tachRpm: number;
-}
-
-export function toRecorded(r: LocalReading): RecordedReading {
-  return { id: r.id, test: r.test, quantity: r.quantity, value: r.value, unit: r.unit, atMs: r.atMs, where: r.where };
-}

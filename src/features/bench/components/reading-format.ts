@@ -1,53 +1,42 @@
 /**
- * How the reading strip writes numbers: fixed decimals per quantity so digits
- * do not jump, a minus sign that is a real minus, and a dash for "no reading".
+ * How the reading strip writes numbers: the rounding of shared/meter-display.ts
+ * (the same as a recorded reading's and the grader's), fixed decimals per
+ * quantity so digits do not jump, a real minus sign, and a dash for "no reading".
  */
 
-export const NO_READING = '—';
+import { NO_READING, showAmps, showDraw, showRipple, showRpm, showVolts, type MeterShown } from '../../../../shared/meter-display.ts';
+
+export { NO_READING };
 
 const MINUS = '\u2212';
 
-function fixed(value: number, decimals: number): string {
-  const rounded = Number(value.toFixed(decimals));
-  // -0.00 reads as 0.00.
-  const v = Object.is(rounded, -0) || rounded === 0 ? 0 : rounded;
-  const text = Math.abs(v).toFixed(decimals);
-  return v < 0 ? `${MINUS}${text}` : text;
-}
-
-function grouped(value: number): string {
-  const v = Math.round(value);
-  const text = Math.abs(v).toLocaleString('en-US');
-  return v < 0 ? `${MINUS}${text}` : text;
-}
+const text = (shown: MeterShown | null) => (shown ? shown.text : NO_READING);
 
 /** DC volts: two decimals (a 0.05 V drop must be visible). */
 export function formatVolts(v: number | null): string {
-  return v === null || !Number.isFinite(v) ? NO_READING : fixed(v, 2);
+  return text(showVolts(v));
 }
 
 /** Amps: one decimal below 100 A, whole amps above. */
 export function formatAmps(a: number | null): string {
-  if (a === null || !Number.isFinite(a)) return NO_READING;
-  return Math.abs(a) < 100 ? fixed(a, 1) : fixed(a, 0);
+  return text(showAmps(a));
 }
 
+/** A tachometer reads in steps of 10 and shows 0 at rest. */
 export function formatRpm(rpm: number | null): string {
-  if (rpm === null || !Number.isFinite(rpm)) return NO_READING;
-  // A tachometer reads in steps of 10 and shows 0 at rest.
-  return grouped(Math.round(rpm / 10) * 10);
+  return text(showRpm(rpm));
 }
 
 /** AC ripple in millivolts (the reading is volts rms). */
 export function formatRippleMv(vac: number | null): string {
-  if (vac === null || !Number.isFinite(vac)) return NO_READING;
-  return grouped(Math.abs(vac) * 1000);
+  return text(showRipple(vac));
 }
 
-/** Key-off draw in milliamps (the series ammeter reads amps). */
+/** Key-off draw in milliamps (the series ammeter reads amps); amps with their unit from 10 A. */
 export function formatDrawMa(a: number | null): string {
-  if (a === null || !Number.isFinite(a)) return NO_READING;
-  return Math.abs(a) < 10 ? fixed(a * 1000, 0) : `${fixed(a, 1)} A`;
+  const shown = showDraw(a);
+  if (!shown) return NO_READING;
+  return shown.unit === 'A' ? `${shown.text} A` : shown.text;
 }
 
 /** Units as written beside each readout. */

@@ -1,8 +1,12 @@
 /**
- * Recording readings: the record bar takes the test from the procedure in
- * view and the quantity that test usually records (both can be changed), and
- * "Record" writes down what the meter shows now, with the sim time and the
- * hook-up in words. The list can be pruned before submitting.
+ * Recording readings in one action. The record bar takes the test from the
+ * procedure in view and reads the meter that test's set-up names
+ * (shared/test-setups.ts): "Record this reading" writes down what that meter
+ * shows at this display tick; the student can pick another test, and with it
+ * another meter. A line says whether the test's set-up holds now and, if not,
+ * what is missing (the same check the grader makes): a reading taken outside
+ * its set-up is kept, marked with the reason, and earns nothing. Each reading
+ * goes into the attempt's log and shows "saved" once the server has stored it.
  */
 import { useEffect } from 'react';
 import { useForm } from 'react-hook-form';
@@ -10,16 +14,17 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
 import type { DiagnosticTest } from '../../../../sim/faults.ts';
 import type { AccessoryParams } from '../../../../sim/params.ts';
-import { readingQuantitySchema, type ReadingQuantity } from '../../../../shared/api/attempts.ts';
+import { MAX_READINGS, type RecordedReading } from '../../../../shared/api/attempts.ts';
+import { shownWithUnit } from '../../../../shared/meter-display.ts';
 import { diagnosticTestSchema } from '../../../../shared/scenario.ts';
 import { Button } from '../../../components/ui/button.tsx';
-import { useBenchEngine } from '../hooks/use-bench.ts';
-import { DEFAULT_QUANTITY, describeSetup, meterValue, type LocalReading } from './reading-capture.ts';
+import { useBench, useBenchEngine } from '../hooks/use-bench.ts';
+import type { LoggedReading } from '../hooks/use-bench-session.ts';
+import { QUANTITY_LABELS, TEST_QUANTITY, describeSetup, valueToRecord } from './reading-capture.ts';
 import { SHORT_TEST_NAMES, useOpenTest } from './procedure-panel.tsx';
 
 const recordFormSchema = z.object({
   test: diagnosticTestSchema,
-  quantity: readingQuantitySchema,
   note: z.string().max(120, 'Keep the note under 120 characters'),
 });
 type RecordForm = z.infer<typeof recordFormSchema>;
@@ -30,86 +35,96 @@ function newId(): string {
 
 export const formatClock = (ms: number) => `${String(Math.floor(ms / 60_000)).padStart(2, '0')}:${String(Math.floor((ms % 60_000) / 1000)).padStart(2, '0')}`;
 
-/** Short names for the record bar's narrow list. */
-const QUANTITY_SHORT: Record<ReadingQuantity, string> = {
-  voltage: 'Volts DC',
-  current: 'Amps (clamp)',
-  ripple: 'Ripple AC',
-  rpm: 'Engine rpm',
-  draw: 'Draw (ammeter)',
-};
-
 const selectClass = 'block w-full min-w-0 rounded-md border-0 bg-white py-1.5 pl-2 pr-7 text-sm text-slate-900 ring-1 ring-slate-300 focus:ring-2 focus:ring-live-500 aria-[invalid=true]:ring-stop-600';
+
+/** Whether the chosen test's set-up holds at this display tick, and what is missing: one short line. */
+export function SetupStatusLine({ test }: { test: DiagnosticTest }) {
+  const status = useBench(
+    (s) => s.display.setups[test],
+    (a, b) => a.holds === b.holds && a.unmet.join('|') === b.unmet.join('|'),
+  );
+  if (status.holds) {
+    return (
+      <p data-testid="setup-status" className="col-span-2 text-xs font-medium text-live-700">
+        Set-up holds: this reading counts as evidence.
+      </p>
+    );
+  }
+  return (
+    <p data-testid="setup-status" className="col-span-2 text-xs text-warn-700" title={status.unmet.join('; ')}>
+      <span className="font-semibold">Not the set-up yet</span> (a reading now earns nothing): {status.unmet.join('; ')}
+    </p>
+  );
+}
 
 export function RecordBar({
   tests,
   accessories,
-  onAdd,
+  readingCount,
+  onRecord,
   disabled,
 }: {
   tests: { test: DiagnosticTest; label: string }[];
   accessories: readonly AccessoryParams[];
-  onAdd: (r: LocalReading) => void;
+  readingCount: number;
+  onRecord: (r: RecordedReading) => void;
   disabled?: boolean;
 }) {
   const engine = useBenchEngine();
   const procedure = useOpenTest(tests.map((t) => t.test));
   const form = useForm<RecordForm>({
     resolver: zodResolver(recordFormSchema),
-    defaultValues: { test: procedure, quantity: DEFAULT_QUANTITY[procedure], note: '' },
+    defaultValues: { test: procedure, note: '' },
   });
-  const { register, handleSubmit, setValue, setError, formState } = form;
+  const { register, handleSubmit, setValue, setError, formState, watch } = form;
+  const test = watch('test');
 
   // Follow the procedure tab the student has open.
   useEffect(() => {
     setValue('test', procedure);
-    setValue('quantity', DEFAULT_QUANTITY[procedure]);
   }, [procedure, setValue]);
 
   const record = handleSubmit((values) => {
-    const { atMs, readings: meters } = engine.readNow();
-    const taken = meterValue(values.quantity, meters);
+    const { atMs, readings: meters, setups } = engine.readNow();
+    const taken = valueToRecord(values.test, meters, setups[values.test]);
     if (!taken) {
-      setError('quantity', { message: 'That meter shows no reading now: check the hook-up.' });
+      setError('test', { message: values.test === 'cranking' ? 'No crank yet: crank the engine with the leads on the battery posts.' : 'That meter shows no reading now: check the hook-up.' });
+      return;
+    }
+    if (readingCount >= MAX_READINGS) {
+      setError('test', { message: `At most ${MAX_READINGS} readings: remove one first.` });
       return;
     }
     const setup = describeSetup(engine.getSnapshot().controls, meters, accessories);
-    onAdd({
+    onRecord({
       id: newId(),
       test: values.test,
-      quantity: values.quantity,
+      quantity: TEST_QUANTITY[values.test],
       value: taken.value,
       unit: taken.unit,
       atMs,
       where: (values.note ? `${values.note} — ${setup}` : setup).slice(0, 200),
-      tachRpm: meters.tachRpm,
     });
     setValue('note', '');
   });
 
-  const error = formState.errors.quantity?.message ?? formState.errors.note?.message;
+  const error = formState.errors.test?.message ?? formState.errors.note?.message;
   return (
     <form onSubmit={record} aria-label="Record a reading" className="grid grid-cols-2 gap-1.5" noValidate>
       <label className="sr-only" htmlFor="record-test">
         Test
       </label>
-      <select id="record-test" {...register('test')} className={selectClass}>
+      <select id="record-test" {...register('test')} aria-invalid={formState.errors.test ? true : undefined} aria-describedby={error ? 'record-error' : undefined} className={selectClass}>
         {tests.map((t) => (
           <option key={t.test} value={t.test}>
             {SHORT_TEST_NAMES[t.test]}
           </option>
         ))}
       </select>
-      <label className="sr-only" htmlFor="record-quantity">
-        What was measured
-      </label>
-      <select id="record-quantity" {...register('quantity')} aria-invalid={formState.errors.quantity ? true : undefined} aria-describedby={error ? 'record-error' : undefined} className={selectClass}>
-        {(Object.keys(QUANTITY_SHORT) as (keyof typeof QUANTITY_SHORT)[]).map((q) => (
-          <option key={q} value={q}>
-            {QUANTITY_SHORT[q]}
-          </option>
-        ))}
-      </select>
+      <p className="self-center truncate text-xs text-slate-600" data-testid="record-reads">
+        Reads: {QUANTITY_LABELS[TEST_QUANTITY[test] ?? 'voltage']}
+      </p>
+      <SetupStatusLine test={test} />
       <label className="sr-only" htmlFor="record-note">
         Note (optional)
       </label>
@@ -133,28 +148,36 @@ export function ReadingsList({
   readings,
   onRemove,
   disabled,
+  showSaved = true,
 }: {
   tests: { test: DiagnosticTest; label: string }[];
-  readings: LocalReading[];
+  readings: readonly LoggedReading[];
   onRemove: (id: string) => void;
   disabled?: boolean;
+  /** Whether each reading says if the server has stored it (a try-out stores nothing). */
+  showSaved?: boolean;
 }) {
   if (readings.length === 0) return <p className="text-sm text-slate-600">No readings recorded yet. Set up a test, then press “Record this reading” below.</p>;
   return (
     <ul className="divide-y divide-slate-100 text-sm" aria-label="Recorded readings">
-      {readings.map((r) => (
+      {readings.map(({ reading: r, stored }) => (
         <li key={r.id} data-testid="recorded-reading" className="flex items-start gap-2 py-2">
           <span className="w-11 shrink-0 pt-0.5 font-mono text-xs text-slate-600">{formatClock(r.atMs)}</span>
           <span className="min-w-0 flex-1">
             <span className="flex flex-wrap items-baseline gap-x-2">
-              <span className="whitespace-nowrap font-mono font-semibold text-slate-900">
-                {r.value} {r.unit}
+              <span className="whitespace-nowrap font-mono font-semibold text-slate-900" data-testid="recorded-value">
+                {shownWithUnit(r.value, r.unit)}
               </span>
               <span className="text-slate-700">{tests.find((t) => t.test === r.test)?.label ?? SHORT_TEST_NAMES[r.test]}</span>
+              {showSaved && (
+                <span className="text-xs text-slate-600" data-testid="reading-saved">
+                  {stored ? 'saved' : 'saving…'}
+                </span>
+              )}
             </span>
             <span className="block text-xs text-slate-600">{r.where}</span>
           </span>
-          <Button variant="ghost" size="sm" disabled={disabled} onClick={() => onRemove(r.id)} aria-label={`Remove reading ${r.value} ${r.unit}`}>
+          <Button variant="ghost" size="sm" disabled={disabled} onClick={() => onRemove(r.id)} aria-label={`Remove reading ${shownWithUnit(r.value, r.unit)}`}>
             Remove
           </Button>
         </li>

@@ -5,17 +5,17 @@
  * scenario's faults on the spot.
  */
 import { useEffect, useMemo, useState } from 'react';
+import { compileCar } from '../../../../sim/compiled-car.ts';
 import { FAULT_CATALOG } from '../../../../sim/faults.ts';
 import { outputCurve } from '../../../../sim/instruments.ts';
-import { benchScenarioView } from '../../../../shared/api/attempts.ts';
+import { benchScenarioView, type RecordedReading } from '../../../../shared/api/attempts.ts';
 import { diagnosisLabel, type ScenarioDefinition } from '../../../../shared/scenario.ts';
 import { Button } from '../../../components/ui/button.tsx';
-import { faultEvents } from '../hooks/use-bench-session.ts';
+import type { LoggedReading } from '../hooks/use-bench-session.ts';
 import { createBenchEngine } from '../stores/bench-engine.ts';
 import { BenchWorkspace } from './bench-workspace.tsx';
 import { DiagnosisForm, type DiagnosisValues } from './diagnosis-form.tsx';
 import { OutputCurveChart } from './output-curve-chart.tsx';
-import type { LocalReading } from './reading-capture.ts';
 import { ReadingsList, RecordBar } from './readings-panel.tsx';
 
 function TryOutVerdict({ definition, diagnosis, onAgain }: { definition: ScenarioDefinition; diagnosis: DiagnosisValues; onAgain: () => void }) {
@@ -40,22 +40,19 @@ function TryOutVerdict({ definition, diagnosis, onAgain }: { definition: Scenari
 export function TryOutBench({ definition, versionLabel }: { definition: ScenarioDefinition; versionLabel: string }) {
   const view = useMemo(() => benchScenarioView(definition), [definition]);
   const [seed] = useState(() => Math.floor(Math.random() * 2 ** 31));
-  const engine = useMemo(
-    () =>
-      createBenchEngine({
-        params: definition.vehicle.params,
-        seed,
-        scenarioEvents: faultEvents(definition.faults.map((f) => ({ ...f, intermittent: f.intermittent ?? null }))),
-      }),
-    [definition, seed],
-  );
+  // The car as a student's bench gets it: the faults compiled into it, never listed.
+  const car = useMemo(() => compileCar(definition.vehicle.params, definition.faults, definition.vehicle.name), [definition]);
+  const engine = useMemo(() => createBenchEngine({ params: car.params, seed, changes: car.changes }), [car, seed]);
   useEffect(() => {
     engine.start();
     return () => engine.stop();
   }, [engine]);
-  const [readings, setReadings] = useState<LocalReading[]>([]);
+  /** The readings taken here, each with the engine speed at the time (for the output curve); kept in this page only. */
+  const [readings, setReadings] = useState<{ logged: LoggedReading; tachRpm: number }[]>([]);
+  const record = (reading: RecordedReading) =>
+    setReadings((xs) => [...xs, { logged: { reading, seq: xs.length + 1, stored: false }, tachRpm: engine.readNow().readings.tachRpm }]);
   const [diagnosis, setDiagnosis] = useState<DiagnosisValues | null>(null);
-  const curve = useMemo(() => outputCurve(definition.vehicle.params, definition.faults, { hot: false }), [definition]);
+  const curve = useMemo(() => outputCurve(car.params, car.changes, { hot: false }), [car]);
   const pulley = definition.vehicle.params.belt.pulleyRatio;
   return (
     <BenchWorkspace
@@ -69,8 +66,10 @@ export function TryOutBench({ definition, versionLabel }: { definition: Scenario
         </span>
       }
       readingCount={readings.length}
-      readings={<ReadingsList tests={view.tests} readings={readings} onRemove={(id) => setReadings((xs) => xs.filter((r) => r.id !== id))} />}
-      recordBar={<RecordBar tests={view.tests} accessories={definition.vehicle.params.loads.accessories} onAdd={(r) => setReadings((xs) => [...xs, r])} />}
+      readings={
+        <ReadingsList tests={view.tests} readings={readings.map((r) => r.logged)} showSaved={false} onRemove={(id) => setReadings((xs) => xs.filter((r) => r.logged.reading.id !== id))} />
+      }
+      recordBar={<RecordBar tests={view.tests} accessories={definition.vehicle.params.loads.accessories} readingCount={readings.length} onRecord={record} />}
       charts={
         <section aria-labelledby="try-curve-heading">
           <h3 id="try-curve-heading" className="text-sm font-semibold text-slate-900">
@@ -78,7 +77,7 @@ export function TryOutBench({ definition, versionLabel }: { definition: Scenario
           </h3>
           <OutputCurveChart
             fitted={curve}
-            measured={readings.filter((r) => r.test === 'output' && r.quantity === 'current').map((r) => ({ altRpm: r.tachRpm * pulley, currentA: r.value }))}
+            measured={readings.filter((r) => r.logged.reading.test === 'output').map((r) => ({ altRpm: r.tachRpm * pulley, currentA: r.logged.reading.value }))}
             ratedA={view.vehicle.alternatorRatedA}
           />
         </section>

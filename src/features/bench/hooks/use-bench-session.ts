@@ -1,25 +1,42 @@
 /**
- * One running bench for one attempt: opens the sealed faults, rebuilds the
- * state from the server's events plus any this browser had not sent yet,
- * starts the model loop and the outbox, and tears both down on leave.
+ * One running bench for one attempt: rebuilds the state from the server's
+ * log plus any events this browser had not sent yet, on the compiled car the
+ * bootstrap carries, starts the model loop, the outbox and the one
+ * live-injection listener, and tears them down on leave. Readings are events
+ * of the log like the car's inputs: recorded here, stored by the server as
+ * they are sent, so another device or a reload shows them.
  */
 import { useEffect, useState, useSyncExternalStore } from 'react';
-import type { Fault } from '../../../../sim/faults.ts';
 import type { InputEvent } from '../../../../sim/inputs.ts';
 import type { VehicleParams } from '../../../../sim/params.ts';
-import type { AttemptBootstrap } from '../../../../shared/api/attempts.ts';
-import { unsealEvents, unsealFaults, unsealVehicle } from '../../../../shared/sealed-faults.ts';
-import { createOutbox, mergeForResume, readPersisted, type Outbox, type OutboxView } from '../api/event-outbox.ts';
+import { modelEvents, type AttemptBootstrap, type LogEvent, type RecordedReading } from '../../../../shared/api/attempts.ts';
+import { createOutbox, mergeForResume, readPersisted, type Outbox, type OutboxView, type SequencedEvent } from '../api/event-outbox.ts';
 import { postEvents } from '../api/post-events.ts';
 import { startClockReports } from '../api/report-clock.ts';
 import { createBenchEngine, type BenchEngine } from '../stores/bench-engine.ts';
 import { connectLiveInjections } from '../live/live-injections.ts';
 
+/** A recorded reading with its place in the log and whether the server has stored it. */
+export interface LoggedReading {
+  reading: RecordedReading;
+  seq: number;
+  stored: boolean;
+}
+
+export interface ReadingsLog {
+  /** The readings kept (recorded and not struck out), in the order recorded. */
+  list(): readonly LoggedReading[];
+  subscribe(listener: () => void): () => void;
+  /** Logs a reading at the bench's current sim time. */
+  record(reading: RecordedReading): void;
+  remove(id: string): void;
+}
+
 export interface BenchSession {
   engine: BenchEngine;
   outbox: Outbox;
-  faults: Fault[];
-  /** The car the model runs: the bootstrap's, or the sealed one when the scenario sets fault-like values directly. */
+  readings: ReadingsLog;
+  /** The car the model runs. */
   vehicle: VehicleParams;
 }
 
@@ -28,7 +45,46 @@ const browserTimer = {
   clear: (h: unknown) => window.clearTimeout(h as number),
 };
 
-export const faultEvents = (faults: readonly Fault[]): InputEvent[] => faults.map((fault) => ({ kind: 'fault-inject', atMs: 0, fault }));
+/** The readings of a log, kept as they are recorded and struck out; stored once the server has the seq. */
+export function createReadingsLog(initial: readonly SequencedEvent[], outbox: Pick<Outbox, 'push' | 'view' | 'subscribe'>, nowMs: () => number): ReadingsLog {
+  const kept = new Map<string, { reading: RecordedReading; seq: number }>();
+  const take = (e: SequencedEvent) => {
+    if (e.event.kind === 'reading') kept.set(e.event.reading.id, { reading: e.event.reading, seq: e.seq });
+    else if (e.event.kind === 'reading-remove') kept.delete(e.event.readingId);
+  };
+  for (const e of initial) take(e);
+  const listeners = new Set<() => void>();
+  let cache: { acked: number; version: number; list: LoggedReading[] } | null = null;
+  let version = 0;
+  const changed = () => {
+    version++;
+    for (const l of [...listeners]) l();
+  };
+  outbox.subscribe(changed);
+  const log = (event: LogEvent) => {
+    take(outbox.push(event));
+    changed();
+  };
+  return {
+    list() {
+      const acked = outbox.view().ackedSeq;
+      if (cache && cache.acked === acked && cache.version === version) return cache.list;
+      const list = [...kept.values()].map((k) => ({ ...k, stored: k.seq <= acked }));
+      cache = { acked, version, list };
+      return list;
+    },
+    subscribe(listener) {
+      listeners.add(listener);
+      return () => listeners.delete(listener);
+    },
+    record(reading) {
+      log({ kind: 'reading', atMs: nowMs(), reading });
+    },
+    remove(id) {
+      if (kept.has(id)) log({ kind: 'reading-remove', atMs: nowMs(), readingId: id });
+    },
+  };
+}
 
 export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { session: BenchSession | null; error: Error | null } {
   const [session, setSession] = useState<BenchSession | null>(null);
@@ -37,7 +93,6 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
 
   useEffect(() => {
     if (!enabled) return;
-    let cancelled = false;
     let built: BenchSession | null = null;
     let stopLive: (() => void) | null = null;
     let stopClock: (() => void) | null = null;
@@ -47,48 +102,40 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
       if (document.visibilityState === 'hidden') saveTime();
     };
 
-    void (async () => {
-      try {
-        const [faults, vehicle, loggedFaultEvents] = await Promise.all([
-          unsealFaults(boot.sealedFaults, boot.benchKey),
-          boot.sealedVehicle ? unsealVehicle(boot.sealedVehicle, boot.benchKey) : Promise.resolve(boot.vehicle),
-          boot.sealedEvents ? unsealEvents(boot.sealedEvents, boot.benchKey) : Promise.resolve([]),
-        ]);
-        if (cancelled) return;
-        const local = readPersisted(window.localStorage, attemptId);
-        const { events } = mergeForResume([...boot.events, ...loggedFaultEvents], local.pending);
-        const outbox = createOutbox({
-          attemptId,
-          storage: window.localStorage,
-          timer: browserTimer,
-          serverSeq: boot.attempt.lastSeq,
-          send: (batch) => postEvents(attemptId, batch),
-        });
-        const engine = createBenchEngine({
-          params: vehicle,
-          seed: boot.attempt.seed,
-          scenarioEvents: faultEvents(faults),
-          studentEvents: events.map((e) => e.event),
-          resumeAtMs: local.simTimeMs,
-          onEvent: (event) => outbox.push(event),
-        });
-        built = { engine, outbox, faults, vehicle };
-        engine.start();
-        // Instructors' live faults arrive on the attempt's stream and go through the dispatcher.
-        stopLive = connectLiveInjections({ attemptId, benchKey: boot.benchKey, engine });
-        outbox.start();
-        stopClock = startClockReports(attemptId, engine, outbox);
-        saveTimer = window.setInterval(saveTime, 1000);
-        window.addEventListener('pagehide', saveTime);
-        document.addEventListener('visibilitychange', onHidden);
-        setSession(built);
-      } catch (err) {
-        if (!cancelled) setError(err instanceof Error ? err : new Error(String(err)));
-      }
-    })();
+    try {
+      const local = readPersisted(window.localStorage, attemptId);
+      const { events } = mergeForResume(boot.events, local.pending);
+      const outbox = createOutbox({
+        attemptId,
+        storage: window.localStorage,
+        timer: browserTimer,
+        serverSeq: boot.attempt.lastSeq,
+        send: (batch) => postEvents(attemptId, batch),
+      });
+      const engine = createBenchEngine({
+        params: boot.car.params,
+        seed: boot.attempt.seed,
+        changes: boot.car.changes,
+        studentEvents: modelEvents(events.map((e) => e.event)) as InputEvent[],
+        resumeAtMs: Math.max(local.simTimeMs, ...events.map((e) => e.event.atMs)),
+        onEvent: (event) => void outbox.push(event as LogEvent),
+      });
+      const readings = createReadingsLog(events, outbox, () => engine.getSnapshot().timeMs);
+      built = { engine, outbox, readings, vehicle: boot.car.params };
+      engine.start();
+      // The one listener for the instructor's live injections: they go through the dispatcher like any input.
+      stopLive = connectLiveInjections({ attemptId, engine });
+      outbox.start();
+      stopClock = startClockReports(attemptId, engine, outbox);
+      saveTimer = window.setInterval(saveTime, 1000);
+      window.addEventListener('pagehide', saveTime);
+      document.addEventListener('visibilitychange', onHidden);
+      setSession(built);
+    } catch (err) {
+      setError(err instanceof Error ? err : new Error(String(err)));
+    }
 
     return () => {
-      cancelled = true;
       window.clearInterval(saveTimer);
       window.removeEventListener('pagehide', saveTime);
       document.removeEventListener('visibilitychange', onHidden);
@@ -109,4 +156,9 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
 /** The outbox's state for the connection indicator. */
 export function useOutboxView(outbox: Outbox): OutboxView {
   return useSyncExternalStore(outbox.subscribe, outbox.view, outbox.view);
+}
+
+/** The readings of the log, re-rendered when one is recorded, struck out or stored. */
+export function useLoggedReadings(readings: ReadingsLog): readonly LoggedReading[] {
+  return useSyncExternalStore(readings.subscribe, readings.list, readings.list);
 }

@@ -1,13 +1,13 @@
 /**
- * The running bench's end of live fault injection: listens to its attempt's
- * stream, opens each injection with the bench key and applies it through the
- * bench's dispatcher at the current sim time, so it is logged like any other
- * input (and reaches the server in the normal batch). The bench does not say
- * what arrived. An injection already in the log (a reconnect hands unlogged
- * ones out again) is skipped.
+ * The running bench's one listener for live fault injection: listens to its
+ * attempt's stream and applies each injection through the bench's
+ * dispatcher at the current sim time (the change's onset counted from then),
+ * so it is logged like any other input and reaches the server in the normal
+ * batch. What arrives is the change to the car, never the fault's name. An
+ * injection already in the log (a reconnect hands unlogged ones out again)
+ * is skipped.
  */
 import { benchInjectionSchema, type BenchInjection } from '../../../../shared/api/live.ts';
-import { unsealFaults } from '../../../../shared/sealed-faults.ts';
 import type { InputEvent } from '../../../../sim/inputs.ts';
 import type { BenchEngine } from '../stores/bench-engine.ts';
 
@@ -22,7 +22,6 @@ interface SourceLike {
 
 export interface LiveInjectionOptions {
   attemptId: number;
-  benchKey: string;
   engine: EngineLike;
   /** Made per connection; the browser's EventSource reconnects by itself. */
   open?: (url: string) => SourceLike;
@@ -30,35 +29,31 @@ export interface LiveInjectionOptions {
 }
 
 function alreadyLogged(events: readonly InputEvent[], msg: BenchInjection): boolean {
-  return events.some((e) => (msg.type === 'inject' ? e.kind === 'fault-inject' && e.fault.id === msg.faultId : e.kind === 'fault-clear' && e.faultId === msg.faultId));
+  return events.some((e) => (msg.type === 'inject' ? e.kind === 'change-apply' && e.change.id === msg.change.id : e.kind === 'change-clear' && e.changeId === msg.changeId));
 }
 
 /** Applies one injection to the bench (exported for tests). */
-export async function applyInjection(engine: EngineLike, benchKey: string, msg: BenchInjection): Promise<InputEvent | null> {
+export function applyInjection(engine: EngineLike, msg: BenchInjection): InputEvent | null {
   if (alreadyLogged(engine.studentEvents(), msg)) return null;
-  if (msg.type === 'clear') return engine.dispatch({ kind: 'fault-clear', faultId: msg.faultId });
-  const [fault] = await unsealFaults(msg.sealed, benchKey);
-  if (!fault || fault.id !== msg.faultId) throw new Error('the injection did not open to its fault');
-  // Re-check: another copy may have been applied while this one was opening.
-  if (alreadyLogged(engine.studentEvents(), msg)) return null;
-  // The model's own time, which the dispatcher stamps on the event.
+  if (msg.type === 'clear') return engine.dispatch({ kind: 'change-clear', changeId: msg.changeId });
+  // The model's own time, which the dispatcher stamps on the event; the onset sent is a delay from now.
   const nowMs = engine.getSnapshot().timeMs;
-  // The sealed onset is a delay from now.
-  return engine.dispatch({ kind: 'fault-inject', fault: { ...fault, onsetS: nowMs / 1000 + fault.onsetS } });
+  return engine.dispatch({ kind: 'change-apply', change: { ...msg.change, onsetS: nowMs / 1000 + msg.change.onsetS } });
 }
 
 /** Starts listening; returns the function that stops. */
 export function connectLiveInjections(opts: LiveInjectionOptions): () => void {
   const open = opts.open ?? ((url: string) => new EventSource(url, { withCredentials: true }));
   const source = open(liveStreamUrl(opts.attemptId));
-  let chain: Promise<unknown> = Promise.resolve();
   let stopped = false;
   source.addEventListener('injection', (e) => {
-    const parsed = benchInjectionSchema.safeParse(JSON.parse(e.data));
-    if (!parsed.success) return;
-    chain = chain
-      .then(() => (stopped ? null : applyInjection(opts.engine, opts.benchKey, parsed.data)))
-      .catch((err: unknown) => opts.onError?.(err));
+    if (stopped) return;
+    try {
+      const parsed = benchInjectionSchema.safeParse(JSON.parse(e.data));
+      if (parsed.success) applyInjection(opts.engine, parsed.data);
+    } catch (err) {
+      opts.onError?.(err);
+    }
   });
   source.addEventListener('status', (e) => {
     const data = JSON.parse(e.data) as { status?: string };

@@ -19,6 +19,7 @@ export const benchActions = {
   placeClamp: (conductor: Conductor | null, arrow: ClampArrow): BenchInput => ({ kind: 'clamp', conductor, arrow }),
   zeroClamp: (): BenchInput => ({ kind: 'clamp-zero' }),
   fitAmmeter: (inSeries: boolean): BenchInput => ({ kind: 'ammeter', inSeries }),
+  replaceAmmeterFuse: (): BenchInput => ({ kind: 'ammeter-fuse' }),
   connectBplus: (connected: boolean): BenchInput => ({ kind: 'bplus-disconnect', connected }),
 } as const;
 

@@ -2,17 +2,22 @@
  * The live bench: the model stepping in an animation-frame loop with a
  * fixed-dt accumulator, outside React. Every student input enters through
  * `dispatch`, which stamps it with the sim time and appends it to the event
- * log the replay uses, so what runs here is what the server re-runs.
+ * log the replay uses, so what runs here is what the server re-runs: the
+ * same compiled car, its schedule in force from the first state, and the
+ * same test set-up tracker fed on the same display ticks.
  * React reads immutable snapshots, published once per displayed frame.
  */
 import type { VehicleParams } from '../../../../sim/params.ts';
+import type { CarChange } from '../../../../sim/car-changes.ts';
+import type { DiagnosticTest } from '../../../../sim/faults.ts';
 import type { Controls, InputEvent } from '../../../../sim/inputs.ts';
 import type { Readings, RippleTrace } from '../../../../sim/instruments.ts';
 import type { ReplayPoint } from '../../../../sim/replay.ts';
 import { applyInput } from '../../../../sim/inputs.ts';
 import { rawClampReadingA, readMeters, rippleTrace } from '../../../../sim/instruments.ts';
-import { advance, stateAt } from '../../../../sim/replay.ts';
+import { advance, startPoint } from '../../../../sim/replay.ts';
 import { DT_MS } from '../../../../sim/step.ts';
+import { SETUP_TICK_MS, SetupTracker, setupCarOf, setupSampleOf, type SetupStatus } from '../../../../shared/test-setups.ts';
 
 type DistributiveOmit<T, K extends PropertyKey> = T extends unknown ? Omit<T, K> : never;
 
@@ -30,9 +35,10 @@ const TRACE_SAMPLES = 240;
 /**
  * The meters' display refreshes on this grid of sim time, like a bench meter
  * settling ten times a second; a recorded reading is the value on display,
- * at that moment (the server samples its re-run on the same grid).
+ * at that moment (the server samples its re-run, and feeds the set-ups, on
+ * the same grid).
  */
-export const DISPLAY_INTERVAL_MS = 100;
+export const DISPLAY_INTERVAL_MS = SETUP_TICK_MS;
 /** The key springs back from start to on after this long, or once the engine runs. */
 export const START_HOLD_MS = 1500;
 /** The pile counts as loaded (a burst under way) above this current. */
@@ -53,6 +59,8 @@ export interface HistorySample {
 export interface MeterDisplay {
   atMs: number;
   readings: Readings;
+  /** Each test's set-up at this display tick. */
+  setups: Readonly<Record<DiagnosticTest, SetupStatus>>;
 }
 
 export interface BenchSnapshot {
@@ -77,8 +85,8 @@ export interface BenchSnapshot {
 export interface BenchEngineOptions {
   params: VehicleParams;
   seed: number;
-  /** Events the bench did not produce itself: the scenario's faults at 0 ms. */
-  scenarioEvents: readonly InputEvent[];
+  /** The car's schedule of changes (a compiled car's), in force from the first state. */
+  changes?: readonly CarChange[];
   /** The attempt's own events so far (resume). */
   studentEvents?: readonly InputEvent[];
   /** Sim time to resume at; at least the last event's time. */
@@ -122,12 +130,25 @@ function emptySnapshot(point: ReplayPoint, display: MeterDisplay, eventCount: nu
 export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
   const { params, seed, onEvent } = options;
   const student: InputEvent[] = [...(options.studentEvents ?? [])];
-  const events: InputEvent[] = [...options.scenarioEvents, ...student];
+  const events: InputEvent[] = [...student];
   const lastEventMs = student.length ? student[student.length - 1]!.atMs : 0;
   const resumeMs = Math.max(lastEventMs, options.resumeAtMs ?? 0);
   // Resume on a display tick, so the readouts are on the grid from the first frame.
   const resumeAt = Math.ceil(resumeMs / DISPLAY_INTERVAL_MS) * DISPLAY_INTERVAL_MS;
-  let point: ReplayPoint = stateAt(params, seed, events, resumeAt);
+  const tracker = new SetupTracker(setupCarOf(params));
+  let point: ReplayPoint = startPoint(params, seed, options.changes);
+  /** Feeds the tracker the display tick the model is on and reads the meters there. */
+  const tickDisplay = (): MeterDisplay => {
+    const readings = readMeters(params, point.state);
+    tracker.feed(setupSampleOf(params, point.state, readings));
+    return { atMs: point.state.timeMs, readings, setups: tracker.statuses() };
+  };
+  // From the start, a display tick at a time, so the set-ups have seen every tick the server's re-run sees.
+  tracker.feed(setupSampleOf(params, point.state, readMeters(params, point.state)));
+  for (let t = 0; t < resumeAt; t += DISPLAY_INTERVAL_MS) {
+    point = advance(params, point, events, DISPLAY_INTERVAL_MS / DT_MS);
+    if (point.state.timeMs < resumeAt) tracker.feed(setupSampleOf(params, point.state, readMeters(params, point.state)));
+  }
 
   const listeners = new Set<() => void>();
   let accumulatorMs = 0;
@@ -142,7 +163,7 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
   let lastFrameAt: number | null = null;
   /** The controls with every dispatched event applied (the next step applies them to the model). */
   let shownControls: Controls = point.controls;
-  let display: MeterDisplay = { atMs: point.state.timeMs, readings: readMeters(params, point.state) };
+  let display: MeterDisplay = resumeAt === 0 ? { atMs: 0, readings: readMeters(params, point.state), setups: tracker.statuses() } : tickDisplay();
   let snapshot = emptySnapshot(point, display, student.length);
 
   function sample(): void {
@@ -198,7 +219,7 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
       shownControls = point.controls;
       left -= slice;
       if (point.state.timeMs % DISPLAY_INTERVAL_MS === 0) {
-        display = { atMs: point.state.timeMs, readings: readMeters(params, point.state) };
+        display = tickDisplay();
         sample();
       }
       springBackKey();

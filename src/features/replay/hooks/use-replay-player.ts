@@ -1,10 +1,13 @@
 /**
- * The replay's clock: the model re-run once over the stored events with a
- * snapshot every few seconds, then played forward step by step, or sought to
- * any moment from the nearest snapshot (at most one interval of steps, so a
- * seek lands in one frame).
+ * The replay's clock: the attempt's compiled car re-run once over the events
+ * the server graded on, with a snapshot every few seconds, then played
+ * forward step by step, or sought to any moment from the nearest snapshot
+ * (at most one interval of steps, so a seek lands in one frame). The readouts
+ * show what the bench's display showed: the meters at the last display tick
+ * (every 100 ms of sim time), as a recorded reading is taken.
  */
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import type { CarChange } from '../../../../sim/car-changes.ts';
 import type { InputEvent } from '../../../../sim/inputs.ts';
 import type { Readings } from '../../../../sim/instruments.ts';
 import { readMeters } from '../../../../sim/instruments.ts';
@@ -12,6 +15,7 @@ import type { VehicleParams } from '../../../../sim/params.ts';
 import type { ReplayPoint } from '../../../../sim/replay.ts';
 import { advance, runAttempt, stateAt } from '../../../../sim/replay.ts';
 import { DT_MS } from '../../../../sim/step.ts';
+import { SETUP_TICK_MS } from '../../../../shared/test-setups.ts';
 
 export const REPLAY_SPEEDS = [0.5, 1, 2, 4, 8] as const;
 export type ReplaySpeed = (typeof REPLAY_SPEEDS)[number];
@@ -22,6 +26,8 @@ const MAX_FRAME_MS = 100;
 export interface ReplayFrame {
   point: ReplayPoint;
   readings: Readings;
+  /** The meters at the last display tick at or before this moment: what the bench's readouts showed. */
+  display: { atMs: number; readings: Readings };
 }
 
 export interface ReplayPlayer {
@@ -38,25 +44,37 @@ export interface ReplayPlayer {
 
 const toGrid = (ms: number) => Math.round(ms / DT_MS) * DT_MS;
 
-export function useReplayPlayer(params: VehicleParams, seed: number, events: readonly InputEvent[], durationMs: number, initialMs = 0): ReplayPlayer {
-  const run = useMemo(() => runAttempt(params, seed, events, durationMs, { snapshotEveryMs: SNAPSHOT_EVERY_MS }), [params, seed, events, durationMs]);
+export function useReplayPlayer(
+  params: VehicleParams,
+  seed: number,
+  events: readonly InputEvent[],
+  durationMs: number,
+  initialMs = 0,
+  changes: readonly CarChange[] = [],
+): ReplayPlayer {
+  const run = useMemo(() => runAttempt(params, seed, events, durationMs, { snapshotEveryMs: SNAPSHOT_EVERY_MS, changes }), [params, seed, events, durationMs, changes]);
   const frameAt = useCallback(
     (ms: number): ReplayFrame => {
-      const point = stateAt(params, seed, events, Math.min(durationMs, Math.max(0, toGrid(ms))), run.snapshots);
-      return { point, readings: readMeters(params, point.state) };
+      const atMs = Math.min(durationMs, Math.max(0, toGrid(ms)));
+      const point = stateAt(params, seed, events, atMs, run.snapshots, changes);
+      const tickMs = Math.floor(atMs / SETUP_TICK_MS) * SETUP_TICK_MS;
+      const tick = tickMs === atMs ? point : stateAt(params, seed, events, tickMs, run.snapshots, changes);
+      return { point, readings: readMeters(params, point.state), display: { atMs: tickMs, readings: readMeters(params, tick.state) } };
     },
-    [params, seed, events, durationMs, run],
+    [params, seed, events, durationMs, run, changes],
   );
   const [frame, setFrame] = useState<ReplayFrame>(() => frameAt(initialMs));
   const [playing, setPlaying] = useState(false);
   const [speed, setSpeed] = useState<ReplaySpeed>(1);
   const pointRef = useRef(frame.point);
+  const displayRef = useRef(frame.display);
   const carryRef = useRef(0);
 
   const seek = useCallback(
     (ms: number) => {
       const f = frameAt(ms);
       pointRef.current = f.point;
+      displayRef.current = f.display;
       carryRef.current = 0;
       setFrame(f);
     },
@@ -76,8 +94,17 @@ export function useReplayPlayer(params: VehicleParams, seed: number, events: rea
         carryRef.current -= steps * DT_MS;
         const left = Math.round((durationMs - pointRef.current.state.timeMs) / DT_MS);
         const n = Math.min(steps, left);
-        if (n > 0) pointRef.current = advance(params, pointRef.current, events, n);
-        setFrame({ point: pointRef.current, readings: readMeters(params, pointRef.current.state) });
+        let display = displayRef.current;
+        // Step in slices ending on display ticks, so the readouts take each tick's meters as the bench's did.
+        for (let done = 0; done < n; ) {
+          const t = pointRef.current.state.timeMs;
+          const slice = Math.min(n - done, (SETUP_TICK_MS - (t % SETUP_TICK_MS)) / DT_MS);
+          pointRef.current = advance(params, pointRef.current, events, slice);
+          done += slice;
+          if (pointRef.current.state.timeMs % SETUP_TICK_MS === 0) display = { atMs: pointRef.current.state.timeMs, readings: readMeters(params, pointRef.current.state) };
+        }
+        displayRef.current = display;
+        setFrame({ point: pointRef.current, readings: readMeters(params, pointRef.current.state), display });
         if (n >= left) {
           setPlaying(false);
           return;

@@ -167,7 +167,7 @@ export function AccessoriesField() {
       <legend className="text-sm font-medium text-slate-800">Switchable accessories</legend>
       <p className="text-xs text-slate-500">
         Lamps and heaters as a resistance ({ACCESSORY_BOUNDS.resistanceOhm.min}–{ACCESSORY_BOUNDS.resistanceOhm.max} Ω), electronics and motors as a constant current (
-        {ACCESSORY_BOUNDS.currentA.min}–{ACCESSORY_BOUNDS.currentA.max} A).
+        {ACCESSORY_BOUNDS.currentA.min}–{ACCESSORY_BOUNDS.currentA.max} A). “Key off” marks a load fed straight from the battery, which works with the key off (headlamps on most cars).
       </p>
       <table className="mt-2 w-full text-sm">
         <thead className="text-left text-xs text-slate-500">
@@ -175,6 +175,7 @@ export function AccessoriesField() {
             <th className="py-1 pr-2 font-medium">Name</th>
             <th className="py-1 pr-2 font-medium">Kind</th>
             <th className="py-1 pr-2 font-medium">Value</th>
+            <th className="py-1 pr-2 font-medium">Key off</th>
             <th className="py-1 font-medium">
               <span className="sr-only">Remove</span>
             </th>
@@ -199,7 +200,8 @@ export function AccessoriesField() {
                     value={isCurrent ? 'current' : 'resistance'}
                     onChange={(e) => {
                       const v = getValues(`vehicle.params.loads.accessories.${i}`);
-                      update(i, e.target.value === 'current' ? { id: v.id, label: v.label, currentA: 5 } : { id: v.id, label: v.label, resistanceOhm: 1.5 });
+                      const keyOff = v.keyOff ? { keyOff: true } : {};
+                      update(i, e.target.value === 'current' ? { id: v.id, label: v.label, currentA: 5, ...keyOff } : { id: v.id, label: v.label, resistanceOhm: 1.5, ...keyOff });
                     }}
                   >
                     <option value="resistance">Resistance (Ω)</option>
@@ -212,6 +214,15 @@ export function AccessoriesField() {
                   ) : (
                     <input aria-label={`Accessory ${i + 1} resistance (Ω)`} type="number" step="any" className={inputClass} {...register(`vehicle.params.loads.accessories.${i}.resistanceOhm` as FieldPath<ScenarioFormValues>, { valueAsNumber: true })} />
                   )}
+                </td>
+                <td className="py-1 pr-2 text-center">
+                  <input
+                    type="checkbox"
+                    className="mt-2"
+                    aria-label={`Accessory ${i + 1} works with the key off (fed straight from the battery)`}
+                    title="Works with the key off (fed straight from the battery, like headlamps)"
+                    {...register(`vehicle.params.loads.accessories.${i}.keyOff` as FieldPath<ScenarioFormValues>)}
+                  />
                 </td>
                 <td className="py-1">
                   <Button size="sm" variant="ghost" onClick={() => remove(i)}>

@@ -2,6 +2,7 @@ import { scaleLinear } from 'd3-scale';
 import { line } from 'd3-shape';
 import { useDeferredValue, useMemo } from 'react';
 import type { Fault } from '../../../../sim/faults.ts';
+import { faultChange } from '../../../../sim/faults.ts';
 import { outputCurve, type OutputCurvePoint } from '../../../../sim/instruments.ts';
 import type { VehicleParams } from '../../../../sim/params.ts';
 
@@ -12,7 +13,7 @@ interface Curves {
 
 function runModel(params: VehicleParams, faults: readonly Fault[]): Curves | { error: string } {
   try {
-    return { healthy: outputCurve(params, [], { hot: false }), faulted: outputCurve(params, faults, { hot: false }) };
+    return { healthy: outputCurve(params, [], { hot: false }), faulted: outputCurve(params, faults.map((f) => faultChange(f)), { hot: false }) };
   } catch (err) {
     return { error: (err as Error).message };
   }

@@ -1,8 +1,7 @@
-import { get, useFormContext, useWatch, type FieldPath } from 'react-hook-form';
+import { get, useFormContext, type FieldPath } from 'react-hook-form';
 import type { z } from 'zod';
-import { defaultVehicleParams, VEHICLE_PARAM_BOUNDS, type NumericParamPath, type ParamBound } from '../../../../sim/params.ts';
+import { VEHICLE_PARAM_BOUNDS, type NumericParamPath, type ParamBound } from '../../../../sim/params.ts';
 import type { scenarioSchema } from '../../../../shared/scenario.ts';
-import { Button } from '../../../components/ui/button.tsx';
 import { TextField } from '../../../components/ui/field.tsx';
 
 export type ScenarioFormValues = z.input<typeof scenarioSchema>;
@@ -49,33 +48,5 @@ export function Advanced({ title = 'Model details', children }: { title?: string
       <summary className="cursor-pointer text-sm font-medium text-slate-700">{title}</summary>
       <div className="mt-3">{children}</div>
     </details>
-  );
-}
-
-/**
- * The rating is the nameplate; the model's curve comes from the stator's
- * resistance and inductance. This sizes both like a typical unit of the
- * rating (scaled from the invented 150 A reference unit).
- */
-export function SizeStatorButton() {
-  const { control, setValue } = useFormContext<ScenarioFormValues>();
-  const rating = useWatch({ control, name: 'vehicle.params.alternator.ratedCurrentA' });
-  const bound = VEHICLE_PARAM_BOUNDS['alternator.ratedCurrentA'];
-  const usable = typeof rating === 'number' && rating >= bound.min && rating <= bound.max;
-  const size = () => {
-    if (!usable) return;
-    const ref = defaultVehicleParams().alternator;
-    const k = rating / ref.ratedCurrentA;
-    const opts = { shouldDirty: true, shouldValidate: true } as const;
-    setValue('vehicle.params.alternator.statorResistanceOhmAt20C', Number((ref.statorResistanceOhmAt20C / k).toPrecision(3)), opts);
-    setValue('vehicle.params.alternator.synchronousInductanceH', Number((ref.synchronousInductanceH / k).toPrecision(3)), opts);
-  };
-  return (
-    <div className="text-xs text-slate-600 sm:col-span-2 lg:col-span-3">
-      The rating is what the nameplate says; the output curve comes from the stator.{' '}
-      <Button size="sm" variant="secondary" onClick={size} disabled={!usable}>
-        Size the stator for {usable ? `${rating} A` : 'this rating'}
-      </Button>
-    </div>
   );
 }

@@ -19,7 +19,8 @@ import { Panel } from '../../../components/ui/states.tsx';
 import { FaultsSection } from './editor-faults.tsx';
 import { AccessoriesField, DiagnosisChoicesSection, LinesField, TestsAndRulesSection } from './editor-rules.tsx';
 import { OutputCurvePreview } from './output-curve-preview.tsx';
-import { Advanced, FieldGrid, ParamField, SizeStatorButton, type ScenarioFormValues } from './param-field.tsx';
+import { Advanced, FieldGrid, ParamField, type ScenarioFormValues } from './param-field.tsx';
+import { NameplateCheck, VehicleChecksPanel } from './vehicle-checks.tsx';
 
 export interface ScenarioSaveRequest {
   definition: ScenarioDefinition;
@@ -166,7 +167,7 @@ export function ScenarioEditor({
                 <ParamField path="engine.idleRpm" />
                 <ParamField path="engine.maxHeldRpm" />
                 <ParamField path="belt.pulleyRatio" hint="Crank pulley over alternator pulley; modern cars 2.5 to 3.2" />
-                <ParamField path="belt.gripNm" />
+                <ParamField path="belt.gripNm" hint="A good belt passes 20 to 30 N·m at the alternator pulley" />
                 <ParamField path="ambientC" />
                 <ParamField path="engineTempC" />
               </FieldGrid>
@@ -177,6 +178,7 @@ export function ScenarioEditor({
                   <ParamField path="engine.crankCurrentA" />
                   <ParamField path="engine.minCrankVoltageV" />
                   <ParamField path="engine.crankToStartS" />
+                  <ParamField path="belt.creep01" />
                   <TextField label="Parameter set label" {...register('vehicle.params.label')} error={msg('vehicle.params.label')} />
                 </FieldGrid>
               </Advanced>
@@ -195,6 +197,7 @@ export function ScenarioEditor({
                 <FieldGrid>
                   <ParamField path="battery.initialSurfaceChargeV" />
                   <ParamField path="battery.surfaceChargeTimeConstantS" />
+                  <ParamField path="battery.sulfation01" hint="0 for a healthy battery; the weak-battery fault adds sulfation too" />
                 </FieldGrid>
               </Advanced>
             </Section>
@@ -206,12 +209,12 @@ export function ScenarioEditor({
                 <ParamField path="alternator.cutInAltRpm" />
                 <ParamField path="alternator.polePairs" />
                 <ParamField path="alternator.initialTempC" />
-                <SizeStatorButton />
+                <NameplateCheck />
                 <ParamField path="regulator.setPointVAt25C" />
                 <ParamField path="regulator.tempCoeffVPerC" />
                 <SelectField label="Regulator senses at" {...register('vehicle.params.regulator.sense')} error={msg('vehicle.params.regulator.sense')}>
-                  <option value="battery">The battery (remote sense line)</option>
-                  <option value="bplus">Its own B+ stud</option>
+                  <option value="battery">The battery (a sense wire that also feeds the field)</option>
+                  <option value="bplus">Its own B+ stud (field from B+, excited through the charge lamp)</option>
                 </SelectField>
               </FieldGrid>
               <Advanced title="Stator, field, rectifier and thermal details">
@@ -294,6 +297,9 @@ export function ScenarioEditor({
               <div className="mt-6">
                 <h3 className="mb-2 text-sm font-semibold text-slate-800">Live preview: output at 13.5 V, full field, cold</h3>
                 <Preview />
+              </div>
+              <div className="mt-6">
+                <VehicleChecksPanel />
               </div>
             </Section>
 
