@@ -8,6 +8,7 @@
 import { Link } from 'react-router-dom';
 import type { AttemptResult } from '../../../../shared/api/attempts.ts';
 import { shownWithUnit } from '../../../../shared/meter-display.ts';
+import { diagnosisLabel } from '../../../../shared/scenario.ts';
 import type { DiagnosticTest } from '../../../../sim/faults.ts';
 import { paths } from '../../../config/paths.ts';
 import { OutputCurveChart } from './output-curve-chart.tsx';
@@ -59,7 +60,7 @@ export function AttemptResultView({ result, testLabel, ratedA, attemptId }: { re
           <dl className="grid grid-cols-2 gap-2 text-sm sm:grid-cols-4" data-testid="result-scoring">
             {(Object.keys(PART_LABELS) as (keyof typeof PART_LABELS)[]).map((k) => (
               <div key={k} className="rounded-md bg-stone-100 px-3 py-2">
-                <dt className="text-xs text-slate-500">{PART_LABELS[k]}</dt>
+                <dt className="text-xs text-slate-600">{PART_LABELS[k]}</dt>
                 <dd className="font-mono font-semibold text-slate-900">
                   {result.scoring!.points[k]} / {result.scoring!.weights[k]}
                 </dd>
@@ -77,7 +78,7 @@ export function AttemptResultView({ result, testLabel, ratedA, attemptId }: { re
         <h3 className="mb-1 text-sm font-semibold text-slate-900">Fault</h3>
         <p className="text-sm text-slate-700" data-testid="result-fault">
           {result.fault.actual === null ? (
-            <>You named: {result.fault.given === 'none' ? 'no fault' : result.fault.given}. The car’s fault is not shown here.</>
+            <>You named: {diagnosisLabel(result.fault.given)}. The car’s fault is not shown here.</>
           ) : (
             <>
               <Mark ok={result.fault.ok} /> The car had: <strong>{result.fault.labels.join('; ')}</strong>
