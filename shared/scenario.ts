@@ -322,6 +322,9 @@ export function outputPassMarkA(rule: OutputRule, ratedCurrentA: number): number
   return rule.mode === 'percent-of-rating' ? (ratedCurrentA * rule.percent) / 100 : Math.max(0, ratedCurrentA - rule.amps);
 }
 
+/** The most an assigned attempt can lose for opening one hint. */
+export const MAX_HINT_POINTS = 10;
+
 const stringList = (label: string, maxItems: number, maxLength: number) =>
   z.array(text(label, 1, maxLength), { error: `${label}s must be a list of text` }).max(maxItems, `At most ${maxItems} ${label.toLowerCase()}s`);
 
@@ -360,6 +363,12 @@ export const scenarioDocumentSchema = z
       .max(FAULT_KINDS.length + 1, 'Too many diagnosis choices')
       .refine((xs) => new Set(xs).size === xs.length, 'Each diagnosis choice at most once'),
     hints: stringList('Hint', 10, 500),
+    /** Points an assigned attempt loses for each hint the student opens (0: hints are free). */
+    hintPoints: z
+      .number({ error: 'Points per hint must be a number' })
+      .int('Points per hint must be a whole number')
+      .min(0, 'Points per hint must be at least 0')
+      .max(MAX_HINT_POINTS, `Points per hint must be at most ${MAX_HINT_POINTS}`),
     objectives: stringList('Objective', 10, 300),
   })
   .superRefine((doc, ctx) => {
@@ -471,6 +480,7 @@ export function normaliseScenario(raw: unknown): unknown {
   // formatVersion 1 is the first published format; later versions migrate from here.
   doc.faults ??= [];
   doc.hints ??= [];
+  doc.hintPoints ??= 0;
   doc.objectives ??= [];
   doc.difficulty ??= 'core';
   if (doc.passRules === undefined) doc.passRules = defaultPassRules();
@@ -544,6 +554,7 @@ export function blankScenario(): ScenarioDefinition {
     passRules: defaultPassRules(),
     diagnosisChoices: defaultDiagnosisChoices([]),
     hints: [],
+    hintPoints: 0,
     objectives: [],
   };
 }
@@ -583,6 +594,8 @@ export interface StudentScenarioView {
   diagnosisChoices: DiagnosisChoice[];
   /** Hints are written for the student and must not name the fault. */
   hints: string[];
+  /** What opening a hint costs an assigned attempt, in points. */
+  hintPoints: number;
 }
 
 /**
@@ -619,6 +632,7 @@ export function studentScenarioView(def: ScenarioDefinition): StudentScenarioVie
     // defaults) list the answer first, which would give it away.
     diagnosisChoices: [...FAULT_KINDS, 'none' as const].filter((c) => def.diagnosisChoices.includes(c)),
     hints: [...def.hints],
+    hintPoints: def.hintPoints,
   };
 }
 
@@ -637,6 +651,7 @@ const SECTION_WORDS: Readonly<Record<string, string>> = {
   passRules: 'Pass rules',
   diagnosisChoices: 'Diagnosis choices',
   hints: 'Hints',
+  hintPoints: 'Points per hint',
   objectives: 'Learning objectives',
 };
 const VEHICLE_WORDS: Readonly<Record<string, string>> = { name: 'Name', kind: 'Kind', engineDescription: 'Engine description', params: 'Parameters' };

@@ -20,7 +20,7 @@ import type { ReplayPoint } from '../../sim/replay.ts';
 import { advance, orderEvents, startPoint } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
 import type { CarChange } from '../../sim/car-changes.ts';
-import { readingsOfLog, type LogEvent } from '../../shared/api/attempts.ts';
+import { isNoteEvent, readingsOfLog, type LogEvent } from '../../shared/api/attempts.ts';
 import type { BoardAttempt, LiveReadings } from '../../shared/api/live.ts';
 import type { DbOrTx } from '../db/client.ts';
 import { assignments, attemptEvents, attempts, classes, enrollments, pendingInjections, scenarioVersions, users } from '../db/schema.ts';
@@ -420,7 +420,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
           entry.seqs.add(r.seq);
           const event = rowToLogEvent(r);
           if (!event) continue;
-          if (event.kind === 'reading' || event.kind === 'reading-remove') entry.notes.push({ seq: r.seq, event });
+          if (isNoteEvent(event)) entry.notes.push({ seq: r.seq, event });
           else {
             if (event.kind === 'change-apply' || event.kind === 'change-clear') entry.notes.push({ seq: r.seq, event });
             fresh.push({ seq: r.seq, event });

@@ -2,7 +2,7 @@
  * The moments of an attempt worth jumping to in a replay: hook-ups (leads,
  * clamp, series ammeter), engine starts, load changes (pile and accessories),
  * the instructor's injections (where the server applied them), recorded
- * readings and the submission.
+ * readings, the scenario's hints the student opened, and the submission.
  */
 import type { InputEvent } from '../../sim/inputs.ts';
 import { recordedReadingSchema } from '../../shared/api/attempts.ts';
@@ -40,6 +40,7 @@ export function replayMarkers(
   submittedAtMs: number | null,
   changeLabels: Readonly<Record<string, string>>,
   accessories: readonly { id: string; label: string }[] = [],
+  hints: readonly { atMs: number; index: number }[] = [],
 ): Marker[] {
   const out: Marker[] = [];
   for (const e of events) {
@@ -57,6 +58,7 @@ export function replayMarkers(
     const verdict = r.evidence === true ? 'evidence' : r.evidence === false ? 'not evidence' : r.inSetup ? 'inside the set-up' : 'outside the set-up';
     out.push({ atMs: Math.round(r.atMs), kind: 'reading', label: `${DIAGNOSTIC_TEST_LABELS[r.test]}: ${shownWithUnit(r.value, r.unit)} (${verdict})` });
   }
+  for (const h of hints) out.push({ atMs: Math.round(h.atMs), kind: 'hint', label: `Hint ${h.index + 1} opened` });
   if (submittedAtMs !== null) out.push({ atMs: submittedAtMs, kind: 'submission', label: 'Submitted' });
   return out.sort((a, b) => a.atMs - b.atMs);
 }

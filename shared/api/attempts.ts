@@ -96,10 +96,16 @@ export const recordedReadingSchema = z
   });
 export type RecordedReading = z.infer<typeof recordedReadingSchema>;
 
-/** A reading as the log stores it: recorded, or struck out. `atMs` is when it was logged; the reading's own `atMs` is the tick it shows. */
+/**
+ * The student's notes a log stores beside the car's inputs: a reading
+ * recorded or struck out (`atMs` is when it was logged; the reading's own
+ * `atMs` is the tick it shows), and a hint opened (`index` into the
+ * scenario's hints). None of them is an input of the model.
+ */
 export type ReadingEvent =
   | { kind: 'reading'; atMs: number; reading: RecordedReading }
-  | { kind: 'reading-remove'; atMs: number; readingId: string };
+  | { kind: 'reading-remove'; atMs: number; readingId: string }
+  | { kind: 'hint'; atMs: number; index: number };
 
 /** The model's inputs a log holds (faults as events are the model's and the tests' own; the log speaks of changes). */
 export type CarInput = Exclude<InputEvent, { kind: 'fault-inject' } | { kind: 'fault-clear' }>;
@@ -113,14 +119,25 @@ export const READING_LAG_MS = 1000;
 export const readingEventSchema = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('reading'), atMs: simTimeMsSchema, reading: recordedReadingSchema }),
   z.object({ kind: z.literal('reading-remove'), atMs: simTimeMsSchema, readingId: z.string().min(1).max(64) }),
+  z.object({ kind: z.literal('hint'), atMs: simTimeMsSchema, index: z.number().int('a hint index is a whole number').min(0).max(9, 'a scenario has at most 10 hints') }),
 ]);
+
+/** A note of the student's in the log (a reading or a hint), not an input of the model. */
+export const isNoteEvent = (e: { kind: string }): e is ReadingEvent => e.kind === 'reading' || e.kind === 'reading-remove' || e.kind === 'hint';
 
 /** What a bench may log: the car's inputs, changes that log an instructor's injection, and readings. */
 export const logEventSchema = z.discriminatedUnion('kind', [...carInputs, ...readingEventSchema.options]);
 
 /** The model's events of a log, in order (readings are the student's notes, not inputs). */
 export function modelEvents(events: readonly LogEvent[]): CarInput[] {
-  return events.filter((e): e is CarInput => e.kind !== 'reading' && e.kind !== 'reading-remove');
+  return events.filter((e): e is CarInput => !isNoteEvent(e));
+}
+
+/** The hints a log shows opened by `untilMs` (each once, by its index), in the order opened. */
+export function hintsOfLog(events: readonly LogEvent[], untilMs = Number.POSITIVE_INFINITY): number[] {
+  const opened: number[] = [];
+  for (const e of events) if (e.kind === 'hint' && e.atMs <= untilMs && !opened.includes(e.index)) opened.push(e.index);
+  return opened;
 }
 
 /** The readings a log ends with: each recorded one not struck out since, in the order recorded. */
@@ -296,7 +313,9 @@ export const attemptResultSchema = z.object({
   /** Every expected test has evidence, every reading was what the bench showed, and the bench logged what the server sent it (null while hidden). */
   verified: z.boolean().nullable(),
   /** How the grade was made: the weights and the points of each part (null in practice and while hidden). */
-  scoring: z.object({ weights: points, points, processDeduction: z.number() }).nullable(),
+  scoring: z.object({ weights: points, points, processDeduction: z.number(), hintDeduction: z.number().optional() }).nullable(),
+  /** The scenario's hints the student opened before submitting, and what each cost (absent on results graded before hints were logged). */
+  hints: z.object({ opened: z.number().int().min(0), pointsEach: z.number().min(0) }).optional(),
   /** Set when the student may not see everything yet: practice results reveal nothing a live car would not; an assignment may hide results until it closes. */
   hidden: z.object({ reason: z.enum(['practice', 'until-close']), until: z.string().nullable() }).nullable(),
   readings: z.array(readingCheckSchema),

@@ -33,6 +33,8 @@ export const compareRowSchema = z.object({
   drawnFault: z.string().nullable(),
   /** The attempt was flagged: an instructor's injection not logged by the bench as the server sent it. */
   flagged: z.boolean(),
+  /** How many of the scenario's hints the student opened (null: graded before hints were logged). */
+  hintsOpened: z.number().int().nullable(),
 });
 export type CompareRow = z.infer<typeof compareRowSchema>;
 

@@ -11,7 +11,7 @@ import { inputEventSchema, readingCheckSchema } from './attempts.ts';
 
 export const replayParamsSchema = z.object({ id: z.coerce.number().int().positive('id must be a positive whole number') });
 
-export const MARKER_KINDS = ['hook-up', 'start', 'load', 'fault', 'reading', 'submission'] as const;
+export const MARKER_KINDS = ['hook-up', 'start', 'load', 'fault', 'reading', 'hint', 'submission'] as const;
 export type MarkerKind = (typeof MARKER_KINDS)[number];
 export const MARKER_LABELS: Readonly<Record<MarkerKind, string>> = {
   'hook-up': 'Hook-up',
@@ -19,6 +19,7 @@ export const MARKER_LABELS: Readonly<Record<MarkerKind, string>> = {
   load: 'Load change',
   fault: 'Injected fault',
   reading: 'Reading recorded',
+  hint: 'Hint opened',
   submission: 'Submission',
 };
 

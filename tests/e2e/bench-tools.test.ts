@@ -1,12 +1,16 @@
 /**
  * The bench's tools in the browser: recording a reading in one action (the
  * test from the procedure in view, the meter its set-up names), the
- * voltmeter's min/max hold catching the dip while cranking.
+ * voltmeter's min/max hold catching the dip while cranking, and the
+ * scenario's hints on request (an event of the log, shown to the instructor
+ * in the replay, counted by the grade as the scenario says).
  */
+import { eq } from 'drizzle-orm';
 import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
+import { assignments, classInstructors, scenarios, scenarioVersions, users } from '../../server/db/schema.ts';
 import { SCREENSHOT_DIR } from './browser.ts';
-import { assignToStudent, hookUp, openBench, openPanel, reading } from './bench-helpers.ts';
+import { assignToStudent, hookUp, openBench, openPanel, reading, serverAttempt } from './bench-helpers.ts';
 import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
 
 const e2e = browserAndServerForFile();
@@ -75,5 +79,68 @@ describe('the bench tools', () => {
     await expect.poll(() => hold.count()).toBe(0);
     expect(problems).toEqual([]);
     await page.close();
+  });
+
+  it('opens a hint only on request, logs it, keeps it after a reload, takes its points off the grade and shows it in the instructor’s replay', async () => {
+    const db = e2e.app.server.ctx.db;
+    const slug = 'diode-open-tarrow-flats';
+    // This scenario's author charges 5 points a hint.
+    const [sc] = await db.select({ versionId: scenarios.publishedVersionId }).from(scenarios).where(eq(scenarios.slug, slug));
+    const [version] = await db.select({ definition: scenarioVersions.definition }).from(scenarioVersions).where(eq(scenarioVersions.id, sc!.versionId!));
+    const definition = version!.definition as { hints: string[] };
+    await db.update(scenarioVersions).set({ definition: { ...definition, hintPoints: 5 } }).where(eq(scenarioVersions.id, sc!.versionId!));
+    const student = demoFirst('student');
+    const assignmentId = await assignToStudent(e2e.app, slug, student.email, 'Hints round');
+
+    const page = await e2e.browser.newPage({ viewport: { width: 1366, height: 768 } });
+    const problems = watchConsole(page);
+    await signInAs(page, e2e.app.url, student.email);
+    const attemptId = await openBench(page, e2e.app.url, `assignmentId=${assignmentId}`);
+    await openPanel(page, 'Procedure');
+    const hints = page.getByTestId('hints');
+    await hints.scrollIntoViewIfNeeded();
+    expect(await hints.textContent()).toMatch(/0 of 2 opened; each costs 5 points of the grade/);
+    expect(await page.getByTestId('hint-text').count()).toBe(0);
+    await page.getByTestId('hint-button').click();
+    await expect.poll(() => page.getByTestId('hint-text').count()).toBe(1);
+    expect(await page.getByTestId('hint-text').first().textContent()).toBe(definition.hints[0]);
+    // The hint is an event of the attempt's log, stored by the server.
+    await expect.poll(async () => (await serverAttempt(page, attemptId)).events.filter((e) => e.event.kind === 'hint').length, { timeout: 15_000 }).toBe(1);
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-tools-hint.png` });
+
+    // A reload shows the same hint open, read back from the log.
+    await page.reload();
+    await openPanel(page, 'Procedure');
+    await expect.poll(() => page.getByTestId('hint-text').count(), { timeout: 15_000 }).toBe(1);
+    expect(await page.getByTestId('hints').textContent()).toMatch(/1 of 2 opened/);
+
+    // Submit (no readings: the bench asks first); the result counts the hint.
+    await openPanel(page, 'Diagnose');
+    const form = page.getByRole('form', { name: 'Diagnosis' });
+    await form.getByLabel('Fault found').selectOption({ label: 'Open rectifier diode' });
+    await form.getByRole('button', { name: 'Submit diagnosis' }).click();
+    await page.getByRole('button', { name: 'Submit without readings' }).click();
+    await page.getByTestId('attempt-result').waitFor({ timeout: 60_000 });
+    expect(await page.getByTestId('result-hints').textContent()).toBe('Hints opened: 1 (−5 points)');
+    await page.close();
+    expect(problems).toEqual([]);
+
+    // The instructor sees when it was opened, in the replay.
+    const [a] = await db.select({ classId: assignments.classId }).from(assignments).where(eq(assignments.id, assignmentId));
+    const [teacher] = await db.select({ email: users.email }).from(classInstructors).innerJoin(users, eq(users.id, classInstructors.userId)).where(eq(classInstructors.classId, a!.classId));
+    const instructor = await e2e.browser.newPage({ viewport: { width: 1366, height: 768 } });
+    await signInAs(instructor, e2e.app.url, teacher!.email);
+    await instructor.goto(`${e2e.app.url}/attempts/${attemptId}/replay`);
+    await instructor.getByText(/^Markers \(/).click();
+    const marker = instructor.getByRole('button', { name: /Hint opened: Hint 1 opened/ });
+    await marker.waitFor({ timeout: 20_000 });
+    await instructor.screenshot({ path: `${SCREENSHOT_DIR}/replay-hint-marker.png`, fullPage: true });
+    // And in the comparison of the class, beside the student's grade.
+    await instructor.goto(`${e2e.app.url}/assignments/${assignmentId}/compare`);
+    const row = instructor.getByRole('row').filter({ hasText: 'Ada Brightwater' });
+    await row.waitFor({ timeout: 20_000 });
+    expect(await row.locator('td[data-label="Hints opened"]').textContent()).toBe('1');
+    await instructor.screenshot({ path: `${SCREENSHOT_DIR}/compare-hints.png`, fullPage: true });
+    await instructor.close();
   });
 });

@@ -47,6 +47,12 @@ export function AttemptResultView({ result, testLabel, ratedA, attemptId }: { re
           </p>
         )}
         <p className="text-sm text-slate-600">Time to diagnosis: {mmss(result.timeToDiagnosisMs)}</p>
+        {result.hints && result.hints.opened > 0 && (
+          <p className="text-sm text-slate-600" data-testid="result-hints">
+            Hints opened: {result.hints.opened}
+            {result.scoring?.hintDeduction ? ` (−${result.scoring.hintDeduction} points)` : ''}
+          </p>
+        )}
         {attemptId !== undefined && (
           <Link to={paths.replay.href(attemptId)} className="text-sm font-medium text-live-700 underline">
             Replay this attempt
@@ -69,7 +75,8 @@ export function AttemptResultView({ result, testLabel, ratedA, attemptId }: { re
           </dl>
           <p className="mt-1 text-xs text-slate-500">
             Evidence: a reading inside each expected test’s set-up whose value is what the bench showed. Verdicts count for tests with evidence; the fault named and the
-            process count in proportion to the tests with evidence; each process mistake costs {result.scoring.processDeduction} points.
+            process count in proportion to the tests with evidence; each process mistake costs {result.scoring.processDeduction} points
+            {result.hints && result.hints.pointsEach > 0 ? `, and each hint opened ${result.hints.pointsEach}` : ''}.
           </p>
         </section>
       )}

@@ -16,6 +16,7 @@ import { AttemptResultView } from './attempt-result.tsx';
 import { BenchWorkspace } from './bench-workspace.tsx';
 import { LiveConnectionStatus } from './connection-status.tsx';
 import { DiagnosisForm, type DiagnosisValues } from './diagnosis-form.tsx';
+import { HintsPanel } from './hints-panel.tsx';
 import { ReadingsList, RecordBar } from './readings-panel.tsx';
 
 const testLabel = (t: DiagnosticTest) => DIAGNOSTIC_TEST_LABELS[t];
@@ -96,6 +97,7 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
       vehicle={vehicle}
       modeText={practice ? 'practice run (ungraded)' : 'assigned'}
       status={<LiveConnectionStatus outbox={outbox} />}
+      procedureFooter={<HintsPanel hints={scenario.hints} pointsEach={scenario.hintPoints} graded={!practice} log={session.hints} />}
       readingCount={readings.length}
       readings={<ReadingsList tests={tests} readings={readings} onRemove={session.readings.remove} disabled={busy} />}
       recordBar={<RecordBar tests={tests} accessories={vehicle.loads.accessories} readingCount={readings.length} onRecord={session.readings.record} disabled={busy} />}

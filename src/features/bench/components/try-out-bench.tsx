@@ -11,10 +11,12 @@ import { outputCurve } from '../../../../sim/instruments.ts';
 import { benchScenarioView, type RecordedReading } from '../../../../shared/api/attempts.ts';
 import { diagnosisLabel, type ScenarioDefinition } from '../../../../shared/scenario.ts';
 import { Button } from '../../../components/ui/button.tsx';
+import { createHintsLog } from '../hooks/hints-log.ts';
 import type { LoggedReading } from '../hooks/use-bench-session.ts';
 import { createBenchEngine } from '../stores/bench-engine.ts';
 import { BenchWorkspace } from './bench-workspace.tsx';
 import { DiagnosisForm, type DiagnosisValues } from './diagnosis-form.tsx';
+import { HintsPanel } from './hints-panel.tsx';
 import { OutputCurveChart } from './output-curve-chart.tsx';
 import { ReadingsList, RecordBar } from './readings-panel.tsx';
 
@@ -43,6 +45,8 @@ export function TryOutBench({ definition, versionLabel }: { definition: Scenario
   // The car as a student's bench gets it: the faults compiled into it, never listed.
   const car = useMemo(() => compileCar(definition.vehicle.params, definition.faults, definition.vehicle.name), [definition]);
   const engine = useMemo(() => createBenchEngine({ params: car.params, seed, changes: car.changes }), [car, seed]);
+  // Hints open here as on a student's bench, logged nowhere.
+  const hints = useMemo(() => createHintsLog([], () => undefined, () => engine.getSnapshot().timeMs), [engine]);
   useEffect(() => {
     engine.start();
     return () => engine.stop();
@@ -65,6 +69,7 @@ export function TryOutBench({ definition, versionLabel }: { definition: Scenario
           Try-out, not saved
         </span>
       }
+      procedureFooter={<HintsPanel hints={view.hints} pointsEach={view.hintPoints} graded={false} log={hints} />}
       readingCount={readings.length}
       readings={
         <ReadingsList tests={view.tests} readings={readings.map((r) => r.logged)} showSaved={false} onRemove={(id) => setReadings((xs) => xs.filter((r) => r.logged.reading.id !== id))} />

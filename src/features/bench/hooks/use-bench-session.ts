@@ -15,6 +15,7 @@ import { postEvents } from '../api/post-events.ts';
 import { startClockReports } from '../api/report-clock.ts';
 import { createBenchEngine, type BenchEngine } from '../stores/bench-engine.ts';
 import { connectLiveInjections } from '../live/live-injections.ts';
+import { createHintsLog, type HintsLog } from './hints-log.ts';
 
 /** A recorded reading with its place in the log and whether the server has stored it. */
 export interface LoggedReading {
@@ -36,6 +37,8 @@ export interface BenchSession {
   engine: BenchEngine;
   outbox: Outbox;
   readings: ReadingsLog;
+  /** The scenario's hints the student has opened (events of the log too). */
+  hints: HintsLog;
   /** The car the model runs. */
   vehicle: VehicleParams;
 }
@@ -121,7 +124,8 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
         onEvent: (event) => void outbox.push(event as LogEvent),
       });
       const readings = createReadingsLog(events, outbox, () => engine.getSnapshot().timeMs);
-      built = { engine, outbox, readings, vehicle: boot.car.params };
+      const hints = createHintsLog(events, (e) => void outbox.push(e), () => engine.getSnapshot().timeMs);
+      built = { engine, outbox, readings, hints, vehicle: boot.car.params };
       engine.start();
       // The one listener for the instructor's live injections: they go through the dispatcher like any input.
       stopLive = connectLiveInjections({ attemptId, engine });

@@ -23,6 +23,7 @@ export function CompareTable({ rows, action }: { rows: readonly CompareRow[]; ac
       col.accessor((r) => faultName(r.faultGiven), { id: 'faultGiven', header: 'Fault named' }),
       col.accessor((r) => r.grade ?? -1, { id: 'grade', header: 'Grade', cell: (c) => (c.row.original.grade === null ? '—' : Math.round(c.row.original.grade)) }),
       col.accessor('mistakes', { header: 'Mistakes', cell: (c) => (c.getValue() ? `${c.getValue()} (${c.row.original.mistakeKinds.map(mistakeLabel).join(', ')})` : '0') }),
+      col.accessor((r) => r.hintsOpened ?? -1, { id: 'hintsOpened', header: 'Hints opened', cell: (c) => c.row.original.hintsOpened ?? '—' }),
       col.accessor('attemptCount', { header: 'Attempts' }),
       col.accessor((r) => (r.verified ? 1 : 0), { id: 'verified', header: 'Readings verified', cell: (c) => (c.row.original.verified ? 'Yes' : 'No') }),
     ],
