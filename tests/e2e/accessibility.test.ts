@@ -166,6 +166,11 @@ describe('axe finds no violation on any page for any role', () => {
         ...(await visit(page, '/scenarios', `scenarios${size}`)),
         ...(await visit(page, '/scenarios/new', `new scenario${size}`)),
         ...(await visit(page, `/scenarios/${w.scenarioId}`, `scenario editor${size}`)),
+      ];
+      const hintsSection = page.locator('[aria-labelledby="section-hints"]');
+      await hintsSection.scrollIntoViewIfNeeded();
+      await hintsSection.screenshot({ path: `${SCREENSHOT_DIR}/a11y-editor-hints${phone ? '-phone' : ''}.png` });
+      findings.push(
         ...(await visit(page, `/scenarios/${w.scenarioId}/try`, `try on the bench${size}`)),
         ...(await visit(page, '/classes', `classes${size}`)),
         ...(await visit(page, `/classes/${w.classId}`, `class${size}`)),
@@ -174,7 +179,7 @@ describe('axe finds no violation on any page for any role', () => {
         ...(await visit(page, `/students/${w.student.id}/progress`, `a student's progress${size}`)),
         ...(await visit(page, '/classes/99999/live', `live board of no class${size}`)),
         ...(await visit(page, '/no-such-page', `not found${size}`)),
-      ];
+      );
       expect(world.attemptId).toBeGreaterThan(0);
       findings.push(...(await visit(page, `/attempts/${world.attemptId}/replay`, `a student's replay${size}`)));
       expect(summary(findings)).toEqual([]);

@@ -30,11 +30,37 @@ export function stripValues(r: Readings): StripValues {
   };
 }
 
-function Readout({ label, value, unit, testId, extra, below }: { label: string; value: string; unit: string; testId: string; extra?: ReactNode; below?: ReactNode }) {
+function Readout({
+  label,
+  shortLabel,
+  value,
+  unit,
+  testId,
+  extra,
+  below,
+}: {
+  label: string;
+  /** The label on a phone, where a control shares the cell. */
+  shortLabel?: string;
+  value: string;
+  unit: string;
+  testId: string;
+  extra?: ReactNode;
+  below?: ReactNode;
+}) {
   return (
     <div className={`relative min-w-0 px-3 py-1.5 lg:py-2 ${below ? 'pb-4 lg:pb-4' : ''}`}>
       <dt className="flex min-w-0 items-center justify-between gap-1">
-        <span className="truncate text-[11px] font-medium uppercase tracking-wide text-slate-300">{label}</span>
+        <span className="truncate text-[11px] font-medium uppercase tracking-wide text-slate-300">
+          {shortLabel ? (
+            <>
+              <span className="sm:hidden">{shortLabel}</span>
+              <span className="max-sm:hidden">{label}</span>
+            </>
+          ) : (
+            label
+          )}
+        </span>
         {extra}
       </dt>
       <dd className="flex min-w-0 items-baseline gap-1">
@@ -96,7 +122,7 @@ export function ReadingStrip() {
   return (
     <div className="rounded-xl bg-slate-900 shadow-sm" data-testid="reading-strip">
       <dl className="grid grid-cols-3 gap-y-1 divide-slate-800 sm:grid-cols-5 sm:divide-x">
-        <Readout label="Volts (DC)" value={v.volts} unit={UNITS.volts} testId="reading-volts" extra={<VoltHoldSwitch store={hold} />} below={<HoldValues store={hold} />} />
+        <Readout label="Volts (DC)" shortLabel="Volts" value={v.volts} unit={UNITS.volts} testId="reading-volts" extra={<VoltHoldSwitch store={hold} />} below={<HoldValues store={hold} />} />
         <Readout label="Amps (clamp)" value={v.amps} unit={UNITS.amps} testId="reading-amps" />
         <Readout label="Engine" value={v.rpm} unit={UNITS.rpm} testId="reading-rpm" />
         <Readout label="Ripple" value={v.ripple} unit={UNITS.ripple} testId="reading-ripple" />

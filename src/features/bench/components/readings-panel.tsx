@@ -51,7 +51,7 @@ export function SetupStatusLine({ test }: { test: DiagnosticTest }) {
     );
   }
   return (
-    <p data-testid="setup-status" className="col-span-2 text-xs text-warn-700" title={status.unmet.join('; ')}>
+    <p data-testid="setup-status" className="col-span-2 text-xs text-warn-700 max-sm:line-clamp-3" title={status.unmet.join('; ')}>
       <span className="font-semibold">Not the set-up yet</span> (a reading now earns nothing): {status.unmet.join('; ')}
     </p>
   );

@@ -320,7 +320,7 @@ export function ScenarioEditor({
                   <BoundedNumberField
                     name="hintPoints"
                     bound={{ label: 'Points per hint', unit: '', min: 0, max: MAX_HINT_POINTS, integer: true }}
-                    hint={`Taken off an assigned attempt's grade for each hint the student opens: 0 to ${MAX_HINT_POINTS} (0: hints are free). The student sees the cost before opening one.`}
+                    hint={`Taken off an assigned attempt’s grade for each hint the student opens: 0 to ${MAX_HINT_POINTS} (0: hints are free). The student sees the cost before opening one.`}
                   />
                 </div>
               </div>
