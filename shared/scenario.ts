@@ -323,6 +323,9 @@ export function outputPassMarkA(rule: OutputRule, ratedCurrentA: number): number
   return rule.mode === 'percent-of-rating' ? (ratedCurrentA * rule.percent) / 100 : Math.max(0, ratedCurrentA - rule.amps);
 }
 
+/** The most an assigned attempt can lose for opening one hint. */
+export const MAX_HINT_POINTS = 10;
+
 const stringList = (label: string, maxItems: number, maxLength: number) =>
   z.array(text(label, 1, maxLength), { error: `${label}s must be a list of text` }).max(maxItems, `At most ${maxItems} ${label.toLowerCase()}s`);
 
@@ -361,16 +364,22 @@ export const scenarioDocumentSchema = z
       .max(FAULT_KINDS.length + 1, 'Too many diagnosis choices')
       .refine((xs) => new Set(xs).size === xs.length, 'Each diagnosis choice at most once'),
     hints: stringList('Hint', 10, 500),
+    /** Points an assigned attempt loses for each hint the student opens (0: hints are free). */
+    hintPoints: z
+      .number({ error: 'Points per hint must be a number' })
+      .int('Points per hint must be a whole number')
+      .min(0, 'Points per hint must be at least 0')
+      .max(MAX_HINT_POINTS, `Points per hint must be at most ${MAX_HINT_POINTS}`),
     objectives: stringList('Objective', 10, 300),
   })
   .superRefine((doc, ctx) => {
     for (const kind of new Set(doc.faults.map((f) => f.kind))) {
       if (!doc.diagnosisChoices.includes(kind)) {
-        ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: `Diagnosis choices must include the scenario's fault "${kind}"` });
+        ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: `Diagnosis choices must include the scenario’s fault “${FAULT_CATALOG[kind].label}”` });
       }
     }
     if (doc.faults.length === 0 && !doc.diagnosisChoices.includes('none')) {
-      ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: 'A scenario without faults must offer "none" among the diagnosis choices' });
+      ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: 'A scenario without faults must offer “no fault” among the diagnosis choices' });
     }
   });
 
@@ -472,6 +481,7 @@ export function normaliseScenario(raw: unknown): unknown {
   // formatVersion 1 is the first published format; later versions migrate from here.
   doc.faults ??= [];
   doc.hints ??= [];
+  doc.hintPoints ??= 0;
   doc.objectives ??= [];
   doc.difficulty ??= 'core';
   if (doc.passRules === undefined) doc.passRules = defaultPassRules();
@@ -545,6 +555,7 @@ export function blankScenario(): ScenarioDefinition {
     passRules: defaultPassRules(),
     diagnosisChoices: defaultDiagnosisChoices([]),
     hints: [],
+    hintPoints: 0,
     objectives: [],
   };
 }
@@ -584,6 +595,8 @@ export interface StudentScenarioView {
   diagnosisChoices: DiagnosisChoice[];
   /** Hints are written for the student and must not name the fault. */
   hints: string[];
+  /** What opening a hint costs an assigned attempt, in points. */
+  hintPoints: number;
 }
 
 /**
@@ -620,5 +633,91 @@ export function studentScenarioView(def: ScenarioDefinition): StudentScenarioVie
     // defaults) list the answer first, which would give it away.
     diagnosisChoices: [...FAULT_KINDS, 'none' as const].filter((c) => def.diagnosisChoices.includes(c)),
     hints: [...def.hints],
+    hintPoints: def.hintPoints,
   };
+}
+
+// ---------------------------------------------------------------------------
+// Field names in words, for messages about a scenario file
+
+const SECTION_WORDS: Readonly<Record<string, string>> = {
+  format: 'File format',
+  formatVersion: 'File format version',
+  title: 'Title',
+  summary: 'Customer’s complaint',
+  difficulty: 'Difficulty',
+  vehicle: 'Vehicle',
+  faults: 'Faults',
+  testsExpected: 'Tests expected',
+  passRules: 'Pass rules',
+  diagnosisChoices: 'Diagnosis choices',
+  hints: 'Hints',
+  hintPoints: 'Points per hint',
+  objectives: 'Learning objectives',
+};
+const VEHICLE_WORDS: Readonly<Record<string, string>> = { name: 'Name', kind: 'Kind', engineDescription: 'Engine description', params: 'Parameters' };
+const GROUP_WORDS: Readonly<Record<string, string>> = {
+  engine: 'Engine',
+  belt: 'Belt',
+  alternator: 'Alternator',
+  regulator: 'Regulator',
+  battery: 'Battery',
+  wiring: 'Wiring',
+  loads: 'Loads',
+  pile: 'Carbon pile',
+};
+const FAULT_FIELD_WORDS: Readonly<Record<string, string>> = { id: 'Id', kind: 'Kind', severity01: 'Severity', onsetS: 'Onset', intermittent: 'Intermittent', periodS: 'Period', onFraction01: 'Share of time present' };
+const ACCESSORY_WORDS: Readonly<Record<string, string>> = { id: 'Id', label: 'Name', currentA: 'Current', resistanceOhm: 'Resistance' };
+
+/**
+ * A dotted path of the scenario document in words: `vehicle.params.battery.cca`
+ * is "Vehicle › Battery › Cold-cranking amps", `faults.0.severity01` is
+ * "Fault 1 › Severity". Unknown keys are named as they stand in the file.
+ */
+export function scenarioFieldInWords(path: string): string {
+  const parts = path.replace(/^definition\.?/, '').split('.').filter(Boolean);
+  if (parts.length === 0) return 'The file';
+  const [top, ...rest] = parts;
+  const out: string[] = [];
+  const item = (word: string, index: string | undefined) => (index !== undefined && /^\d+$/.test(index) ? `${word} ${Number(index) + 1}` : word);
+  switch (top) {
+    case 'vehicle': {
+      out.push('Vehicle');
+      const [field, group, key, ...more] = rest;
+      if (field === 'params' && group !== undefined) {
+        const full = key !== undefined ? `${group}.${key}` : group;
+        const bound = (VEHICLE_PARAM_BOUNDS as Record<string, { label: string } | undefined>)[full];
+        if (group === 'loads' && key === 'accessories') {
+          out.push(item('Accessory', more[0]));
+          if (more[1] !== undefined) out.push(ACCESSORY_WORDS[more[1]] ?? more[1]);
+        } else {
+          if (GROUP_WORDS[group]) out.push(GROUP_WORDS[group]);
+          if (bound) out.push(bound.label);
+          else if (key !== undefined) out.push(key);
+          else if (!GROUP_WORDS[group]) out.push((VEHICLE_PARAM_BOUNDS as Record<string, { label: string } | undefined>)[group]?.label ?? group);
+        }
+      } else if (field !== undefined) out.push(VEHICLE_WORDS[field] ?? field);
+      break;
+    }
+    case 'faults':
+      out.push(rest[0] !== undefined ? item('Fault', rest[0]) : 'Faults');
+      for (const k of rest.slice(1)) out.push(FAULT_FIELD_WORDS[k] ?? k);
+      break;
+    case 'passRules': {
+      out.push('Pass rules');
+      const [rule, sub] = rest;
+      if (rule === 'output') out.push(sub === 'percent' ? PASS_RULE_BOUNDS.percent.label : sub === 'amps' ? PASS_RULE_BOUNDS.amps.label : 'Output rule');
+      else if (rule !== undefined) out.push((PASS_RULE_BOUNDS as Record<string, { label: string } | undefined>)[rule]?.label ?? rule);
+      break;
+    }
+    case 'hints':
+    case 'objectives':
+    case 'testsExpected':
+    case 'diagnosisChoices':
+      out.push(rest[0] !== undefined ? item(top === 'hints' ? 'Hint' : top === 'objectives' ? 'Objective' : top === 'testsExpected' ? 'Test expected' : 'Diagnosis choice', rest[0]) : SECTION_WORDS[top]!);
+      break;
+    default:
+      out.push(SECTION_WORDS[top!] ?? `“${top}”`);
+  }
+  return out.join(' › ');
 }

@@ -345,7 +345,9 @@ export async function assertCanManageAssignment(db: DbOrTx, user: Who, assignmen
 
 /**
  * A student may start an attempt on this assignment now: enrolled, open, not
- * past due, attempts left (`attemptsUsed` counted by the caller, who owns attempts).
+ * past due, attempts left (`attemptsUsed` counted by the caller, who owns attempts;
+ * `terms` turns the assignment's due date and attempts into the student's own
+ * when an instructor has extended them).
  */
 export async function assertCanStartAssignment(
   db: DbOrTx,
@@ -353,12 +355,14 @@ export async function assertCanStartAssignment(
   assignmentId: number,
   attemptsUsed: number,
   now = new Date(),
+  terms: (row: AssignmentRow) => Promise<{ dueAt: Date; attemptsAllowed: number }> = async (row) => row,
 ): Promise<AssignmentRow> {
   const row = await loadAssignment(db, assignmentId);
   if (user.role !== 'student' || !(await isEnrolled(db, user.id, row.classId))) throw forbidden('This assignment is not yours');
   if (row.opensAt > now) throw new HttpError(409, 'This assignment has not opened yet', { field: 'assignmentId' });
-  if (row.dueAt < now) throw new HttpError(409, 'This assignment is past its due date', { field: 'assignmentId' });
-  if (attemptsUsed >= row.attemptsAllowed) throw new HttpError(409, `All ${row.attemptsAllowed} attempts have been used`, { field: 'assignmentId' });
+  const own = await terms(row);
+  if (own.dueAt < now) throw new HttpError(409, 'This assignment is past its due date', { field: 'assignmentId' });
+  if (attemptsUsed >= own.attemptsAllowed) throw new HttpError(409, `All ${own.attemptsAllowed} attempts have been used`, { field: 'assignmentId' });
   return row;
 }
 

@@ -178,6 +178,26 @@ export const assignments = pgTable(
   (t) => [index('assignments_class').on(t.classId)],
 );
 
+/** One student's own terms on an assignment: a later due date, more attempts, or both. */
+export const assignmentExtensions = pgTable(
+  'assignment_extensions',
+  {
+    assignmentId: integer('assignment_id')
+      .notNull()
+      .references(() => assignments.id, { onDelete: 'cascade' }),
+    userId: integer('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    /** Replaces the assignment's due date for this student (null: the assignment's). */
+    dueAt: timestamp('due_at', { withTimezone: true }),
+    /** Attempts on top of the assignment's. */
+    extraAttempts: integer('extra_attempts').notNull().default(0),
+    createdBy: integer('created_by').references(() => users.id, { onDelete: 'set null' }),
+    updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.assignmentId, t.userId] })],
+);
+
 /**
  * The scenario versions an assignment draws each student's car from (one
  * vehicle, several fault sets). An assignment without rows here gives every
@@ -215,6 +235,9 @@ export const attempts = pgTable(
     lastSeq: integer('last_seq').notNull().default(0),
     /** Sim time of the latest stored event, for the live board. */
     simTimeMs: integer('sim_time_ms').notNull().default(0),
+    /** The bench's own sim time as it last reported it while open, and when: the live board shows the meters at that moment. */
+    benchTimeMs: integer('bench_time_ms'),
+    benchSeenAt: timestamp('bench_seen_at', { withTimezone: true }),
     currentTest: varchar('current_test', { length: 40 }),
     readings: jsonb('readings'),
     diagnosis: jsonb('diagnosis'),

@@ -4,21 +4,26 @@ import { and, asc, desc, eq, inArray, lte, sql } from 'drizzle-orm';
 import {
   assignmentIdParamsSchema,
   createAssignmentSchema,
+  extensionParamsSchema,
+  extensionSchema,
   listAssignmentsQuerySchema,
+  updateAssignmentSchema,
   type Assignment,
+  type AssignmentStudent,
   type MyAssignment,
 } from '../../shared/api/assignments.ts';
 import { NO_FAULT_LABEL, restoreScenario, studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
 import { FAULT_CATALOG } from '../../sim/faults.ts';
-import { assertCanManageAssignment, assertCanManageClass, assertCanSeeAssignment, assertCanSeeScenario } from '../auth/access.ts';
+import { assertCanManageAssignment, assertCanManageClass, assertCanSeeAssignment, assertCanSeeScenario, isEnrolled } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
 import type { DbOrTx } from '../db/client.ts';
-import { assignmentPool, assignments, attempts, classes, enrollments, scenarioVersions } from '../db/schema.ts';
+import { assignmentExtensions, assignmentPool, assignments, attempts, classes, enrollments, scenarioVersions, users } from '../db/schema.ts';
 import { healthyParams } from '../services/grade-run.ts';
 import { badRequest, HttpError, notFound } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams, parseQuery } from '../http/validate.ts';
+import { extensionsOfAssignment, extensionsOfStudent, termsFor } from '../services/assignment-terms.ts';
 
 const STAFF = ['instructor', 'admin'] as const;
 
@@ -135,8 +140,10 @@ export function assignmentRoutes(ctx: AppContext) {
           .where(and(eq(attempts.userId, user.id), inArray(attempts.assignmentId, ids)))
           .groupBy(attempts.assignmentId)
       : [];
+    const extensions = await extensionsOfStudent(ctx.db, user.id, ids);
     const list: MyAssignment[] = rows.map((r) => {
       const view = studentScenarioView(r.definition as ScenarioDefinition);
+      const own = termsFor(r, extensions.get(r.id));
       return {
         id: r.id,
         classId: r.classId,
@@ -147,10 +154,10 @@ export function assignmentRoutes(ctx: AppContext) {
         vehicleName: view.vehicle.name,
         vehicleKind: view.vehicle.kind,
         opensAt: r.opensAt.toISOString(),
-        dueAt: r.dueAt.toISOString(),
-        attemptsAllowed: r.attemptsAllowed,
+        dueAt: own.dueAt.toISOString(),
+        attemptsAllowed: own.attemptsAllowed,
         attemptsUsed: used.find((u) => u.assignmentId === r.id)?.n ?? 0,
-        closed: r.dueAt < now,
+        closed: own.dueAt < now,
         showCurveAfter: r.showCurveAfter,
         showFeedbackAfter: r.showFeedbackAfter,
       };
@@ -211,6 +218,100 @@ export function assignmentRoutes(ctx: AppContext) {
       .from(attempts)
       .where(and(eq(attempts.userId, user.id), eq(attempts.assignmentId, row.id)));
     res.json({ assignment, attemptsUsed: countRow?.n ?? 0, scenario: studentScenarioView(version.definition as ScenarioDefinition) });
+  });
+
+  // Dates, attempts, title or what is shown after submission; the due date must stay after the opening.
+  g.patch('/:id', STAFF, async (req, res) => {
+    const user = currentUser(req);
+    const { id } = parseParams(assignmentIdParamsSchema, req);
+    const input = parseBody(updateAssignmentSchema, req);
+    await ctx.db.transaction(async (tx) => {
+      const row = await assertCanManageAssignment(tx, user, id);
+      const opensAt = input.opensAt ? new Date(input.opensAt) : row.opensAt;
+      const dueAt = input.dueAt ? new Date(input.dueAt) : row.dueAt;
+      if (dueAt <= opensAt) throw badRequest(input.dueAt ? 'dueAt must be after the opening date' : 'opensAt must be before the due date', { field: input.dueAt ? 'dueAt' : 'opensAt' });
+      await tx
+        .update(assignments)
+        .set({
+          ...(input.title !== undefined ? { title: input.title } : {}),
+          opensAt,
+          dueAt,
+          ...(input.attemptsAllowed !== undefined ? { attemptsAllowed: input.attemptsAllowed } : {}),
+          ...(input.showCurveAfter !== undefined ? { showCurveAfter: input.showCurveAfter } : {}),
+          ...(input.showFeedbackAfter !== undefined ? { showFeedbackAfter: input.showFeedbackAfter } : {}),
+          updatedAt: new Date(),
+        })
+        .where(eq(assignments.id, id));
+    });
+    const [updated] = await loadAssignments(ctx.db, eq(assignments.id, id));
+    res.json({ assignment: updated });
+  });
+
+  // Every student of the class on this assignment: not started, started or submitted, with their own terms.
+  g.get('/:id/students', STAFF, async (req, res) => {
+    const { id } = parseParams(assignmentIdParamsSchema, req);
+    const row = await assertCanManageAssignment(ctx.db, currentUser(req), id);
+    const [people, counts, extensions] = await Promise.all([
+      ctx.db
+        .select({ studentId: users.id, name: users.name, email: users.email })
+        .from(enrollments)
+        .innerJoin(users, eq(users.id, enrollments.userId))
+        .where(eq(enrollments.classId, row.classId))
+        .orderBy(asc(users.name)),
+      ctx.db
+        .select({
+          userId: attempts.userId,
+          n: sql<number>`count(*)::int`,
+          submitted: sql<number>`count(*) filter (where ${attempts.status} = 'submitted')::int`,
+          latest: sql<number>`max(${attempts.id})::int`,
+        })
+        .from(attempts)
+        .where(eq(attempts.assignmentId, id))
+        .groupBy(attempts.userId),
+      extensionsOfAssignment(ctx.db, id),
+    ]);
+    const students: AssignmentStudent[] = people.map((p) => {
+      const c = counts.find((x) => x.userId === p.studentId);
+      const ext = extensions.get(p.studentId) ?? null;
+      const own = termsFor(row, ext);
+      return {
+        ...p,
+        progress: !c ? 'not-started' : c.submitted > 0 ? 'submitted' : 'in-progress',
+        attemptsUsed: c?.n ?? 0,
+        attemptsAllowed: own.attemptsAllowed,
+        dueAt: own.dueAt.toISOString(),
+        extension: ext ? { dueAt: ext.dueAt ? ext.dueAt.toISOString() : null, extraAttempts: ext.extraAttempts } : null,
+        latestAttemptId: c?.latest ?? null,
+      };
+    });
+    res.json({ students });
+  });
+
+  // One student's own terms: a later due date, extra attempts, or both.
+  g.put('/:id/extensions/:userId', STAFF, async (req, res) => {
+    const user = currentUser(req);
+    const { id, userId } = parseParams(extensionParamsSchema, req);
+    const input = parseBody(extensionSchema, req);
+    await ctx.db.transaction(async (tx) => {
+      const row = await assertCanManageAssignment(tx, user, id);
+      if (!(await isEnrolled(tx, userId, row.classId))) throw badRequest('userId: that student is not in the class of this assignment', { field: 'userId' });
+      const dueAt = input.dueAt ? new Date(input.dueAt) : null;
+      if (dueAt && dueAt <= row.opensAt) throw badRequest('dueAt must be after the opening date', { field: 'dueAt' });
+      const values = { dueAt, extraAttempts: input.extraAttempts, createdBy: user.id, updatedAt: new Date() };
+      await tx
+        .insert(assignmentExtensions)
+        .values({ assignmentId: id, userId, ...values })
+        .onConflictDoUpdate({ target: [assignmentExtensions.assignmentId, assignmentExtensions.userId], set: values });
+    });
+    res.status(204).end();
+  });
+
+  g.delete('/:id/extensions/:userId', STAFF, async (req, res) => {
+    const user = currentUser(req);
+    const { id, userId } = parseParams(extensionParamsSchema, req);
+    await assertCanManageAssignment(ctx.db, user, id);
+    await ctx.db.delete(assignmentExtensions).where(and(eq(assignmentExtensions.assignmentId, id), eq(assignmentExtensions.userId, userId)));
+    res.status(204).end();
   });
 
   g.delete('/:id', STAFF, async (req, res) => {

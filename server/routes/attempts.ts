@@ -5,15 +5,18 @@
 import type { Request } from 'express';
 import { rateLimit } from 'express-rate-limit';
 import { attemptIdParamsSchema, startAttemptSchema, submitSchema } from '../../shared/api/attempts.ts';
+import { benchClockSchema } from '../../shared/api/live.ts';
 import { attemptReaderAccess } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
 import { PgRateLimitStore } from '../http/rate-limit-store.ts';
+import { conflict } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { receivedAt, ServerTiming } from '../http/server-timing.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
 import { postEvents, requireOwnAttempt } from '../services/attempt-events.ts';
 import { attemptBootstrap, loadAttemptWithEvents, myAttempts, startAttempt } from '../services/attempt-store.ts';
+import { reportBenchClock } from '../services/bench-clock.ts';
 import { submitAttempt } from '../services/attempt-submit.ts';
 
 /** Per student, so a class behind one address shares nothing; counted in PostgreSQL like the sign-in limits. */
@@ -66,6 +69,16 @@ export function attemptRoutes(ctx: AppContext) {
   g.post('/:id/events', ['student'], async (req, res) => {
     const { id } = parseParams(attemptIdParamsSchema, req);
     res.json(await postEvents(ctx, currentUser(req), id, req.body ?? {}));
+  });
+
+  // The open bench's clock, for the class board: stored only while the attempt runs (409 after).
+  g.post('/:id/clock', ['student'], async (req, res) => {
+    const { id } = parseParams(attemptIdParamsSchema, req);
+    const user = currentUser(req);
+    await requireOwnAttempt(ctx, user, id);
+    const { simTimeMs } = parseBody(benchClockSchema, req);
+    if (!(await reportBenchClock(ctx.pool, id, user.id, simTimeMs))) throw conflict('The attempt is no longer running', 'id');
+    res.status(204).end();
   });
 
   // The owner never changes, so it is checked from memory (requireOwnAttempt); the submission itself runs on the locked row.

@@ -4,6 +4,7 @@
  * and per test, and the grades as CSV. A student gets the distribution and
  * their own row only.
  */
+import { mistakeLabel } from '../../shared/api/attempts.ts';
 import { GRADES_CSV_COLUMNS, assignmentParamsSchema, type CompareResponse } from '../../shared/api/compare.ts';
 import { requireAssignmentInstructor, requireAssignmentMember } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
@@ -20,6 +21,7 @@ import {
   countedRows,
   distribution,
   drawnGroups,
+  faultLabel,
   submittedAttempts,
   toCsv,
 } from '../services/live-results.ts';
@@ -65,6 +67,8 @@ export function compareRoutes(ctx: AppContext) {
     await requireAssignmentInstructor(ctx.db, currentUser(req), id);
     const assignment = await assignmentHeader(ctx.db, id);
     const all = await submittedAttempts(ctx.db, id);
+    const counting = new Set(countedRows(all).map((r) => r.attemptId));
+    const yesNo = (b: boolean | null | undefined) => (b === null || b === undefined ? null : b ? 'yes' : 'no');
     const csv = toCsv(
       GRADES_CSV_COLUMNS,
       all.map((a) => [
@@ -74,12 +78,14 @@ export function compareRoutes(ctx: AppContext) {
         assignment.title,
         a.drawnFault,
         a.submittedAt ? a.submittedAt.toISOString() : null,
+        yesNo(counting.has(a.attemptId)),
         a.grade,
-        a.verified,
-        a.result.fault?.given ?? null,
-        a.result.fault?.ok ?? null,
+        yesNo(a.verified),
+        a.result.fault?.given ? faultLabel(a.result.fault.given) : null,
+        yesNo(a.result.fault?.ok),
         a.timeToDiagnosisMs === null ? null : a.timeToDiagnosisMs / 1000,
         a.result.mistakes?.length ?? 0,
+        [...new Set((a.result.mistakes ?? []).map((m) => mistakeLabel(m.kind)))].join('; '),
       ]),
     );
     res.setHeader('Content-Type', 'text/csv; charset=utf-8');

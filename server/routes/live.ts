@@ -22,7 +22,7 @@ import { conflict } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
 import { boardAttempts, boardVersionOf, boardVersions, className, classBoard, createBoardRuns } from '../services/live-board.ts';
-import { ATTEMPT_CHANNEL, INJECTION_CHANNEL, liveBusFor } from '../services/live-bus.ts';
+import { ATTEMPT_CHANNEL, BENCH_CLOCK_CHANNEL, INJECTION_CHANNEL, liveBusFor } from '../services/live-bus.ts';
 import { createClear, createInjection, injectionViews, listInjections, markDelivered, resolveRows, toBenchMessage, unappliedInjections } from '../services/live-injections.ts';
 import { loadStoredInputs } from '../services/live-attempt-run.ts';
 import { openSse } from '../services/live-sse.ts';
@@ -43,14 +43,17 @@ export function liveRoutes(ctx: AppContext) {
     return { classId, className: name, attempts: list };
   }
 
+  // A class that does not exist is named as such (404) before whether the user teaches it (403).
   g.get('/classes/:classId/board', INSTRUCTORS, async (req, res) => {
     const { classId } = parseParams(classParamsSchema, req);
+    await className(ctx.db, classId);
     await requireClassInstructor(ctx.db, currentUser(req), classId);
     res.json(await snapshot(classId));
   });
 
   g.get('/classes/:classId/stream', INSTRUCTORS, async (req, res) => {
     const { classId } = parseParams(classParamsSchema, req);
+    await className(ctx.db, classId);
     await requireClassInstructor(ctx.db, currentUser(req), classId);
     const first = await snapshot(classId);
     const sse = openSse(req, res);
@@ -118,6 +121,7 @@ export function liveRoutes(ctx: AppContext) {
     const unsubscribe = [
       await bus.subscribe(ATTEMPT_CHANNEL, (p) => schedule(Number(p))),
       await bus.subscribe(INJECTION_CHANNEL, (p) => schedule(Number(p.split(':')[0]))),
+      await bus.subscribe(BENCH_CLOCK_CHANNEL, (p) => schedule(Number(p))),
       bus.onReconnect(() => void resync()),
     ];
     // Without notifications, the whole board again every FALLBACK_POLL_MS; with them, a light check every BOARD_RECHECK_SECONDS.

@@ -44,6 +44,17 @@ function changeLabelsOf(run: AttemptRunInputs): Record<string, string> {
  * named by the change labels.
  */
 const carFaultLabelsOf = (run: AttemptRunInputs): string[] => [...new Set(run.definition.faults.map((f) => FAULT_CATALOG[f.kind].label))];
+/** The hints the log shows opened (each the first time), up to the submission. */
+function hintsOpenedIn(stored: AttemptRunInputs['stored'], untilMs: number | null): { atMs: number; index: number }[] {
+  const seen = new Set<number>();
+  const out: { atMs: number; index: number }[] = [];
+  for (const { event: e } of stored) {
+    if (e.kind !== 'hint' || seen.has(e.index) || (untilMs !== null && e.atMs > untilMs)) continue;
+    seen.add(e.index);
+    out.push({ atMs: e.atMs, index: e.index });
+  }
+  return out;
+}
 
 /** A submitted attempt's replay as the viewer may see it (its student: as result-views.ts allows). */
 async function replayOf(db: DbOrTx, attemptId: number, viewer: { isOwner: boolean }): Promise<Omit<ReplayResponse, 'canComment' | 'comments'>> {
@@ -94,7 +105,7 @@ async function replayOf(db: DbOrTx, attemptId: number, viewer: { isOwner: boolea
     events: server.events,
     faultLabels: hidden ? [] : carFaultLabelsOf(run),
     changeLabels,
-    markers: replayMarkers(server.events, readings, submittedAtMs, changeLabels),
+    markers: replayMarkers(server.events, readings, submittedAtMs, changeLabels, run.definition.vehicle.params.loads.accessories, hintsOpenedIn(run.stored, submittedAtMs)),
     readings,
   };
 }

@@ -83,6 +83,16 @@ export async function checkRoster(db: DbOrTx, classId: number, fileName: string,
 
   const rows: CheckedRow[] = records.map((r) => {
     const cell = (i: number) => (i >= 0 ? (r.cells[i] ?? '').trim() : '');
+    // More values than the header names: most often a name with an unquoted comma, so the values are not where they seem.
+    if (r.cells.length > header.cells.length) {
+      return {
+        line: r.line,
+        name: '',
+        email: '',
+        status: 'error',
+        message: `This line has ${r.cells.length} values but the header names ${header.cells.length} columns; put a name that holds a comma in double quotes`,
+      };
+    }
     const name = (nameCol >= 0 ? cell(nameCol) : `${cell(firstCol)} ${cell(lastCol)}`).replace(/ {2,}/g, ' ').trim();
     const rawEmail = cell(emailCol);
     const row: CheckedRow = { line: r.line, name, email: rawEmail.toLowerCase(), status: 'new' };

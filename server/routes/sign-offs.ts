@@ -56,6 +56,13 @@ function testsExpectedOf(definition: unknown): Competency[] {
 
 const isUniqueViolation = (err: unknown) => (err as { code?: string }).code === '23505' || (err as { cause?: { code?: string } }).cause?.code === '23505';
 
+/** Whether the student's verdict on a test was right; null when they gave none (the test was not run). */
+function verdictOn(result: ReturnType<typeof readResult>, test: string): boolean | null {
+  const v = (result.verdicts ?? []).find((x) => x.test === test) as { ok: boolean; given?: boolean | null } | undefined;
+  if (!v || v.given === null) return null;
+  return v.ok;
+}
+
 /**
 /**
  * A student's progress as the viewer may see it. An instructor (`scope`
@@ -91,6 +98,7 @@ async function progressOf(db: DbOrTx, studentId: number, scope: StudentScope, vi
       attemptId: attempts.id,
       grade: attempts.grade,
       submittedAt: attempts.submittedAt,
+      timeToDiagnosisMs: attempts.timeToDiagnosisMs,
       result: attempts.result,
       scenarioTitle: scenarioVersions.title,
       definition: scenarioVersions.definition,
@@ -130,10 +138,22 @@ async function progressOf(db: DbOrTx, studentId: number, scope: StudentScope, vi
         scenarioTitle: a.scenarioTitle,
         grade: a.grade,
         submittedAt: a.submittedAt ? a.submittedAt.toISOString() : null,
+        verdictOk: verdictOn(readResult(a.result), competency),
       })),
     };
   });
-  return { student, competencies };
+  const trend = graded
+    .filter((a) => a.grade !== null)
+    .reverse()
+    .map((a) => ({
+      attemptId: a.attemptId,
+      scenarioTitle: a.scenarioTitle,
+      grade: a.grade!,
+      submittedAt: a.submittedAt ? a.submittedAt.toISOString() : null,
+      timeToDiagnosisMs: a.timeToDiagnosisMs,
+      faultCorrect: readResult(a.result).fault?.ok ?? null,
+    }));
+  return { student, competencies, attempts: trend };
 }
 
 export function signOffRoutes(ctx: AppContext) {
@@ -227,8 +247,7 @@ export function signOffRoutes(ctx: AppContext) {
       rows.map((r) => [
         r.studentName,
         r.studentEmail,
-        r.competency,
-        isCompetency(r.competency) ? COMPETENCY_LABELS[r.competency] : r.competency,
+        isCompetency(r.competency) ? COMPETENCY_LABELS[r.competency] : 'Other competency',
         own(r) ? r.attemptId : null,
         r.signedBy,
         r.createdAt.toISOString(),

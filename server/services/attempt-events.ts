@@ -17,7 +17,7 @@ import { sameEffect } from '../../sim/car-changes.ts';
 import type { Controls } from '../../sim/inputs.ts';
 import { applyInput, initialControls } from '../../sim/inputs.ts';
 import { orderEvents } from '../../sim/replay.ts';
-import { modelEvents, postEventsSchema, READING_LAG_MS, type LogEvent, type PostEventsResponse } from '../../shared/api/attempts.ts';
+import { isNoteEvent, modelEvents, postEventsSchema, READING_LAG_MS, type LogEvent, type PostEventsResponse } from '../../shared/api/attempts.ts';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import { pendingActionSchema, type PendingAction } from '../../shared/api/live.ts';
 import type { Db } from '../db/client.ts';
@@ -78,7 +78,7 @@ export function foldSetup(from: Setup, events: readonly LogEvent[]): Setup {
   let { controls, engineGuess, maxAtMs } = from;
   for (const e of orderEvents(events)) {
     maxAtMs = Math.max(maxAtMs, e.atMs);
-    if (e.kind === 'reading' || e.kind === 'reading-remove') continue;
+    if (isNoteEvent(e)) continue;
     controls = applyInput(controls, e, 0);
     if (e.kind === 'key') engineGuess = e.position === 'start' ? 'cranking' : e.position === 'off' ? 'off' : engineGuess === 'cranking' ? 'running' : engineGuess;
   }

@@ -8,14 +8,15 @@ import { createHash, randomInt } from 'node:crypto';
 import type pg from 'pg';
 import { and, asc, desc, eq, sql } from 'drizzle-orm';
 import type { SessionUser } from '../../shared/api/auth.ts';
-import type { AttemptBootstrap, AttemptResult, BenchScenarioView, MyAttemptRow, StartAttemptInput, StoredEvent } from '../../shared/api/attempts.ts';
-import { attemptResultSchema } from '../../shared/api/attempts.ts';
-import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
+import type { AttemptBootstrap, AttemptResult, MyAttemptRow, StartAttemptInput, StoredEvent } from '../../shared/api/attempts.ts';
+import { attemptResultSchema, benchScenarioView } from '../../shared/api/attempts.ts';
+import type { ScenarioDefinition } from '../../shared/scenario.ts';
 import { assertCanPractiseScenario, assertCanStartAssignment } from '../auth/access.ts';
 import type { Db, DbOrTx } from '../db/client.ts';
 import { assignmentPool, assignments, attempts, scenarioVersions } from '../db/schema.ts';
 import { scopedCache } from '../db/scoped-cache.ts';
 import { notFound } from '../http/errors.ts';
+import { extensionOf, termsFor } from './assignment-terms.ts';
 import { loadDefinition } from './definitions.ts';
 import { carOf, rowToLogEvent } from './live-attempt-run.ts';
 import { hiddenFor, studentGrade, studentResult, type ResultShowing } from './result-views.ts';
@@ -139,7 +140,9 @@ export async function startAttempt(db: Db, user: SessionUser, input: StartAttemp
         .select({ n: sql<number>`count(*)::int` })
         .from(attempts)
         .where(and(eq(attempts.assignmentId, input.assignmentId), eq(attempts.userId, user.id)));
-      const assignment = await assertCanStartAssignment(tx, user, input.assignmentId, used?.n ?? 0);
+      const assignment = await assertCanStartAssignment(tx, user, input.assignmentId, used?.n ?? 0, new Date(), async (row) =>
+        termsFor(row, await extensionOf(tx, row.id, user.id)),
+      );
       const scenarioVersionId = await drawnVersion(tx, assignment, user.id);
       const [row] = await tx
         .insert(attempts)
@@ -206,15 +209,6 @@ export async function poolChoices(db: DbOrTx, assignmentId: number | null): Prom
   if (pool.length === 0) return null;
   const defs = await Promise.all(pool.map((p) => loadDefinition(db, p.versionId)));
   return [...new Set(defs.flatMap((d) => d.diagnosisChoices))];
-}
-
-export function benchScenarioView(def: ScenarioDefinition, choices: ScenarioDefinition['diagnosisChoices'] | null = null): BenchScenarioView {
-  const view = studentScenarioView(choices ? { ...def, diagnosisChoices: choices } : def);
-  return {
-    ...view,
-    diagnosisChoices: view.diagnosisChoices.map((value) => ({ value, label: diagnosisLabel(value) })),
-    tests: DIAGNOSTIC_TESTS.map((test) => ({ test, label: DIAGNOSTIC_TEST_LABELS[test] })),
-  };
 }
 
 export function storedResult(raw: unknown): AttemptResult | null {

@@ -26,7 +26,7 @@
 import { sql } from 'drizzle-orm';
 import type { AttemptResult, RecordedReading, SubmitInput } from '../../shared/api/attempts.ts';
 import type { Db } from '../db/client.ts';
-import { MAX_READINGS } from '../../shared/api/attempts.ts';
+import { hintsOfLog, MAX_READINGS } from '../../shared/api/attempts.ts';
 import { queueScoresForAttempt } from '../lti/scores.ts';
 import { badRequest, conflict, notFound } from '../http/errors.ts';
 import type { ServerTiming } from '../http/server-timing.ts';
@@ -65,6 +65,7 @@ export function gradeJobOf(
     mode: attempt.mode,
     showFeedback: true,
     showCurve: show.showCurveAfter,
+    hintsOpened: hintsOfLog(run.stored.map((e) => e.event), submission.atMs).length,
   };
 }
 

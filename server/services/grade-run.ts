@@ -41,6 +41,8 @@ export interface GradeJob {
   mode: 'assigned' | 'practice';
   showFeedback: boolean;
   showCurve: boolean;
+  /** How many of the scenario's hints the log shows opened before the submission. */
+  hintsOpened?: number;
 }
 
 const verdictCache = new Lru<string, ReturnType<typeof correctVerdicts>>(64);
@@ -94,6 +96,7 @@ export function gradeRun(job: GradeJob, ahead: RerunCursor | null = null): Attem
     showFeedback: job.showFeedback,
     curve,
     pulleyRatio: car.params.belt.pulleyRatio,
+    hints: { opened: job.hintsOpened ?? 0, pointsEach: definition.hintPoints ?? 0 },
   });
 }
 

@@ -17,6 +17,8 @@
  *   shows (a reversed clamp left uncorrected, a load held past the pile's or
  *   the fusible link's limits, a link blown, B+ removed with the engine
  *   running), at least 0.
+ * Each of the scenario's hints the student opened costs the scenario's
+ * points per hint (hintPoints, 0 by default), taken off the total.
  * So a right answer with no evidence earns nothing, and work done without
  * naming the fault earns at most 80.
  *
@@ -255,6 +257,8 @@ export interface GradeInput {
   /** Both curves, when the assignment shows the output curve. */
   curve: { healthy: OutputCurvePoint[]; fitted: OutputCurvePoint[] } | null;
   pulleyRatio: number;
+  /** The scenario's hints the student opened before submitting, and the points each costs an assigned attempt. */
+  hints?: { opened: number; pointsEach: number };
 }
 
 const round1 = (x: number) => Math.round(x * 10) / 10;
@@ -262,6 +266,7 @@ const round1 = (x: number) => Math.round(x * 10) / 10;
 export function gradeAttempt(input: GradeInput): AttemptResult {
   const { submission, samples } = input;
   const atMs = submission.atMs;
+  const hints = input.hints ?? { opened: 0, pointsEach: 0 };
   const checks = checkReadings(input.readings, samples, input.car, atMs);
   const evidencedTests = new Set(checks.filter((c) => c.evidence).map((c) => c.test));
   const expected = input.testsExpected;
@@ -293,8 +298,9 @@ export function gradeAttempt(input: GradeInput): AttemptResult {
       fault: round1(faultOk ? w.fault * share : 0),
       process: round1(Math.max(0, w.process * share - PROCESS_DEDUCTION * processMistakes)),
     };
-    grade = Math.round(Math.min(100, Math.max(0, pts.evidence + pts.verdicts + pts.fault + pts.process)));
-    scoring = { weights: { ...w }, points: pts, processDeduction: PROCESS_DEDUCTION };
+    const hintDeduction = hints.opened * hints.pointsEach;
+    grade = Math.round(Math.min(100, Math.max(0, pts.evidence + pts.verdicts + pts.fault + pts.process - hintDeduction)));
+    scoring = { weights: { ...w }, points: pts, processDeduction: PROCESS_DEDUCTION, hintDeduction };
   }
 
   const feedback: string[] = [];
@@ -309,6 +315,10 @@ export function gradeAttempt(input: GradeInput): AttemptResult {
     for (const c of checks) if (!c.evidence) feedback.push(`Reading of ${shownWithUnit(c.value, c.unit)} (${DIAGNOSTIC_TEST_LABELS[c.test]}): ${c.reason}`);
     for (const m of mistakes) feedback.push(m.message);
     for (const f of input.flags) feedback.push(f.message);
+    if (hints.opened > 0) {
+      const cost = input.mode === 'assigned' && hints.pointsEach > 0 ? `: ${hints.opened * hints.pointsEach} points off the grade` : '';
+      feedback.push(`You opened ${hints.opened} of the scenario’s hints${cost}.`);
+    }
   }
 
   const result: AttemptResult = {
@@ -323,6 +333,7 @@ export function gradeAttempt(input: GradeInput): AttemptResult {
     mistakes,
     flags: [...input.flags],
     feedback,
+    hints: { opened: hints.opened, pointsEach: hints.pointsEach },
   };
   if (input.curve) {
     result.outputCurve = input.curve;

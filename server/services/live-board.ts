@@ -21,7 +21,7 @@ import type { ReplayPoint } from '../../sim/replay.ts';
 import { advance, orderEvents, startPoint } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
 import type { CarChange } from '../../sim/car-changes.ts';
-import { readingsOfLog, type LogEvent } from '../../shared/api/attempts.ts';
+import { isNoteEvent, readingsOfLog, type LogEvent } from '../../shared/api/attempts.ts';
 import type { BoardAttempt, LiveReadings } from '../../shared/api/live.ts';
 import type { DbOrTx } from '../db/client.ts';
 import { assignments, attemptEvents, attempts, classes, pendingInjections, scenarioVersions, users } from '../db/schema.ts';
@@ -68,6 +68,8 @@ const boardColumns = {
   status: attempts.status,
   startedAt: attempts.startedAt,
   simTimeMs: attempts.simTimeMs,
+  benchTimeMs: attempts.benchTimeMs,
+  benchSeenAt: attempts.benchSeenAt,
   lastSeq: attempts.lastSeq,
   seed: attempts.seed,
   scenarioVersionId: attempts.scenarioVersionId,
@@ -107,6 +109,7 @@ async function boardRows(db: DbOrTx, classId: number, where: ReturnType<typeof a
  * the one the database would give.
  */
 export function boardVersionOf(a: Pick<BoardAttempt, 'lastSeq' | 'simTimeMs' | 'injections'>): string {
+  // The board's sim time is already the later of the log's and the bench's clock (boardTimeMs).
   return versionOf(a.lastSeq, a.simTimeMs, a.injections.length, a.injections.filter((i) => i.appliedAt !== null).length);
 }
 
@@ -123,7 +126,7 @@ export async function boardVersions(db: DbOrTx, classId: number): Promise<Map<nu
     .select({
       attemptId: attempts.id,
       lastSeq: attempts.lastSeq,
-      simTimeMs: attempts.simTimeMs,
+      simTimeMs: sql<number>`greatest(${attempts.simTimeMs}, coalesce(${attempts.benchTimeMs}, 0))`,
       injections: sql<number>`(select count(*)::int from ${pendingInjections} p where p.attempt_id = ${attempts.id})`,
       applied: sql<number>`(select count(*)::int from ${pendingInjections} p where p.attempt_id = ${attempts.id} and p.applied_at is not null)`,
     })
@@ -172,7 +175,7 @@ function toBoardAttempt(r: BoardRow, live: LiveView | null, injections: readonly
     mode: r.mode,
     status: r.status === 'submitted' ? 'submitted' : 'running',
     startedAt: r.startedAt.toISOString(),
-    simTimeMs: r.simTimeMs,
+    simTimeMs: boardTimeMs(r),
     lastSeq: r.lastSeq,
     currentTest: live?.currentTest ?? null,
     readings: live?.readings ?? null,
@@ -180,10 +183,14 @@ function toBoardAttempt(r: BoardRow, live: LiveView | null, injections: readonly
     injections: views,
     flagged: views.some((v) => v.status === 'flagged'),
     lastActivityAt: r.lastActivityAt ? r.lastActivityAt.toISOString() : null,
+    benchSeenAt: r.benchSeenAt ? r.benchSeenAt.toISOString() : null,
   };
 }
 
-export function liveReadings(r: Readings): LiveReadings {
+/** The moment the board shows: the bench's clock as last reported, or the latest stored event if that is later. */
+export const boardTimeMs = (r: { simTimeMs: number; benchTimeMs: number | null }): number => Math.max(r.simTimeMs, r.benchTimeMs ?? 0);
+
+export function liveReadings(r: Readings, linkBlown: boolean): LiveReadings {
   return {
     voltmeterV: r.voltmeterV,
     rippleVac: r.rippleVac,
@@ -193,6 +200,9 @@ export function liveReadings(r: Readings): LiveReadings {
     pileA: r.pileA,
     engine: r.engine,
     batterySoc01: r.batterySoc01,
+    pileHot: r.pileHot,
+    pileOverheated: r.pileOverheated,
+    linkBlown,
   };
 }
 
@@ -265,6 +275,7 @@ export interface BoardRunRow {
   scenarioVersionId: number;
   lastSeq: number;
   simTimeMs: number;
+  benchTimeMs: number | null;
 }
 
 /** Counts since the cache was made, for the benches and tests. */
@@ -407,7 +418,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
           entry.seqs.add(r.seq);
           const event = rowToLogEvent(r);
           if (!event) continue;
-          if (event.kind === 'reading' || event.kind === 'reading-remove') entry.notes.push({ seq: r.seq, event });
+          if (isNoteEvent(event)) entry.notes.push({ seq: r.seq, event });
           else {
             if (event.kind === 'change-apply' || event.kind === 'change-clear') entry.notes.push({ seq: r.seq, event });
             fresh.push({ seq: r.seq, event });
@@ -416,7 +427,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
         entry.notes.sort((a, b) => a.seq - b.seq);
         if (!takeIn(entry, fresh)) entry.point = startPoint(entry.params, entry.seed, entry.changes);
         entry.through = Math.max(entry.through, row.lastSeq);
-        views.set(row.attemptId, await carryTo(entry, row.simTimeMs, slices));
+        views.set(row.attemptId, await carryTo(entry, boardTimeMs(row), slices));
       } catch (err) {
         log('board re-run failed', err);
         views.set(row.attemptId, null);
@@ -451,7 +462,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
     const readings = readMeters(entry.params, entry.point.state);
     const recorded = readingsOfLog(entry.notes.map((n) => n.event)).map((r) => ({ id: r.id, test: r.test, value: r.value, unit: r.unit, atMs: r.atMs }));
     const changes = entry.notes.filter((n) => n.event.kind === 'change-apply' || n.event.kind === 'change-clear');
-    return { currentTest: testOfSetup(entry.point.controls, readings), readings: liveReadings(readings), recorded, changes };
+    return { currentTest: testOfSetup(entry.point.controls, readings), readings: liveReadings(readings, entry.point.state.fusibleLinkBlown), recorded, changes };
   }
 
   return {

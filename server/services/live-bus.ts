@@ -10,7 +10,8 @@
  * The database itself sends the notifications (triggers in the migrations
  * `live-notify` and `session-notify`): a stored attempt event, a new or
  * changed attempt, a new or applied injection, an ended or rewritten session
- * and a changed account.
+ * and a changed account; the statement that stores a bench's clock sends its
+ * own (server/services/bench-clock.ts).
  */
 import pg from 'pg';
 import type { AppContext } from '../context.ts';
@@ -19,13 +20,15 @@ import type { AppContext } from '../context.ts';
 export const ATTEMPT_CHANNEL = 'loadline_attempt';
 /** "attempt id:injection id": an injection was made, cleared or applied. */
 export const INJECTION_CHANNEL = 'loadline_injection';
+/** attempt id: the open bench reported its clock (only the class boards listen). */
+export const BENCH_CLOCK_CHANNEL = 'loadline_bench_clock';
 /** sid: a session ended before its expiry, or was rewritten (the session cache of server/auth/session.ts). */
 export const SESSION_CHANNEL = 'loadline_session';
 /** user id: an account changed or was removed. */
 export const USER_CHANNEL = 'loadline_user';
-export type LiveChannel = typeof ATTEMPT_CHANNEL | typeof INJECTION_CHANNEL | typeof SESSION_CHANNEL | typeof USER_CHANNEL;
+export type LiveChannel = typeof ATTEMPT_CHANNEL | typeof INJECTION_CHANNEL | typeof BENCH_CLOCK_CHANNEL | typeof SESSION_CHANNEL | typeof USER_CHANNEL;
 /** What the live board and the benches' injection streams hear. */
-export const LIVE_CHANNELS: readonly LiveChannel[] = [ATTEMPT_CHANNEL, INJECTION_CHANNEL];
+export const LIVE_CHANNELS: readonly LiveChannel[] = [ATTEMPT_CHANNEL, INJECTION_CHANNEL, BENCH_CLOCK_CHANNEL];
 /** What the session cache hears: kept apart, so an always-open cache does not take every stored batch's notification too. */
 export const SESSION_CHANNELS: readonly LiveChannel[] = [SESSION_CHANNEL, USER_CHANNEL];
 

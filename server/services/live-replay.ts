@@ -2,31 +2,21 @@
  * The moments of an attempt worth jumping to in a replay: hook-ups (leads,
  * clamp, series ammeter), engine starts, load changes (pile and accessories),
  * the instructor's injections (where the server applied them), recorded
- * readings and the submission.
+ * readings, the scenario's hints the student opened, and the submission.
  */
 import type { InputEvent } from '../../sim/inputs.ts';
 import { recordedReadingSchema } from '../../shared/api/attempts.ts';
 import type { Marker, ReplayReading } from '../../shared/api/replay.ts';
+import { CONDUCTOR_WORDS, POINT_WORDS } from '../../shared/bench-words.ts';
 import { shownWithUnit } from '../../shared/meter-display.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../shared/scenario.ts';
 
-const POINT_LABELS: Record<string, string> = {
-  'battery-pos': 'battery +',
-  'battery-neg': 'battery −',
-  'jump-pos': 'jump post +',
-  'jump-neg': 'jump post −',
-  'alt-bplus': 'alternator B+',
-  'alt-case': 'alternator case',
-  'engine-ground': 'engine ground',
-  chassis: 'chassis',
-};
-
-function markerOf(e: InputEvent, changeLabels: Readonly<Record<string, string>>): Marker | null {
+function markerOf(e: InputEvent, changeLabels: Readonly<Record<string, string>>, accessories: readonly { id: string; label: string }[]): Marker | null {
   switch (e.kind) {
     case 'lead':
-      return e.point ? { atMs: e.atMs, kind: 'hook-up', label: `${e.which === 'red' ? 'Red' : 'Black'} lead on ${POINT_LABELS[e.point] ?? e.point}` } : null;
+      return e.point ? { atMs: e.atMs, kind: 'hook-up', label: `${e.which === 'red' ? 'Red' : 'Black'} lead on ${POINT_WORDS[e.point]}` } : null;
     case 'clamp':
-      return e.conductor ? { atMs: e.atMs, kind: 'hook-up', label: `Clamp on ${e.conductor.replace(/-/g, ' ')}` } : null;
+      return e.conductor ? { atMs: e.atMs, kind: 'hook-up', label: `Clamp on ${CONDUCTOR_WORDS[e.conductor]}, arrow ${e.arrow === 'toward-battery' ? 'toward the battery' : 'toward the alternator'}` } : null;
     case 'ammeter':
       return e.inSeries ? { atMs: e.atMs, kind: 'hook-up', label: 'Ammeter in series' } : null;
     case 'key':
@@ -34,7 +24,7 @@ function markerOf(e: InputEvent, changeLabels: Readonly<Record<string, string>>)
     case 'pile':
       return { atMs: e.atMs, kind: 'load', label: `Pile to ${Math.round(e.dial01 * 100)} %` };
     case 'accessory':
-      return { atMs: e.atMs, kind: 'load', label: `${e.id.replace(/-/g, ' ')} ${e.on ? 'on' : 'off'}` };
+      return { atMs: e.atMs, kind: 'load', label: `${accessories.find((a) => a.id === e.id)?.label ?? 'An accessory'} ${e.on ? 'on' : 'off'}` };
     case 'change-apply':
       return { atMs: e.atMs, kind: 'fault', label: changeLabels[e.change.id] ? `Injected: ${changeLabels[e.change.id]}` : 'Instructor’s injection' };
     case 'change-clear':
@@ -44,10 +34,17 @@ function markerOf(e: InputEvent, changeLabels: Readonly<Record<string, string>>)
   }
 }
 
-export function replayMarkers(events: readonly InputEvent[], readings: readonly ReplayReading[], submittedAtMs: number | null, changeLabels: Readonly<Record<string, string>>): Marker[] {
+export function replayMarkers(
+  events: readonly InputEvent[],
+  readings: readonly ReplayReading[],
+  submittedAtMs: number | null,
+  changeLabels: Readonly<Record<string, string>>,
+  accessories: readonly { id: string; label: string }[] = [],
+  hints: readonly { atMs: number; index: number }[] = [],
+): Marker[] {
   const out: Marker[] = [];
   for (const e of events) {
-    const m = markerOf(e, changeLabels);
+    const m = markerOf(e, changeLabels, accessories);
     if (!m) continue;
     // A run of pile turns within a second is one load change.
     const prev = out.at(-1);
@@ -61,6 +58,7 @@ export function replayMarkers(events: readonly InputEvent[], readings: readonly 
     const verdict = r.evidence === true ? 'evidence' : r.evidence === false ? 'not evidence' : r.inSetup ? 'inside the set-up' : 'outside the set-up';
     out.push({ atMs: Math.round(r.atMs), kind: 'reading', label: `${DIAGNOSTIC_TEST_LABELS[r.test]}: ${shownWithUnit(r.value, r.unit)} (${verdict})` });
   }
+  for (const h of hints) out.push({ atMs: Math.round(h.atMs), kind: 'hint', label: `Hint ${h.index + 1} opened` });
   if (submittedAtMs !== null) out.push({ atMs: submittedAtMs, kind: 'submission', label: 'Submitted' });
   return out.sort((a, b) => a.atMs - b.atMs);
 }

@@ -21,6 +21,7 @@ const storedResultSchema = z.object({
   fault: z.object({ given: z.string(), actual: z.array(z.string()), ok: z.boolean() }).partial().optional(),
   verdicts: z.array(z.object({ test: z.enum(COMPETENCIES), ok: z.boolean() }).loose()).optional(),
   mistakes: z.array(z.object({ kind: z.string() }).loose()).optional(),
+  hints: z.object({ opened: z.number() }).loose().optional(),
 });
 export type StoredResult = z.infer<typeof storedResultSchema>;
 
@@ -157,6 +158,7 @@ export function toRow(a: SubmittedAttempt, attemptCount: number): CompareRow {
     mistakeKinds: [...new Set(mistakes.map((m) => m.kind))],
     drawnFault: a.drawnFault,
     flagged: (a.result.flags?.length ?? 0) > 0,
+    hintsOpened: a.result.hints?.opened ?? null,
   };
 }
 

@@ -6,7 +6,7 @@ import { randomBytes } from 'node:crypto';
 import { and, desc, eq, inArray, or, type SQL } from 'drizzle-orm';
 import type { ScenarioDetail, ScenarioListItem, ScenarioVersionSummary, Visibility } from '../../shared/api/scenarios.ts';
 import type { SessionUser } from '../../shared/api/auth.ts';
-import { formatIssues, safeRestoreScenario, scenarioFaultKinds, type ScenarioDefinition } from '../../shared/scenario.ts';
+import { formatIssues, safeRestoreScenario, scenarioFaultKinds, scenarioFieldInWords, type ScenarioDefinition } from '../../shared/scenario.ts';
 import { canEditScenario } from '../auth/access.ts';
 import type { DbOrTx } from '../db/client.ts';
 import { scenarios, scenarioVersions, users } from '../db/schema.ts';
@@ -27,7 +27,8 @@ export function parseScenarioDocument(raw: unknown, prefix = ''): ScenarioDefini
   }));
   const first = issues[0] ?? { path: prefix || '(document)', message: 'Invalid scenario' };
   const more = issues.length > 1 ? ` (and ${issues.length - 1} more)` : '';
-  throw badRequest(`${first.path}: ${first.message}${more}`, { field: first.path, issues });
+  // The message names the field in words ("Vehicle › Battery › Cold-cranking amps"); `field` and each issue's `path` keep the file's own dotted path.
+  throw badRequest(`${scenarioFieldInWords(first.path)}: ${first.message}${more}`, { field: first.path, issues });
 }
 
 export function slugFor(title: string): string {

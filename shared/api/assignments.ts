@@ -43,6 +43,55 @@ export const createAssignmentSchema = z
   .refine((a) => Date.parse(a.dueAt) > Date.parse(a.opensAt), { error: 'dueAt must be after opensAt', path: ['dueAt'] });
 export type CreateAssignmentInput = z.input<typeof createAssignmentSchema>;
 
+/** PATCH /api/assignments/:id: any of the dates, the attempts, the title and what is shown after submission. */
+export const updateAssignmentSchema = z
+  .strictObject({
+    title: z.string().trim().min(3, 'title must be at least 3 characters').max(160, 'title must be at most 160 characters').optional(),
+    opensAt: isoDate('opensAt').optional(),
+    dueAt: isoDate('dueAt').optional(),
+    attemptsAllowed: z.number({ error: 'attemptsAllowed must be a number' }).int('attemptsAllowed must be a whole number').min(1, 'attemptsAllowed must be at least 1').max(20, 'attemptsAllowed must be at most 20').optional(),
+    showCurveAfter: z.boolean().optional(),
+    showFeedbackAfter: z.boolean().optional(),
+  })
+  .refine((a) => Object.values(a).some((v) => v !== undefined), { error: 'send at least one field to change' });
+export type UpdateAssignmentInput = z.infer<typeof updateAssignmentSchema>;
+
+export const extensionParamsSchema = z.object({
+  id: z.coerce.number().int().positive('id must be a positive whole number'),
+  userId: z.coerce.number().int().positive('userId must be a positive whole number'),
+});
+
+/** PUT /api/assignments/:id/extensions/:userId: one student's own due date (null: the assignment's) and extra attempts. */
+export const extensionSchema = z
+  .strictObject({
+    dueAt: isoDate('dueAt').nullable(),
+    extraAttempts: z.number({ error: 'extraAttempts must be a number' }).int('extraAttempts must be a whole number').min(0, 'extraAttempts must not be negative').max(20, 'extraAttempts must be at most 20'),
+  })
+  .refine((e) => e.dueAt !== null || e.extraAttempts > 0, { error: 'give a later due date, extra attempts, or both', path: ['dueAt'] });
+export type ExtensionInput = z.infer<typeof extensionSchema>;
+
+export const STUDENT_PROGRESS = ['not-started', 'in-progress', 'submitted'] as const;
+export type StudentProgress = (typeof STUDENT_PROGRESS)[number];
+export const PROGRESS_LABELS: Readonly<Record<StudentProgress, string>> = { 'not-started': 'Not started', 'in-progress': 'Started, not submitted', submitted: 'Submitted' };
+
+/** GET /api/assignments/:id/students: every enrolled student, how far they are and their own terms. */
+export const assignmentStudentSchema = z.object({
+  studentId: z.number().int(),
+  name: z.string(),
+  email: z.string(),
+  progress: z.enum(STUDENT_PROGRESS),
+  attemptsUsed: z.number().int(),
+  /** The assignment's attempts plus the student's extra ones. */
+  attemptsAllowed: z.number().int(),
+  /** The student's own due date when extended, else the assignment's. */
+  dueAt: z.string(),
+  extension: z.object({ dueAt: z.string().nullable(), extraAttempts: z.number().int() }).nullable(),
+  /** The latest attempt, to open its replay. */
+  latestAttemptId: z.number().int().nullable(),
+});
+export type AssignmentStudent = z.infer<typeof assignmentStudentSchema>;
+export const assignmentStudentsResponseSchema = z.object({ students: z.array(assignmentStudentSchema) });
+
 export const listAssignmentsQuerySchema = z.object({
   classId: idParam('classId'),
 });

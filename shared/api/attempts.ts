@@ -11,8 +11,8 @@ import { CONDUCTORS, CONNECTION_POINTS } from '../../sim/inputs.ts';
 import type { OutputCurvePoint } from '../../sim/instruments.ts';
 import type { CompiledCar } from '../../sim/compiled-car.ts';
 import { carChangeSchema } from '../car.ts';
-import type { DiagnosisChoice, StudentScenarioView } from '../scenario.ts';
-import { DIAGNOSTIC_TESTS, diagnosisChoiceSchema, diagnosticTestSchema, faultSchema } from '../scenario.ts';
+import type { DiagnosisChoice, ScenarioDefinition, StudentScenarioView } from '../scenario.ts';
+import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisChoiceSchema, diagnosisLabel, diagnosticTestSchema, faultSchema, studentScenarioView } from '../scenario.ts';
 import { idField, idParam } from './ids.ts';
 
 // Imported from here by the live-session contract; the list itself lives with the scenario document.
@@ -105,10 +105,16 @@ export const recordedReadingSchema = z
   });
 export type RecordedReading = z.infer<typeof recordedReadingSchema>;
 
-/** A reading as the log stores it: recorded, or struck out. `atMs` is when it was logged; the reading's own `atMs` is the tick it shows. */
+/**
+ * The student's notes a log stores beside the car's inputs: a reading
+ * recorded or struck out (`atMs` is when it was logged; the reading's own
+ * `atMs` is the tick it shows), and a hint opened (`index` into the
+ * scenario's hints). None of them is an input of the model.
+ */
 export type ReadingEvent =
   | { kind: 'reading'; atMs: number; reading: RecordedReading }
-  | { kind: 'reading-remove'; atMs: number; readingId: string };
+  | { kind: 'reading-remove'; atMs: number; readingId: string }
+  | { kind: 'hint'; atMs: number; index: number };
 
 /** The model's inputs a log holds (faults as events are the model's and the tests' own; the log speaks of changes). */
 export type CarInput = Exclude<InputEvent, { kind: 'fault-inject' } | { kind: 'fault-clear' }>;
@@ -122,14 +128,25 @@ export const READING_LAG_MS = 1000;
 export const readingEventSchema = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('reading'), atMs: simTimeMsSchema, reading: recordedReadingSchema }),
   z.object({ kind: z.literal('reading-remove'), atMs: simTimeMsSchema, readingId: z.string().min(1).max(64) }),
+  z.object({ kind: z.literal('hint'), atMs: simTimeMsSchema, index: z.number().int('a hint index is a whole number').min(0).max(9, 'a scenario has at most 10 hints') }),
 ]);
+
+/** A note of the student's in the log (a reading or a hint), not an input of the model. */
+export const isNoteEvent = (e: { kind: string }): e is ReadingEvent => e.kind === 'reading' || e.kind === 'reading-remove' || e.kind === 'hint';
 
 /** What a bench may log: the car's inputs, changes that log an instructor's injection, and readings. */
 export const logEventSchema = z.discriminatedUnion('kind', [...carInputs, ...readingEventSchema.options]);
 
 /** The model's events of a log, in order (readings are the student's notes, not inputs). */
 export function modelEvents(events: readonly LogEvent[]): CarInput[] {
-  return events.filter((e): e is CarInput => e.kind !== 'reading' && e.kind !== 'reading-remove');
+  return events.filter((e): e is CarInput => !isNoteEvent(e));
+}
+
+/** The hints a log shows opened by `untilMs` (each once, by its index), in the order opened. */
+export function hintsOfLog(events: readonly LogEvent[], untilMs = Number.POSITIVE_INFINITY): number[] {
+  const opened: number[] = [];
+  for (const e of events) if (e.kind === 'hint' && e.atMs <= untilMs && !opened.includes(e.index)) opened.push(e.index);
+  return opened;
 }
 
 /** The readings a log ends with: each recorded one not struck out since, in the order recorded. */
@@ -239,6 +256,22 @@ export const MISTAKE_KINDS = [
 export const mistakeKindSchema = z.enum(MISTAKE_KINDS);
 export type MistakeKind = z.infer<typeof mistakeKindSchema>;
 
+/** Short names of the mistakes, for tables and exports. */
+export const MISTAKE_LABELS: Readonly<Record<MistakeKind, string>> = {
+  'reversed-clamp': 'Clamp reversed',
+  'reversed-leads': 'Leads reversed',
+  'blown-fusible-link': 'Fusible link burnt open',
+  'link-overloaded': 'Fusible link held over its rating',
+  'pile-overheated': 'Pile overheated',
+  'long-loaded-test': 'Load held too long',
+  'bplus-removed-running': 'B+ lead removed with the engine running',
+  'battery-run-down': 'Battery run down',
+  'engine-stalled': 'Engine stalled',
+};
+
+/** A mistake kind's name, or a plain word for one this version does not know. */
+export const mistakeLabel = (kind: string): string => ((MISTAKE_KINDS as readonly string[]).includes(kind) ? MISTAKE_LABELS[kind as MistakeKind] : 'Other mistake');
+
 /** Points of the grade of an assigned attempt; how each part is earned is in docs/grading.md and the result's `scoring`. */
 export const GRADE_WEIGHTS = { evidence: 40, verdicts: 20, fault: 20, process: 20 } as const;
 /** Process points lost per kind of process mistake found in the re-run. */
@@ -288,7 +321,9 @@ export const attemptResultSchema = z.object({
   /** Every expected test has evidence, every reading was what the bench showed, and the bench logged what the server sent it (null while hidden). */
   verified: z.boolean().nullable(),
   /** How the grade was made: the weights and the points of each part (null in practice and while hidden). */
-  scoring: z.object({ weights: points, points, processDeduction: z.number() }).nullable(),
+  scoring: z.object({ weights: points, points, processDeduction: z.number(), hintDeduction: z.number().optional() }).nullable(),
+  /** The scenario's hints the student opened before submitting, and what each cost (absent on results graded before hints were logged). */
+  hints: z.object({ opened: z.number().int().min(0), pointsEach: z.number().min(0) }).optional(),
   /** Set when the student may not see everything yet: practice results reveal nothing a live car would not; an assignment may hide results until it closes. */
   hidden: z.object({ reason: z.enum(['practice', 'until-close']), until: z.string().nullable() }).nullable(),
   readings: z.array(readingCheckSchema),
@@ -335,6 +370,21 @@ export interface BenchScenarioView extends Omit<StudentScenarioView, 'diagnosisC
   tests: { test: DiagnosticTest; label: string }[];
 }
 export const benchScenarioViewSchema = z.custom<BenchScenarioView>((v) => typeof v === 'object' && v !== null);
+
+/**
+ * The bench's view of a scenario: the student's view with labelled diagnosis
+ * choices and every test of the family. An assignment with a fault pool offers
+ * the choices of the whole pool (`choices`), so the list says nothing of which
+ * car was drawn.
+ */
+export function benchScenarioView(def: ScenarioDefinition, choices: ScenarioDefinition['diagnosisChoices'] | null = null): BenchScenarioView {
+  const view = studentScenarioView(choices ? { ...def, diagnosisChoices: choices } : def);
+  return {
+    ...view,
+    diagnosisChoices: view.diagnosisChoices.map((value) => ({ value, label: diagnosisLabel(value) })),
+    tests: DIAGNOSTIC_TESTS.map((test) => ({ test, label: DIAGNOSTIC_TEST_LABELS[test] })),
+  };
+}
 
 export const attemptModeSchema = z.enum(['assigned', 'practice']);
 export const attemptStatusSchema = z.enum(['running', 'submitted']);

@@ -34,6 +34,8 @@ export const compareRowSchema = z.object({
   drawnFault: z.string().nullable(),
   /** The attempt was flagged: an instructor's injection not logged by the bench as the server sent it. */
   flagged: z.boolean(),
+  /** How many of the scenario's hints the student opened (null: graded before hints were logged). */
+  hintsOpened: z.number().int().nullable(),
 });
 export type CompareRow = z.infer<typeof compareRowSchema>;
 
@@ -126,30 +128,49 @@ export const competencyProgressSchema = z.object({
   /** Of their verdicts on this test, how many were right. */
   verdictsRight: z.number().int(),
   verdicts: z.number().int(),
-  /** Graded attempts an instructor could sign this competency off from, newest first. */
-  evidence: z.array(z.object({ attemptId: z.number().int(), scenarioTitle: z.string(), grade: z.number().nullable(), submittedAt: z.string().nullable() })),
+  /** Graded attempts an instructor could sign this competency off from, newest first, with whether the verdict on this test was right (null: none given). */
+  evidence: z.array(
+    z.object({ attemptId: z.number().int(), scenarioTitle: z.string(), grade: z.number().nullable(), submittedAt: z.string().nullable(), verdictOk: z.boolean().nullable() }),
+  ),
 });
 export type CompetencyProgress = z.infer<typeof competencyProgressSchema>;
 
 export const progressResponseSchema = z.object({
   student: z.object({ id: z.number().int(), name: z.string() }),
   competencies: z.array(competencyProgressSchema),
+  /** Every graded attempt, oldest first: the trend of grades and diagnosis times. */
+  attempts: z.array(
+    z.object({
+      attemptId: z.number().int(),
+      scenarioTitle: z.string(),
+      grade: z.number(),
+      submittedAt: z.string().nullable(),
+      timeToDiagnosisMs: z.number().int().nullable(),
+      faultCorrect: z.boolean().nullable(),
+    }),
+  ),
 });
 export type ProgressResponse = z.infer<typeof progressResponseSchema>;
 
 /** Columns of the CSV exports, in order. */
+/**
+ * The grades export: one row per submitted attempt, in words (no codes), the
+ * row that counts for each student marked (their latest submitted attempt).
+ */
 export const GRADES_CSV_COLUMNS = [
-  'attempt_id',
-  'student_name',
-  'student_email',
-  'assignment',
-  'drawn_fault',
-  'submitted_at',
-  'grade',
-  'verified',
-  'fault_named',
-  'correct',
-  'time_to_diagnosis_s',
-  'mistakes',
+  'Attempt',
+  'Student',
+  'E-mail',
+  'Assignment',
+  'Fault drawn',
+  'Submitted at',
+  'Counts for the grade',
+  'Grade',
+  'Readings verified',
+  'Fault named',
+  'Fault correct',
+  'Time to diagnosis (s)',
+  'Mistakes',
+  'Mistakes made',
 ] as const;
-export const SIGN_OFFS_CSV_COLUMNS = ['student_name', 'student_email', 'competency', 'competency_label', 'attempt_id', 'signed_by', 'signed_at', 'note'] as const;
+export const SIGN_OFFS_CSV_COLUMNS = ['Student', 'E-mail', 'Competency', 'Attempt', 'Signed by', 'Signed at', 'Note'] as const;

@@ -17,6 +17,7 @@ import { INTEGRITY_FLAG_KINDS } from './attempts.ts';
 import { carChangeSchema } from '../car.ts';
 import { DIAGNOSTIC_TESTS } from '../scenario.ts';
 import { idField, idParam } from './ids.ts';
+import { MAX_ATTEMPT_MS } from './attempts.ts';
 
 export const LIVE_FAULT_PREFIX = 'live-';
 
@@ -138,6 +139,11 @@ export const liveReadingsSchema = z.object({
   pileA: z.number(),
   engine: z.string(),
   batterySoc01: z.number(),
+  /** The carbon pile past its warning temperature, and cut out. */
+  pileHot: z.boolean(),
+  pileOverheated: z.boolean(),
+  /** The fusible link burnt open during the attempt. */
+  linkBlown: z.boolean(),
 });
 export type LiveReadings = z.infer<typeof liveReadingsSchema>;
 
@@ -151,7 +157,7 @@ export const boardAttemptSchema = z.object({
   mode: z.string(),
   status: z.enum(['running', 'submitted']),
   startedAt: z.string(),
-  /** Sim time of the latest stored event. */
+  /** Sim time the board shows: the bench's own clock as it last reported it, or the latest stored event's if later. */
   simTimeMs: z.number().int(),
   lastSeq: z.number().int(),
   /** The test the bench is set up for at that moment, as the server's re-run sees it. */
@@ -165,8 +171,26 @@ export const boardAttemptSchema = z.object({
   flagged: z.boolean(),
   /** When the last batch of events arrived. */
   lastActivityAt: z.string().nullable(),
+  /** When the bench, open in a browser, last reported its clock (null: never). */
+  benchSeenAt: z.string().nullable(),
 });
 export type BoardAttempt = z.infer<typeof boardAttemptSchema>;
+
+/** The open bench reports its clock this often, so the board can show the meters as they are now. */
+export const BENCH_CLOCK_INTERVAL_MS = 5_000;
+/** A bench that has not reported its clock for this long is closed or hidden. */
+export const BENCH_GONE_AFTER_MS = 20_000;
+/** A bench with no input for this long is idle. */
+export const BENCH_IDLE_AFTER_MS = 3 * 60_000;
+
+/** POST /api/attempts/:id/clock: the bench's sim time now. */
+export const benchClockSchema = z.strictObject({
+  simTimeMs: z
+    .number({ error: 'simTimeMs must be a number of milliseconds' })
+    .int('simTimeMs must be a whole number of milliseconds')
+    .min(0, 'simTimeMs must not be negative')
+    .max(MAX_ATTEMPT_MS, `simTimeMs must be at most ${MAX_ATTEMPT_MS} (four hours)`),
+});
 
 export const boardSnapshotSchema = z.object({ classId: z.number().int(), className: z.string(), attempts: z.array(boardAttemptSchema) });
 export type BoardSnapshot = z.infer<typeof boardSnapshotSchema>;

@@ -12,7 +12,7 @@ import { idParam } from './ids.ts';
 
 export const replayParamsSchema = z.object({ id: idParam('id') });
 
-export const MARKER_KINDS = ['hook-up', 'start', 'load', 'fault', 'reading', 'submission'] as const;
+export const MARKER_KINDS = ['hook-up', 'start', 'load', 'fault', 'reading', 'hint', 'submission'] as const;
 export type MarkerKind = (typeof MARKER_KINDS)[number];
 export const MARKER_LABELS: Readonly<Record<MarkerKind, string>> = {
   'hook-up': 'Hook-up',
@@ -20,6 +20,7 @@ export const MARKER_LABELS: Readonly<Record<MarkerKind, string>> = {
   load: 'Load change',
   fault: 'Injected fault',
   reading: 'Reading recorded',
+  hint: 'Hint opened',
   submission: 'Submission',
 };
 

@@ -18,6 +18,7 @@ export const paths = {
   scenarios: { pattern: '/scenarios', href: () => '/scenarios' },
   scenarioNew: { pattern: '/scenarios/new', href: () => '/scenarios/new' },
   scenario: { pattern: '/scenarios/:scenarioId', href: (scenarioId: number) => `/scenarios/${scenarioId}` },
+  scenarioTry: { pattern: '/scenarios/:scenarioId/try', href: (scenarioId: number) => `/scenarios/${scenarioId}/try` },
   classes: { pattern: '/classes', href: () => '/classes' },
   class: { pattern: '/classes/:classId', href: (classId: number) => `/classes/${classId}` },
   live: { pattern: '/classes/:classId/live', href: (classId: number) => `/classes/${classId}/live` },

@@ -3,7 +3,8 @@ import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
 import { SCREENSHOT_DIR } from './browser.ts';
 import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
-import { holdRpm, openBench, reading, scenarioIdOf, startEngine } from './bench-helpers.ts';
+import { CLAMP_SPOTS, PARKED, POINT_XY, VIEW_H, VIEW_W } from '../../src/components/schematic/layout.ts';
+import { holdRpm, hookUp, openBench, reading, scenarioIdOf, startEngine, toggleAccessory } from './bench-helpers.ts';
 
 const e2e = browserAndServerForFile();
 
@@ -17,8 +18,12 @@ describe('the inductive clamp and the drawing', () => {
     await openBench(page, e2e.app.url, `scenarioId=${scenarioId}`);
 
     const drawing = page.getByRole('img', { name: /Engine bay schematic/ });
+    // The drawing keeps its proportions inside its box (the SVG default, "xMidYMid meet").
     const box = (await drawing.boundingBox())!;
-    const at = (x: number, y: number): [number, number] => [box.x + (x / 1000) * box.width, box.y + (y / 540) * box.height];
+    const scale = Math.min(box.width / VIEW_W, box.height / VIEW_H);
+    const left = box.x + (box.width - VIEW_W * scale) / 2;
+    const top = box.y + (box.height - VIEW_H * scale) / 2;
+    const at = (x: number, y: number): [number, number] => [left + x * scale, top + y * scale];
     const drag = async (from: [number, number], to: [number, number]) => {
       await page.mouse.move(...at(...from));
       await page.mouse.down();
@@ -26,24 +31,31 @@ describe('the inductive clamp and the drawing', () => {
       await page.mouse.up();
     };
     // Drag the red clip from where it hangs onto the battery positive post.
-    await drag([868, 176], [130, 330]);
+    await drag([PARKED.red[0], PARKED.red[1] - 8], [POINT_XY['battery-pos'][0], POINT_XY['battery-pos'][1]]);
     await expect.poll(() => drawing.getAttribute('aria-label')).toMatch(/red lead on the battery positive post/);
     // Click the black clip, then click the battery negative post.
-    await page.mouse.click(...at(942, 176));
-    await page.mouse.click(...at(230, 330));
+    await page.mouse.click(...at(PARKED.black[0], PARKED.black[1] - 8));
+    await page.mouse.click(...at(POINT_XY['battery-neg'][0] + 6, POINT_XY['battery-neg'][1] + 4));
     await expect.poll(() => drawing.getAttribute('aria-label')).toMatch(/black lead on the battery negative post/);
+    // Pick the clamp up: every cable it can close on lights up as a place for it.
+    await page.mouse.click(...at(PARKED.clamp[0], PARKED.clamp[1]));
+    await expect.poll(() => page.locator('[data-clamp-place]').count()).toBe(5);
+    await page.mouse.click(...at(PARKED.clamp[0], PARKED.clamp[1]));
+    await expect.poll(() => page.locator('[data-clamp-place]').count()).toBe(0);
     // Drag the clamp onto the B+ cable.
-    await drag([905, 236], [600, 140]);
-    await expect.poll(() => drawing.getAttribute('aria-label')).toMatch(/clamp on the b\+ charging cable, arrow toward the battery/);
+    await drag([PARKED.clamp[0], PARKED.clamp[1]], [CLAMP_SPOTS['bplus-cable'].at[0], CLAMP_SPOTS['bplus-cable'].at[1] + 6]);
+    await expect.poll(() => drawing.getAttribute('aria-label')).toMatch(/clamp on the B\+ cable, arrow toward the battery/);
+    await hookUp(page, {});
     expect(await page.getByLabel('Inductive clamp', { exact: true }).inputValue()).toBe('bplus-cable');
 
     await startEngine(page);
     await holdRpm(page, '2,000');
-    await page.getByRole('button', { name: 'Headlamps (low beam)' }).click();
+    await toggleAccessory(page, 'Headlamps (low beam)');
     await page.waitForTimeout(3000);
     await expect.poll(() => reading(page, 'amps')).toBeGreaterThan(5);
     const forward = await reading(page, 'amps');
 
+    await hookUp(page, {});
     await page.getByRole('button', { name: 'Reverse clamp' }).click();
     expect(await page.getByTestId('clamp-arrow').textContent()).toMatch(/toward the alternator/);
     await expect.poll(() => reading(page, 'amps')).toBeLessThan(-5);

@@ -29,12 +29,12 @@ describe('a faulted scenario, diagnosed in practice mode', () => {
     // No charge reaches the battery: the running voltage stays near the resting voltage, far below regulation.
     expect(running).toBeLessThan(13.2);
     expect(running).toBeLessThan(resting + 0.5);
-    await recordReading(page, 'regulated-voltage', 'voltage');
+    await recordReading(page, 'regulated-voltage');
 
     // Positive-side drop: B+ stud to battery positive reads the whole charging voltage across the open link.
     await hookUp(page, { red: 'alt-bplus', black: 'battery-pos' });
     await page.waitForTimeout(1500);
-    await recordReading(page, 'voltage-drop-positive', 'voltage');
+    await recordReading(page, 'voltage-drop-positive');
     await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-faulted-running.png`, fullPage: true });
 
     await diagnose(

@@ -35,7 +35,7 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await hookUp(page, { clamp: 'bplus-cable' });
     await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
     values.ocv = await reading(page, 'volts');
-    await recordReading(page, 'battery-ocv', 'voltage');
+    await recordReading(page, 'battery-ocv');
 
     // 2. Load test: half the CCA for 15 s, engine off.
     await dial.focus();
@@ -44,7 +44,7 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await page.getByRole('button', { name: 'Let 10 s pass on the bench' }).click();
     await page.waitForTimeout(5200);
     values.loaded = await reading(page, 'volts');
-    await recordReading(page, 'battery-load', 'voltage');
+    await recordReading(page, 'battery-load');
     await page.getByRole('button', { name: 'Load off' }).click();
     await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
 
@@ -54,13 +54,13 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
     await page.waitForTimeout(1000);
     values.regulated = await reading(page, 'volts');
-    await recordReading(page, 'regulated-voltage', 'voltage');
+    await recordReading(page, 'regulated-voltage');
 
     // 4. Output: load to about 12 V, hold it a moment, read the clamp, load off quickly.
     await loadDownTo(page, 12.05);
     await page.waitForTimeout(1500);
     values.output = await reading(page, 'amps');
-    await recordReading(page, 'output', 'current');
+    await recordReading(page, 'output');
     await page.getByRole('button', { name: 'Load off' }).click();
 
     // 5 and 6. Voltage drops with the pile on the posts drawing about 20 A, so the current runs through every joint.
@@ -79,7 +79,7 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await hookUp(page, { red: 'battery-neg', black: 'alt-case' });
     await page.getByRole('button', { name: 'Let 10 s pass on the bench' }).click();
     values.dropGround = await reading(page, 'volts');
-    await recordReading(page, 'voltage-drop-ground', 'voltage');
+    await recordReading(page, 'voltage-drop-ground');
 
     // 7. Ripple at the B+ stud against the case, the unit giving about half its rating, the heavy load kept short.
     await hookUp(page, { red: 'alt-bplus', black: 'alt-case' });

@@ -45,7 +45,20 @@ export const reading = async (page: Page, id: 'volts' | 'amps' | 'rpm' | 'ripple
   return Number(text.replace('\u2212', '-').replace(/,/g, ''));
 };
 
+/** Opens one of the bench's side panels (Procedure, Hook-up, Car, Readings, Charts, Diagnose). */
+export async function openPanel(page: Page, name: 'Procedure' | 'Hook-up' | 'Car' | 'Readings' | 'Charts' | 'Diagnose'): Promise<void> {
+  const tab = page.getByRole('tablist', { name: 'Bench panels' }).getByRole('tab', { name: new RegExp(`^${name}`) });
+  if ((await tab.getAttribute('aria-selected')) !== 'true') await tab.click();
+}
+
+/** Switches a vehicle accessory on or off from the Car panel. */
+export async function toggleAccessory(page: Page, label: string): Promise<void> {
+  await openPanel(page, 'Car');
+  await page.getByRole('button', { name: label, exact: true }).click();
+}
+
 export async function hookUp(page: Page, opts: { red?: string; black?: string; clamp?: string }): Promise<void> {
+  await openPanel(page, 'Hook-up');
   if (opts.red) await page.getByLabel('Red lead', { exact: true }).selectOption(opts.red);
   if (opts.black) await page.getByLabel('Black lead', { exact: true }).selectOption(opts.black);
   if (opts.clamp) await page.getByLabel('Inductive clamp', { exact: true }).selectOption(opts.clamp);
@@ -79,7 +92,7 @@ export async function loadDownTo(page: Page, volts: number): Promise<void> {
  * what it reads; `quantity` is the one the caller means to record, checked
  * against what the panel says.
  */
-export async function recordReading(page: Page, test: DiagnosticTest, quantity: ReadingQuantity): Promise<void> {
+export async function recordReading(page: Page, test: DiagnosticTest, quantity: ReadingQuantity = TEST_SETUPS[test].quantity): Promise<void> {
   const form = page.getByRole('form', { name: 'Record a reading' });
   await form.getByLabel('Test').selectOption(test);
   expect(TEST_SETUPS[test].quantity).toBe(quantity);
@@ -90,6 +103,7 @@ export async function recordReading(page: Page, test: DiagnosticTest, quantity: 
 }
 
 export async function diagnose(page: Page, verdicts: Record<string, 'Pass' | 'Fail'>, fault: string): Promise<void> {
+  await openPanel(page, 'Diagnose');
   const form = page.getByRole('form', { name: 'Diagnosis' });
   for (const [test, verdict] of Object.entries(verdicts)) {
     await form.getByRole('radiogroup', { name: test }).getByLabel(verdict, { exact: true }).check();

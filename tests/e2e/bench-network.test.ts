@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
 import { SCREENSHOT_DIR } from './browser.ts';
 import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
-import { openBench, scenarioIdOf, serverAttempt } from './bench-helpers.ts';
+import { hookUp, openBench, scenarioIdOf, serverAttempt, toggleAccessory } from './bench-helpers.ts';
 
 const e2e = browserAndServerForFile();
 
@@ -16,8 +16,7 @@ describe('the network cut mid-attempt', () => {
     const status = page.getByTestId('connection-status');
 
     // Online: three events, saved.
-    await page.getByLabel('Red lead', { exact: true }).selectOption('battery-pos');
-    await page.getByLabel('Black lead', { exact: true }).selectOption('battery-neg');
+    await hookUp(page, { red: 'battery-pos', black: 'battery-neg' });
     await page.getByRole('button', { name: 'Key on' }).click();
     await expect.poll(() => status.textContent(), { timeout: 15_000 }).toBe('All saved');
     expect((await serverAttempt(page, attemptId)).events).toHaveLength(3);
@@ -25,7 +24,7 @@ describe('the network cut mid-attempt', () => {
     // The network to the event log drops.
     await page.route('**/api/attempts/*/events', (route) => route.abort('internetdisconnected'));
     const switches = ['Headlamps (low beam)', 'Heater blower (high)', 'Rear window defroster', 'Audio system'];
-    for (const name of switches) await page.getByRole('button', { name }).click();
+    for (const name of switches) await toggleAccessory(page, name);
     const dial = page.getByRole('slider', { name: 'Carbon pile load' });
     await dial.focus();
     for (let i = 0; i < 3; i++) await page.keyboard.press('PageUp');

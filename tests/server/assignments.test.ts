@@ -136,6 +136,62 @@ describe('assignments', () => {
     expect(mine.find((x) => x.id === a.body.assignment.id)!.title).toBe('Rune versioned for assignment');
   });
 
+  it('changes an assignment’s dates and attempts, naming a field that does not fit, and changes nothing then', async () => {
+    const s = await libraryScenario(asRune, 'Orland Fen');
+    const a = (await asRune.post('/api/assignments').send({ classId: runeClass, scenarioId: s.id, opensAt: iso(-1), dueAt: iso(2), attemptsAllowed: 1, title: 'Edit me' }).expect(201)).body.assignment;
+    const changed = await asRune.patch(`/api/assignments/${a.id}`).send({ dueAt: iso(10), attemptsAllowed: 4 }).expect(200);
+    expect(changed.body.assignment).toMatchObject({ id: a.id, attemptsAllowed: 4, title: 'Edit me' });
+    expect(Date.parse(changed.body.assignment.dueAt)).toBeGreaterThan(Date.now() + 9 * day);
+    const mine = (await asAda.get('/api/assignments/mine').expect(200)).body.assignments as { id: number; attemptsAllowed: number }[];
+    expect(mine.find((x) => x.id === a.id)!.attemptsAllowed).toBe(4);
+    // A due date before the opening is refused by name, and the assignment stays as it was.
+    const backwards = await asRune.patch(`/api/assignments/${a.id}`).send({ dueAt: iso(-3) }).expect(400);
+    expect(backwards.body.error.field).toBe('dueAt');
+    const late = await asRune.patch(`/api/assignments/${a.id}`).send({ opensAt: iso(20) }).expect(400);
+    expect(late.body.error.field).toBe('opensAt');
+    expect((await asRune.patch(`/api/assignments/${a.id}`).send({ attemptsAllowed: 0 }).expect(400)).body.error.field).toBe('attemptsAllowed');
+    expect((await asRune.patch(`/api/assignments/${a.id}`).send({ colour: 'red' }).expect(400)).body.error.message).toMatch(/colour/);
+    await asRune.patch(`/api/assignments/${a.id}`).send({}).expect(400);
+    const kept = (await asRune.get(`/api/assignments/${a.id}`).expect(200)).body.assignment;
+    expect(kept).toMatchObject({ attemptsAllowed: 4, dueAt: changed.body.assignment.dueAt, opensAt: a.opensAt });
+    await asTamsin.patch(`/api/assignments/${a.id}`).send({ attemptsAllowed: 9 }).expect(403);
+  });
+
+  it('extends one student: their own due date and attempts let them start after the others cannot, and the list says who has not started or submitted', async () => {
+    const s = await libraryScenario(asRune, 'Orland Fen');
+    const a = (await asRune.post('/api/assignments').send({ classId: runeClass, scenarioId: s.id, opensAt: iso(-3), dueAt: iso(-1), attemptsAllowed: 1, title: 'Closed last night' }).expect(201)).body.assignment;
+    const adaId = (await asAdmin.get('/api/users').query({ role: 'student' }).expect(200)).body.users.find((u: { email: string }) => u.email === students[0]!.email).id as number;
+    // Past its due date: nobody can start.
+    expect((await asAda.post('/api/attempts').send({ assignmentId: a.id }).expect(409)).body.error.message).toMatch(/due date/);
+    const before = (await asRune.get(`/api/assignments/${a.id}/students`).expect(200)).body.students as { studentId: number; progress: string }[];
+    expect(before.length).toBeGreaterThan(1);
+    expect(before.every((x) => x.progress === 'not-started')).toBe(true);
+
+    await asRune.put(`/api/assignments/${a.id}/extensions/${adaId}`).send({ dueAt: iso(4), extraAttempts: 1 }).expect(204);
+    const listed = ((await asAda.get('/api/assignments/mine').expect(200)).body.assignments as { id: number; closed: boolean; attemptsAllowed: number }[]).find((x) => x.id === a.id)!;
+    expect(listed).toMatchObject({ closed: false, attemptsAllowed: 2 });
+    const started = await asAda.post('/api/attempts').send({ assignmentId: a.id }).expect(201);
+    // Another student of the class still cannot.
+    const asBo = await signIn(t.app, students[1]!.email);
+    await asBo.post('/api/attempts').send({ assignmentId: a.id }).expect(409);
+
+    const after = (await asRune.get(`/api/assignments/${a.id}/students`).expect(200)).body.students as { studentId: number; progress: string; attemptsAllowed: number; extension: unknown; latestAttemptId: number | null }[];
+    const ada = after.find((x) => x.studentId === adaId)!;
+    expect(ada).toMatchObject({ progress: 'in-progress', attemptsAllowed: 2, latestAttemptId: started.body.attempt.id });
+    expect(ada.extension).toMatchObject({ extraAttempts: 1 });
+    expect(after.filter((x) => x.studentId !== adaId).every((x) => x.progress === 'not-started' && x.extension === null)).toBe(true);
+
+    // Bad terms are named; a student of another class is refused; removing the extension restores the assignment's terms.
+    expect((await asRune.put(`/api/assignments/${a.id}/extensions/${adaId}`).send({ dueAt: iso(-10), extraAttempts: 0 }).expect(400)).body.error.field).toBe('dueAt');
+    expect((await asRune.put(`/api/assignments/${a.id}/extensions/${adaId}`).send({ dueAt: null, extraAttempts: 0 }).expect(400)).body.error.field).toBe('dueAt');
+    expect((await asRune.put(`/api/assignments/${a.id}/extensions/${adaId}`).send({ dueAt: null, extraAttempts: 50 }).expect(400)).body.error.field).toBe('extraAttempts');
+    const hanaId = (await asAdmin.get('/api/users').query({ role: 'student' }).expect(200)).body.users.find((u: { email: string }) => u.email === students.at(-1)!.email).id as number;
+    expect((await asRune.put(`/api/assignments/${a.id}/extensions/${hanaId}`).send({ dueAt: iso(4), extraAttempts: 0 }).expect(400)).body.error.field).toBe('userId');
+    await asTamsin.put(`/api/assignments/${a.id}/extensions/${adaId}`).send({ dueAt: iso(4), extraAttempts: 0 }).expect(403);
+    await asRune.delete(`/api/assignments/${a.id}/extensions/${adaId}`).expect(204);
+    expect(((await asAda.get('/api/assignments/mine').expect(200)).body.assignments as { id: number; closed: boolean }[]).find((x) => x.id === a.id)!.closed).toBe(true);
+  });
+
   it('is refused to staff on the student list', async () => {
     await asRune.get('/api/assignments/mine').expect(403);
   });

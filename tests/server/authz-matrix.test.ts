@@ -103,12 +103,17 @@ const EXPECTED: Record<string, Row> = {
   'POST /api/assignments': CLASS_STAFF,
   'GET /api/assignments/:id': CLASS_MEMBER,
   'DELETE /api/assignments/:id': CLASS_STAFF,
+  'PATCH /api/assignments/:id': CLASS_STAFF,
+  'GET /api/assignments/:id/students': CLASS_STAFF,
+  'PUT /api/assignments/:id/extensions/:userId': CLASS_STAFF,
+  'DELETE /api/assignments/:id/extensions/:userId': CLASS_STAFF,
 
   // Only an enrolled student starts an attempt; staff are refused by role.
   'POST /api/attempts': OWNER_ONLY,
   'GET /api/attempts/mine': ANY_STUDENT,
   'GET /api/attempts/:id': CLASS_MEMBER,
   'POST /api/attempts/:id/events': OWNER_ONLY,
+  'POST /api/attempts/:id/clock': OWNER_ONLY,
   'POST /api/attempts/:id/submit': OWNER_ONLY,
 
   'GET /api/compare/assignments/:id': CLASS_MEMBER,
@@ -270,6 +275,10 @@ const CALLS: Record<string, (actor: Actor) => Call | Promise<Call>> = {
     },
   }),
   'GET /api/assignments/:id': () => ({ path: `/api/assignments/${f.fx.assignmentId}` }),
+  'PATCH /api/assignments/:id': () => ({ path: `/api/assignments/${f.fx.assignmentId}`, body: { attemptsAllowed: 4 } }),
+  'GET /api/assignments/:id/students': () => ({ path: `/api/assignments/${f.fx.assignmentId}/students` }),
+  'PUT /api/assignments/:id/extensions/:userId': () => ({ path: `/api/assignments/${f.fx.assignmentId}/extensions/${f.studentId}`, body: { dueAt: null, extraAttempts: 1 } }),
+  'DELETE /api/assignments/:id/extensions/:userId': () => ({ path: `/api/assignments/${f.fx.assignmentId}/extensions/${f.studentId}` }),
   'DELETE /api/assignments/:id': async () => {
     const [row] = await t.ctx.db
       .insert(assignments)
@@ -282,6 +291,7 @@ const CALLS: Record<string, (actor: Actor) => Call | Promise<Call>> = {
   'GET /api/attempts/mine': () => ({ path: '/api/attempts/mine' }),
   'GET /api/attempts/:id': () => ({ path: `/api/attempts/${f.attemptId}` }),
   'POST /api/attempts/:id/events': () => ({ path: `/api/attempts/${f.attemptId}/events`, body: { events: [{ seq: 1, event: { kind: 'key', atMs: 0, position: 'on' } }] } }),
+  'POST /api/attempts/:id/clock': () => ({ path: `/api/attempts/${f.attemptId}/clock`, body: { simTimeMs: 1000 } }),
   'POST /api/attempts/:id/submit': async () => ({ path: `/api/attempts/${await makeAttempt(t.ctx.db, f.fx, f.studentId)}/submit`, body: submitBody }),
 
   'GET /api/compare/assignments/:id': () => ({ path: `/api/compare/assignments/${f.fx.assignmentId}` }),

@@ -96,7 +96,7 @@ describe('class comparison', () => {
     expect(bad.body.error.field).toBe('id');
   });
 
-  it('exports the grades as CSV that matches the database, row for row', async () => {
+  it('exports the grades as CSV that matches the database, row for row, in words, marking the attempt that counts', async () => {
     const agent = await signIn(t.app, instructor.email);
     const res = await agent.get(`/api/compare/assignments/${fx.assignmentId}/grades.csv`).expect(200);
     expect(res.headers['content-type']).toMatch(/text\/csv/);
@@ -113,14 +113,25 @@ describe('class comparison', () => {
     parsed.data.forEach((row, i) => {
       const d = db[i]!;
       expect(row).toMatchObject({
-        attempt_id: String(d.id),
-        student_name: d.name,
-        student_email: d.email,
-        grade: String(d.grade),
-        submitted_at: d.submittedAt!.toISOString(),
-        verified: String(d.verified),
-        time_to_diagnosis_s: String(d.time! / 1000),
+        Attempt: String(d.id),
+        Student: d.name,
+        'E-mail': d.email,
+        Grade: String(d.grade),
+        'Submitted at': d.submittedAt!.toISOString(),
+        'Readings verified': d.verified ? 'yes' : 'no',
+        'Time to diagnosis (s)': String(d.time! / 1000),
       });
     });
+    // Ada's earlier attempt is listed but does not count; her later one does; everyone else's single attempt counts.
+    const ada = parsed.data.filter((r) => r.Student === students[0]!.name);
+    expect(ada.map((r) => [r.Grade, r['Counts for the grade']])).toEqual([
+      ['40', 'no'],
+      ['92', 'yes'],
+    ]);
+    expect(parsed.data.filter((r) => r.Student !== students[0]!.name).every((r) => r['Counts for the grade'] === 'yes')).toBe(true);
+    // Faults and mistakes by name, never the model's codes (common practice, no source: an export is read by people).
+    const bo = parsed.data.find((r) => r.Student === students[1]!.name)!;
+    expect(bo).toMatchObject({ 'Fault named': 'Open stator phase', 'Fault correct': 'no', Mistakes: '2', 'Mistakes made': 'Clamp reversed; Pile overheated' });
+    expect(res.text).not.toMatch(/diode-open|stator-phase-open|reversed-clamp|pile-overheated|\bnone\b/);
   });
 });

@@ -66,7 +66,7 @@ async function fromTheStart(attemptId: number) {
   const targetMs = Math.ceil(Math.max(a!.simTimeMs, lastAtMs) / DT_MS) * DT_MS;
   const point = stateAt(run.car.params, run.seed, events, targetMs, undefined, run.car.changes);
   const readings = readMeters(run.car.params, point.state);
-  return { currentTest: testOfSetup(point.controls, readings), readings: liveReadings(readings) };
+  return { currentTest: testOfSetup(point.controls, readings), readings: liveReadings(readings, point.state.fusibleLinkBlown) };
 }
 
 async function board(runs: BoardRuns, ids: number[]) {

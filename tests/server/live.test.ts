@@ -1,7 +1,7 @@
 import { and, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { attemptEvents, attempts, pendingInjections } from '../../server/db/schema.ts';
-import { benchInjectionSchema, boardSnapshotSchema, liveFaultId, type BenchInjection } from '../../shared/api/live.ts';
+import { benchInjectionSchema, boardAttemptSchema, boardSnapshotSchema, liveFaultId, type BenchInjection } from '../../shared/api/live.ts';
 import type { AttemptResult } from '../../shared/api/attempts.ts';
 import { ACK_BOUND_MS } from '../../server/services/injection-authority.ts';
 import { FAULT_CATALOG, faultOps } from '../../sim/faults.ts';
@@ -294,6 +294,53 @@ describe('the class board', () => {
     );
     expect((withInjection.data as { injections: { kind: string; appliedAt: string | null }[] }).injections[0]).toMatchObject({ kind: 'diode-open', appliedAt: null });
     stream.close();
+  });
+});
+
+describe('the board shows each bench as it is now', () => {
+  it('runs the model to the clock the open bench reports, not only to its last input, and never moves that clock back', async () => {
+    const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
+    const stream = await openStream(teacher, `/api/live/classes/${fx.classId}/stream`);
+    await stream.next((m) => m.event === 'snapshot');
+    // Leads on the posts, the engine started and the assistant asked for 2,000 rpm: the last input is at 4.0 s.
+    const posted = await ada.post(`/api/attempts/${attemptId}/events`, {
+      events: [
+        { seq: 1, event: { kind: 'lead', atMs: 100, which: 'red', point: 'battery-pos' } },
+        { seq: 2, event: { kind: 'lead', atMs: 200, which: 'black', point: 'battery-neg' } },
+        { seq: 3, event: { kind: 'key', atMs: 300, position: 'start' } },
+        { seq: 4, event: { kind: 'key', atMs: 1800, position: 'on' } },
+        { seq: 5, event: { kind: 'rpm', atMs: 4000, rpm: 2000 } },
+      ],
+    });
+    expect(posted.status, posted.text).toBe(200);
+    const atInput = await stream.next((m) => m.event === 'attempt' && (m.data as { lastSeq: number }).lastSeq === 5, 5_000);
+    const engineAtInput = boardAttemptSchema.parse(atInput.data).readings!.tachRpm;
+    // At the moment of the input the engine has not caught up with the held speed yet (its lag, docs/model.md).
+    expect(engineAtInput).toBeLessThan(1500);
+
+    // The bench, still open, reports its clock twenty seconds later with nothing new to send.
+    const clock = await ada.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 24_000 });
+    expect(clock.status, clock.text).toBe(204);
+    const now = await stream.next((m) => m.event === 'attempt' && (m.data as { simTimeMs: number }).simTimeMs === 24_000, 5_000);
+    const entry = boardAttemptSchema.parse(now.data);
+    expect(entry.readings!.tachRpm).toBeGreaterThan(1900);
+    expect(entry.benchSeenAt).not.toBeNull();
+    // A clock is never moved back: an older report changes nothing.
+    expect((await ada.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 10_000 })).status).toBe(204);
+    const [row] = await t.ctx.db.select({ benchTimeMs: attempts.benchTimeMs }).from(attempts).where(eq(attempts.id, attemptId));
+    expect(row!.benchTimeMs).toBe(24_000);
+    stream.close();
+  });
+
+  it('takes the clock only from the attempt’s own student, names a bad field, and refuses it once the attempt has ended', async () => {
+    const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
+    expect((await bo.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 1000 })).status).toBe(403);
+    expect((await teacher.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 1000 })).status).toBe(403);
+    const bad = await ada.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: -5 });
+    expect(bad.status).toBe(400);
+    expect((bad.body as { error: { field: string } }).error.field).toBe('simTimeMs');
+    await t.ctx.db.update(attempts).set({ status: 'submitted' }).where(eq(attempts.id, attemptId));
+    expect((await ada.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 2000 })).status).toBe(409);
   });
 });
 

@@ -77,6 +77,24 @@ describe('roster preview', () => {
     expect(rows[0]!.message).toMatch(/line breaks/);
   });
 
+  it('refuses a line with more values than the header names, such as a name with an unquoted comma', async () => {
+    const file = csv(['name,email', 'Lark Embury,lark.embury@cindervalley.example', 'Embury, Lark,lark.embury2@cindervalley.example', 'Sable Orn,sable.orn@cindervalley.example,Tuesday group']);
+    const res = await asRune.post(`/api/classes/${classId}/roster/preview`).attach('file', file, 'extra.csv').expect(200);
+    const rows = res.body.rows as { line: number; status: string; message?: string }[];
+    expect(rows.map((r) => [r.line, r.status])).toEqual([
+      [2, 'new'],
+      [3, 'error'],
+      [4, 'error'],
+    ]);
+    expect(rows.find((r) => r.line === 4)!.message).toMatch(/3 values but the header names 2 columns/);
+    // All or nothing: the import refuses the file and names the line.
+    const before = await userCount();
+    const commit = await asRune.post(`/api/classes/${classId}/roster`).attach('file', file, 'extra.csv');
+    expect(commit.status).toBe(400);
+    expect(JSON.stringify(commit.body)).toMatch(/[Ll]ine 3/);
+    expect(await userCount()).toBe(before);
+  });
+
   it('accepts first and last name columns', async () => {
     const res = await asRune
       .post(`/api/classes/${classId}/roster/preview`)

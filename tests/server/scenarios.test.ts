@@ -237,6 +237,9 @@ describe('duplicate, import and export', () => {
     const paths = (res.body.error.issues as { path: string }[]).map((i) => i.path);
     expect(paths).toEqual(expect.arrayContaining(['faults.0.severity01', 'vehicle.params.battery.cca', 'difficulty']));
     expect(res.body.error.message).toMatch(/and 2 more/);
+    // The message names the first field in words, not as the file's dotted path.
+    expect(res.body.error.message).not.toMatch(/params|severity01|\.0\./);
+    expect(res.body.error.message).toMatch(/^(Fault 1 › Severity|Vehicle › Battery › Cold-cranking amps|Difficulty): /);
     const notJson = await asRune.post('/api/scenarios/import').attach('file', Buffer.from('{ nope'), 'broken.json').expect(400);
     expect(notJson.body.error.field).toBe('file');
     const none = await asRune.post('/api/scenarios/import').field('x', '1').expect(400);

@@ -4,7 +4,7 @@ import Papa from 'papaparse';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { signOffs, users } from '../../server/db/schema.ts';
 import { SIGN_OFFS_CSV_COLUMNS, progressResponseSchema } from '../../shared/api/compare.ts';
-import { COMPETENCIES } from '../../shared/competencies.ts';
+import { COMPETENCIES, COMPETENCY_LABELS } from '../../shared/competencies.ts';
 import { signIn, startTestApp, type TestApp } from './support.ts';
 import { instructor, makeAttempt, makeClass, makeSubmitted, otherInstructor, students, type ClassFixture } from './live-fixtures.ts';
 
@@ -49,6 +49,12 @@ describe('competency sign-off', () => {
     const regulated = progress.competencies.find((c) => c.competency === 'regulated-voltage')!;
     expect(regulated).toMatchObject({ signOff: null, verdicts: 1, verdictsRight: 0 });
     expect(regulated.evidence.map((e) => e.attemptId)).toEqual([graded]);
+    // Each attempt behind a competency says whether its verdict was right, and the trend lists the graded attempts.
+    expect(output.evidence[0]).toMatchObject({ attemptId: graded, verdictOk: true });
+    expect(regulated.evidence[0]).toMatchObject({ attemptId: graded, verdictOk: false });
+    expect(progress.attempts).toEqual([
+      expect.objectContaining({ attemptId: graded, grade: 88, timeToDiagnosisMs: 400_000, faultCorrect: true }),
+    ]);
 
     // The same competency twice is a conflict, named.
     const again = await teacher.post('/api/sign-offs').send({ attemptId: graded, competency: 'output' }).expect(409);
@@ -91,17 +97,18 @@ describe('competency sign-off', () => {
       .orderBy(asc(student.name), asc(signOffs.competency));
     expect(parsed.data).toEqual(
       db.map((d) => ({
-        student_name: d.name,
-        student_email: d.email,
-        competency: d.competency,
-        competency_label: expect.any(String),
-        attempt_id: String(d.attemptId),
-        signed_by: d.signer,
-        signed_at: d.at.toISOString(),
-        note: d.note,
+        Student: d.name,
+        'E-mail': d.email,
+        Competency: COMPETENCY_LABELS[d.competency as keyof typeof COMPETENCY_LABELS],
+        Attempt: String(d.attemptId),
+        'Signed by': d.signer,
+        'Signed at': d.at.toISOString(),
+        Note: d.note,
       })),
     );
     expect(parsed.data).toHaveLength(2);
+    // Names, never the competency codes.
+    expect(res.text).not.toMatch(/battery-ocv|key-off-draw/);
   });
 
   it('an instructor can withdraw a sign-off', async () => {

@@ -7,7 +7,7 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { GRADE_WEIGHTS, PROCESS_DEDUCTION, type RecordedReading, type SubmitInput } from '../../shared/api/attempts.ts';
+import { GRADE_WEIGHTS, PROCESS_DEDUCTION, hintsOfLog, logEventSchema, modelEvents, type LogEvent, type RecordedReading, type SubmitInput } from '../../shared/api/attempts.ts';
 import type { ReferenceMeasurements } from '../../shared/reference-procedures.ts';
 import { DIAGNOSTIC_TESTS } from '../../shared/scenario.ts';
 import { OCV_HOLD_S, REGULATED_ENGINE_RUN_S, REGULATED_HOLD_S, type SetupSample } from '../../shared/test-setups.ts';
@@ -242,7 +242,7 @@ describe('the grade', () => {
   it('states its weights: 40 evidence, 20 verdicts, 20 fault, 20 process', () => {
     expect(GRADE_WEIGHTS).toEqual({ evidence: 40, verdicts: 20, fault: 20, process: 20 });
     const r = gradeAttempt(base());
-    expect(r.scoring).toEqual({ weights: GRADE_WEIGHTS, points: { evidence: 40, verdicts: 20, fault: 20, process: 20 }, processDeduction: PROCESS_DEDUCTION });
+    expect(r.scoring).toEqual({ weights: GRADE_WEIGHTS, points: { evidence: 40, verdicts: 20, fault: 20, process: 20 }, processDeduction: PROCESS_DEDUCTION, hintDeduction: 0 });
     expect(r.grade).toBe(100);
     expect(r.verified).toBe(true);
   });
@@ -276,6 +276,23 @@ describe('the grade', () => {
     expect(forged.verified).toBe(false);
   });
 
+  it('takes the scenario’s points for each hint opened off the total, says so, and counts hints in practice without grading them', () => {
+    const free = gradeAttempt(base({ hints: { opened: 2, pointsEach: 0 } }));
+    expect(free.grade).toBe(100);
+    expect(free.hints).toEqual({ opened: 2, pointsEach: 0 });
+    const costly = gradeAttempt(base({ hints: { opened: 2, pointsEach: 5 } }));
+    expect(costly.grade).toBe(90);
+    expect(costly.scoring!.hintDeduction).toBe(10);
+    expect(costly.scoring!.points).toEqual({ evidence: 40, verdicts: 20, fault: 20, process: 20 });
+    expect(costly.feedback).toContain('You opened 2 of the scenario’s hints: 10 points off the grade.');
+    // Never below zero, however many hints.
+    expect(gradeAttempt(base({ readings: [], hints: { opened: 10, pointsEach: 10 } })).grade).toBe(0);
+    const practice = gradeAttempt(base({ mode: 'practice', hints: { opened: 1, pointsEach: 5 } }));
+    expect(practice.grade).toBeNull();
+    expect(practice.hints).toEqual({ opened: 1, pointsEach: 5 });
+    expect(practice.feedback).toContain('You opened 1 of the scenario’s hints.');
+  });
+
   it('leaves practice ungraded', () => {
     const r = gradeAttempt(base({ mode: 'practice' }));
     expect(r.grade).toBeNull();
@@ -296,5 +313,22 @@ describe('the grade', () => {
         },
       ),
     );
+  });
+});
+
+describe('hints in the log', () => {
+  it('are the student’s notes, not inputs of the model, each counted once, up to the submission', () => {
+    const log: LogEvent[] = [
+      { kind: 'key', atMs: 100, position: 'on' },
+      { kind: 'hint', atMs: 2_000, index: 1 },
+      { kind: 'hint', atMs: 3_000, index: 1 },
+      { kind: 'hint', atMs: 4_000, index: 0 },
+      { kind: 'hint', atMs: 9_000, index: 2 },
+    ];
+    expect(modelEvents(log)).toEqual([{ kind: 'key', atMs: 100, position: 'on' }]);
+    expect(hintsOfLog(log)).toEqual([1, 0, 2]);
+    expect(hintsOfLog(log, 5_000)).toEqual([1, 0]);
+    expect(logEventSchema.safeParse({ kind: 'hint', atMs: 10, index: 10 }).success).toBe(false);
+    expect(logEventSchema.safeParse({ kind: 'hint', atMs: 10, index: 3 }).success).toBe(true);
   });
 });

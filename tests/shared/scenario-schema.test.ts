@@ -7,6 +7,7 @@ import {
   outputPassMarkA,
   restoreScenario,
   safeRestoreScenario,
+  scenarioFieldInWords,
   scenarioSchema,
   studentScenarioView,
   type ScenarioDefinition,
@@ -57,13 +58,13 @@ describe('scenario document schema', () => {
     expect(paths).toContain('faults.1.kind');
   });
 
-  it('requires the diagnosis choices to contain every fault kind present', () => {
+  it('requires the diagnosis choices to contain every fault kind present, naming the fault in words', () => {
     const doc = withFault();
     doc.diagnosisChoices = ['diode-shorted', 'stator-phase-open', 'none'];
     const r = scenarioSchema.safeParse(doc);
     expect(r.success).toBe(false);
     if (r.success) return;
-    expect(formatIssues(r.error)).toEqual([{ path: 'diagnosisChoices', message: expect.stringContaining('diode-open') }]);
+    expect(formatIssues(r.error)).toEqual([{ path: 'diagnosisChoices', message: expect.stringContaining('“Open rectifier diode”') }]);
   });
 
   it('rejects unknown keys so typos in imported files are named', () => {
@@ -164,5 +165,21 @@ describe('scenario document schema', () => {
     expect(restoreScenario(doc).testsExpected).toEqual(['cranking', 'output']);
     doc.testsExpected = ['cranking', 'battery-load'];
     expect(safeRestoreScenario(doc).success).toBe(true);
+  });
+});
+
+describe('a scenario field in words', () => {
+  it('names the file’s fields the way the editor labels them, never as dotted paths', () => {
+    expect(scenarioFieldInWords('vehicle.params.battery.cca')).toBe('Vehicle › Battery › Cold-cranking amps');
+    expect(scenarioFieldInWords('definition.faults.0.severity01')).toBe('Fault 1 › Severity');
+    expect(scenarioFieldInWords('passRules.output.percent')).toBe('Pass rules › Output pass mark');
+    expect(scenarioFieldInWords('passRules.regulatedMaxV')).toBe('Pass rules › Highest regulated voltage');
+    expect(scenarioFieldInWords('vehicle.params.loads.accessories.2.resistanceOhm')).toBe('Vehicle › Accessory 3 › Resistance');
+    expect(scenarioFieldInWords('hints.1')).toBe('Hint 2');
+    expect(scenarioFieldInWords('summary')).toBe('Customer’s complaint');
+    expect(scenarioFieldInWords('vehicle.kind')).toBe('Vehicle › Kind');
+    // A key the format does not know is named as it stands in the file.
+    expect(scenarioFieldInWords('colour')).toBe('“colour”');
+    expect(scenarioFieldInWords('')).toBe('The file');
   });
 });

@@ -50,11 +50,12 @@ export function BenchNewPage() {
     };
   }, [key, navigate]);
 
-  if (!input) return <ErrorState error={new Error('This link does not say which scenario to open.')} />;
+  const back = { to: paths.bench.href(), label: 'Back to the bench list' };
+  if (!input) return <ErrorState error={new Error('This link does not say which scenario to open.')} back={back} />;
   return (
     <>
       <PageHeader title="Opening the bench" />
-      {error ? <ErrorState error={error} /> : <Spinner label="Starting the attempt" />}
+      {error ? <ErrorState error={error} what="assignment" back={back} /> : <Spinner label="Starting the attempt" />}
     </>
   );
 }

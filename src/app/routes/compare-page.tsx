@@ -8,6 +8,7 @@ import { Link, useParams } from 'react-router-dom';
 import type { InstructorCompare, StudentCompare } from '../../../shared/api/compare.ts';
 import { Button } from '../../components/ui/button.tsx';
 import { ErrorState, PageHeader, Panel, Spinner } from '../../components/ui/states.tsx';
+import { useMe } from '../../features/auth/api/get-me.ts';
 import { gradesCsvUrl, useCompare } from '../../features/compare/api/get-compare.ts';
 import { AccuracyTables } from '../../features/compare/components/accuracy-tables.tsx';
 import { CompareTable, formatMinutes } from '../../features/compare/components/compare-table.tsx';
@@ -102,8 +103,9 @@ function StudentView({ data }: { data: StudentCompare }) {
 export function ComparePage() {
   const assignmentId = Number(useParams().assignmentId);
   const q = useCompare(assignmentId);
+  const role = useMe().data?.user?.role;
   if (q.isPending) return <Spinner label="Comparing the class" />;
-  if (q.isError) return <ErrorState error={q.error} retry={() => void q.refetch()} />;
+  if (q.isError) return <ErrorState error={q.error} retry={() => void q.refetch()} what="assignment" back={role === 'student' ? { to: paths.bench.href(), label: 'Back to the bench list' } : { to: paths.classes.href(), label: 'Back to the classes' }} />;
   return q.data.viewer === 'instructor' ? <InstructorView data={q.data} /> : <StudentView data={q.data} />;
 }
 

@@ -1,9 +1,10 @@
 import { useQueryClient } from '@tanstack/react-query';
-import { Link, useParams, type LoaderFunctionArgs } from 'react-router-dom';
+import { Link, useParams, useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { paths } from '../../config/paths.ts';
 import { ErrorState, PageHeader, Panel, Spinner } from '../../components/ui/states.tsx';
 import { useClassAssignments } from '../../features/assignments/api/get-class-assignments.ts';
 import { AssignmentForm } from '../../features/assignments/components/assignment-form.tsx';
+import { AssignmentManager } from '../../features/assignments/components/assignment-manager.tsx';
 import { AssignmentsTable } from '../../features/assignments/components/assignments-table.tsx';
 import { classQueryOptions, useClass } from '../../features/classes/api/get-class.ts';
 import { classKeys } from '../../features/classes/api/get-classes.ts';
@@ -25,10 +26,14 @@ export function ClassPage() {
   const cls = useClass(id);
   const assignments = useClassAssignments(id);
   const scenarios = useScenarios();
+  const [search, setSearch] = useSearchParams();
+  const managing = Number(search.get('assignment'));
+  const manage = (id: number | null) => setSearch(id === null ? {} : { assignment: String(id) }, { replace: true });
   if (cls.isPending) return <Spinner label="Loading the class" />;
-  if (cls.isError) return <ErrorState error={cls.error} retry={() => void cls.refetch()} />;
+  if (cls.isError) return <ErrorState error={cls.error} retry={() => void cls.refetch()} what="class" back={{ to: paths.classes.href(), label: 'Back to the classes' }} />;
   const c = cls.data;
   const titleOf = (scenarioId: number) => scenarios.data?.find((s) => s.id === scenarioId)?.title;
+  const managed = assignments.data?.find((a) => a.id === managing) ?? null;
   return (
     <>
       <PageHeader
@@ -45,25 +50,36 @@ export function ClassPage() {
           </>
         }
       />
-      <div className="grid gap-6 xl:grid-cols-2">
-        <div className="space-y-6">
-          <Panel title="Assignments">
-            {assignments.isPending ? (
-              <Spinner label="Loading assignments" />
-            ) : assignments.isError ? (
-              <ErrorState error={assignments.error} retry={() => void assignments.refetch()} />
-            ) : (
-              <AssignmentsTable
-                assignments={assignments.data}
-                scenarioTitle={titleOf}
-                rowActions={(a) => (
-                  <Link to={paths.compare.href(a.id)} className="rounded-md px-2.5 py-1 text-sm font-medium text-slate-700 hover:bg-slate-200/70">
+      <div className="space-y-6">
+        <Panel title="Assignments">
+          {assignments.isPending ? (
+            <Spinner label="Loading assignments" />
+          ) : assignments.isError ? (
+            <ErrorState error={assignments.error} retry={() => void assignments.refetch()} />
+          ) : (
+            <AssignmentsTable
+              assignments={assignments.data}
+              scenarioTitle={titleOf}
+              rowActions={(a) => (
+                <>
+                  <button
+                    type="button"
+                    onClick={() => manage(managing === a.id ? null : a.id)}
+                    aria-expanded={managing === a.id}
+                    className="inline-flex min-h-8 items-center rounded-md px-2.5 text-sm font-medium text-slate-900 ring-1 ring-slate-300 hover:bg-slate-50"
+                  >
+                    Manage<span className="sr-only"> {a.title}</span>
+                  </button>
+                  <Link to={paths.compare.href(a.id)} className="inline-flex min-h-8 items-center rounded-md px-2.5 text-sm font-medium text-slate-700 hover:bg-slate-200/70">
                     Compare<span className="sr-only"> {a.title}</span>
                   </Link>
-                )}
-              />
-            )}
-          </Panel>
+                </>
+              )}
+            />
+          )}
+        </Panel>
+        {managed && <AssignmentManager key={managed.id} assignment={managed} onClose={() => manage(null)} />}
+        <div className="grid gap-6 xl:grid-cols-2">
           <Panel title="Assign a scenario">
             {scenarios.isPending ? (
               <Spinner label="Loading the library" />
@@ -73,15 +89,15 @@ export function ClassPage() {
               <AssignmentForm classId={c.id} scenarios={scenarios.data.map((s) => ({ id: s.id, title: s.title, publishedVersion: s.publishedVersion }))} />
             )}
           </Panel>
-        </div>
-        <div className="space-y-6">
-          <ClassRosterSync classId={c.id} onSynced={() => void qc.invalidateQueries({ queryKey: classKeys.detail(c.id) })} />
-          <Panel title="Students">
-            <StudentsPanel cls={c} />
-          </Panel>
-          <Panel title="Upload a roster">
-            <RosterUpload classId={c.id} />
-          </Panel>
+          <div className="min-w-0 space-y-6">
+            <ClassRosterSync classId={c.id} onSynced={() => void qc.invalidateQueries({ queryKey: classKeys.detail(c.id) })} />
+            <Panel title="Students">
+              <StudentsPanel cls={c} />
+            </Panel>
+            <Panel title="Upload a roster">
+              <RosterUpload classId={c.id} />
+            </Panel>
+          </div>
         </div>
       </div>
     </>

@@ -15,6 +15,7 @@ export const instructorRoutes: RouteObject[] = [
     path: paths.scenario.pattern,
     lazy: () => import('./instructor-scenario-editor.tsx').then((m) => ({ loader: m.scenarioLoader, Component: m.EditScenarioPage })),
   },
+  { path: paths.scenarioTry.pattern, lazy: () => import('./scenario-try.tsx') },
   {
     path: paths.classes.pattern,
     lazy: () => import('./instructor-classes.tsx').then((m) => ({ loader: m.classesLoader, Component: m.ClassesPage })),

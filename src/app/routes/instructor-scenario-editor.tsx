@@ -48,7 +48,7 @@ export function EditScenarioPage() {
   const patch = usePatchScenario();
   const navigate = useNavigate();
   if (scenario.isPending) return <Spinner label="Loading the scenario" />;
-  if (scenario.isError) return <ErrorState error={scenario.error} retry={() => void scenario.refetch()} />;
+  if (scenario.isError) return <ErrorState error={scenario.error} retry={() => void scenario.refetch()} what="scenario" back={{ to: paths.scenarios.href(), label: 'Back to the library' }} />;
   const s = scenario.data;
   const faults = s.definition.faults.map((f) => FAULT_CATALOG[f.kind].label);
   return (
@@ -65,6 +65,13 @@ export function EditScenarioPage() {
           <>
             <Link to={paths.scenarios.href()} className="rounded-md px-3.5 py-2 text-sm font-medium text-slate-700 hover:bg-slate-200/70">
               Back to the library
+            </Link>
+            <Link
+              to={paths.scenarioTry.href(s.id)}
+              className="rounded-md bg-slate-900 px-3.5 py-2 text-sm font-medium text-white hover:bg-slate-700"
+              title="Runs the latest saved version; save your changes first"
+            >
+              Try on the bench
             </Link>
             <a href={scenarioExportHref(s.id)} download className="rounded-md bg-white px-3.5 py-2 text-sm font-medium text-slate-900 ring-1 ring-slate-300 hover:bg-slate-50">
               Export JSON

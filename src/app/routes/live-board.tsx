@@ -1,6 +1,7 @@
 /** /classes/:classId/live — the instructor watches a class at the bench and injects faults. */
 import { useParams } from 'react-router-dom';
 import { ErrorState, PageHeader, Spinner } from '../../components/ui/states.tsx';
+import { paths } from '../../config/paths.ts';
 import { useBoard } from '../../features/live/api/get-board.ts';
 import { LiveBoard, StreamBadge } from '../../features/live/components/live-board.tsx';
 import { useBoardStream } from '../../features/live/hooks/use-board-stream.ts';
@@ -10,7 +11,7 @@ export function LiveBoardPage() {
   // The first load tells access apart from a dropped stream; the stream then keeps it live.
   const first = useBoard(classId);
   const board = useBoardStream(classId);
-  if (first.isError) return <ErrorState error={first.error} retry={() => void first.refetch()} />;
+  if (first.isError) return <ErrorState error={first.error} retry={() => void first.refetch()} what="class" back={{ to: paths.classes.href(), label: 'Back to the classes' }} />;
   if (first.isPending) return <Spinner label="Opening the class board" />;
   const attempts = board.updatedAt ? board.attempts : first.data.attempts;
   const name = board.className ?? first.data.className;
@@ -18,7 +19,7 @@ export function LiveBoardPage() {
     <>
       <PageHeader
         title={`${name}: live`}
-        description="Running benches, updated as students work; the meters show each bench as of its last input. An injected fault is applied at the bench’s current time; the student is not told what changed."
+        description="Running benches, updated as students work: each open bench reports its clock every few seconds and the meters show it as it is now. Idle benches are marked; a hot or cut-out pile and a burnt link are flagged. An injected fault is applied at the bench’s current time; the student is not told what changed."
         actions={<StreamBadge state={board.stream} />}
       />
       <LiveBoard attempts={attempts} />

@@ -4,7 +4,7 @@ import { paths } from '../../config/paths.ts';
 export function NotFoundPage() {
   return (
     <div className="mx-auto max-w-lg py-24 text-center">
-      <p className="font-mono text-sm text-slate-500">404</p>
+      <p className="font-mono text-sm text-slate-600">404</p>
       <h1 className="mt-2 text-2xl font-semibold">There is nothing at this address</h1>
       <p className="mt-2 text-slate-600">The page may have moved, or the link may be mistyped.</p>
       <Link to={paths.home.href()} className="mt-6 inline-block rounded-md bg-slate-900 px-4 py-2 text-sm font-medium text-white">

@@ -1,6 +1,7 @@
 /** /progress (a student's own) and /students/:userId/progress (their instructors'): competencies and sign-offs. */
 import { useParams } from 'react-router-dom';
 import { ErrorState, PageHeader, Spinner } from '../../components/ui/states.tsx';
+import { paths } from '../../config/paths.ts';
 import { useMyProgress, useStudentProgress } from '../../features/progress/api/get-progress.ts';
 import { ProgressList } from '../../features/progress/components/progress-list.tsx';
 
@@ -20,7 +21,7 @@ export function StudentProgressPage() {
   return (
     <>
       <PageHeader title={q.data ? `${q.data.student.name}: progress` : 'Progress'} description="Competencies signed off, and the graded attempts behind them." />
-      {q.isPending ? <Spinner /> : q.isError ? <ErrorState error={q.error} retry={() => void q.refetch()} /> : <ProgressList progress={q.data} />}
+      {q.isPending ? <Spinner /> : q.isError ? <ErrorState error={q.error} retry={() => void q.refetch()} what="student" back={{ to: paths.classes.href(), label: 'Back to the classes' }} /> : <ProgressList progress={q.data} />}
     </>
   );
 }

@@ -4,7 +4,9 @@ import type { ReplayResponse } from '../../../shared/api/replay.ts';
 import { shownWithUnit } from '../../../shared/meter-display.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../../shared/scenario.ts';
 import { ErrorState, PageHeader, Panel, Spinner } from '../../components/ui/states.tsx';
+import { useMe } from '../../features/auth/api/get-me.ts';
 import { useReplay } from '../../features/replay/api/get-replay.ts';
+import { paths } from '../../config/paths.ts';
 import { ReplayBenchView } from '../../features/replay/components/replay-bench-view.tsx';
 import { ReplayComments } from '../../features/replay/components/replay-comments.tsx';
 import { ReplayControls } from '../../features/replay/components/replay-controls.tsx';
@@ -24,7 +26,7 @@ function Player({ replay, initialMs }: { replay: ReplayResponse; initialMs: numb
       <div className="grid gap-6 lg:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
         <div className="space-y-4">
           <Panel>
-            <ReplayBenchView frame={player.frame} faultLabels={replay.faultLabels} changeLabels={replay.changeLabels} />
+            <ReplayBenchView frame={player.frame} accessories={replay.car.params.loads.accessories} faultLabels={replay.faultLabels} changeLabels={replay.changeLabels} />
           </Panel>
           <Panel>
             <ReplayControls player={player} markers={replay.markers} comments={replay.comments} />
@@ -43,7 +45,8 @@ function Player({ replay, initialMs }: { replay: ReplayResponse; initialMs: numb
                       <span className="font-mono text-live-700" data-testid="replay-reading-value">
                         {shownWithUnit(r.value, r.unit)}
                       </span>{' '}
-                      <span className="text-slate-600">{DIAGNOSTIC_TEST_LABELS[r.test]}</span>
+                      <span className="text-slate-700">{DIAGNOSTIC_TEST_LABELS[r.test]}</span>
+                      {r.where && <span className="block text-xs text-slate-600">{r.where}</span>}
                     </button>
                     <p className="text-xs text-slate-500">
                       <span
@@ -70,8 +73,9 @@ export function ReplayPage() {
   const [search] = useSearchParams();
   const at = Number(search.get('at') ?? 0);
   const q = useReplay(attemptId);
+  const role = useMe().data?.user?.role;
   if (q.isPending) return <Spinner label="Loading the replay" />;
-  if (q.isError) return <ErrorState error={q.error} retry={() => void q.refetch()} />;
+  if (q.isError) return <ErrorState error={q.error} retry={() => void q.refetch()} what="attempt" back={role === 'student' ? { to: paths.attempts.href(), label: 'Back to my attempts' } : { to: paths.classes.href(), label: 'Back to the classes' }} />;
   return <Player replay={q.data} initialMs={Number.isFinite(at) ? at : 0} />;
 }
 

@@ -22,7 +22,7 @@ const safeNext = (next: string | null) => (next && next.startsWith('/') && !next
 
 export function AuthCard({ title, children }: { title: string; children: React.ReactNode }) {
   return (
-    <div className="flex min-h-screen items-center justify-center bg-slate-900 px-4 py-12">
+    <main className="flex min-h-screen items-center justify-center bg-slate-900 px-4 py-12">
       <div className="w-full max-w-sm">
         <div className="mb-6 flex items-center justify-center gap-2 text-white">
           <Logo className="h-9 w-9" />
@@ -32,9 +32,9 @@ export function AuthCard({ title, children }: { title: string; children: React.R
           <h1 className="mb-4 text-lg font-semibold text-slate-900">{title}</h1>
           {children}
         </div>
-        <p className="mt-6 text-center text-xs text-slate-400">The charging-system bench for automotive programs</p>
+        <p className="mt-6 text-center text-xs text-slate-300">The charging-system bench for automotive programs</p>
       </div>
-    </div>
+    </main>
   );
 }
 

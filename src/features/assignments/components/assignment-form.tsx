@@ -5,6 +5,7 @@ import { createAssignmentSchema, type CreateAssignmentInput } from '../../../../
 import { Button } from '../../../components/ui/button.tsx';
 import { SelectField, TextField } from '../../../components/ui/field.tsx';
 import { useCreateAssignment } from '../api/create-assignment.ts';
+import { localToIso, localValue } from './local-dates.ts';
 
 export interface AssignableScenario {
   id: number;
@@ -12,11 +13,6 @@ export interface AssignableScenario {
   publishedVersion: number | null;
 }
 
-/** Local date-time inputs on screen; the payload carries ISO instants and is checked by the shared schema. */
-const localToIso = (v: string) => {
-  const t = Date.parse(v);
-  return Number.isNaN(t) ? v : new Date(t).toISOString();
-};
 
 const formSchema = z
   .object({
@@ -45,8 +41,6 @@ const formSchema = z
 
 type FormInput = z.input<typeof formSchema>;
 
-const pad = (n: number) => String(n).padStart(2, '0');
-const localValue = (d: Date) => `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}T${pad(d.getHours())}:${pad(d.getMinutes())}`;
 
 export function AssignmentForm({ classId, scenarios }: { classId: number; scenarios: AssignableScenario[] }) {
   const create = useCreateAssignment();

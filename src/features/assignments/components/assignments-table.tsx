@@ -2,12 +2,11 @@ import type { Assignment } from '../../../../shared/api/assignments.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { EmptyState } from '../../../components/ui/states.tsx';
 import { useDeleteAssignment } from '../api/create-assignment.ts';
-
-const when = (iso: string) => new Date(iso).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
+import { when } from './local-dates.ts';
 
 function state(a: Assignment, now: number): { label: string; tone: string } {
-  if (Date.parse(a.opensAt) > now) return { label: 'Not open yet', tone: 'text-slate-500' };
-  if (Date.parse(a.dueAt) < now) return { label: 'Closed', tone: 'text-slate-500' };
+  if (Date.parse(a.opensAt) > now) return { label: 'Not open yet', tone: 'text-slate-600' };
+  if (Date.parse(a.dueAt) < now) return { label: 'Closed', tone: 'text-slate-600' };
   return { label: 'Open', tone: 'text-live-700' };
 }
 
@@ -27,12 +26,11 @@ export function AssignmentsTable({
   return (
     <div className="space-y-2">
       <div className="overflow-x-auto rounded-lg ring-1 ring-slate-200">
-        <table className="min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Assignments">
+        <table className="stack-table min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Assignments">
           <thead className="bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-500">
             <tr>
               <th scope="col" className="px-3 py-2">Assignment</th>
-              <th scope="col" className="px-3 py-2">Opens</th>
-              <th scope="col" className="px-3 py-2">Due</th>
+              <th scope="col" className="px-3 py-2">Dates</th>
               <th scope="col" className="px-3 py-2">Attempts</th>
               <th scope="col" className="px-3 py-2">State</th>
               <th scope="col" className="px-3 py-2 text-right">
@@ -51,10 +49,12 @@ export function AssignmentsTable({
                       {scenarioTitle(a.scenarioId) ?? 'Scenario'} · version {a.scenarioVersion}
                     </span>
                   </td>
-                  <td className="px-3 py-2 text-slate-600">{when(a.opensAt)}</td>
-                  <td className="px-3 py-2 text-slate-600">{when(a.dueAt)}</td>
-                  <td className="px-3 py-2">{a.attemptsAllowed}</td>
-                  <td className={`px-3 py-2 font-medium ${s.tone}`}>{s.label}</td>
+                  <td data-label="Dates" className="px-3 py-2 text-slate-600">
+                    <span className="block">opens {when(a.opensAt)}</span>
+                    <span className="block">due {when(a.dueAt)}</span>
+                  </td>
+                  <td data-label="Attempts" className="px-3 py-2">{a.attemptsAllowed}</td>
+                  <td data-label="State" className={`px-3 py-2 font-medium ${s.tone}`}>{s.label}</td>
                   <td className="space-x-1 whitespace-nowrap px-3 py-2 text-right">
                     {rowActions?.(a)}
                     <Button size="sm" variant="ghost" disabled={remove.isPending} onClick={() => remove.mutate({ id: a.id, classId: a.classId })}>

@@ -22,8 +22,8 @@ export function AttemptsTable({ attempts }: { attempts: MyAttemptRow[] }) {
   }
   return (
     <div className="overflow-x-auto rounded-xl bg-white shadow-sm ring-1 ring-slate-200">
-      <table className="w-full text-left text-sm">
-        <thead className="border-b border-slate-200 text-xs uppercase tracking-wide text-slate-500">
+      <table className="stack-table w-full text-left text-sm" aria-label="Your attempts">
+        <thead className="border-b border-slate-200 text-xs uppercase tracking-wide text-slate-600">
           <tr>
             <th className="px-4 py-2 font-medium">Scenario</th>
             <th className="px-4 py-2 font-medium">Started</th>
@@ -42,16 +42,16 @@ export function AttemptsTable({ attempts }: { attempts: MyAttemptRow[] }) {
                 <span className="font-medium text-slate-900">{a.scenarioTitle}</span>
                 <span className="block text-xs text-slate-500">{a.mode === 'practice' ? 'Practice' : (a.assignmentTitle ?? 'Assigned')}</span>
               </td>
-              <td className="px-4 py-2 text-slate-600">{dateFmt.format(new Date(a.startedAt))}</td>
-              <td className="px-4 py-2 font-mono text-slate-600">{formatDuration(a.timeToDiagnosisMs)}</td>
-              <td className="px-4 py-2 text-right font-mono">{a.grade === null ? (a.mode === 'practice' && a.status === 'submitted' ? 'ungraded' : '—') : Math.round(a.grade)}</td>
-              <td className="px-4 py-2">
+              <td data-label="Started" className="px-4 py-2 text-slate-600">{dateFmt.format(new Date(a.startedAt))}</td>
+              <td data-label="Time to diagnosis" className="px-4 py-2 font-mono text-slate-600">{formatDuration(a.timeToDiagnosisMs)}</td>
+              <td data-label="Grade" className="px-4 py-2 text-right font-mono">{a.grade === null ? (a.mode === 'practice' && a.status === 'submitted' ? 'ungraded' : '—') : Math.round(a.grade)}</td>
+              <td data-label="Status" className="px-4 py-2">
                 <span className={`rounded-full px-2 py-0.5 text-xs font-medium ${a.status === 'submitted' ? 'bg-slate-100 text-slate-700' : 'bg-live-50 text-live-700'}`}>
                   {a.status === 'submitted' ? 'Submitted' : 'In progress'}
                 </span>
               </td>
               <td className="px-4 py-2 text-right">
-                <span className="flex justify-end gap-3">
+                <span className="flex justify-end gap-3 max-sm:justify-start max-sm:pt-1">
                   <Link to={paths.benchAttempt.href(a.id)} className="font-medium text-slate-900 underline underline-offset-2">
                     {a.status === 'submitted' ? 'Open result' : 'Continue'}
                     <span className="sr-only"> {a.scenarioTitle}</span>

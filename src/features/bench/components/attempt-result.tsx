@@ -8,6 +8,7 @@
 import { Link } from 'react-router-dom';
 import type { AttemptResult } from '../../../../shared/api/attempts.ts';
 import { shownWithUnit } from '../../../../shared/meter-display.ts';
+import { diagnosisLabel } from '../../../../shared/scenario.ts';
 import type { DiagnosticTest } from '../../../../sim/faults.ts';
 import { paths } from '../../../config/paths.ts';
 import { OutputCurveChart } from './output-curve-chart.tsx';
@@ -35,7 +36,7 @@ export function AttemptResultView({ result, testLabel, ratedA, attemptId }: { re
       )}
       <div className="flex flex-wrap items-end gap-6">
         <div>
-          <p className="text-xs font-medium uppercase tracking-wide text-slate-400">Grade</p>
+          <p className="text-xs font-medium uppercase tracking-wide text-slate-600">Grade</p>
           <p className="text-4xl font-semibold text-slate-900" data-testid="result-grade">
             {result.grade === null ? (hidden?.reason === 'until-close' ? 'Shown at close' : 'Practice') : `${Math.round(result.grade)} / 100`}
           </p>
@@ -46,6 +47,12 @@ export function AttemptResultView({ result, testLabel, ratedA, attemptId }: { re
           </p>
         )}
         <p className="text-sm text-slate-600">Time to diagnosis: {mmss(result.timeToDiagnosisMs)}</p>
+        {result.hints && result.hints.opened > 0 && (
+          <p className="text-sm text-slate-600" data-testid="result-hints">
+            Hints opened: {result.hints.opened}
+            {result.scoring?.hintDeduction ? ` (−${result.scoring.hintDeduction} points)` : ''}
+          </p>
+        )}
         {attemptId !== undefined && (
           <Link to={paths.replay.href(attemptId)} className="text-sm font-medium text-live-700 underline">
             Replay this attempt
@@ -59,7 +66,7 @@ export function AttemptResultView({ result, testLabel, ratedA, attemptId }: { re
           <dl className="grid grid-cols-2 gap-2 text-sm sm:grid-cols-4" data-testid="result-scoring">
             {(Object.keys(PART_LABELS) as (keyof typeof PART_LABELS)[]).map((k) => (
               <div key={k} className="rounded-md bg-stone-100 px-3 py-2">
-                <dt className="text-xs text-slate-500">{PART_LABELS[k]}</dt>
+                <dt className="text-xs text-slate-600">{PART_LABELS[k]}</dt>
                 <dd className="font-mono font-semibold text-slate-900">
                   {result.scoring!.points[k]} / {result.scoring!.weights[k]}
                 </dd>
@@ -68,7 +75,8 @@ export function AttemptResultView({ result, testLabel, ratedA, attemptId }: { re
           </dl>
           <p className="mt-1 text-xs text-slate-500">
             Evidence: a reading inside each expected test’s set-up whose value is what the bench showed. Verdicts count for tests with evidence; the fault named and the
-            process count in proportion to the tests with evidence; each process mistake costs {result.scoring.processDeduction} points.
+            process count in proportion to the tests with evidence; each process mistake costs {result.scoring.processDeduction} points
+            {result.hints && result.hints.pointsEach > 0 ? `, and each hint opened ${result.hints.pointsEach}` : ''}.
           </p>
         </section>
       )}
@@ -77,7 +85,7 @@ export function AttemptResultView({ result, testLabel, ratedA, attemptId }: { re
         <h3 className="mb-1 text-sm font-semibold text-slate-900">Fault</h3>
         <p className="text-sm text-slate-700" data-testid="result-fault">
           {result.fault.actual === null ? (
-            <>You named: {result.fault.given === 'none' ? 'no fault' : result.fault.given}. The car’s fault is not shown here.</>
+            <>You named: {diagnosisLabel(result.fault.given)}. The car’s fault is not shown here.</>
           ) : (
             <>
               <Mark ok={result.fault.ok} /> The car had: <strong>{result.fault.labels.join('; ')}</strong>
@@ -90,7 +98,7 @@ export function AttemptResultView({ result, testLabel, ratedA, attemptId }: { re
         <section>
           <h3 className="mb-1 text-sm font-semibold text-slate-900">Readings</h3>
           <table className="w-full text-left text-sm" aria-label="Readings and their checks">
-            <thead className="text-xs uppercase tracking-wide text-slate-400">
+            <thead className="text-xs uppercase tracking-wide text-slate-600">
               <tr>
                 <th className="py-1 font-medium">Test</th>
                 <th className="py-1 text-right font-medium">You recorded</th>

@@ -38,6 +38,7 @@ export function DiagnosisForm({
   submitting,
   error,
   onSubmit,
+  submitLabel = 'Submit diagnosis',
 }: {
   tests: { test: DiagnosticTest; label: string }[];
   choices: { value: DiagnosisChoice; label: string }[];
@@ -47,6 +48,7 @@ export function DiagnosisForm({
   submitting: boolean;
   error: string | null;
   onSubmit: (values: DiagnosisValues) => void;
+  submitLabel?: string;
 }) {
   const form = useForm<DiagnosisFormValues>({
     resolver: zodResolver(diagnosisFormSchema),
@@ -61,7 +63,8 @@ export function DiagnosisForm({
       return given === 'pass' || given === 'fail' ? [{ test: t.test, pass: given === 'pass' }] : [];
     });
     const values = { verdicts, faultKind: v.faultKind as DiagnosisChoice, notes: v.notes };
-    if (readingCount === 0) setConfirming(values);
+    // An ungraded try-out has nothing to lose: only a graded submission asks first.
+    if (readingCount === 0 && submitLabel === 'Submit diagnosis') setConfirming(values);
     else onSubmit(values);
   });
   return (
@@ -134,10 +137,10 @@ export function DiagnosisForm({
       ) : (
         <div className="flex flex-wrap items-center gap-3">
           <Button type="submit" disabled={submitting}>
-            {submitting ? 'Submitting…' : 'Submit diagnosis'}
+            {submitting ? 'Submitting…' : submitLabel}
           </Button>
           <span className="text-xs text-slate-500">
-            {readingCount} reading{readingCount === 1 ? '' : 's'} recorded. Submitting ends the attempt.
+            {readingCount} reading{readingCount === 1 ? '' : 's'} recorded.{submitLabel === 'Submit diagnosis' ? ' Submitting ends the attempt.' : ''}
             {resultsAt ? ` Results show when the assignment closes, ${when(resultsAt)}.` : ''}
           </span>
         </div>

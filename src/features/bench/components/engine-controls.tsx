@@ -4,7 +4,6 @@
  */
 import type { KeyboardEvent } from 'react';
 import type { KeyPosition } from '../../../../sim/inputs.ts';
-import type { AccessoryParams } from '../../../../sim/params.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { benchActions } from '../stores/bench-actions.ts';
 import { useBench, useBenchDispatch } from '../hooks/use-bench.ts';
@@ -22,7 +21,7 @@ export function KeySwitch() {
           type="button"
           aria-pressed={key === k}
           onClick={() => dispatch(benchActions.turnKey(k))}
-          className={`rounded-md px-4 py-1.5 text-sm font-medium ${key === k ? 'bg-slate-900 text-white shadow' : 'text-slate-700 hover:bg-white'}`}
+          className={`min-h-8 whitespace-nowrap rounded-md px-3 py-1 text-sm font-medium ${key === k ? 'bg-slate-900 text-white shadow' : 'text-slate-700 hover:bg-white'}`}
         >
           {k === 'start' ? 'Start' : `Key ${KEY_LABELS[k].toLowerCase()}`}
         </button>
@@ -77,7 +76,7 @@ export function RpmControl({ idleRpm, maxRpm }: { idleRpm: number; maxRpm: numbe
   };
   const valueText = held <= idleRpm ? `idle, ${idleRpm} rpm` : `${value} rpm held`;
   return (
-    <div className="space-y-2">
+    <div className="space-y-1.5">
       <div className="flex items-baseline justify-between text-sm">
         <span className="font-medium text-slate-800" id="rpm-label">
           Assistant holds
@@ -100,21 +99,21 @@ export function RpmControl({ idleRpm, maxRpm }: { idleRpm: number; maxRpm: numbe
         onPointerMove={(e) => {
           if (e.currentTarget.hasPointerCapture(e.pointerId)) fromPointer(e.clientX, e.currentTarget);
         }}
-        className="relative h-8 cursor-pointer touch-none rounded-full bg-slate-200"
+        className="relative mx-3 h-7 cursor-pointer touch-none rounded-full bg-slate-200"
       >
         <div className="absolute inset-y-0 left-0 rounded-full bg-live-500/80" style={{ width: `${pct}%` }} />
         <div className="absolute top-1/2 h-6 w-6 -translate-x-1/2 -translate-y-1/2 rounded-full bg-white shadow ring-2 ring-live-600" style={{ left: `${pct}%` }} />
       </div>
-      <div className="flex flex-wrap gap-1.5">
+      <div className="flex flex-wrap gap-1">
         {RPM_PRESETS.map((rpm) => (
           <Button key={rpm} variant={(rpm === 0 ? held <= idleRpm : held === rpm) ? 'primary' : 'secondary'} size="sm" onClick={() => set(rpm)}>
             {rpm === 0 ? 'Idle' : rpm.toLocaleString('en-US')}
           </Button>
         ))}
-        <Button variant="ghost" size="sm" aria-label="50 rpm slower" onClick={() => set(Math.max(idleRpm, value - RPM_STEP))}>
+        <Button variant="ghost" size="sm" className="px-2" aria-label="50 rpm slower" onClick={() => set(Math.max(idleRpm, value - RPM_STEP))}>
           −50
         </Button>
-        <Button variant="ghost" size="sm" aria-label="50 rpm faster" onClick={() => set(Math.min(maxRpm, value + RPM_STEP))}>
+        <Button variant="ghost" size="sm" className="px-2" aria-label="50 rpm faster" onClick={() => set(Math.min(maxRpm, value + RPM_STEP))}>
           +50
         </Button>
       </div>
@@ -122,7 +121,7 @@ export function RpmControl({ idleRpm, maxRpm }: { idleRpm: number; maxRpm: numbe
   );
 }
 
-export function AccessorySwitches({ accessories }: { accessories: AccessoryParams[] }) {
+export function AccessorySwitches({ accessories }: { accessories: readonly { id: string; label: string }[] }) {
   const on = useBench((s) => s.controls.accessoriesOn.join(','));
   const dispatch = useBenchDispatch();
   const set = new Set(on ? on.split(',') : []);

@@ -10,7 +10,7 @@ import { SelectField } from '../../../components/ui/field.tsx';
 import { benchActions, reverseArrow } from '../stores/bench-actions.ts';
 import { useBenchUi } from '../stores/bench-ui-store.ts';
 import { shallowEqual, useBench, useBenchDispatch } from '../hooks/use-bench.ts';
-import { CONDUCTOR_LABELS, POINT_LABELS } from './schematic-layout.ts';
+import { CONDUCTOR_LABELS, POINT_LABELS } from '../../../components/schematic/layout.ts';
 
 const selectHookup = (s: { controls: Controls; readings: { ammeterFuseBlown: boolean } }) => ({
   fuseBlown: s.readings.ammeterFuseBlown,

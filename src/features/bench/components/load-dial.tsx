@@ -1,10 +1,11 @@
 /**
  * The carbon-pile load dial: a large rotary control over 270°. Drag it, turn
  * the wheel over it, or use the keys (arrows 1 %, Page Up/Down 10 %, Home
- * off, End full). Around it a heat band shows the pile's temperature: amber
- * from its warning temperature, red when it has cut out.
+ * off, End full). Around it a heat band, labelled as such so it does not read
+ * as the load scale, shows the pile's temperature: amber from its warning
+ * temperature, red when it has cut out.
  */
-import { useEffect, useRef, type KeyboardEvent, type PointerEvent } from 'react';
+import { useEffect, useId, useRef, type KeyboardEvent, type PointerEvent } from 'react';
 import { arc } from 'd3-shape';
 import { scaleLinear } from 'd3-scale';
 
@@ -68,8 +69,14 @@ const heatArc = arc<{ start: number; end: number }>()
   .endAngle((d) => d.end)
   .cornerRadius(0.02);
 
+/** The heat label's path: an arc just outside the band, over its first part. */
+const LABEL_R = 1.1;
+const labelArc = (from: number, to: number) =>
+  `M ${LABEL_R * Math.sin(from)} ${-LABEL_R * Math.cos(from)} A ${LABEL_R} ${LABEL_R} 0 0 1 ${LABEL_R * Math.sin(to)} ${-LABEL_R * Math.cos(to)}`;
+
 export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, hot, tripped, size = 220 }: LoadDialProps) {
   const ref = useRef<SVGSVGElement>(null);
+  const heatLabelId = `dial-heat-${useId().replace(/:/g, '')}`;
   const dragging = useRef(false);
   /** The dial's centre on screen, measured once per drag (no layout work per pointer move). */
   const centre = useRef<{ x: number; y: number }>({ x: 0, y: 0 });
@@ -120,7 +127,7 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
       aria-valuenow={Math.round(value01 * 100)}
       aria-valuetext={dialValueText(value01, pileA, hot, tripped)}
       aria-orientation="vertical"
-      viewBox="-1.1 -1.1 2.2 2.2"
+      viewBox="-1.28 -1.28 2.56 2.56"
       width={size}
       height={size}
       className="cursor-grab touch-none select-none rounded-full active:cursor-grabbing"
@@ -148,6 +155,12 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
       <path d={heatArc({ start: START, end: START + SWEEP }) ?? ''} className="fill-stone-200" />
       <path d={heatArc({ start: warnAngle, end: START + SWEEP }) ?? ''} className="fill-warn-100" />
       <path d={heatArc({ start: START, end: Math.max(START + 0.001, tempAngle) }) ?? ''} className={bandColour} />
+      <defs>
+        <path id={heatLabelId} d={labelArc(START, START + SWEEP * 0.55)} />
+      </defs>
+      <text className="fill-slate-600 font-sans font-semibold" fontSize={0.15} letterSpacing={0.02}>
+        <textPath href={`#${heatLabelId}`}>PILE HEAT</textPath>
+      </text>
       {ticks.map((a, i) => (
         <line
           key={i}
@@ -162,10 +175,13 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
       <circle r={0.66} className="fill-slate-800" />
       <circle r={0.58} className="fill-slate-700" />
       <line x1={0} y1={0} x2={0.5 * Math.sin(pointer)} y2={-0.5 * Math.cos(pointer)} className="stroke-live-300" strokeWidth={0.07} strokeLinecap="round" />
-      <text y={0.3} textAnchor="middle" className="fill-slate-100 font-mono" fontSize={0.2}>
+      <text y={-0.22} textAnchor="middle" className="fill-slate-300 font-sans" fontSize={0.14}>
+        load
+      </text>
+      <text y={0.34} textAnchor="middle" className="fill-slate-100 font-mono" fontSize={0.22}>
         {Math.round(value01 * 100)}%
       </text>
-      <text y={0.86} textAnchor="middle" className="fill-slate-500" fontSize={0.11}>
+      <text y={1.04} textAnchor="middle" className={`font-sans font-semibold ${tripped ? 'fill-stop-700' : hot ? 'fill-warn-700' : 'fill-slate-600'}`} fontSize={0.16}>
         {Math.round(pileTempC)} °C
       </text>
     </svg>

@@ -9,7 +9,7 @@ import type { Readings } from '../../../../sim/instruments.ts';
 import type { ReadingQuantity } from '../../../../shared/api/attempts.ts';
 import { meterShows, type MeterShown } from '../../../../shared/meter-display.ts';
 import { TEST_SETUPS, type SetupStatus } from '../../../../shared/test-setups.ts';
-import { CONDUCTOR_LABELS, POINT_LABELS } from './schematic-layout.ts';
+import { CONDUCTOR_WORDS, POINT_WORDS } from '../../../components/schematic/layout.ts';
 
 export const QUANTITY_LABELS: Record<ReadingQuantity, string> = {
   voltage: 'DC volts (voltmeter)',
@@ -36,17 +36,20 @@ export function valueToRecord(test: DiagnosticTest, r: Readings, setup: SetupSta
   return meterShows(TEST_QUANTITY[test], r);
 }
 
-/** Words for the hook-up at the moment of a reading. */
-export function describeSetup(c: Controls, r: Readings): string {
+/** Words for the hook-up at the moment of a reading (names, never the model's codes). */
+export function describeSetup(c: Controls, r: Readings, accessories: readonly { id: string; label: string }[] = []): string {
   const parts: string[] = [];
   if (c.leads.red || c.leads.black) {
-    parts.push(`red on ${c.leads.red ? POINT_LABELS[c.leads.red].toLowerCase() : 'nothing'}, black on ${c.leads.black ? POINT_LABELS[c.leads.black].toLowerCase() : 'nothing'}`);
+    parts.push(`red on ${c.leads.red ? POINT_WORDS[c.leads.red] : 'nothing'}, black on ${c.leads.black ? POINT_WORDS[c.leads.black] : 'nothing'}`);
   }
-  if (c.clamp.conductor) parts.push(`clamp on ${CONDUCTOR_LABELS[c.clamp.conductor].toLowerCase()} (${c.clamp.arrow === 'toward-battery' ? 'arrow toward battery' : 'arrow toward alternator'})`);
+  if (c.clamp.conductor) parts.push(`clamp on ${CONDUCTOR_WORDS[c.clamp.conductor]} (${c.clamp.arrow === 'toward-battery' ? 'arrow toward battery' : 'arrow toward alternator'})`);
   if (c.ammeterInSeries) parts.push('series ammeter at battery −');
   parts.push(r.engine === 'running' ? `engine ${Math.round(r.tachRpm / 10) * 10} rpm` : `engine ${r.engine}, key ${c.key}`);
   if (c.pileDial01 > 0) parts.push(`pile ${Math.round(c.pileDial01 * 100)} %, ${Math.round(r.pileA)} A`);
-  if (c.accessoriesOn.length) parts.push(`${c.accessoriesOn.join(', ')} on`);
+  if (c.accessoriesOn.length) {
+    const names = c.accessoriesOn.map((id) => accessories.find((a) => a.id === id)?.label.toLowerCase() ?? 'an accessory');
+    parts.push(`${names.join(', ')} on`);
+  }
   return parts.join('; ').slice(0, 200);
 }
 

@@ -44,7 +44,7 @@ export const StripChartView = memo(function StripChartView({ history, nowMs }: {
       {secs.map((s) => (
         <g key={s}>
           <line x1={x(nowMs - s * 1000)} x2={x(nowMs - s * 1000)} y1={M.top} y2={H - M.bottom} className="stroke-slate-100" />
-          <text x={x(nowMs - s * 1000)} y={H - 6} textAnchor="middle" className="fill-slate-400 text-[10px]">
+          <text x={x(nowMs - s * 1000)} y={H - 6} textAnchor="middle" className="fill-slate-500 text-[10px]">
             {s === 0 ? 'now' : `−${s} s`}
           </text>
         </g>

@@ -12,8 +12,10 @@ import type { VehicleParams } from '../../../../sim/params.ts';
 import { modelEvents, type AttemptBootstrap, type LogEvent, type RecordedReading } from '../../../../shared/api/attempts.ts';
 import { createOutbox, mergeForResume, readPersisted, type Outbox, type OutboxView, type SequencedEvent } from '../api/event-outbox.ts';
 import { postEvents } from '../api/post-events.ts';
+import { startClockReports } from '../api/report-clock.ts';
 import { createBenchEngine, type BenchEngine } from '../stores/bench-engine.ts';
 import { connectLiveInjections } from '../live/live-injections.ts';
+import { createHintsLog, type HintsLog } from './hints-log.ts';
 
 /** A recorded reading with its place in the log and whether the server has stored it. */
 export interface LoggedReading {
@@ -35,6 +37,8 @@ export interface BenchSession {
   engine: BenchEngine;
   outbox: Outbox;
   readings: ReadingsLog;
+  /** The scenario's hints the student has opened (events of the log too). */
+  hints: HintsLog;
   /** The car the model runs. */
   vehicle: VehicleParams;
 }
@@ -94,6 +98,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
     if (!enabled) return;
     let built: BenchSession | null = null;
     let stopLive: (() => void) | null = null;
+    let stopClock: (() => void) | null = null;
     let saveTimer: number | undefined;
     const saveTime = () => built?.outbox.noteSimTime(built.engine.getSnapshot().timeMs);
     const onHidden = () => {
@@ -119,11 +124,13 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
         onEvent: (event) => void outbox.push(event as LogEvent),
       });
       const readings = createReadingsLog(events, outbox, () => engine.getSnapshot().timeMs);
-      built = { engine, outbox, readings, vehicle: boot.car.params };
+      const hints = createHintsLog(events, (e) => void outbox.push(e), () => engine.getSnapshot().timeMs);
+      built = { engine, outbox, readings, hints, vehicle: boot.car.params };
       engine.start();
       // The one listener for the instructor's live injections: they go through the dispatcher like any input.
       stopLive = connectLiveInjections({ attemptId, engine });
       outbox.start();
+      stopClock = startClockReports(attemptId, engine, outbox);
       saveTimer = window.setInterval(saveTime, 1000);
       window.addEventListener('pagehide', saveTime);
       document.addEventListener('visibilitychange', onHidden);
@@ -140,6 +147,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
         saveTime();
         built.engine.stop();
         stopLive?.();
+        stopClock?.();
         built.outbox.stop();
       }
       setSession(null);

@@ -42,6 +42,14 @@ const TRACE_SAMPLES = 240;
 export const DISPLAY_INTERVAL_MS = SETUP_TICK_MS;
 /** The key springs back from start to on after this long, or once the engine runs. */
 export const START_HOLD_MS = 1500;
+/** The pile counts as loaded (a burst under way) above this current. */
+export const BURST_MIN_A = 5;
+
+/** The carbon pile's loaded burst: when the one under way began, and how long the last one lasted (sim ms). */
+export interface PileBurst {
+  sinceMs: number | null;
+  lastMs: number | null;
+}
 
 export interface HistorySample {
   tMs: number;
@@ -72,6 +80,7 @@ export interface BenchSnapshot {
    * that was open before the student arrived is not shown: finding it is the job.
    */
   linkBlownHere: boolean;
+  burst: PileBurst;
 }
 
 export interface BenchEngineOptions {
@@ -106,7 +115,17 @@ export interface BenchEngine {
 }
 
 function emptySnapshot(point: ReplayPoint, display: MeterDisplay, eventCount: number): BenchSnapshot {
-  return { timeMs: point.state.timeMs, readings: display.readings, display, controls: point.controls, history: [], trace: null, eventCount, linkBlownHere: point.state.fusibleLinkBlown };
+  return {
+    timeMs: point.state.timeMs,
+    readings: display.readings,
+    display,
+    controls: point.controls,
+    history: [],
+    trace: null,
+    eventCount,
+    linkBlownHere: point.state.fusibleLinkBlown,
+    burst: { sinceMs: display.readings.pileA > BURST_MIN_A ? point.state.timeMs : null, lastMs: null },
+  };
 }
 
 export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
@@ -140,6 +159,8 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
   let nextTraceMs = 0;
   let keyStartedAtMs: number | null = point.controls.key === 'start' ? point.state.timeMs : null;
   let frame: number | null = null;
+  /** An input dispatched while the loop runs, not yet published (the next frame publishes it). */
+  let pending = false;
   let lastFrameAt: number | null = null;
   /** The controls with every dispatched event applied (the next step applies them to the model). */
   let shownControls: Controls = point.controls;
@@ -164,16 +185,27 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
     trace = leads.red && leads.black ? rippleTrace(params, point.state, TRACE_SAMPLES) : null;
   }
 
+  let burst: PileBurst = snapshot.burst;
+
   function publish(): void {
+    pending = false;
+    const readings = readMeters(params, point.state);
+    const t = point.state.timeMs;
+    if (readings.pileA > BURST_MIN_A) {
+      if (burst.sinceMs === null) burst = { sinceMs: t, lastMs: burst.lastMs };
+    } else if (burst.sinceMs !== null) {
+      burst = { sinceMs: null, lastMs: t - burst.sinceMs };
+    }
     snapshot = {
-      timeMs: point.state.timeMs,
-      readings: readMeters(params, point.state),
+      timeMs: t,
+      readings,
       display,
       controls: shownControls,
       history,
       trace,
       eventCount: student.length,
       linkBlownHere: point.state.fusibleLinkBlown,
+      burst,
     };
     for (const l of [...listeners]) l();
   }
@@ -215,7 +247,10 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
     shownControls = applyInput(shownControls, event, rawClampReadingA(point.state, shownControls));
     onEvent?.(event);
     if (event.kind === 'lead') refreshTrace(true);
-    publish();
+    // While the loop runs, the next frame shows it (input arrives before the frame's callbacks, so that is
+    // the frame the student sees next): a dial dragged at the display's rate costs one render a frame, not two.
+    if (frame !== null) pending = true;
+    else publish();
     return event;
   }
 
@@ -223,7 +258,10 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
     const gap = Math.min(Math.max(frameGapMs, 0), MAX_FRAME_GAP_MS);
     accumulatorMs += gap;
     const steps = Math.floor(accumulatorMs / DT_MS);
-    if (steps <= 0) return;
+    if (steps <= 0) {
+      if (pending) publish();
+      return;
+    }
     accumulatorMs -= steps * DT_MS;
     stepBy(steps);
     publish();
@@ -259,6 +297,7 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
     stop() {
       if (frame !== null) cancelAnimationFrame(frame);
       frame = null;
+      if (pending) publish();
     },
     running: () => frame !== null,
   };

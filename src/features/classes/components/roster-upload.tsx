@@ -4,7 +4,13 @@ import { ApiError } from '../../../lib/api-client.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { useImportRoster, usePreviewRoster } from '../api/roster-upload.ts';
 
-const statusText: Record<RosterRow['status'], string> = { new: 'New: account made and invited', existing: 'Existing student: enrolled', enrolled: 'Already in the class', error: 'Error' };
+/** What the import will do with each line (the preview comes before anything is written). */
+const statusText: Record<RosterRow['status'], string> = {
+  new: 'New student: will be invited',
+  existing: 'Existing student: will be enrolled',
+  enrolled: 'Already in the class: nothing to do',
+  error: 'Error',
+};
 
 /** Roster CSV: preview every line with its errors, then import all or nothing. */
 export function RosterUpload({ classId }: { classId: number }) {
@@ -62,14 +68,14 @@ export function RosterUpload({ classId }: { classId: number }) {
       {data && (
         <div className="space-y-3">
           <p className="text-sm text-slate-700" role="status">
-            {data.fileName}: {data.newCount} new, {data.existingCount} existing, {data.alreadyEnrolledCount} already enrolled,{' '}
+            {data.fileName}: {data.newCount} new (will be invited), {data.existingCount} existing (will be enrolled), {data.alreadyEnrolledCount} already enrolled,{' '}
             <span className={data.errorCount ? 'font-medium text-stop-700' : ''}>
               {data.errorCount} {data.errorCount === 1 ? 'line' : 'lines'} with errors
             </span>
             .
           </p>
           <div className="max-h-80 overflow-auto rounded-lg ring-1 ring-slate-200">
-            <table className="min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Roster preview">
+            <table className="stack-table min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Roster preview">
               <thead className="sticky top-0 bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-500">
                 <tr>
                   <th scope="col" className="px-3 py-2">Line</th>
@@ -81,10 +87,10 @@ export function RosterUpload({ classId }: { classId: number }) {
               <tbody className="divide-y divide-slate-100">
                 {data.rows.map((r) => (
                   <tr key={r.line} className={r.status === 'error' ? 'bg-stop-100/40' : ''}>
-                    <td className="px-3 py-1.5 font-mono text-xs">{r.line}</td>
-                    <td className="px-3 py-1.5">{r.name || <span className="text-slate-400">—</span>}</td>
-                    <td className="px-3 py-1.5 text-slate-600">{r.email || <span className="text-slate-400">—</span>}</td>
-                    <td className="px-3 py-1.5">
+                    <td data-label="Line" className="px-3 py-1.5 font-mono text-xs">{r.line}</td>
+                    <td data-label="Name" className="px-3 py-1.5">{r.name || <span className="text-slate-500">—</span>}</td>
+                    <td data-label="E-mail" className="break-all px-3 py-1.5 text-slate-600">{r.email || <span className="text-slate-500">—</span>}</td>
+                    <td data-label="Result" className="px-3 py-1.5">
                       {r.status === 'error' ? <span className="font-medium text-stop-700">{r.message}</span> : <span className="text-slate-700">{statusText[r.status]}</span>}
                     </td>
                   </tr>

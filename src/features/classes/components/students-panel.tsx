@@ -39,10 +39,13 @@ function StudentRow({ classId, student }: { classId: number; student: ClassDetai
   const invite = useResendStudentInvite();
   return (
     <tr>
-      <td className="px-3 py-2 font-medium">{student.name}</td>
-      <td className="px-3 py-2 text-slate-600">{student.email}</td>
-      <td className="px-3 py-2 text-sm">{student.hasPassword ? 'Active' : <span className="text-slate-500">Invited</span>}</td>
-      <td className="space-x-1 whitespace-nowrap px-3 py-2 text-right">
+      <td className="px-3 py-2">
+        <span className="block font-medium">{student.name}</span>
+        <span className="block break-all text-xs text-slate-600">{student.email}</span>
+      </td>
+      <td data-label="Status" className="px-3 py-2 text-sm">{student.hasPassword ? 'Active' : <span className="text-slate-500">Invited</span>}</td>
+      <td className="px-3 py-2 text-right">
+        <span className="flex flex-wrap justify-end gap-1 max-sm:justify-start">
         {!student.hasPassword && (
           <Button size="sm" variant="ghost" disabled={invite.isPending} onClick={() => invite.mutate({ classId, userId: student.id })}>
             {invite.isSuccess ? 'Sent' : 'Resend invite'}
@@ -52,6 +55,7 @@ function StudentRow({ classId, student }: { classId: number; student: ClassDetai
         <Button size="sm" variant="secondary" disabled={remove.isPending} onClick={() => remove.mutate({ classId, userId: student.id })}>
           Remove<span className="sr-only"> {student.name} from the class</span>
         </Button>
+        </span>
       </td>
     </tr>
   );
@@ -65,11 +69,10 @@ export function StudentsPanel({ cls }: { cls: ClassDetail }) {
         <EmptyState title="No students yet">Add them one at a time or upload a roster.</EmptyState>
       ) : (
         <div className="overflow-x-auto rounded-lg ring-1 ring-slate-200">
-          <table className="min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Students">
-            <thead className="bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-500">
+          <table className="stack-table min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Students">
+            <thead className="bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-600">
               <tr>
-                <th scope="col" className="px-3 py-2">Name</th>
-                <th scope="col" className="px-3 py-2">E-mail</th>
+                <th scope="col" className="px-3 py-2">Student</th>
                 <th scope="col" className="px-3 py-2">Status</th>
                 <th scope="col" className="px-3 py-2 text-right">
                   <span className="sr-only">Actions</span>

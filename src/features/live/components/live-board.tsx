@@ -1,7 +1,7 @@
 /** The running attempts of a class, one card each, kept live by the board's stream. */
 import { useEffect, useState } from 'react';
 import { FAULT_CATALOG } from '../../../../sim/faults.ts';
-import type { BoardAttempt, InjectionView } from '../../../../shared/api/live.ts';
+import { BENCH_GONE_AFTER_MS, BENCH_IDLE_AFTER_MS, type BoardAttempt, type InjectionView, type LiveReadings } from '../../../../shared/api/live.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../../../shared/scenario.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { EmptyState } from '../../../components/ui/states.tsx';
@@ -80,12 +80,38 @@ export function sinceText(iso: string | null, now: number): string {
   return s < 60 ? `last input ${s} s ago` : `last input ${Math.floor(s / 60)} min ago`;
 }
 
+/** Whether a bench is at work: open and reporting its clock, with input lately. */
+export function benchActivity(a: Pick<BoardAttempt, 'benchSeenAt' | 'lastActivityAt' | 'startedAt'>, now: number): { idle: boolean; text: string } {
+  const seen = a.benchSeenAt ? now - Date.parse(a.benchSeenAt) : null;
+  const lastInput = Date.parse(a.lastActivityAt ?? a.startedAt);
+  if (seen === null || seen > BENCH_GONE_AFTER_MS) return { idle: true, text: 'Idle: the bench is closed or out of sight' };
+  const quiet = now - lastInput;
+  if (quiet > BENCH_IDLE_AFTER_MS) return { idle: true, text: `Idle: no input for ${Math.floor(quiet / 60_000)} min` };
+  return { idle: false, text: 'At work' };
+}
+
+/** What needs the instructor's eye on a bench: a cut-out or hot pile, a burnt link. Red for the stops, amber for the warning. */
+export function benchAlerts(r: LiveReadings | null): { text: string; stop: boolean }[] {
+  if (!r) return [];
+  const alerts: { text: string; stop: boolean }[] = [];
+  if (r.pileOverheated) alerts.push({ text: 'Pile overheated and cut out', stop: true });
+  else if (r.pileHot) alerts.push({ text: 'Pile hot', stop: false });
+  if (r.linkBlown) alerts.push({ text: 'Fusible link burnt open', stop: true });
+  return alerts;
+}
+
 function AttemptCard({ attempt }: { attempt: BoardAttempt }) {
   const [injecting, setInjecting] = useState(false);
   const now = useNow();
   const r = attempt.readings;
+  const activity = benchActivity(attempt, now);
+  const alerts = benchAlerts(r);
   return (
-    <li className="rounded-xl bg-white p-4 shadow-sm ring-1 ring-slate-200" aria-label={`${attempt.studentName}, ${attempt.scenarioTitle}`}>
+    <li
+      className={`rounded-xl p-4 shadow-sm ring-1 ${activity.idle ? 'bg-stone-50 ring-slate-200' : 'bg-white ring-slate-200'} ${alerts.some((a) => a.stop) ? 'ring-2 ring-stop-600' : alerts.length ? 'ring-2 ring-warn-500' : ''}`}
+      aria-label={`${attempt.studentName}, ${attempt.scenarioTitle}`}
+      data-idle={activity.idle}
+    >
       <div className="flex items-start justify-between gap-3">
         <div className="min-w-0">
           <p className="font-semibold text-slate-900">{attempt.studentName}</p>
@@ -98,15 +124,26 @@ function AttemptCard({ attempt }: { attempt: BoardAttempt }) {
           <p className="font-mono text-lg font-semibold text-live-700" aria-label="Elapsed bench time">
             {formatSimTime(attempt.simTimeMs)}
           </p>
-          <p className="text-xs text-slate-500">{attempt.currentTest ? DIAGNOSTIC_TEST_LABELS[attempt.currentTest] : 'Setting up'}</p>
-          <p className="text-xs text-slate-400">{sinceText(attempt.lastActivityAt, now)}</p>
+          <p className="text-xs text-slate-600">{attempt.currentTest ? DIAGNOSTIC_TEST_LABELS[attempt.currentTest] : 'Setting up'}</p>
+          <p className="text-xs text-slate-600">{sinceText(attempt.lastActivityAt, now)}</p>
         </div>
       </div>
-      <dl className="mt-3 grid grid-cols-3 gap-2 sm:grid-cols-5">
+      <div className="mt-2 flex flex-wrap gap-1.5 text-xs font-medium">
+        <span data-testid="bench-activity" className={`rounded-full px-2 py-0.5 ring-1 ${activity.idle ? 'bg-stone-100 text-slate-700 ring-slate-300' : 'bg-live-50 text-live-700 ring-live-500/40'}`}>
+          {activity.text}
+        </span>
+        {alerts.map((a) => (
+          <span key={a.text} role="alert" className={`rounded-full px-2 py-0.5 ${a.stop ? 'bg-stop-600 text-white' : 'bg-warn-100 text-warn-700 ring-1 ring-warn-500/40'}`}>
+            {a.text}
+          </span>
+        ))}
+      </div>
+      <dl className="mt-3 grid grid-cols-3 gap-2 sm:grid-cols-6" aria-label={`Meters of ${attempt.studentName}'s bench now`}>
         <Reading label="Volts" value={fmt(r?.voltmeterV, 2, 'V')} />
-        <Reading label="Ripple" value={fmt(r?.rippleVac, 2, 'V AC')} />
+        <Reading label="Ripple" value={r?.rippleVac === null || r?.rippleVac === undefined ? '—' : `${Math.round(r.rippleVac * 1000)} mV`} />
         <Reading label="Clamp" value={fmt(r?.clampA, 1, 'A')} />
-        <Reading label="Engine" value={r ? `${Math.round(r.tachRpm)} rpm` : '—'} />
+        <Reading label="Engine" value={r ? `${(Math.round(r.tachRpm / 10) * 10).toLocaleString('en-US')} rpm` : '—'} />
+        <Reading label="Pile" value={r ? `${Math.round(r.pileA)} A` : '—'} />
         <Reading label="Charge" value={r ? `${Math.round(r.batterySoc01 * 100)} %` : '—'} />
       </dl>
       <Injections attempt={attempt} />
@@ -136,11 +173,28 @@ export function StreamBadge({ state }: { state: StreamState }) {
 
 export function LiveBoard({ attempts }: { attempts: readonly BoardAttempt[] }) {
   if (attempts.length === 0) return <EmptyState title="Nobody is at a bench right now">Running attempts appear here as students start them.</EmptyState>;
+  const attention = attempts.flatMap((a) => benchAlerts(a.readings).map((alert) => ({ who: a.studentName, ...alert })));
   return (
-    <ul className="grid gap-4 lg:grid-cols-2" aria-label="Running attempts">
-      {attempts.map((a) => (
-        <AttemptCard key={a.attemptId} attempt={a} />
-      ))}
-    </ul>
+    <div className="space-y-4">
+      {attention.length > 0 && (
+        <section aria-labelledby="attention-heading" className="rounded-xl bg-warn-100 p-3 text-sm text-warn-700 ring-1 ring-warn-500/40">
+          <h2 id="attention-heading" className="font-semibold">
+            Needs your eye
+          </h2>
+          <ul className="mt-1 list-disc pl-5">
+            {attention.map((a) => (
+              <li key={`${a.who}-${a.text}`}>
+                {a.who}: {a.text.toLowerCase()}
+              </li>
+            ))}
+          </ul>
+        </section>
+      )}
+      <ul className="grid gap-4 lg:grid-cols-2" aria-label="Running attempts">
+        {attempts.map((a) => (
+          <AttemptCard key={a.attemptId} attempt={a} />
+        ))}
+      </ul>
+    </div>
   );
 }

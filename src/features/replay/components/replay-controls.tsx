@@ -15,6 +15,7 @@ const MARKER_CLASS: Record<Marker['kind'], string> = {
   load: 'bg-warn-500',
   fault: 'bg-stop-600',
   reading: 'bg-live-500',
+  hint: 'bg-slate-300 ring-1 ring-slate-600',
   submission: 'bg-slate-900',
 };
 

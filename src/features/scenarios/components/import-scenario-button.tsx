@@ -1,5 +1,6 @@
 import { useRef } from 'react';
 import { useNavigate } from 'react-router-dom';
+import { scenarioFieldInWords } from '../../../../shared/scenario.ts';
 import { ApiError } from '../../../lib/api-client.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { useImportScenario } from '../api/import-scenario.ts';
@@ -30,13 +31,13 @@ export function ImportScenarioButton() {
         {importer.isPending ? 'Importing…' : 'Import JSON'}
       </Button>
       {err && (
-        <div role="alert" className="absolute right-0 z-10 mt-2 w-96 rounded-lg bg-white p-3 text-sm shadow-lg ring-1 ring-stop-600/30">
+        <div role="alert" className="absolute right-0 z-10 mt-2 w-[min(24rem,calc(100vw-2rem))] rounded-lg bg-white p-3 text-sm shadow-lg ring-1 ring-stop-600/30">
           <p className="font-medium text-stop-700">Nothing was imported</p>
           {err instanceof ApiError && err.issues?.length ? (
             <ul className="mt-1 max-h-60 list-disc space-y-0.5 overflow-auto pl-5 text-xs text-slate-700">
               {err.issues.map((i) => (
                 <li key={`${i.path}:${i.message}`}>
-                  <code className="font-mono text-slate-900">{i.path}</code>: {i.message}
+                  <span className="font-medium text-slate-900">{scenarioFieldInWords(i.path)}</span>: {i.message}
                 </li>
               ))}
             </ul>

@@ -6,6 +6,7 @@ import type { Visibility } from '../../../../shared/api/scenarios.ts';
 import {
   DIFFICULTIES,
   DIFFICULTY_LABELS,
+  MAX_HINT_POINTS,
   outputPassMarkA,
   scenarioSchema,
   vehicleParamsSchema,
@@ -19,7 +20,7 @@ import { Panel } from '../../../components/ui/states.tsx';
 import { FaultsSection } from './editor-faults.tsx';
 import { AccessoriesField, DiagnosisChoicesSection, LinesField, TestsAndRulesSection } from './editor-rules.tsx';
 import { OutputCurvePreview } from './output-curve-preview.tsx';
-import { Advanced, FieldGrid, ParamField, type ScenarioFormValues } from './param-field.tsx';
+import { Advanced, BoundedNumberField, FieldGrid, ParamField, type ScenarioFormValues } from './param-field.tsx';
 import { NameplateCheck, VehicleChecksPanel } from './vehicle-checks.tsx';
 
 export interface ScenarioSaveRequest {
@@ -315,6 +316,13 @@ export function ScenarioEditor({
               <div className="grid gap-4 md:grid-cols-2">
                 <LinesField name="hints" label="Hints (one per line)" hint="Shown to the student on request; guide the method, do not name the fault." />
                 <LinesField name="objectives" label="Learning objectives (one per line)" hint="For you and for the feedback after submission." />
+                <div className="max-w-xs">
+                  <BoundedNumberField
+                    name="hintPoints"
+                    bound={{ label: 'Points per hint', unit: '', min: 0, max: MAX_HINT_POINTS, integer: true }}
+                    hint={`Taken off an assigned attempt’s grade for each hint the student opens: 0 to ${MAX_HINT_POINTS} (0: hints are free). The student sees the cost before opening one.`}
+                  />
+                </div>
               </div>
             </Section>
           </fieldset>

@@ -228,8 +228,8 @@ export function ScenarioTable({ scenarios }: { scenarios: ScenarioListItem[] }) 
         <EmptyState title="No scenario matches these filters">Clear a filter or search for something else.</EmptyState>
       ) : (
         <div className="overflow-x-auto rounded-lg ring-1 ring-slate-200">
-          <table className="min-w-full divide-y divide-slate-200 bg-white text-sm">
-            <thead className="bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-500">
+          <table className="stack-table min-w-full divide-y divide-slate-200 bg-white text-sm" aria-label="Scenarios">
+            <thead className="bg-slate-50 text-left text-xs font-semibold uppercase tracking-wide text-slate-600">
               {table.getHeaderGroups().map((hg) => (
                 <tr key={hg.id}>
                   {hg.headers.map((h) => {
@@ -254,7 +254,7 @@ export function ScenarioTable({ scenarios }: { scenarios: ScenarioListItem[] }) 
               {rows.map((r) => (
                 <tr key={r.id} className="align-top hover:bg-stone-50">
                   {r.getVisibleCells().map((c) => (
-                    <td key={c.id} className="px-3 py-2.5">
+                    <td key={c.id} data-label={typeof c.column.columnDef.header === 'string' && c.column.getIndex() > 0 ? c.column.columnDef.header : undefined} className="px-3 py-2.5">
                       {flexRender(c.column.columnDef.cell, c.getContext())}
                     </td>
                   ))}
