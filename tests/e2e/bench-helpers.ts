@@ -82,9 +82,11 @@ export async function loadDownTo(page: Page, volts: number): Promise<void> {
   throw new Error(`could not load the system down to ${volts} V`);
 }
 
-export async function recordReading(page: Page, test: string): Promise<void> {
+/** Records a reading for `test` with the record bar; with `inSetup`, first waits until the bar says the test's set-up holds. */
+export async function recordReading(page: Page, test: string, opts: { inSetup?: boolean } = {}): Promise<void> {
   const form = page.getByRole('form', { name: 'Record a reading' });
   await form.getByLabel('Test').selectOption(test);
+  if (opts.inSetup) await expect.poll(() => page.getByTestId('setup-status').textContent(), { timeout: 30_000 }).toMatch(/^Set-up holds/);
   const before = await page.getByTestId('recorded-reading').count();
   await form.getByRole('button', { name: 'Record this reading' }).click();
   await expect.poll(() => page.getByTestId('recorded-reading').count()).toBe(before + 1);
