@@ -6,7 +6,6 @@ import { assignments, classes, enrollments, scenarios, users } from '../../serve
 import type { ReadingQuantity } from '../../shared/api/attempts.ts';
 import { TEST_SETUPS } from '../../shared/test-setups.ts';
 import type { DiagnosticTest } from '../../sim/faults.ts';
-import { QUANTITY_LABELS } from '../../src/features/bench/components/reading-capture.ts';
 import type { E2eServer } from './support.ts';
 
 /** Assigns a library scenario (by its slug) to the class of the given student, open now. */
@@ -87,16 +86,16 @@ export async function loadDownTo(page: Page, volts: number): Promise<void> {
 }
 
 /**
- * Records what the meter shows now for a test. Each test reads one quantity
- * (shared/test-setups.ts), so the student picks the test and the panel says
- * what it reads; `quantity` is the one the caller means to record, checked
- * against what the panel says.
+ * Records a reading for `test` with the record bar. Each test reads one
+ * quantity (shared/test-setups.ts); `quantity` is the one the caller means to
+ * record, checked against the test's. With `inSetup`, first waits until the
+ * bar says the test's set-up holds.
  */
-export async function recordReading(page: Page, test: DiagnosticTest, quantity: ReadingQuantity = TEST_SETUPS[test].quantity): Promise<void> {
+export async function recordReading(page: Page, test: DiagnosticTest, quantity: ReadingQuantity = TEST_SETUPS[test].quantity, opts: { inSetup?: boolean } = {}): Promise<void> {
+  expect(TEST_SETUPS[test].quantity).toBe(quantity);
   const form = page.getByRole('form', { name: 'Record a reading' });
   await form.getByLabel('Test').selectOption(test);
-  expect(TEST_SETUPS[test].quantity).toBe(quantity);
-  await form.getByText(`Reads: ${QUANTITY_LABELS[quantity]}`).waitFor();
+  if (opts.inSetup) await expect.poll(() => page.getByTestId('setup-status').textContent(), { timeout: 30_000 }).toMatch(/^Set-up holds/);
   const before = await page.getByTestId('recorded-reading').count();
   await form.getByRole('button', { name: 'Record this reading' }).click();
   await expect.poll(() => page.getByTestId('recorded-reading').count()).toBe(before + 1);
