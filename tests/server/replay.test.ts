@@ -46,12 +46,15 @@ beforeAll(async () => {
     .where(eq(pendingInjections.id, inj!.id));
   const events = benchSession(faultId);
   await t.ctx.db.insert(attemptEvents).values(events.map((event, i) => ({ attemptId, seq: i + 1, simTimeMs: event.atMs, kind: event.kind, payload: event })));
+  // The student opened the scenario's first hint at the end: a note in the log, not an input of the model.
+  const hint = { kind: 'hint' as const, atMs: 36_000, index: 0 };
+  await t.ctx.db.insert(attemptEvents).values({ attemptId, seq: events.length + 1, simTimeMs: hint.atMs, kind: hint.kind, payload: hint });
   await t.ctx.db
     .update(attempts)
     .set({
       status: 'submitted',
       submittedAt: new Date(),
-      lastSeq: events.length,
+      lastSeq: events.length + 1,
       simTimeMs: 36_000,
       grade: 70,
       readings: [
@@ -86,6 +89,7 @@ describe('replay', () => {
       ['r2', null],
     ]);
     expect(new Set(replay.markers.map((m) => m.kind))).toEqual(new Set(MARKER_KINDS));
+    expect(replay.markers.filter((m) => m.kind === 'hint').map((m) => m.atMs)).toEqual([36_000]);
     // Two pile turns within a second make one load change.
     expect(replay.markers.filter((m) => m.kind === 'load').map((m) => m.atMs)).toEqual([15_000, 30_000]);
     expect(replay.markers.find((m) => m.kind === 'fault')).toMatchObject({ atMs: 22_000, label: 'Injected: High resistance on the B+ side' });
