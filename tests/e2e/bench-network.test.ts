@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { demoFirst } from '../../server/db/demo-people.ts';
 import { SCREENSHOT_DIR } from './browser.ts';
 import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
-import { hookUp, openBench, scenarioIdOf, serverAttempt, toggleAccessory } from './bench-helpers.ts';
+import { hookUp, openBench, openPanel, scenarioIdOf, serverAttempt, toggleAccessory } from './bench-helpers.ts';
 
 const e2e = browserAndServerForFile();
 
@@ -38,9 +38,10 @@ describe('the network cut mid-attempt', () => {
     // A reload while still cut off: the bench resumes from the server's events plus the ones kept in this e2e.browser.
     await page.reload();
     await dial.waitFor();
-    for (const name of switches) expect(await page.getByRole('button', { name }).getAttribute('aria-pressed')).toBe('true');
+    await openPanel(page, 'Car');
+    for (const name of switches) expect(await page.getByRole('button', { name, exact: true }).getAttribute('aria-pressed')).toBe('true');
     expect(await dial.getAttribute('aria-valuenow')).toBe('30');
-    await page.getByRole('button', { name: 'Wipers' }).click();
+    await page.getByRole('button', { name: 'Wipers', exact: true }).click();
     await expect.poll(() => status.textContent(), { timeout: 15_000 }).toMatch(/^Offline — 8 events waiting$/);
     expect((await serverAttempt(page, attemptId)).events).toHaveLength(3);
 

@@ -145,8 +145,8 @@ describe('imports', () => {
     writeFileSync(file, JSON.stringify({ format: 'loadline.scenario', formatVersion: 1, title: 'Bad', summary: 'short', difficulty: 'legendary', vehicle: { name: 'X', kind: 'van', engineDescription: 'none', params: { battery: { cca: 5 } } } }));
     await page.getByTestId('import-scenario-file').setInputFiles(file);
     const alert = page.getByRole('alert').filter({ hasText: 'Nothing was imported' });
-    await expect.poll(() => alert.textContent(), POLL).toContain('vehicle.params.battery.cca');
-    expect(await alert.textContent()).toContain('difficulty');
+    await expect.poll(() => alert.textContent(), POLL).toContain('Vehicle › Battery › Cold-cranking amps');
+    expect(await alert.textContent()).toContain('Difficulty: Difficulty must be one of');
     await page.screenshot({ path: `${SCREENSHOT_DIR}/scenario-import-errors.png` });
     expect(await rows.count()).toBe(before);
     await page.close();
