@@ -5,12 +5,11 @@
 import type { Request } from 'express';
 import { rateLimit } from 'express-rate-limit';
 import { attemptIdParamsSchema, startAttemptSchema, submitSchema } from '../../shared/api/attempts.ts';
-import { benchClockSchema } from '../../shared/api/live.ts';
+import { benchClockSchema, type BenchClockAnswer } from '../../shared/api/live.ts';
 import { attemptReaderAccess } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
 import { PgRateLimitStore } from '../http/rate-limit-store.ts';
-import { conflict } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { receivedAt, ServerTiming } from '../http/server-timing.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
@@ -71,14 +70,15 @@ export function attemptRoutes(ctx: AppContext) {
     res.json(await postEvents(ctx, currentUser(req), id, req.body ?? {}));
   });
 
-  // The open bench's clock, for the class board: stored only while the attempt runs (409 after).
+  // The open bench's clock, for the class board: stored only while the attempt runs. The answer says
+  // whether it still does, so a bench left open on one device stops once the attempt is submitted on another.
   g.post('/:id/clock', ['student'], async (req, res) => {
     const { id } = parseParams(attemptIdParamsSchema, req);
     const user = currentUser(req);
     await requireOwnAttempt(ctx, user, id);
     const { simTimeMs } = parseBody(benchClockSchema, req);
-    if (!(await reportBenchClock(ctx.pool, id, user.id, simTimeMs))) throw conflict('The attempt is no longer running', 'id');
-    res.status(204).end();
+    const answer: BenchClockAnswer = { running: await reportBenchClock(ctx.pool, id, user.id, simTimeMs) };
+    res.json(answer);
   });
 
   // The owner never changes, so it is checked from memory (requireOwnAttempt); the submission itself runs on the locked row.

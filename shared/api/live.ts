@@ -192,6 +192,10 @@ export const benchClockSchema = z.strictObject({
     .max(MAX_ATTEMPT_MS, `simTimeMs must be at most ${MAX_ATTEMPT_MS} (four hours)`),
 });
 
+/** The answer to a clock report: whether the attempt still runs (false once it was submitted, perhaps from another device). */
+export const benchClockAnswerSchema = z.object({ running: z.boolean() });
+export type BenchClockAnswer = z.infer<typeof benchClockAnswerSchema>;
+
 export const boardSnapshotSchema = z.object({ classId: z.number().int(), className: z.string(), attempts: z.array(boardAttemptSchema) });
 export type BoardSnapshot = z.infer<typeof boardSnapshotSchema>;
 

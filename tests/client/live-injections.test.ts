@@ -53,9 +53,11 @@ describe('the bench side of live injection', () => {
     const listeners = new Map<string, (e: MessageEvent<string>) => void>();
     let opened = '';
     let closed = false;
+    let submitted = 0;
     const stop = connectLiveInjections({
       attemptId: 9,
       engine,
+      onSubmitted: () => submitted++,
       open: (url) => {
         opened = url;
         return { addEventListener: (type, l) => listeners.set(type, l), close: () => (closed = true) };
@@ -67,8 +69,16 @@ describe('the bench side of live injection', () => {
     send('injection', injectionMessage(2, 1));
     await expect.poll(() => logged.length).toBe(2);
     expect(logged.map((e) => (e as { change: { id: string } }).change.id)).toEqual(['live-1', 'live-2']);
+    send('status', { attemptId: 9, status: 'running' });
+    expect(closed).toBe(false);
+    expect(submitted).toBe(0);
+    // Submitted (here or on another device): the stream closes and the bench is told once; later messages change nothing.
     send('status', { attemptId: 9, status: 'submitted' });
+    send('status', { attemptId: 9, status: 'submitted' });
+    send('injection', injectionMessage(3, 2));
     expect(closed).toBe(true);
+    expect(submitted).toBe(1);
+    expect(logged).toHaveLength(2);
     stop();
   });
 });

@@ -68,6 +68,9 @@ describe('readings on two devices', () => {
     }
     expect(result.map((r) => r.recorded)).toEqual(recordedOnA);
     for (const r of result) expect(r.shown).toBe(r.recorded);
+    // The bench still open on the first device learns of the submission and closes, showing the same result.
+    await expect.poll(() => a.getByTestId('result-reading').count(), { timeout: 20_000 }).toBe(3);
+    expect(await a.getByRole('slider', { name: 'Carbon pile load' }).count()).toBe(0);
     await b.screenshot({ path: `${SCREENSHOT_DIR}/two-devices-result.png`, fullPage: true });
 
     // The replay at each reading's moment: the reading as written and the bench's readout then.

@@ -320,19 +320,20 @@ describe('the board shows each bench as it is now', () => {
 
     // The bench, still open, reports its clock twenty seconds later with nothing new to send.
     const clock = await ada.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 24_000 });
-    expect(clock.status, clock.text).toBe(204);
+    expect(clock.status, clock.text).toBe(200);
+    expect(clock.body).toEqual({ running: true });
     const now = await stream.next((m) => m.event === 'attempt' && (m.data as { simTimeMs: number }).simTimeMs === 24_000, 5_000);
     const entry = boardAttemptSchema.parse(now.data);
     expect(entry.readings!.tachRpm).toBeGreaterThan(1900);
     expect(entry.benchSeenAt).not.toBeNull();
     // A clock is never moved back: an older report changes nothing.
-    expect((await ada.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 10_000 })).status).toBe(204);
+    expect((await ada.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 10_000 })).body).toEqual({ running: true });
     const [row] = await t.ctx.db.select({ benchTimeMs: attempts.benchTimeMs }).from(attempts).where(eq(attempts.id, attemptId));
     expect(row!.benchTimeMs).toBe(24_000);
     stream.close();
   });
 
-  it('takes the clock only from the attempt’s own student, names a bad field, and refuses it once the attempt has ended', async () => {
+  it('takes the clock only from the attempt’s own student, names a bad field, and answers that the attempt no longer runs once it has ended', async () => {
     const attemptId = await makeAttempt(t.ctx.db, fx, fx.studentIds[0]!);
     expect((await bo.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 1000 })).status).toBe(403);
     expect((await teacher.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 1000 })).status).toBe(403);
@@ -340,7 +341,13 @@ describe('the board shows each bench as it is now', () => {
     expect(bad.status).toBe(400);
     expect((bad.body as { error: { field: string } }).error.field).toBe('simTimeMs');
     await t.ctx.db.update(attempts).set({ status: 'submitted' }).where(eq(attempts.id, attemptId));
-    expect((await ada.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 2000 })).status).toBe(409);
+    const [before] = await t.ctx.db.select({ benchTimeMs: attempts.benchTimeMs }).from(attempts).where(eq(attempts.id, attemptId));
+    // A bench left open on another device learns from this answer that it should stop; nothing is stored.
+    const ended = await ada.post(`/api/attempts/${attemptId}/clock`, { simTimeMs: 2000 });
+    expect(ended.status).toBe(200);
+    expect(ended.body).toEqual({ running: false });
+    const [after] = await t.ctx.db.select({ benchTimeMs: attempts.benchTimeMs }).from(attempts).where(eq(attempts.id, attemptId));
+    expect(after!.benchTimeMs).toBe(before!.benchTimeMs);
   });
 });
 

@@ -117,7 +117,9 @@ function LiveBench({ boot, session, onResult }: { boot: AttemptBootstrap; sessio
 }
 
 export function BenchScreen({ boot }: { boot: AttemptBootstrap }) {
-  const [result, setResult] = useState<AttemptResult | null>(boot.result);
+  const [submittedHere, setResult] = useState<AttemptResult | null>(null);
+  // Submitted here, or (read again) on another device while this bench was open.
+  const result = submittedHere ?? boot.result;
   const submitted = boot.attempt.status === 'submitted' || result !== null;
   const { session, error } = useBenchSession(boot, !submitted);
   if (submitted && result)
@@ -129,7 +131,15 @@ export function BenchScreen({ boot }: { boot: AttemptBootstrap }) {
   if (submitted)
     return (
       <PageBody>
-        <PageHeader title={boot.scenario.title} description="This attempt was submitted." />
+        <PageHeader
+          title={boot.scenario.title}
+          description="This attempt was submitted; its bench is closed. Its grade shows in your attempts once results are released."
+          actions={
+            <Link to={paths.attempts.href()} className="rounded-md bg-slate-900 px-3 py-2 text-sm font-medium text-white hover:bg-slate-700">
+              My attempts
+            </Link>
+          }
+        />
       </PageBody>
     );
   if (error)

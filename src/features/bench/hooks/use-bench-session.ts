@@ -6,11 +6,13 @@
  * of the log like the car's inputs: recorded here, stored by the server as
  * they are sent, so another device or a reload shows them.
  */
+import { useQueryClient } from '@tanstack/react-query';
 import { useEffect, useState, useSyncExternalStore } from 'react';
 import type { InputEvent } from '../../../../sim/inputs.ts';
 import type { VehicleParams } from '../../../../sim/params.ts';
 import { modelEvents, type AttemptBootstrap, type LogEvent, type RecordedReading } from '../../../../shared/api/attempts.ts';
 import { createOutbox, mergeForResume, readPersisted, type Outbox, type OutboxView, type SequencedEvent } from '../api/event-outbox.ts';
+import { attemptKeys } from '../api/get-attempt.ts';
 import { postEvents } from '../api/post-events.ts';
 import { startClockReports } from '../api/report-clock.ts';
 import { createBenchEngine, type BenchEngine } from '../stores/bench-engine.ts';
@@ -93,6 +95,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
   const [session, setSession] = useState<BenchSession | null>(null);
   const [error, setError] = useState<Error | null>(null);
   const attemptId = boot.attempt.id;
+  const qc = useQueryClient();
 
   useEffect(() => {
     if (!enabled) return;
@@ -103,6 +106,16 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
     const saveTime = () => built?.outbox.noteSimTime(built.engine.getSnapshot().timeMs);
     const onHidden = () => {
       if (document.visibilityState === 'hidden') saveTime();
+    };
+    // Submitted elsewhere (another device): this bench stops and the attempt is read again, which shows its result.
+    let ended = false;
+    const onEnded = () => {
+      if (ended) return;
+      ended = true;
+      built?.engine.stop();
+      stopClock?.();
+      stopLive?.();
+      void qc.invalidateQueries({ queryKey: attemptKeys.detail(attemptId) });
     };
 
     try {
@@ -128,9 +141,9 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
       built = { engine, outbox, readings, hints, vehicle: boot.car.params };
       engine.start();
       // The one listener for the instructor's live injections: they go through the dispatcher like any input.
-      stopLive = connectLiveInjections({ attemptId, engine });
+      stopLive = connectLiveInjections({ attemptId, engine, onSubmitted: onEnded });
       outbox.start();
-      stopClock = startClockReports(attemptId, engine, outbox);
+      stopClock = startClockReports(attemptId, engine, outbox, onEnded);
       saveTimer = window.setInterval(saveTime, 1000);
       window.addEventListener('pagehide', saveTime);
       document.addEventListener('visibilitychange', onHidden);
@@ -152,7 +165,7 @@ export function useBenchSession(boot: AttemptBootstrap, enabled: boolean): { ses
       }
       setSession(null);
     };
-  }, [boot, attemptId, enabled]);
+  }, [boot, attemptId, enabled, qc]);
 
   return { session, error };
 }

@@ -26,6 +26,8 @@ export interface LiveInjectionOptions {
   /** Made per connection; the browser's EventSource reconnects by itself. */
   open?: (url: string) => SourceLike;
   onError?: (err: unknown) => void;
+  /** The attempt was submitted (perhaps from another device): the stream closes and this is called once. */
+  onSubmitted?: () => void;
 }
 
 function alreadyLogged(events: readonly InputEvent[], msg: BenchInjection): boolean {
@@ -57,7 +59,10 @@ export function connectLiveInjections(opts: LiveInjectionOptions): () => void {
   });
   source.addEventListener('status', (e) => {
     const data = JSON.parse(e.data) as { status?: string };
-    if (data.status === 'submitted') source.close();
+    if (data.status !== 'submitted' || stopped) return;
+    stopped = true;
+    source.close();
+    opts.onSubmitted?.();
   });
   return () => {
     stopped = true;
