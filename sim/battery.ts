@@ -14,6 +14,7 @@
 
 import { detExp } from './det-math.ts';
 import type { BatteryParams } from './params.ts';
+import { workspace } from './workspace.ts';
 
 /** BCI open-circuit voltages (flooded, 26.7 C) at 0, 25, 50, 75, 100 % charge. */
 const BCI_OCV_V = [11.89, 12.06, 12.24, 12.45, 12.65] as const;
@@ -51,8 +52,7 @@ function expAbove25(k: number, tempC: number, memo: { k: number; tempC: number; 
   }
   return memo.value;
 }
-const resistanceMemo = { k: NaN, tempC: NaN, value: 1 };
-const acceptanceMemo = { k: NaN, tempC: NaN, value: 1 };
+const { resistanceMemo, acceptanceMemo } = workspace.battery;
 
 /** Resistance grows about 1.7x from 25 C to -18 C. */
 function temperatureFactor(tempC: number): number {
@@ -69,7 +69,7 @@ function ageFactor(ageYears: number): number {
  * twice a step for the same battery. Keyed on the values, not the object, so
  * it holds even if a caller edits the parameters in place.
  */
-const fullResistanceMemo = { r25: NaN, ageYears: NaN, tempC: NaN, value: 0 };
+const { fullResistanceMemo } = workspace.battery;
 
 function fullChargeResistanceOhm(b: BatteryParams): number {
   const memo = fullResistanceMemo;
@@ -171,7 +171,7 @@ export function gassingVoltageV(b: BatteryParams): number {
   return GASSING_V_AT_25C + GASSING_TEMP_COEFF_V_PER_C * (b.tempC - 25);
 }
 
-const gassingMemo = { capacityAh: NaN, tempC: NaN, i0: 0, v0: 0 };
+const { gassingMemo } = workspace.battery;
 
 /** Gassing current at an internal (open-circuit plus polarisation) voltage, and its slope dI/dV. */
 export function gassingCurrentA(b: BatteryParams, internalV: number, out: { currentA: number; slopeSPerV: number }): void {
@@ -208,7 +208,7 @@ export interface BatteryState {
   gassingA: number;
 }
 
-const gas = { currentA: 0, slopeSPerV: 0 };
+const { gas } = workspace.battery;
 
 /**
  * One step of the battery's slow states under the current the network gave

@@ -34,6 +34,7 @@
  */
 
 import { detCos, detLog, detLog1p, detSin } from './det-math.ts';
+import { workspace } from './workspace.ts';
 
 /** Which diodes and phases work. Diodes 0-2 positive (A-C), 3-5 negative (A-C). */
 export interface BridgeTopology {
@@ -296,7 +297,7 @@ function integrateCycle(inp: BridgeCycleInput, m: Masks, startA: number, startB:
 }
 
 /** End-of-cycle change of the phase currents A, B and change of the mean output, from `tangentCycle`. */
-interface TangentResult {
+export interface TangentResult {
   endA: number;
   endB: number;
   mean: number;
@@ -374,7 +375,7 @@ function tangentCycle(
   return out;
 }
 
-const sineTables = new Map<number, Float64Array>();
+const { sineTables } = workspace.cache;
 
 /** sin(theta_s - 120 k degrees) at the end of step s, for phases k = 0, 1, 2: index k * (n + 1) + s. */
 function sineTable(n: number): Float64Array {
@@ -389,7 +390,7 @@ function sineTable(n: number): Float64Array {
   return t;
 }
 
-const harmonicTables = new Map<number, { cos: Float64Array; sin: Float64Array }>();
+const { harmonicTables } = workspace.cache;
 
 function harmonicTable(n: number): { cos: Float64Array; sin: Float64Array } {
   let t = harmonicTables.get(n);
@@ -454,7 +455,7 @@ interface Periodic {
   gradMean: [number, number];
 }
 
-const tangentScratch: TangentResult = { endA: 0, endB: 0, mean: 0 };
+const tangentScratch = workspace.bridge.tangent;
 
 /**
  * The cycle's Jacobian and the mean's gradient at the recorded solution, into
@@ -677,7 +678,7 @@ export function periodicBridge(inp: BridgeCycleInput, guess?: [number, number]):
  * the table only, where millions of logarithms are taken.
  */
 const LN_TABLE_SIZE = 1024;
-const lnTable = (() => {
+const LN_TABLE = (() => {
   const t = new Float64Array(LN_TABLE_SIZE + 1);
   for (let k = 0; k <= LN_TABLE_SIZE; k++) t[k] = detLog(1 + k / LN_TABLE_SIZE);
   return t;
@@ -698,8 +699,8 @@ function tableLog(x: number): number {
   lnWordsU32[LN_HIGH_WORD] = (lnWordsU32[LN_HIGH_WORD]! & 0x800fffff) | 0x3ff00000;
   const f = (lnWordsF64[0]! - 1) * LN_TABLE_SIZE;
   const k = Math.floor(f);
-  const lo = lnTable[k]!;
-  return (biased - 1023) * LN2 + lo + (lnTable[k + 1]! - lo) * (f - k);
+  const lo = LN_TABLE[k]!;
+  return (biased - 1023) * LN2 + lo + (LN_TABLE[k + 1]! - lo) * (f - k);
 }
 
 /**
@@ -718,7 +719,7 @@ interface PulseResult {
 }
 
 const PULSE_STEPS_PER_RADIAN = 60;
-const pulseRotation = { cos: detCos(1 / PULSE_STEPS_PER_RADIAN), sin: detSin(1 / PULSE_STEPS_PER_RADIAN) };
+const PULSE_ROTATION = Object.freeze({ cos: detCos(1 / PULSE_STEPS_PER_RADIAN), sin: detSin(1 / PULSE_STEPS_PER_RADIAN) });
 const LOG_SHOCKLEY_EPS = detLog(SHOCKLEY_EPS);
 
 /**
@@ -735,8 +736,8 @@ const LOG_SHOCKLEY_EPS = detLog(SHOCKLEY_EPS);
 function pulse(up: number, r: number, b: number, out: PulseResult): PulseResult {
   const s3 = Math.sqrt(3);
   const h = 1 / PULSE_STEPS_PER_RADIAN;
-  const rc = pulseRotation.cos;
-  const rs = pulseRotation.sin;
+  const rc = PULSE_ROTATION.cos;
+  const rs = PULSE_ROTATION.sin;
   // From theta = -pi/2 (cos 0, sin -1): no pulse starts before the line voltage's rise.
   let c = 0;
   let sn = -1;
@@ -938,7 +939,7 @@ export interface BridgeTable {
   maxMean: number;
 }
 
-const tables = new Map<string, BridgeTable>();
+const tables = workspace.cache.bridgeTables;
 
 export function topologyKey(t: BridgeTopology): string {
   const norm = (l: readonly number[]) => [...new Set(l)].sort((a, b) => a - b).join(',');
@@ -1296,7 +1297,7 @@ export interface TableLookup {
  * first-order coefficients b and rho. The bridge's operating point asks many
  * u at one r, so it places these once (see bridgeOperatingPoint).
  */
-interface Placement {
+export interface Placement {
   is: number;
   ts: number;
   li: number;
@@ -1325,7 +1326,7 @@ function locate(a: Axis, x: number, out: { i: number; t: number }): void {
   out.t = (x - nodes[i]!) * a.inverseSpacing[i]!;
 }
 
-const locateScratch = { i: 0, t: 0 };
+const locateScratch = workspace.bridge.locate;
 
 function place(t: BridgeTable, r: number, phi: number, b: number, rho: number, out: Placement): Placement {
   locate(t.s, Math.sqrt(r > 0 ? r : 0), locateScratch);
@@ -1345,13 +1346,13 @@ function place(t: BridgeTable, r: number, phi: number, b: number, rho: number, o
 }
 
 /** Where u falls on the u axis: the column below it, the weight toward the next and the spacing there. */
-interface Column {
+export interface Column {
   iu: number;
   tu: number;
   inverseDu: number;
 }
 
-const columnScratch: Column = { iu: 0, tu: 0, inverseDu: 1 };
+const columnScratch = workspace.bridge.column;
 
 function column(a: Axis, u: number, out: Column): Column {
   locate(a, u, locateScratch);
@@ -1389,8 +1390,8 @@ function rootInLayer(t: BridgeTable, layerOffset: number, c: Column, pl: Placeme
   out.slope = (d0 + (d1 - d0) * pl.ts) * c.inverseDu;
 }
 
-const rootScratch = { root: 0, slope: 0 };
-const rootScratch2 = { root: 0, slope: 0 };
+const rootScratch = workspace.bridge.root;
+const rootScratch2 = workspace.bridge.root2;
 
 /** Mean output (units of E/X) and its slope in u at u, with the rest placed by `pl`. */
 function meanAt(t: BridgeTable, u: number, pl: Placement, out: TableLookup): TableLookup {
@@ -1461,7 +1462,7 @@ function extrasAt(t: BridgeTable, u: number, pl: Placement, out: TableLookup): T
   return out;
 }
 
-const placeScratch: Placement = { is: 0, ts: 0, li: 0, tl: 0, b: 0, rho: 0 };
+const placeScratch = workspace.bridge.place;
 
 /**
  * Lookup at (u, r): u in the table's own coordinate ('output': (V + 2 V_f)/E;
@@ -1517,8 +1518,8 @@ export interface BridgePoint {
   statorDcA: number;
 }
 
-const scratch: TableLookup = { mean: 0, dMeanDu: 0, acRms: 0, dominant: 6, phaseSquares: 0, dcVector: 0 };
-const pointPlace: Placement = { is: 0, ts: 0, li: 0, tl: 0, b: 0, rho: 0 };
+const scratch = workspace.bridge.lookup;
+const pointPlace = workspace.bridge.pointPlace;
 
 /**
  * The diode drop at the last current asked. Each step's solve starts from
@@ -1526,7 +1527,7 @@ const pointPlace: Placement = { is: 0, ts: 0, li: 0, tl: 0, b: 0, rho: 0 };
  * iteration already took the drop: remembering it (keyed on all three
  * inputs) spares a logarithm per step and gives the very same value.
  */
-const dropMemo = { currentA: NaN, saturationCurrentA: NaN, nvt: NaN, dropV: 0 };
+const { dropMemo } = workspace.bridge;
 
 function diodeDropAt(currentA: number, saturationCurrentA: number, nvt: number): number {
   const memo = dropMemo;
@@ -1625,7 +1626,7 @@ export function prepareBridgeTables(topologies: readonly BridgeTopology[] = CATA
 
 // ---- Ripple with no load -----------------------------------------------------
 
-const openRippleRatios = new Map<string, number>();
+const { openRippleRatios } = workspace.cache;
 
 /**
  * AC rms of the bridge's output voltage with no load, per volt of phase EMF

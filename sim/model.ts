@@ -16,6 +16,7 @@ import { activeChangeMask, applyChanges } from './car-changes.ts';
 import type { BridgePoint, BridgeTable, BridgeTopology } from './bridge.ts';
 import { bridgeOperatingPoint, bridgeTable, diodeDropV, openCircuitRippleRatio } from './bridge.ts';
 import { capacityAs } from './battery.ts';
+import { workspace } from './workspace.ts';
 
 /** Copper's temperature coefficient of resistance near 20 C. */
 export const COPPER_ALPHA_PER_C = 0.0039;
@@ -196,7 +197,7 @@ export function compile(p: VehicleParams): Model {
   return model;
 }
 
-const HEALTHY_BRIDGE: BridgeTopology = { openDiodes: [], shortedDiodes: [], openPhases: [] };
+const HEALTHY_BRIDGE: Readonly<BridgeTopology> = Object.freeze({ openDiodes: [], shortedDiodes: [], openPhases: [] });
 
 /**
  * Stator copper loss over R at the rating: the healthy bridge at the rating
@@ -264,13 +265,7 @@ export function fieldResistanceOhm(m: Model, tempC: number): number {
   return copperAt(m.p.alternator.fieldResistanceOhmAt20C, tempC) + m.p.alternator.brushResistanceOhm;
 }
 
-interface CacheEntry {
-  changes: readonly CarChange[];
-  mask: number;
-  model: Model;
-}
-
-const cache = new WeakMap<VehicleParams, CacheEntry[]>();
+const cache = workspace.cache.models;
 const CACHE_PER_PARAMS = 8;
 
 /**
@@ -280,12 +275,7 @@ const CACHE_PER_PARAMS = 8;
  * model is returned gives the same results. (It keeps the last params alive
  * until another set is asked for.)
  */
-const lastAnswer: CacheEntry & { params: VehicleParams | null } = {
-  params: null,
-  changes: [],
-  mask: -1,
-  model: null as unknown as Model,
-};
+const lastAnswer = workspace.cache.lastModel;
 
 /**
  * The compiled model of `params` with the changes active at `timeS`. Reuses

@@ -18,8 +18,9 @@
  *             higher than the alternator's own B+)
  */
 
-import type { BridgePoint, BridgePointInput, BridgeTable, DiodeShockley } from './bridge.ts';
+import type { BridgeTable, DiodeShockley } from './bridge.ts';
 import { bridgeOperatingPoint } from './bridge.ts';
+import { NETWORK_COLUMNS, NETWORK_CONDUCTANCES, NETWORK_NODES, workspace } from './workspace.ts';
 
 export type NodeName = 'batteryPos' | 'junction' | 'bplus' | 'altCase' | 'engine' | 'chassis' | 'batteryNeg';
 
@@ -141,7 +142,7 @@ const CONDUCTANCES = 10;
  * Conductances change only when a control or a fault does, so the step
  * usually reuses these and solves nothing but the bridge's scalar equation.
  */
-interface LinearResponses {
+export interface LinearResponses {
   key: Float64Array;
   perEmf: Float64Array;
   perBridgeA: Float64Array;
@@ -150,18 +151,16 @@ interface LinearResponses {
   rippleOhm: NodeVoltages;
 }
 
-const mat = new Float64Array(N * N);
 const COLS = 3;
-const rhs = new Float64Array(N * COLS);
-const point: BridgePoint = { meanA: 0, acRmsA: 0, dominantHarmonic: 6, dcV: 0, phaseSquaresA2: 0, statorDcA: 0 };
+if (N !== NETWORK_NODES || COLS !== NETWORK_COLUMNS || CONDUCTANCES !== NETWORK_CONDUCTANCES) throw new Error('the workspace sizes the network differently');
+const { mat, rhs, point, keyScratch, bridgeInput } = workspace.network;
 /**
  * The responses of the last few sets of conductances, most recently used
  * first. A pile stepped through a handful of settings comes back to each of
  * them, so this keeps more than the two or three a single change needs.
  */
-const recent: LinearResponses[] = [];
+const recent = workspace.cache.recentResponses;
 const RECENT_MAX = 8;
-const keyScratch = new Float64Array(CONDUCTANCES);
 
 function stamp(i: number, j: number, g: number): void {
   mat[i * N + i] = mat[i * N + i]! + g;
@@ -274,17 +273,7 @@ function portVolts(n: NetworkInput, lr: LinearResponses, ifs: number, ib: number
   return n.batteryEmfV * (we[BPL]! - we[AC]!) + (ib - ifs) * (wb[BPL]! - wb[AC]!) + n.ignitionFieldA * (wf[BPL]! - wf[AC]!);
 }
 
-// Reused for every bridge solve (bridgeOperatingPoint keeps nothing of it).
-const bridgeInput: BridgePointInput = {
-  table: null as unknown as BridgeTable,
-  emfPeakV: 0,
-  reactanceOhm: 0,
-  phaseResistanceOhm: 0,
-  diode: { saturationCurrentA: 1e-7, emissionCoefficient: 1.6 },
-  dcTheveninV: 0,
-  dcResistanceOhm: 0,
-  guessA: 0,
-};
+// bridgeInput (workspace.network) is reused for every bridge solve: bridgeOperatingPoint keeps nothing of it.
 
 /** The bridge's operating point against the network's Thevenin source, into `point`. */
 function solveBridge(n: NetworkInput, lr: LinearResponses, ifs: number): void {

@@ -317,7 +317,7 @@ export type NumericParamPath =
   | NumericKeys<VehicleParams>;
 
 /** Sensible bounds for the scenario editor; the model stays stable inside them. */
-export const VEHICLE_PARAM_BOUNDS: Record<NumericParamPath, ParamBound> = {
+export const VEHICLE_PARAM_BOUNDS: Readonly<Record<NumericParamPath, ParamBound>> = {
   'engine.idleRpm': { min: 500, max: 1200, unit: 'rpm', label: 'Idle speed', integer: true },
   'engine.maxHeldRpm': { min: 1500, max: 5000, unit: 'rpm', label: 'Highest held speed', integer: true },
   'engine.lagTimeConstantS': { min: 0.05, max: 2, unit: 's', label: 'Engine speed lag' },

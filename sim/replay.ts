@@ -20,6 +20,7 @@ import { applyInput } from './inputs.ts';
 import type { SimState } from './step.ts';
 import { DT_MS, blankState, initialState, step, stepInto } from './step.ts';
 import { rawClampReadingA } from './instruments.ts';
+import { workspace } from './workspace.ts';
 
 /** Everything needed to carry on from a moment. */
 export interface ReplayPoint {
@@ -56,7 +57,8 @@ export function orderEvents<E extends { atMs: number }>(events: readonly E[]): r
  * the last step makes the new state returned, so a long advance allocates
  * one state, not one per step. Nothing outside `advance` ever sees it.
  */
-const workingState: SimState = blankState();
+if (!workspace.replay.workingState) workspace.replay.workingState = blankState();
+const workingState: SimState = workspace.replay.workingState;
 
 /**
  * Apply due events and step `steps` times (events must be in time order; the

@@ -18,9 +18,9 @@ import type { VehicleParams } from './params.ts';
 import type { CarChange } from './car-changes.ts';
 import type { Controls, Conductor, KeyPosition } from './inputs.ts';
 import { initialControls } from './inputs.ts';
-import type { NetworkInput, NetworkSolution } from './network.ts';
+import type { NetworkSolution } from './network.ts';
 import { blankSolution, solveNetworkInto } from './network.ts';
-import type { Model } from './model.ts';
+import type { Decays, Model } from './model.ts';
 import {
   ALTERNATOR_INERTIA_KGM2,
   AMMETER_FUSE_A,
@@ -32,10 +32,10 @@ import {
   fieldResistanceOhm,
   fluxWithStatorDc,
 } from './model.ts';
-import type { BatteryState } from './battery.ts';
 import { internalResistanceOhm, openCircuitVoltageV, stepBattery } from './battery.ts';
 import { nextRngState, rngValue } from './rng.ts';
 import { detExp, detTanh } from './det-math.ts';
+import { workspace } from './workspace.ts';
 
 /** The fixed step. Replays always use it; changing it changes every stored replay. */
 export const DT_MS = 10;
@@ -192,7 +192,7 @@ export function regulatorSetPointV(p: VehicleParams, regulatorTempC: number): nu
  * makes reading their fields slow where the step reads them every 10 ms;
  * this copy always has one shape. Kept for the last controls object seen.
  */
-interface ControlsRead {
+export interface ControlsRead {
   of: Controls | null;
   key: KeyPosition;
   heldRpm: number;
@@ -205,18 +205,7 @@ interface ControlsRead {
   clampConductor: Conductor | null;
 }
 
-const controlsRead: ControlsRead = {
-  of: null,
-  key: 'off',
-  heldRpm: 0,
-  accessoriesOn: [],
-  pileDial01: 0,
-  ammeterInSeries: false,
-  ammeterFusesFitted: 0,
-  bplusConnected: true,
-  changes: [],
-  clampConductor: null,
-};
+const { controlsRead } = workspace.step;
 
 function readControls(controls: Controls): ControlsRead {
   const r = controlsRead;
@@ -235,7 +224,7 @@ function readControls(controls: Controls): ControlsRead {
   return r;
 }
 
-interface NetworkInputs {
+export interface NetworkInputs {
   model: Model;
   controls: ControlsRead;
   engineStatus: EngineStatus;
@@ -258,28 +247,7 @@ interface NetworkInputs {
 }
 
 // Reused for every solve (the network copies what it keeps); never escapes this module.
-const networkInput: NetworkInput = {
-  batteryEmfV: 0,
-  batteryR: 1,
-  pileG: 0,
-  posG: 0,
-  bplusG: 0,
-  internalG: 0,
-  mountG: 0,
-  strapG: 0,
-  negG: 0,
-  loadG: 0,
-  starterG: 0,
-  fieldSupplyA: 0,
-  ignitionFieldA: 0,
-  openRippleRatio: 0,
-  table: null as unknown as NetworkInput['table'],
-  emfPeakV: 0,
-  reactanceOhm: 1,
-  phaseResistanceOhm: 0,
-  diode: { saturationCurrentA: 1e-7, emissionCoefficient: 1.6 },
-  guessA: 0,
-};
+const { networkInput } = workspace.step;
 
 /**
  * The vehicle loads' conductance, remembered for the last model, key state,
@@ -287,13 +255,7 @@ const networkInput: NetworkInput = {
  * or a fault, while the step asks every 10 ms. The accessories are compared
  * by content, so an array edited in place cannot be mistaken for the last.
  */
-const loadMemo = {
-  model: null as Model | null,
-  keyOn: false,
-  modulesAwake: false,
-  accessoriesOn: [] as string[],
-  loadG: 0,
-};
+const { loadMemo } = workspace.step;
 
 function sameIds(a: readonly string[], b: readonly string[]): boolean {
   if (a.length !== b.length) return false;
@@ -426,24 +388,8 @@ export function initialState(params: VehicleParams, seed: number, changes: reado
 }
 
 // The step's operating point for solveAt, reused every step (solveAt keeps none of it).
-const stepInputs: NetworkInputs = {
-  model: null as unknown as Model,
-  controls: controlsRead,
-  engineStatus: 'off',
-  altRpm: 0,
-  alternatorTempC: 0,
-  fieldCurrentA: 0,
-  fieldDuty01: 0,
-  fieldFromIgnition: false,
-  soc01: 0,
-  polarizationV: 0,
-  linkOpen: false,
-  pileOn: true,
-  ammeterFuseBlown: false,
-  modulesAwake: false,
-  guessBridgeA: 0,
-  statorDcA: 0,
-};
+const { stepInputs } = workspace.step;
+stepInputs.controls = controlsRead;
 
 /** A state for stepInto to fill: fresh objects, every field in the order the step writes (and JSON shows) them. */
 export function blankState(): SimState {
@@ -499,7 +445,7 @@ export function step(params: VehicleParams, state: SimState, controls: Controls,
 // writes the new state. The scratch records are module-level and reused:
 // nothing in them outlives one call of stepInto.
 
-interface EngineOut {
+export interface EngineOut {
   status: EngineStatus;
   crank: number;
   lowV: number;
@@ -507,7 +453,7 @@ interface EngineOut {
   rng: number;
   cause: EngineStopCause | null;
 }
-const engineOut: EngineOut = { status: 'off', crank: 0, lowV: 0, rpm: 0, rng: 0, cause: null };
+const { engineOut } = workspace.step;
 
 /** Key, starter and combustion: the engine's status and speed. */
 function stepEngine(p: VehicleParams, state: SimState, c: ControlsRead, lag: number, dt: number, out: EngineOut): EngineOut {
@@ -628,14 +574,14 @@ function stepBelt(p: VehicleParams, syncRpm: number, altRpm: number, loadTorqueN
   return w > 0 ? w / RPM_TO_RAD_S : 0;
 }
 
-interface FieldOut {
+export interface FieldOut {
   duty: number;
   integral: number;
   setPointV: number;
   currentA: number;
   fromIgnition: boolean;
 }
-const fieldOut: FieldOut = { duty: 0, integral: 0, setPointV: 0, currentA: 0, fromIgnition: false };
+const { fieldOut } = workspace.step;
 
 /** The field current a supply drives through a resistance at a duty: the driver switches the supply onto the field (the average over its cycle). */
 function fieldDrive(duty: number, supplyV: number, freewheelV: number, rOhm: number): number {
@@ -714,7 +660,120 @@ function stepRegulatorAndField(model: Model, state: SimState, keyOn: boolean, al
   return out;
 }
 
-const batteryOut: BatteryState = { soc01: 0, fastV: 0, surfaceV: 0, gassingA: 0 };
+const { batteryOut, protectionOut, lampOut, clampOut } = workspace.step;
+
+export interface ProtectionOut {
+  alternatorTempC: number;
+  linkHeat01: number;
+  linkBlown: boolean;
+  fuseHeat01: number;
+  fuseBlown: boolean;
+  pileTempC: number;
+  pileTripped: boolean;
+  modulesAwakeS: number;
+}
+
+/**
+ * Temperatures and protection: the alternator's winding heat, the fusible
+ * link, the series ammeter's fuse, the carbon pile's heat and cut-out, and
+ * the modules' sleep timer, all from the last step's currents.
+ */
+function stepHeatAndProtection(model: Model, state: SimState, c: ControlsRead, keyOn: boolean, decay: Decays, dt: number, out: ProtectionOut): ProtectionOut {
+  const p = model.p;
+  const prev = state.net;
+  // The winding heats with the stator's copper loss (its phase currents, not the output: a bridge fault
+  // that makes a phase carry a standing DC current heats it more for the same output).
+  const copperFraction = prev.statorSquaresA2 / model.ratedStatorSquaresA2;
+  const altHotC = model.underhoodC + p.alternator.fullLoadTempRiseC * copperFraction;
+  out.alternatorTempC = altHotC + (state.alternatorTempC - altHotC) * decay.alternatorThermal;
+
+  const linkA = prev.branchA.bplusCable;
+  const linkRatio = linkA / p.wiring.fusibleLinkRatingA;
+  const linkTarget = linkRatio * linkRatio;
+  const linkHeat = linkTarget + (state.fusibleLinkHeat01 - linkTarget) * decay.link;
+  out.linkHeat01 = linkHeat;
+  out.linkBlown = state.fusibleLinkBlown || linkHeat >= 1;
+
+  // The series ammeter's fuse: heats like the link, blows when overloaded, and stays blown until a new one is fitted.
+  const newFuse = c.ammeterFusesFitted !== state.ammeterFusesSeen;
+  const ammeterA = c.ammeterInSeries ? prev.branchA.negCable : 0;
+  const fuseRatio = ammeterA / AMMETER_FUSE_A;
+  const fuseTarget = fuseRatio * fuseRatio;
+  const fuseHeat = fuseTarget + ((newFuse ? 0 : state.ammeterFuseHeat01) - fuseTarget) * decay.ammeterFuse;
+  out.fuseHeat01 = fuseHeat;
+  out.fuseBlown = (!newFuse && state.ammeterFuseBlown) || (c.ammeterInSeries && fuseHeat >= 1);
+
+  const pileW = prev.nodeV.batteryPos * prev.branchA.pile;
+  const pileTempC =
+    state.pileTempC + (dt * (pileW - p.pile.coolingWPerC * (state.pileTempC - p.ambientC))) / p.pile.heatCapacityJPerC;
+  let pileTripped = state.pileTripped;
+  if (!pileTripped && pileTempC > p.pile.tripC) pileTripped = true;
+  else if (pileTripped && c.pileDial01 === 0 && pileTempC < p.pile.resetC) pileTripped = false;
+  out.pileTempC = pileTempC;
+  out.pileTripped = pileTripped;
+
+  // Modules wake with the key on, or when the battery circuit is broken and remade.
+  out.modulesAwakeS = keyOn || c.ammeterInSeries !== state.lastAmmeterInSeries ? p.loads.moduleSleepDelayS : Math.max(0, state.modulesAwakeS - dt);
+  return out;
+}
+
+export interface LampOut {
+  senseV: number;
+  lowChargeS: number;
+  lamp: boolean;
+}
+
+/**
+ * The charge warning lamp: lit with the key on and the engine not running,
+ * and once running when the regulator cannot hold its set point (or B+
+ * strays from its sense point) for more than two seconds.
+ */
+function stepChargeLamp(model: Model, state: SimState, keyOn: boolean, engineStatus: EngineStatus, setPointV: number, net: NetworkSolution, dt: number, out: LampOut): LampOut {
+  const newSenseV = senseVoltage(model, net);
+  const portV = net.nodeV.bplus - net.nodeV.altCase;
+  let lowChargeS = state.lowChargeS;
+  let lamp = false;
+  if (keyOn) {
+    if (engineStatus !== 'running') {
+      lamp = true;
+      lowChargeS = 0;
+    } else {
+      const cannotHold =
+        newSenseV < setPointV - 0.5 || newSenseV > 16 || portV > REGULATOR_BPLUS_LIMIT_V - 0.5 || portV < newSenseV - 1.5 || portV > newSenseV + 1.5;
+      lowChargeS = cannotHold ? Math.min(5, lowChargeS + dt) : Math.max(0, lowChargeS - 4 * dt);
+      lamp = lowChargeS > 2;
+    }
+  } else lowChargeS = 0;
+  out.senseV = newSenseV;
+  out.lowChargeS = lowChargeS;
+  out.lamp = lamp;
+  return out;
+}
+
+export interface ClampOut {
+  offsetA: number;
+  rngState: number;
+}
+
+/** The clamp's zero: reseating the jaws on another conductor shifts the hall sensor's zero a little (a draw of the run's generator). */
+function stepClampZero(state: SimState, c: ControlsRead, rngState: number, out: ClampOut): ClampOut {
+  let rng = rngState;
+  let clampOffsetA = state.clampOffsetA;
+  if (c.clampConductor !== state.clampConductorSeen) {
+    rng = nextRngState(rng);
+    clampOffsetA += (rngValue(rng) - 0.5) * 2 * CLAMP_RESEAT_SHIFT_A;
+  }
+  out.offsetA = clampOffsetA;
+  out.rngState = rng;
+  return out;
+}
+
+/** The torque the alternator asks of the belt at its speed and output (its losses through its efficiency, and friction). */
+function alternatorTorqueNm(p: VehicleParams, altRpm: number, net: NetworkSolution): number {
+  const omegaAlt = altRpm * RPM_TO_RAD_S;
+  const portV = net.nodeV.bplus - net.nodeV.altCase;
+  return omegaAlt > 1 ? (Math.max(0, portV * net.bridgeCurrentA) / p.alternator.efficiency01) / omegaAlt + ALT_FRICTION_NM : 0;
+}
 
 /**
  * The step written into `out` instead of a new state, for callers that keep
@@ -722,6 +781,9 @@ const batteryOut: BatteryState = { soc01: 0, fastV: 0, surfaceV: 0, gassingA: 0 
  * itself. Everything is read from `state` (and its network) before anything
  * of `out` is written: the network is solved into `out.net` once the
  * previous solution has been read, and the other fields are written last.
+ * Each subsystem is its own step, in this order: engine and belt, regulator
+ * and field, heat and protection, battery, the network at the new operating
+ * point, then what follows from it (belt torque, charge lamp, clamp zero).
  */
 export function stepInto(params: VehicleParams, state: SimState, controls: Controls, dtMs: number, out: SimState): SimState {
   const dt = dtMs / 1000;
@@ -736,7 +798,6 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
 
   // ---- Engine, belt and alternator speed --------------------------------------
   const engine = stepEngine(p, state, c, 1 - decay.engine, dt, engineOut);
-  let rng = engine.rng;
   const syncRpm = engine.rpm * p.belt.pulleyRatio;
   const altRpm = stepBelt(p, syncRpm, state.altRpm, state.altTorqueNm, dt);
   const beltSlip01 = syncRpm > 1 ? (syncRpm - altRpm) / syncRpm : 0;
@@ -744,13 +805,8 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
   // ---- Regulator and field ---------------------------------------------------
   const field = stepRegulatorAndField(model, state, keyOn, altRpm, dt, fieldOut);
 
-  // ---- Temperatures, battery charge, fuses ---------------------------------
-  // The winding heats with the stator's copper loss (its phase currents, not the output: a bridge fault
-  // that makes a phase carry a standing DC current heats it more for the same output).
-  const copperFraction = prev.statorSquaresA2 / model.ratedStatorSquaresA2;
-  const altHotC = model.underhoodC + p.alternator.fullLoadTempRiseC * copperFraction;
-  const altTempC = altHotC + (state.alternatorTempC - altHotC) * decay.alternatorThermal;
-
+  // ---- Temperatures, fuses, battery charge -----------------------------------
+  const guard = stepHeatAndProtection(model, state, c, keyOn, decay, dt, protectionOut);
   const battery = stepBattery(
     p.battery,
     { soc01: state.batterySoc01, fastV: state.batteryPolarizationV, surfaceV: state.batterySurfaceChargeV },
@@ -761,84 +817,34 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
     batteryOut,
   );
 
-  const linkA = prev.branchA.bplusCable;
-  const linkRatio = linkA / p.wiring.fusibleLinkRatingA;
-  const linkTarget = linkRatio * linkRatio;
-  const linkHeat = linkTarget + (state.fusibleLinkHeat01 - linkTarget) * decay.link;
-  const linkBlown = state.fusibleLinkBlown || linkHeat >= 1;
-
-  // The series ammeter's fuse: heats like the link, blows when overloaded, and stays blown until a new one is fitted.
-  const newFuse = c.ammeterFusesFitted !== state.ammeterFusesSeen;
-  const ammeterA = c.ammeterInSeries ? prev.branchA.negCable : 0;
-  const fuseRatio = ammeterA / AMMETER_FUSE_A;
-  const fuseTarget = fuseRatio * fuseRatio;
-  const fuseHeat = fuseTarget + ((newFuse ? 0 : state.ammeterFuseHeat01) - fuseTarget) * decay.ammeterFuse;
-  const fuseBlown = (!newFuse && state.ammeterFuseBlown) || (c.ammeterInSeries && fuseHeat >= 1);
-
-  const pileW = prev.nodeV.batteryPos * prev.branchA.pile;
-  const pileTempC =
-    state.pileTempC + (dt * (pileW - p.pile.coolingWPerC * (state.pileTempC - p.ambientC))) / p.pile.heatCapacityJPerC;
-  let pileTripped = state.pileTripped;
-  if (!pileTripped && pileTempC > p.pile.tripC) pileTripped = true;
-  else if (pileTripped && c.pileDial01 === 0 && pileTempC < p.pile.resetC) pileTripped = false;
-
-  // Modules wake with the key on, or when the battery circuit is broken and remade.
-  let awakeS = state.modulesAwakeS;
-  if (keyOn || c.ammeterInSeries !== state.lastAmmeterInSeries) awakeS = p.loads.moduleSleepDelayS;
-  else awakeS = Math.max(0, awakeS - dt);
-
   // ---- The network at the new operating point -------------------------------
   const at = stepInputs;
   at.model = model;
   at.controls = c;
   at.engineStatus = engine.status;
   at.altRpm = altRpm;
-  at.alternatorTempC = altTempC;
+  at.alternatorTempC = guard.alternatorTempC;
   at.fieldCurrentA = field.currentA;
   at.fieldDuty01 = field.duty;
   at.fieldFromIgnition = field.fromIgnition;
   at.soc01 = battery.soc01;
   at.polarizationV = battery.fastV + battery.surfaceV;
-  at.linkOpen = linkBlown || p.wiring.fusibleLinkOpen;
-  at.pileOn = !pileTripped;
-  at.ammeterFuseBlown = fuseBlown;
-  at.modulesAwake = awakeS > 0;
+  at.linkOpen = guard.linkBlown || p.wiring.fusibleLinkOpen;
+  at.pileOn = !guard.pileTripped;
+  at.ammeterFuseBlown = guard.fuseBlown;
+  at.modulesAwake = guard.modulesAwakeS > 0;
   at.guessBridgeA = prev.bridgeCurrentA;
   at.statorDcA = prev.statorDcA;
   // From here on `prev` (which may be out.net) is not read again.
   const net = solveAt(at, out.net);
 
-  // Torque the alternator asks of the belt.
-  const omegaAlt = altRpm * RPM_TO_RAD_S;
-  const portV = net.nodeV.bplus - net.nodeV.altCase;
-  const altTorqueNm =
-    omegaAlt > 1 ? (Math.max(0, portV * net.bridgeCurrentA) / p.alternator.efficiency01) / omegaAlt + ALT_FRICTION_NM : 0;
-
-  // ---- Warning lamp ---------------------------------------------------------
-  const newSenseV = senseVoltage(model, net);
-  let lowChargeS = state.lowChargeS;
-  let lamp = false;
-  if (keyOn) {
-    if (engine.status !== 'running') {
-      lamp = true;
-      lowChargeS = 0;
-    } else {
-      const cannotHold =
-        newSenseV < field.setPointV - 0.5 || newSenseV > 16 || portV > REGULATOR_BPLUS_LIMIT_V - 0.5 || portV < newSenseV - 1.5 || portV > newSenseV + 1.5;
-      lowChargeS = cannotHold ? Math.min(5, lowChargeS + dt) : Math.max(0, lowChargeS - 4 * dt);
-      lamp = lowChargeS > 2;
-    }
-  } else lowChargeS = 0;
-
-  // ---- Clamp offset: reseating the jaws shifts the hall sensor's zero a little -
-  let clampOffsetA = state.clampOffsetA;
-  if (c.clampConductor !== state.clampConductorSeen) {
-    rng = nextRngState(rng);
-    clampOffsetA += (rngValue(rng) - 0.5) * 2 * CLAMP_RESEAT_SHIFT_A;
-  }
+  // ---- What follows from it: belt torque, charge lamp, clamp zero -------------
+  const altTorqueNm = alternatorTorqueNm(p, altRpm, net);
+  const lamp = stepChargeLamp(model, state, keyOn, engine.status, field.setPointV, net, dt, lampOut);
+  const clampZero = stepClampZero(state, c, engine.rng, clampOut);
 
   out.timeMs = timeMs;
-  out.rngState = rng;
+  out.rngState = clampZero.rngState;
   out.controls = controls;
   out.engineStatus = engine.status;
   out.engineRpm = engine.rpm;
@@ -849,29 +855,29 @@ export function stepInto(params: VehicleParams, state: SimState, controls: Contr
   out.beltSlip01 = beltSlip01;
   out.beltSlipping = beltSlip01 > BELT_AUDIBLE_SLIP01;
   out.altTorqueNm = altTorqueNm;
-  out.alternatorTempC = altTempC;
+  out.alternatorTempC = guard.alternatorTempC;
   out.fieldCurrentA = field.currentA;
   out.fieldDuty01 = field.duty;
   out.regulatorIntegral01 = field.integral;
   out.regulatorSetPointV = field.setPointV;
-  out.regulatorSenseV = newSenseV;
+  out.regulatorSenseV = lamp.senseV;
   out.batterySoc01 = battery.soc01;
   out.batteryPolarizationV = battery.fastV;
   out.batterySurfaceChargeV = battery.surfaceV;
   out.batteryGassingA = battery.gassingA;
-  out.fusibleLinkHeat01 = linkBlown ? Math.max(1, linkHeat) : linkHeat;
-  out.fusibleLinkBlown = linkBlown;
-  out.pileTempC = pileTempC;
-  out.pileTripped = pileTripped;
-  out.ammeterFuseHeat01 = fuseHeat;
-  out.ammeterFuseBlown = fuseBlown;
+  out.fusibleLinkHeat01 = guard.linkBlown ? Math.max(1, guard.linkHeat01) : guard.linkHeat01;
+  out.fusibleLinkBlown = guard.linkBlown;
+  out.pileTempC = guard.pileTempC;
+  out.pileTripped = guard.pileTripped;
+  out.ammeterFuseHeat01 = guard.fuseHeat01;
+  out.ammeterFuseBlown = guard.fuseBlown;
   out.ammeterFusesSeen = c.ammeterFusesFitted;
   out.lastAmmeterInSeries = c.ammeterInSeries;
-  out.modulesAwakeS = awakeS;
+  out.modulesAwakeS = guard.modulesAwakeS;
   out.engineStopCause = engine.cause;
-  out.chargeWarning = lamp;
-  out.lowChargeS = lowChargeS;
-  out.clampOffsetA = clampOffsetA;
+  out.chargeWarning = lamp.lamp;
+  out.lowChargeS = lamp.lowChargeS;
+  out.clampOffsetA = clampZero.offsetA;
   out.clampConductorSeen = c.clampConductor;
   // out.net already holds `net` (solved into it above).
   return out;
