@@ -103,34 +103,21 @@ export function solveRectifier(circuit: RectifierCircuit): RectifierSolution {
     harmonic = 6;
   } else {
     // Direct periodic solution; the diode drop follows the current it carries.
-    let dropV = diodeDropV(diode, 1);
-    let res = periodicBridge({
+    const direct = {
       topology,
       emfPeakV: circuit.phaseEmfPeakV,
       omegaRadS: omega,
       inductanceH: circuit.synchronousInductanceH,
       phaseResistanceOhm,
-      diodeDropV: dropV,
+      diodeDropV: diodeDropV(diode, 1),
       dcTheveninV: postTheveninV,
       dcResistanceOhm,
       stepsPerCycle: DIRECT_STEPS_PER_CYCLE,
-    });
+    };
+    let res = periodicBridge(direct);
     for (let k = 0; k < 3; k++) {
-      dropV = diodeDropV(diode, Math.max(0, res.meanA));
-      res = periodicBridge(
-        {
-          topology,
-          emfPeakV: circuit.phaseEmfPeakV,
-          omegaRadS: omega,
-          inductanceH: circuit.synchronousInductanceH,
-          phaseResistanceOhm,
-          diodeDropV: dropV,
-          dcTheveninV: postTheveninV,
-          dcResistanceOhm,
-          stepsPerCycle: DIRECT_STEPS_PER_CYCLE,
-        },
-        res.startA,
-      );
+      direct.diodeDropV = diodeDropV(diode, Math.max(0, res.meanA));
+      res = periodicBridge(direct, res.startA);
     }
     meanA = res.meanA;
     acRmsA = res.acRmsA;

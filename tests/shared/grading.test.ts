@@ -22,6 +22,7 @@ import {
   type GradeInput,
   type RunSample,
 } from '../../server/services/grading.ts';
+import { QUIET_BENCH_SAMPLE } from './setup-samples.ts';
 
 const CAR = { cca: 600, startsCharged: false, ratedA: 150 };
 
@@ -37,25 +38,7 @@ const quietReadings: RunSample['readings'] = {
   batterySoc01: 0.9,
 };
 
-const quietSetup: Omit<SetupSample, 'atMs'> = {
-  engine: 'off',
-  key: 'off',
-  tachRpm: 0,
-  red: 'battery-pos',
-  black: 'battery-neg',
-  clampOn: null,
-  clampArrow: 'toward-battery',
-  clampZeroAway: false,
-  ammeterInSeries: false,
-  modulesAwakeS: 0,
-  accessoriesOn: 0,
-  switchedLoadA: 0,
-  pileA: 0,
-  pileDial01: 0,
-  batteryA: 0.03,
-  outputA: 0,
-  voltmeterV: 12.6,
-};
+const quietSetup = QUIET_BENCH_SAMPLE;
 
 interface At {
   r?: Partial<RunSample['readings']>;

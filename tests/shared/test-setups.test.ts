@@ -38,26 +38,9 @@ import {
   setupSampleOf,
   type SetupSample,
 } from '../../shared/test-setups.ts';
+import { QUIET_BENCH_SAMPLE } from './setup-samples.ts';
 
-const base: Omit<SetupSample, 'atMs'> = {
-  engine: 'off',
-  key: 'off',
-  tachRpm: 0,
-  red: 'battery-pos',
-  black: 'battery-neg',
-  clampOn: null,
-  clampArrow: 'toward-battery',
-  clampZeroAway: false,
-  ammeterInSeries: false,
-  modulesAwakeS: 0,
-  accessoriesOn: 0,
-  switchedLoadA: 0,
-  pileA: 0,
-  pileDial01: 0,
-  batteryA: 0.03,
-  outputA: 0,
-  voltmeterV: 12.6,
-};
+const base = QUIET_BENCH_SAMPLE;
 
 /** Feeds ticks from `fromMs` to `toMs` shaped by `at`; returns the tracker. */
 function feed(tracker: SetupTracker, fromMs: number, toMs: number, at: (ms: number) => Partial<Omit<SetupSample, 'atMs'>>): SetupTracker {
