@@ -15,6 +15,7 @@
 import type { VehicleParams } from './params.ts';
 import type { CarChange, IntermittentPattern, ParamOp } from './car-changes.ts';
 import { applyOps, isScheduledActive } from './car-changes.ts';
+import { assertNever } from './assert-never.ts';
 
 export type { IntermittentPattern };
 
@@ -304,12 +305,8 @@ export function faultOps(fault: Pick<Fault, 'kind' | 'severity01'>): ParamOp[] {
     case 'post-corroded':
       return [{ path: 'wiring.postClampPosOhm', op: 'add', value: 0.1 * s }];
     default:
-      return assertNever(fault.kind);
+      return assertNever(fault.kind, 'fault kind');
   }
-}
-
-function assertNever(x: never): never {
-  throw new Error(`Unknown fault kind: ${String(x)}`);
 }
 
 /** A fault as a change of the car: its schedule and its operations, under the given (opaque) id. */
