@@ -6,6 +6,7 @@
  */
 import { isScheduledActive } from '../../../../sim/car-changes.ts';
 import type { AccessoryParams } from '../../../../sim/params.ts';
+import { dialPercent } from '../../../../shared/dial.ts';
 import { NO_READING, meterShows, type MeterQuantity } from '../../../../shared/meter-display.ts';
 import { EngineBay, type BayState } from '../../../components/schematic/engine-bay.tsx';
 import type { ReplayFrame } from '../hooks/use-replay-player.ts';
@@ -81,7 +82,7 @@ export function ReplayBenchView({
         <Readout label="Key · engine" value={`${KEY_WORDS[controls.key]} · ${ENGINE_WORDS[r.engine] ?? r.engine}`} />
       </dl>
       <p className="text-sm text-slate-700">
-        Pile dial {Math.round(controls.pileDial01 * 100)} % · assistant holds {controls.heldRpm > 0 ? `${Math.round(controls.heldRpm).toLocaleString('en-US')} rpm` : 'idle'}
+        Pile dial {dialPercent(controls.pileDial01)} % · assistant holds {controls.heldRpm > 0 ? `${Math.round(controls.heldRpm).toLocaleString('en-US')} rpm` : 'idle'}
         {on.length ? ` · switched on: ${on.join(', ')}` : ''}
         {controls.ammeterInSeries ? ' · series ammeter fitted' : ''}
         {!controls.bplusConnected ? ' · B+ lead off' : ''}
