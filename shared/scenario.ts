@@ -8,6 +8,7 @@
  */
 import { z } from 'zod';
 import { FAULT_CATALOG, FAULT_KINDS, type DiagnosticTest, type FaultKind } from '../sim/faults.ts';
+import { FAULT_TEXT } from './fault-catalogue-text.ts';
 import { defaultVehicleParams, VEHICLE_PARAM_BOUNDS, type NumericParamPath, type VehicleParams } from '../sim/params.ts';
 import { vehicleDesignErrors } from './vehicle-rules.ts';
 import { crankTrial, inductanceForRatingH } from '../sim/vehicle-checks.ts';
@@ -54,7 +55,7 @@ export type DiagnosisChoice = FaultKind | 'none';
 export const NO_FAULT_LABEL = 'No fault: the charging system is healthy';
 
 export function diagnosisLabel(choice: DiagnosisChoice): string {
-  return choice === 'none' ? NO_FAULT_LABEL : FAULT_CATALOG[choice].label;
+  return choice === 'none' ? NO_FAULT_LABEL : FAULT_TEXT[choice].label;
 }
 
 // ---------------------------------------------------------------------------
@@ -375,7 +376,7 @@ export const scenarioDocumentSchema = z
   .superRefine((doc, ctx) => {
     for (const kind of new Set(doc.faults.map((f) => f.kind))) {
       if (!doc.diagnosisChoices.includes(kind)) {
-        ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: `Diagnosis choices must include the scenario’s fault “${FAULT_CATALOG[kind].label}”` });
+        ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: `Diagnosis choices must include the scenario’s fault “${FAULT_TEXT[kind].label}”` });
       }
     }
     if (doc.faults.length === 0 && !doc.diagnosisChoices.includes('none')) {

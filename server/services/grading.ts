@@ -25,7 +25,7 @@
  * Pure: the re-run's samples come in, an AttemptResult goes out.
  */
 import type { DiagnosticTest, FaultKind } from '../../sim/faults.ts';
-import { FAULT_CATALOG } from '../../sim/faults.ts';
+import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import type { OutputCurvePoint, Readings } from '../../sim/instruments.ts';
 import {
   GRADE_WEIGHTS,
@@ -282,7 +282,7 @@ export function gradeAttempt(input: GradeInput): AttemptResult {
   });
   const faultGiven = submission.diagnosis.faultKind;
   const faultOk = faultGiven === 'none' ? input.actualKinds.length === 0 : input.actualKinds.includes(faultGiven);
-  const labels = input.actualKinds.length ? input.actualKinds.map((k) => FAULT_CATALOG[k].label) : [NO_FAULT_LABEL];
+  const labels = input.actualKinds.length ? input.actualKinds.map((k) => FAULT_TEXT[k].label) : [NO_FAULT_LABEL];
 
   const mistakes = findMistakes(samples);
   const processMistakes = mistakes.filter((m) => m.process).length;
