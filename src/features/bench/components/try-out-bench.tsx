@@ -17,7 +17,7 @@ import { createBenchEngine } from '../stores/bench-engine.ts';
 import { BenchWorkspace } from './bench-workspace.tsx';
 import { DiagnosisForm, type DiagnosisValues } from './diagnosis-form.tsx';
 import { HintsPanel } from './hints-panel.tsx';
-import { OutputCurveChart } from './output-curve-chart.tsx';
+import { OutputCurveChart } from '../../../components/output-curve-chart.tsx';
 import { ReadingsList, RecordBar } from './readings-panel.tsx';
 
 function TryOutVerdict({ definition, diagnosis, onAgain }: { definition: ScenarioDefinition; diagnosis: DiagnosisValues; onAgain: () => void }) {
