@@ -10,7 +10,7 @@ import { line } from 'd3-shape';
 import { faultedCurveExcess, type OutputCurvePoint } from '../../sim/instruments.ts';
 import { CurveExcessNote } from './curve-excess-note.tsx';
 
-const M = { top: 14, right: 16, bottom: 34, left: 44 };
+const M = { top: 14, right: 16, bottom: 34, left: 50 };
 
 export interface OutputCurveChartProps {
   /** The curve drawn solid: the unit on the car (or the one this chart shows). */
@@ -75,7 +75,7 @@ export function OutputCurveChart({ fitted, healthy, measured = [], ratedA, passM
         <text x={(M.left + W - M.right) / 2} y={H - 4} textAnchor="middle" className="fill-slate-500 text-[11px]">
           alternator rpm
         </text>
-        <text x={12} y={M.top + 4} className="fill-slate-500 text-[11px]">
+        <text x={6} y={M.top + 4} className="fill-slate-500 text-[11px]">
           A
         </text>
         {markers.map((m) => (
@@ -89,7 +89,8 @@ export function OutputCurveChart({ fitted, healthy, measured = [], ratedA, passM
         {ratedA !== undefined && (
           <g>
             <line x1={M.left} x2={W - M.right} y1={y(ratedA)} y2={y(ratedA)} className="stroke-warn-500" strokeDasharray="5 4" />
-            <text x={W - M.right} y={y(ratedA) - 4} textAnchor="end" className="fill-warn-700 text-[10px]">
+            {/* At the left, where an output curve is still low, so the curve never crosses the words. */}
+            <text x={M.left + 4} y={y(ratedA) - 4} className="fill-warn-700 text-[10px]">
               rated {ratedA} A
             </text>
           </g>
