@@ -7,6 +7,7 @@
  */
 import type { DiagnosticTest, FaultKind } from '../sim/faults.ts';
 import { FAULT_CATALOG, FAULT_KINDS } from '../sim/faults.ts';
+import { FAULT_TEXT } from './fault-catalogue-text.ts';
 import type { VehicleParams } from '../sim/params.ts';
 import { defaultVehicleParams } from '../sim/params.ts';
 import { referenceMeasurements, type ReferenceMeasurement } from './reference-procedures.ts';
@@ -71,7 +72,7 @@ export function diagnosisTableMarkdown(table: DiagnosisTable): string {
   const head = `| fault (library severity) | ${DIAGNOSTIC_TESTS.map((t) => SHORT[t]).join(' | ')} |`;
   const rule = `| --- | ${DIAGNOSTIC_TESTS.map(() => '---:').join(' | ')} |`;
   const rows = (['none', ...FAULT_KINDS] as const).map((kind) => {
-    const name = kind === 'none' ? 'healthy' : `${FAULT_CATALOG[kind].label} (${FAULT_CATALOG[kind].librarySeverity01})`;
+    const name = kind === 'none' ? 'healthy' : `${FAULT_TEXT[kind].label} (${FAULT_CATALOG[kind].librarySeverity01})`;
     const cells = DIAGNOSTIC_TESTS.map((t) => {
       const c = table[kind][t];
       if (c.value === null) return 'no start';

@@ -14,6 +14,13 @@
  */
 import type { Readings } from '../sim/instruments.ts';
 
+/**
+ * The display tick: the meters show a new value every 100 ms of sim time, from
+ * 0 ms. Samples, recorded readings and test set-ups all live on this grid, on
+ * the bench, in the replay and in the server's re-run.
+ */
+export const DISPLAY_TICK_MS = 100;
+
 /** What a reading measures. */
 export type MeterQuantity = 'voltage' | 'current' | 'ripple' | 'draw' | 'rpm';
 export type MeterUnit = 'V' | 'A' | 'mV' | 'mA' | 'rpm';

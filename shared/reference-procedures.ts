@@ -20,6 +20,7 @@
 import type { DiagnosticTest, Fault } from '../sim/faults.ts';
 import type { VehicleParams } from '../sim/params.ts';
 import { ScriptedBench } from '../sim/scripted-bench.ts';
+import { DISPLAY_TICK_MS } from './meter-display.ts';
 import { DIAGNOSTIC_TESTS, RUNNING_TESTS, outputPassMarkA, type PassRules, type ScenarioDefinition } from './scenario.ts';
 
 export interface ReferenceMeasurement {
@@ -134,9 +135,6 @@ export const DRAW_MARGIN_S = 10;
 export const CRANK_MAX_S = 5;
 export const CRANKING_MIN_V = 9.6;
 
-/** Display tick: the grid on which the bench shows readings and the server samples them. */
-const TICK_MS = 100;
-
 /** The scripted bench of a reference run: the scenario's faults in the log from the start, the reference seed, every wait at least one step. */
 class Script extends ScriptedBench {
   constructor(params: VehicleParams, faults: readonly Fault[]) {
@@ -151,8 +149,8 @@ class Script extends ScriptedBench {
   start(): { lowestV: number | null; started: boolean } {
     this.key('start');
     let lowestV: number | null = null;
-    for (let t = 0; t < CRANK_MAX_S * 1000; t += TICK_MS) {
-      this.wait(TICK_MS / 1000);
+    for (let t = 0; t < CRANK_MAX_S * 1000; t += DISPLAY_TICK_MS) {
+      this.wait(DISPLAY_TICK_MS / 1000);
       const status = this.point.state.engineStatus;
       const v = this.read().voltmeterV;
       if (status === 'cranking' && v !== null && (lowestV === null || v < lowestV)) lowestV = v;

@@ -8,7 +8,9 @@
  */
 import { z } from 'zod';
 import { FAULT_CATALOG, FAULT_KINDS, type DiagnosticTest, type FaultKind } from '../sim/faults.ts';
+import { FAULT_TEXT } from './fault-catalogue-text.ts';
 import { defaultVehicleParams, VEHICLE_PARAM_BOUNDS, type NumericParamPath, type VehicleParams } from '../sim/params.ts';
+import { PARAM_LABELS, labelledBound } from './param-labels.ts';
 import { vehicleDesignErrors } from './vehicle-rules.ts';
 import { crankTrial, inductanceForRatingH } from '../sim/vehicle-checks.ts';
 import { nameText } from './names.ts';
@@ -54,7 +56,7 @@ export type DiagnosisChoice = FaultKind | 'none';
 export const NO_FAULT_LABEL = 'No fault: the charging system is healthy';
 
 export function diagnosisLabel(choice: DiagnosisChoice): string {
-  return choice === 'none' ? NO_FAULT_LABEL : FAULT_CATALOG[choice].label;
+  return choice === 'none' ? NO_FAULT_LABEL : FAULT_TEXT[choice].label;
 }
 
 // ---------------------------------------------------------------------------
@@ -81,7 +83,7 @@ export function boundedNumber(b: { min: number; max: number; unit: string; label
   );
 }
 
-const p = (path: NumericParamPath) => boundedNumber(VEHICLE_PARAM_BOUNDS[path]);
+const p = (path: NumericParamPath) => boundedNumber(labelledBound(path));
 
 const text = (label: string, min: number, max: number) =>
   z
@@ -375,7 +377,7 @@ export const scenarioDocumentSchema = z
   .superRefine((doc, ctx) => {
     for (const kind of new Set(doc.faults.map((f) => f.kind))) {
       if (!doc.diagnosisChoices.includes(kind)) {
-        ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: `Diagnosis choices must include the scenario’s fault “${FAULT_CATALOG[kind].label}”` });
+        ctx.addIssue({ code: 'custom', path: ['diagnosisChoices'], message: `Diagnosis choices must include the scenario’s fault “${FAULT_TEXT[kind].label}”` });
       }
     }
     if (doc.faults.length === 0 && !doc.diagnosisChoices.includes('none')) {
@@ -686,15 +688,15 @@ export function scenarioFieldInWords(path: string): string {
       const [field, group, key, ...more] = rest;
       if (field === 'params' && group !== undefined) {
         const full = key !== undefined ? `${group}.${key}` : group;
-        const bound = (VEHICLE_PARAM_BOUNDS as Record<string, { label: string } | undefined>)[full];
+        const label = (PARAM_LABELS as Record<string, string | undefined>)[full];
         if (group === 'loads' && key === 'accessories') {
           out.push(item('Accessory', more[0]));
           if (more[1] !== undefined) out.push(ACCESSORY_WORDS[more[1]] ?? more[1]);
         } else {
           if (GROUP_WORDS[group]) out.push(GROUP_WORDS[group]);
-          if (bound) out.push(bound.label);
+          if (label) out.push(label);
           else if (key !== undefined) out.push(key);
-          else if (!GROUP_WORDS[group]) out.push((VEHICLE_PARAM_BOUNDS as Record<string, { label: string } | undefined>)[group]?.label ?? group);
+          else if (!GROUP_WORDS[group]) out.push((PARAM_LABELS as Record<string, string | undefined>)[group] ?? group);
         }
       } else if (field !== undefined) out.push(VEHICLE_WORDS[field] ?? field);
       break;

@@ -28,8 +28,6 @@ import { showVolts, type MeterQuantity } from './meter-display.ts';
 // The conditions' numbers. The model's fidelity work may retune them; tests
 // use these names, never the numbers.
 
-/** The display tick: samples, readings and set-ups all live on this grid of sim time. */
-export const SETUP_TICK_MS = 100;
 /** A pile drawing less than this is off (common practice, no source). */
 export const PILE_OFF_A = 1;
 

@@ -19,7 +19,7 @@
  * The measurements come from the model (sim/vehicle-checks.ts).
  */
 import type { Fault } from '../sim/faults.ts';
-import { FAULT_CATALOG } from '../sim/faults.ts';
+import { FAULT_TEXT } from './fault-catalogue-text.ts';
 import type { VehicleParams } from '../sim/params.ts';
 import { VEHICLE_PARAM_BOUNDS } from '../sim/params.ts';
 import type { CrankTrial } from '../sim/vehicle-checks.ts';
@@ -140,7 +140,7 @@ export function vehicleIssues(params: VehicleParams, faults: readonly Fault[] = 
   if (!trial.started) {
     const battery = batteryReason(params, faults);
     const healthy = faults.length > 0 ? crankTrial(params, []).started : false;
-    const culprits = healthy ? faults.filter((f) => !crankTrial(params, [f]).started).map((f) => FAULT_CATALOG[f.kind].label.toLowerCase()) : [];
+    const culprits = healthy ? faults.filter((f) => !crankTrial(params, [f]).started).map((f) => FAULT_TEXT[f.kind].label.toLowerCase()) : [];
     const because = healthy
       ? `${culprits.length ? `the ${[...new Set(culprits)].join(' and the ')}` : 'its faults together'} ${culprits.length > 1 ? 'stop' : 'stops'} it (${STOP_WORDS[trial.cause ?? 'crank-too-long']})`
       : battery ?? STOP_WORDS[trial.cause ?? 'crank-too-long'];

@@ -15,6 +15,7 @@
 import type { CarChange } from './car-changes.ts';
 import type { Fault } from './faults.ts';
 import { faultChange } from './faults.ts';
+import { assertNever } from './assert-never.ts';
 
 /** Where a voltmeter lead can be clipped. */
 export type ConnectionPoint =
@@ -155,15 +156,11 @@ export function applyInput(controls: Controls, event: InputEvent, rawClampA: num
     case 'fault-clear':
       return { ...controls, changes: controls.changes.filter((c) => c.id !== event.faultId) };
     default:
-      return assertNever(event);
+      return assertNever(event, 'input event');
   }
 }
 
 /** A change added last, replacing one of the same id. */
 function withChange(controls: Controls, change: CarChange): Controls {
   return { ...controls, changes: [...controls.changes.filter((c) => c.id !== change.id), change] };
-}
-
-function assertNever(x: never): never {
-  throw new Error(`Unknown input event: ${JSON.stringify(x)}`);
 }

@@ -19,6 +19,7 @@ import type { NodeName, NetworkSolution } from './network.ts';
 import { COLD_ALTERNATOR_C, CURVE_TEST_V, FIELD_DRIVER_DROP_V, HOT_ALTERNATOR_C, copperAt, effectiveModel, fieldResistanceOhm, fluxWithStatorDc } from './model.ts';
 import type { BridgePoint } from './bridge.ts';
 import { bridgeOperatingPoint, diodeDropV, periodicBridge } from './bridge.ts';
+import { assertNever } from './assert-never.ts';
 
 export interface Readings {
   /** DC volts, red minus black; negative with the leads reversed. */
@@ -102,12 +103,8 @@ export function conductorCurrentTowardBatteryA(net: NetworkSolution, conductor: 
     case 'sense-line':
       return 0;
     default:
-      return assertNever(conductor);
+      return assertNever(conductor, 'conductor');
   }
-}
-
-function assertNever(x: never): never {
-  throw new Error(`Unknown conductor: ${String(x)}`);
 }
 
 /** The clamp's reading before zeroing (what a clamp-zero event stores). */

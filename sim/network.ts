@@ -37,8 +37,6 @@ export type BranchName =
   | 'starter'
   | 'fieldFeed';
 
-export const NODE_NAMES: readonly NodeName[] = ['batteryPos', 'junction', 'bplus', 'altCase', 'engine', 'chassis', 'batteryNeg'];
-
 export const NETWORK_BRANCHES: Readonly<Record<BranchName, { from: NodeName; to: NodeName }>> = {
   battery: { from: 'batteryNeg', to: 'batteryPos' },
   pile: { from: 'batteryPos', to: 'batteryNeg' },

@@ -151,22 +151,3 @@ export function stateAt(
   from ??= startPoint(params, seed, changes);
   return advance(params, from, ordered, stepsBetween(from.state.timeMs, atMs));
 }
-
-/**
- * For an animation loop: step `steps` times and call `onStep` after each step
- * (e.g. to collect readings for a chart). Returns the last point.
- */
-export function advanceWithCallback(
-  params: VehicleParams,
-  point: ReplayPoint,
-  events: readonly InputEvent[],
-  steps: number,
-  onStep: (point: ReplayPoint) => void,
-): ReplayPoint {
-  let p = point;
-  for (let i = 0; i < steps; i++) {
-    p = advance(params, p, events, 1);
-    onStep(p);
-  }
-  return p;
-}

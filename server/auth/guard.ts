@@ -57,5 +57,3 @@ export function requireAccess(access: Access): RequestHandler {
     next(new HttpError(403, 'Your role cannot do this'));
   };
 }
-
-export const requireRole = (...roles: Role[]): RequestHandler => requireAccess(roles);

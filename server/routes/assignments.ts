@@ -13,7 +13,7 @@ import {
   type MyAssignment,
 } from '../../shared/api/assignments.ts';
 import { NO_FAULT_LABEL, restoreScenario, studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
-import { FAULT_CATALOG } from '../../sim/faults.ts';
+import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import { assertCanManageAssignment, assertCanManageClass, assertCanSeeAssignment, assertCanSeeScenario, isEnrolled } from '../auth/access.ts';
 import { currentUser } from '../auth/guard.ts';
 import type { AppContext } from '../context.ts';
@@ -44,7 +44,7 @@ const assignmentColumns = {
   createdAt: assignments.createdAt,
 };
 
-const faultLabelsOf = (def: ScenarioDefinition) => (def.faults.length ? [...new Set(def.faults.map((f) => FAULT_CATALOG[f.kind].label))] : [NO_FAULT_LABEL]);
+const faultLabelsOf = (def: ScenarioDefinition) => (def.faults.length ? [...new Set(def.faults.map((f) => FAULT_TEXT[f.kind].label))] : [NO_FAULT_LABEL]);
 
 async function loadAssignments(db: DbOrTx, where: ReturnType<typeof eq>): Promise<Assignment[]> {
   const rows = await db

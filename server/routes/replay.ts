@@ -12,7 +12,7 @@ import { assignments, attempts, comments, scenarioVersions, users } from '../db/
 import { badRequest, conflict } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
-import { FAULT_CATALOG } from '../../sim/faults.ts';
+import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import { isPermanent } from '../../sim/compiled-car.ts';
 import { storedResult } from '../services/attempt-store.ts';
 import { loadAttemptRun, serverRunOf, type AttemptRunInputs } from '../services/live-attempt-run.ts';
@@ -32,8 +32,8 @@ async function commentsOf(db: DbOrTx, attemptId: number): Promise<ReplayComment[
 /** What each change of the car stands for: the scenario's scheduled faults (c1, c2 …) and the instructor's injections. */
 function changeLabelsOf(run: AttemptRunInputs): Record<string, string> {
   const out: Record<string, string> = {};
-  run.definition.faults.filter((f) => !isPermanent(f)).forEach((f, i) => (out[`c${i + 1}`] = FAULT_CATALOG[f.kind].label));
-  for (const r of run.injections) if (r.action.type === 'inject') out[r.action.faultId] = FAULT_CATALOG[r.action.kind].label;
+  run.definition.faults.filter((f) => !isPermanent(f)).forEach((f, i) => (out[`c${i + 1}`] = FAULT_TEXT[f.kind].label));
+  for (const r of run.injections) if (r.action.type === 'inject') out[r.action.faultId] = FAULT_TEXT[r.action.kind].label;
   return out;
 }
 
@@ -43,7 +43,7 @@ function changeLabelsOf(run: AttemptRunInputs): Record<string, string> {
  * still names them). The instructor's injections are not the car's: they are
  * named by the change labels.
  */
-const carFaultLabelsOf = (run: AttemptRunInputs): string[] => [...new Set(run.definition.faults.map((f) => FAULT_CATALOG[f.kind].label))];
+const carFaultLabelsOf = (run: AttemptRunInputs): string[] => [...new Set(run.definition.faults.map((f) => FAULT_TEXT[f.kind].label))];
 /** The hints the log shows opened (each the first time), up to the submission. */
 function hintsOpenedIn(stored: AttemptRunInputs['stored'], untilMs: number | null): { atMs: number; index: number }[] {
   const seen = new Set<number>();

@@ -18,11 +18,11 @@ import { readMeters } from '../../sim/instruments.ts';
 import type { VehicleParams } from '../../sim/params.ts';
 import { advance, orderEvents, startPoint, type ReplayPoint } from '../../sim/replay.ts';
 import { DT_MS, type EngineStatus, type SimState } from '../../sim/step.ts';
-import { SETUP_TICK_MS, setupSampleOf } from '../../shared/test-setups.ts';
+import { DISPLAY_TICK_MS } from '../../shared/meter-display.ts';
+import { setupSampleOf } from '../../shared/test-setups.ts';
 import type { RunSample, SampleReadings } from './grading.ts';
 
-export const SAMPLE_EVERY_MS = SETUP_TICK_MS;
-const STEPS_PER_SAMPLE = SAMPLE_EVERY_MS / DT_MS;
+const STEPS_PER_SAMPLE = DISPLAY_TICK_MS / DT_MS;
 
 const ENGINE_STATUSES: readonly EngineStatus[] = ['off', 'cranking', 'running', 'stalled'];
 const KEY_POSITIONS: readonly KeyPosition[] = ['off', 'on', 'start'];

@@ -25,7 +25,7 @@
  * Pure: the re-run's samples come in, an AttemptResult goes out.
  */
 import type { DiagnosticTest, FaultKind } from '../../sim/faults.ts';
-import { FAULT_CATALOG } from '../../sim/faults.ts';
+import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import type { OutputCurvePoint, Readings } from '../../sim/instruments.ts';
 import {
   GRADE_WEIGHTS,
@@ -37,11 +37,11 @@ import {
   type RecordedReading,
   type SubmitInput,
 } from '../../shared/api/attempts.ts';
-import { meterShows, sameShown, shownWithUnit, type MeterQuantity } from '../../shared/meter-display.ts';
+import { DISPLAY_TICK_MS, meterShows, sameShown, shownWithUnit, type MeterQuantity } from '../../shared/meter-display.ts';
 import type { DiagnosisChoice } from '../../shared/scenario.ts';
 import type { ReferenceMeasurements } from '../../shared/reference-procedures.ts';
 import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, diagnosisLabel, NO_FAULT_LABEL } from '../../shared/scenario.ts';
-import { SETUP_TICK_MS, SetupTracker, TEST_SETUPS, type SetupCar, type SetupSample, type SetupStatus } from '../../shared/test-setups.ts';
+import { SetupTracker, TEST_SETUPS, type SetupCar, type SetupSample, type SetupStatus } from '../../shared/test-setups.ts';
 
 export { GRADE_WEIGHTS, PROCESS_DEDUCTION };
 
@@ -86,7 +86,7 @@ export function checkReadings(readings: readonly RecordedReading[], samples: rea
   const tracker = new SetupTracker(car);
   for (const s of samples) {
     tracker.feed(s.setup);
-    const due = s.atMs % SETUP_TICK_MS === 0 ? byTick.get(s.atMs) : undefined;
+    const due = s.atMs % DISPLAY_TICK_MS === 0 ? byTick.get(s.atMs) : undefined;
     if (!due) continue;
     for (const r of due) if (r.atMs <= untilMs) checks.set(r.id, judge(r, s, tracker.status(r.test)));
   }
@@ -282,7 +282,7 @@ export function gradeAttempt(input: GradeInput): AttemptResult {
   });
   const faultGiven = submission.diagnosis.faultKind;
   const faultOk = faultGiven === 'none' ? input.actualKinds.length === 0 : input.actualKinds.includes(faultGiven);
-  const labels = input.actualKinds.length ? input.actualKinds.map((k) => FAULT_CATALOG[k].label) : [NO_FAULT_LABEL];
+  const labels = input.actualKinds.length ? input.actualKinds.map((k) => FAULT_TEXT[k].label) : [NO_FAULT_LABEL];
 
   const mistakes = findMistakes(samples);
   const processMistakes = mistakes.filter((m) => m.process).length;

@@ -8,6 +8,7 @@ import type { InputEvent } from '../../sim/inputs.ts';
 import { recordedReadingSchema } from '../../shared/api/attempts.ts';
 import type { Marker, ReplayReading } from '../../shared/api/replay.ts';
 import { CONDUCTOR_WORDS, POINT_WORDS } from '../../shared/bench-words.ts';
+import { dialPercent } from '../../shared/dial.ts';
 import { shownWithUnit } from '../../shared/meter-display.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../shared/scenario.ts';
 
@@ -22,7 +23,7 @@ function markerOf(e: InputEvent, changeLabels: Readonly<Record<string, string>>,
     case 'key':
       return e.position === 'start' ? { atMs: e.atMs, kind: 'start', label: 'Engine start' } : null;
     case 'pile':
-      return { atMs: e.atMs, kind: 'load', label: `Pile to ${Math.round(e.dial01 * 100)} %` };
+      return { atMs: e.atMs, kind: 'load', label: `Pile to ${dialPercent(e.dial01)} %` };
     case 'accessory':
       return { atMs: e.atMs, kind: 'load', label: `${accessories.find((a) => a.id === e.id)?.label ?? 'An accessory'} ${e.on ? 'on' : 'off'}` };
     case 'change-apply':

@@ -6,7 +6,8 @@
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import type { DiagnosticTest } from '../../sim/faults.ts';
-import { FAULT_CATALOG, FAULT_KINDS, type FaultKind } from '../../sim/faults.ts';
+import { FAULT_KINDS, type FaultKind } from '../../sim/faults.ts';
+import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import type { CompareRow, Distribution } from '../../shared/api/compare.ts';
 import { COMPETENCIES, COMPETENCY_LABELS } from '../../shared/competencies.ts';
 import { NO_FAULT_LABEL } from '../../shared/scenario.ts';
@@ -32,7 +33,7 @@ export function readResult(raw: unknown): StoredResult {
 
 export function faultLabel(kind: string): string {
   if (kind === 'none') return NO_FAULT_LABEL;
-  return (FAULT_KINDS as readonly string[]).includes(kind) ? FAULT_CATALOG[kind as FaultKind].label : kind;
+  return (FAULT_KINDS as readonly string[]).includes(kind) ? FAULT_TEXT[kind as FaultKind].label : kind;
 }
 
 export interface SubmittedAttempt {

@@ -17,7 +17,8 @@
  */
 import type { CompiledCar } from '../../sim/compiled-car.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
-import { carryRerun, SAMPLE_EVERY_MS, startRerun, type RerunCursor } from './attempt-replay.ts';
+import { DISPLAY_TICK_MS } from '../../shared/meter-display.ts';
+import { carryRerun, startRerun, type RerunCursor } from './attempt-replay.ts';
 
 /** A batch just stored, as sent to the grading worker. */
 export interface AheadFeed {
@@ -75,7 +76,7 @@ export function sameData(a: unknown, b: unknown): boolean {
 }
 
 /** The sample boundary at or before a sim time: as far as a re-run can go before events at or after that time are known. */
-const boundaryAtOrBefore = (ms: number) => Math.floor(ms / SAMPLE_EVERY_MS) * SAMPLE_EVERY_MS;
+const boundaryAtOrBefore = (ms: number) => Math.floor(ms / DISPLAY_TICK_MS) * DISPLAY_TICK_MS;
 
 export interface RunAheadStats {
   attempts: number;

@@ -24,12 +24,6 @@ export const LIVE_FAULT_PREFIX = 'live-';
 /** The fault id the bench logs for an injected fault. */
 export const liveFaultId = (injectionId: number): string => `${LIVE_FAULT_PREFIX}${injectionId}`;
 
-/** The injection id inside a live fault id, or null for any other fault id (a scenario's own). */
-export function injectionIdOf(faultId: string): number | null {
-  const m = /^live-([1-9][0-9]{0,9})$/.exec(faultId);
-  return m ? Number(m[1]) : null;
-}
-
 export const LIVE_BOUNDS = {
   delayS: { min: 0, max: 3600 },
   periodS: { min: 0.5, max: 600 },
@@ -100,9 +94,6 @@ export const benchInjectionSchema = z.discriminatedUnion('type', [
 ]);
 export type BenchInjection = z.infer<typeof benchInjectionSchema>;
 
-/** SSE event `status` on the bench's stream: the attempt was submitted elsewhere, or the stream is ready. */
-export const benchStatusSchema = z.object({ attemptId: z.number().int(), status: z.enum(['running', 'submitted']) });
-
 export const injectionViewSchema = z.object({
   injectionId: z.number().int(),
   type: z.enum(['inject', 'clear']),
@@ -147,6 +138,7 @@ export const liveReadingsSchema = z.object({
 });
 export type LiveReadings = z.infer<typeof liveReadingsSchema>;
 
+/** One attempt on the board; also the SSE event `attempt`: one attempt changed (it may have ended: status submitted). */
 export const boardAttemptSchema = z.object({
   attemptId: z.number().int(),
   studentId: z.number().int(),
@@ -198,6 +190,3 @@ export type BenchClockAnswer = z.infer<typeof benchClockAnswerSchema>;
 
 export const boardSnapshotSchema = z.object({ classId: z.number().int(), className: z.string(), attempts: z.array(boardAttemptSchema) });
 export type BoardSnapshot = z.infer<typeof boardSnapshotSchema>;
-
-/** SSE event `attempt` on the board: one attempt changed (it may have ended: status submitted). */
-export const boardUpdateSchema = boardAttemptSchema;

@@ -23,10 +23,6 @@ export function setCsrfToken(token: string | null): void {
   csrfToken = token;
 }
 
-export function getCsrfToken(): string | null {
-  return csrfToken;
-}
-
 type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
 
 interface RequestOptions<T> {

@@ -6,7 +6,8 @@ import { stateAt } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
 import { MAX_ATTEMPT_MS } from '../../shared/api/attempts.ts';
-import { DISPLAY_INTERVAL_MS, MAX_FRAME_GAP_MS, START_HOLD_MS, createBenchEngine } from '../../src/features/bench/stores/bench-engine.ts';
+import { MAX_FRAME_GAP_MS, START_HOLD_MS, createBenchEngine } from '../../src/features/bench/stores/bench-engine.ts';
+import { DISPLAY_TICK_MS } from '../../shared/meter-display.ts';
 import { benchActions } from '../../src/features/bench/stores/bench-actions.ts';
 
 const params = defaultVehicleParams();
@@ -67,9 +68,9 @@ describe('the live bench engine', () => {
     frames(engine, 60, 21.9);
     const live = engine.readNow();
     // A reading is the display: on the 100 ms grid the server samples, never ahead of the model.
-    expect(live.atMs % DISPLAY_INTERVAL_MS).toBe(0);
+    expect(live.atMs % DISPLAY_TICK_MS).toBe(0);
     expect(live.atMs).toBeLessThanOrEqual(engine.getSnapshot().timeMs);
-    expect(engine.getSnapshot().timeMs - live.atMs).toBeLessThan(DISPLAY_INTERVAL_MS);
+    expect(engine.getSnapshot().timeMs - live.atMs).toBeLessThan(DISPLAY_TICK_MS);
     const replayed = stateAt(params, SEED, engine.studentEvents(), live.atMs);
     expect(replayed.state.timeMs).toBe(live.atMs);
     expect(readMeters(params, replayed.state)).toEqual(live.readings);

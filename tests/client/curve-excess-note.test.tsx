@@ -6,7 +6,7 @@ import type { Fault } from '../../sim/faults';
 import { faultedCurveExcess, outputCurve } from '../../sim/instruments';
 import { defaultVehicleParams } from '../../sim/params';
 import { OutputCurvePreview } from '../../src/features/scenarios/components/output-curve-preview.tsx';
-import { OutputCurveChart } from '../../src/features/bench/components/output-curve-chart.tsx';
+import { OutputCurveChart } from '../../src/components/output-curve-chart.tsx';
 
 afterEach(cleanup);
 

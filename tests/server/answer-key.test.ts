@@ -17,7 +17,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { attempts, assignments, scenarios, scenarioVersions } from '../../server/db/schema.ts';
 import type { AttemptBootstrap } from '../../shared/api/attempts.ts';
 import { liveFaultId } from '../../shared/api/live.ts';
-import { FAULT_CATALOG, FAULT_KINDS, faultOps } from '../../sim/faults.ts';
+import { FAULT_KINDS, faultOps } from '../../sim/faults.ts';
+import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import { blankScenario, DIAGNOSTIC_TESTS, type ScenarioDefinition } from '../../shared/scenario.ts';
 import { httpSignIn, instructor, listen, makeClass, openStream, students, type ClassFixture, type HttpClient } from './live-fixtures.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
@@ -83,7 +84,7 @@ function leaks(text: string): string[] {
   const lower = searched.toLowerCase();
   const kinds = FAULT_KINDS.filter((kind) => searched.includes(kind));
   const found: string[] = kinds.length === FAULT_KINDS.length ? [] : kinds.filter((kind) => !(DIAGNOSTIC_TESTS as readonly string[]).includes(kind));
-  for (const kind of FAULT_KINDS) if (lower.includes(FAULT_CATALOG[kind].label.toLowerCase())) found.push(FAULT_CATALOG[kind].label);
+  for (const kind of FAULT_KINDS) if (lower.includes(FAULT_TEXT[kind].label.toLowerCase())) found.push(FAULT_TEXT[kind].label);
   for (const needle of ['"faults"', '"fault"', '"severity01"', '"onsetS"', FAULT_ID, String(SEVERITY), String(ONSET_S), String(LIVE_SEVERITY)]) {
     if (searched.includes(needle)) found.push(needle);
   }
@@ -260,7 +261,7 @@ describe('the answer key after submission', () => {
     expect(res.status).toBe(200);
     expect(res.body.fault.actual).toContain(KIND);
     expect(res.body.fault.ok).toBe(false);
-    expect(res.body.fault.labels).toContain(FAULT_CATALOG[KIND].label);
+    expect(res.body.fault.labels).toContain(FAULT_TEXT[KIND].label);
     const again = await student.get(`/api/attempts/${attemptId}`).expect(200);
     expect(again.body.result.fault.actual).toContain(KIND);
     expect(leaks(again.text)).toContain(KIND);

@@ -4,7 +4,8 @@
  * in the test, from the bootstrap), and a scan of responses for the answer key.
  */
 import { eq } from 'drizzle-orm';
-import { FAULT_CATALOG, FAULT_KINDS, type DiagnosticTest } from '../../sim/faults.ts';
+import { FAULT_KINDS, type DiagnosticTest } from '../../sim/faults.ts';
+import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import type { ConnectionPoint } from '../../sim/inputs.ts';
 import { readMeters, type Readings } from '../../sim/instruments.ts';
 import { stateAt } from '../../sim/replay.ts';
@@ -106,7 +107,7 @@ export function answerKeyFound(body: unknown): string[] {
   const found: string[] = [];
   for (const kind of FAULT_KINDS) {
     if (text.includes(kind)) found.push(kind);
-    if (text.toLowerCase().includes(FAULT_CATALOG[kind].label.toLowerCase())) found.push(FAULT_CATALOG[kind].label);
+    if (text.toLowerCase().includes(FAULT_TEXT[kind].label.toLowerCase())) found.push(FAULT_TEXT[kind].label);
   }
   // A change's onset may travel (the car's schedule); a fault list, a fault and its severity may not.
   for (const key of ['"faults"', '"severity01"', '"fault"', '"kind":"fault-']) if (text.includes(key)) found.push(key);

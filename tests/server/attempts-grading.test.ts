@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AttemptBootstrap, AttemptResult, CarInput, LogEvent, RecordedReading, SubmitInput } from '../../shared/api/attempts.ts';
 import type { ReplayResponse } from '../../shared/api/replay.ts';
 import { restoreScenario } from '../../shared/scenario.ts';
-import { FAULT_CATALOG } from '../../sim/faults.ts';
+import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import { assignments, attempts, scenarios, scenarioVersions } from '../../server/db/schema.ts';
 import { referenceStudent, type StudentRun } from '../shared/reference-student.ts';
 import { assignmentId, benchModel, leads, numbered, readingEvent, readingFrom, startEngine } from './attempts-bench.ts';
@@ -139,7 +139,7 @@ describe('an assignment that hides results until it closes (Week 2)', () => {
     const teacher = await signIn(t.app, 'r.okafor-lind@cindervalley.example');
     const whole = (await teacher.get(`/api/attempts/${s.boot.attempt.id}`).expect(200)).body.result as AttemptResult;
     expect(whole.grade).toBe(100);
-    expect(whole.fault).toEqual({ given: 'diode-open', actual: ['diode-open'], ok: true, labels: [FAULT_CATALOG['diode-open'].label] });
+    expect(whole.fault).toEqual({ given: 'diode-open', actual: ['diode-open'], ok: true, labels: [FAULT_TEXT['diode-open'].label] });
     expect(whole.outputCurve?.fitted.length).toBeGreaterThan(10);
     // The replay is a place the student can look: it names no fault for them until the due date, and does for the instructor.
     const own = (await s.agent.get(`/api/replay/attempts/${s.boot.attempt.id}`).expect(200)).body as ReplayResponse;
@@ -149,7 +149,7 @@ describe('an assignment that hides results until it closes (Week 2)', () => {
     expect(own.readings.length).toBeGreaterThan(0);
     expect(own.readings.every((r) => r.shown === null && r.valueOk === null)).toBe(true);
     const theirs = (await teacher.get(`/api/replay/attempts/${s.boot.attempt.id}`).expect(200)).body as ReplayResponse;
-    expect(theirs.faultLabels).toEqual([FAULT_CATALOG['diode-open'].label]);
+    expect(theirs.faultLabels).toEqual([FAULT_TEXT['diode-open'].label]);
     expect(theirs.attempt).toMatchObject({ grade: 100, resultsAt: null });
   });
 });

@@ -4,7 +4,8 @@ import { attemptEvents, attempts, pendingInjections } from '../../server/db/sche
 import { benchInjectionSchema, boardAttemptSchema, boardSnapshotSchema, liveFaultId, type BenchInjection } from '../../shared/api/live.ts';
 import type { AttemptResult } from '../../shared/api/attempts.ts';
 import { ACK_BOUND_MS } from '../../server/services/injection-authority.ts';
-import { FAULT_CATALOG, faultOps } from '../../sim/faults.ts';
+import { faultOps } from '../../sim/faults.ts';
+import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import { startTestApp, type TestApp } from './support.ts';
 import {
   httpSignIn,
@@ -62,7 +63,7 @@ describe('live fault injection', () => {
     // The student is not told what was injected: no kind, label or severity in what the stream carries.
     const raw = JSON.stringify(msg.data);
     expect(raw).not.toContain('fusible-link-open');
-    expect(raw).not.toContain(FAULT_CATALOG['fusible-link-open'].label);
+    expect(raw).not.toContain(FAULT_TEXT['fusible-link-open'].label);
     expect(raw).not.toContain('severity');
     if (injection.type !== 'inject') throw new Error('expected an inject');
     // The server recorded when it delivered it, at the sim time of the log then.

@@ -16,7 +16,7 @@ import { readMeters } from '../../sim/instruments.ts';
 import { ScriptedBench } from '../../sim/scripted-bench.ts';
 import { DT_MS } from '../../sim/step.ts';
 import type { LogEvent, RecordedReading, SubmitInput } from '../../shared/api/attempts.ts';
-import { meterShows } from '../../shared/meter-display.ts';
+import { DISPLAY_TICK_MS, meterShows } from '../../shared/meter-display.ts';
 import { CRANKING_MIN_V } from '../../shared/reference-procedures.ts';
 import { outputPassMarkA, type ScenarioDefinition } from '../../shared/scenario.ts';
 import {
@@ -30,7 +30,6 @@ import {
   OUTPUT_AT_LIMIT_BATTERY_A,
   OUTPUT_POST_MAX_V,
   OUTPUT_POST_MIN_V,
-  SETUP_TICK_MS,
   SetupTracker,
   TEST_SETUPS,
   setupCarOf,
@@ -89,9 +88,9 @@ class Student extends ScriptedBench {
   pass(ms: number): this {
     const until = this.timeMs + ms;
     while (this.timeMs < until) {
-      const toTick = SETUP_TICK_MS - (this.timeMs % SETUP_TICK_MS);
+      const toTick = DISPLAY_TICK_MS - (this.timeMs % DISPLAY_TICK_MS);
       super.wait(toTick / 1000);
-      if (this.timeMs % SETUP_TICK_MS === 0) this.feed();
+      if (this.timeMs % DISPLAY_TICK_MS === 0) this.feed();
     }
     return this;
   }
@@ -104,7 +103,7 @@ class Student extends ScriptedBench {
       if (status.holds) return status;
       if (this.timeMs >= deadline) return null;
       tweak?.();
-      this.pass(SETUP_TICK_MS);
+      this.pass(DISPLAY_TICK_MS);
     }
   }
 
@@ -133,15 +132,15 @@ class Student extends ScriptedBench {
     const q = TEST_SETUPS[test].quantity;
     const size = () => Math.abs(meterShows(q, this.shows())?.value ?? 0);
     let worst = size();
-    for (let t = 0; t < watchMs; t += SETUP_TICK_MS) {
-      this.pass(SETUP_TICK_MS);
+    for (let t = 0; t < watchMs; t += DISPLAY_TICK_MS) {
+      this.pass(DISPLAY_TICK_MS);
       if (this.tracker.status(test).holds) worst = Math.max(worst, size());
     }
     const step = q === 'ripple' ? 1 : 0.01;
-    for (let t = 0; t < watchMs; t += SETUP_TICK_MS) {
+    for (let t = 0; t < watchMs; t += DISPLAY_TICK_MS) {
       const status = this.tracker.status(test);
       if (status.holds && size() >= worst - step) return status;
-      this.pass(SETUP_TICK_MS);
+      this.pass(DISPLAY_TICK_MS);
     }
     const status = this.tracker.status(test);
     return status.holds ? status : null;
@@ -159,7 +158,7 @@ class Student extends ScriptedBench {
   startEngine(): { started: boolean } {
     if (this.running()) return { started: true };
     this.key('start');
-    for (let t = 0; t < 3000 && !this.running(); t += SETUP_TICK_MS) this.pass(SETUP_TICK_MS);
+    for (let t = 0; t < 3000 && !this.running(); t += DISPLAY_TICK_MS) this.pass(DISPLAY_TICK_MS);
     const started = this.running();
     this.key(started ? 'on' : 'off').pass(200);
     return { started };

@@ -13,8 +13,9 @@ import type { InputEvent } from '../../sim/inputs.ts';
 import { readMeters } from '../../sim/instruments.ts';
 import { advance, orderEvents, startPoint } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
+import { DISPLAY_TICK_MS } from '../../shared/meter-display.ts';
 import { setupSampleOf } from '../../shared/test-setups.ts';
-import { carryRerun, finishRerun, rerunAttempt, SAMPLE_BYTES, SAMPLE_EVERY_MS, SampleLog, startRerun } from '../../server/services/attempt-replay.ts';
+import { carryRerun, finishRerun, rerunAttempt, SAMPLE_BYTES, SampleLog, startRerun } from '../../server/services/attempt-replay.ts';
 import { gradeRun, warmUpJob, type GradeJob } from '../../server/services/grade-run.ts';
 import { RunAhead, sameData, type AheadFeed } from '../../server/services/run-ahead.ts';
 import { compileCar } from '../../sim/compiled-car.ts';
@@ -129,7 +130,7 @@ describe('an attempt run ahead', () => {
           expect(cursor).not.toBeNull();
           const aheadTo = cursor!.point.state.timeMs;
           // It had got as far as the sample boundary at or before the last event.
-          expect(aheadTo).toBe(Math.floor(log.at(-1)!.atMs / SAMPLE_EVERY_MS) * SAMPLE_EVERY_MS);
+          expect(aheadTo).toBe(Math.floor(log.at(-1)!.atMs / DISPLAY_TICK_MS) * DISPLAY_TICK_MS);
           const fromStart = rerunOf(job, job.events, job.submission.atMs);
           const carried = finishRerun(cursor!, job.submission.atMs);
           expect(carried.samples).toEqual(fromStart.samples);
@@ -297,7 +298,7 @@ describe('the re-run’s samples', () => {
     const direct = [point];
     const total = Math.floor(untilMs / DT_MS);
     for (let done = 0; done < total; ) {
-      const n = Math.min(SAMPLE_EVERY_MS / DT_MS, total - done);
+      const n = Math.min(DISPLAY_TICK_MS / DT_MS, total - done);
       point = advance(params, point, ordered, n);
       done += n;
       direct.push(point);

@@ -11,6 +11,7 @@ import { readMeters } from '../../sim/instruments.ts';
 import { defaultVehicleParams } from '../../sim/params.ts';
 import { ScriptedBench } from '../../sim/scripted-bench.ts';
 import { DIAGNOSTIC_TESTS } from '../../shared/scenario.ts';
+import { DISPLAY_TICK_MS } from '../../shared/meter-display.ts';
 import {
   DRAW_HOLD_S,
   LOAD_CCA_FRACTION_MAX,
@@ -28,7 +29,6 @@ import {
   PILE_FULL_DIAL,
   REGULATED_ENGINE_RUN_S,
   REGULATED_HOLD_S,
-  SETUP_TICK_MS,
   SURFACE_DISCHARGE_S,
   SURFACE_REST_S,
   SetupTracker,
@@ -44,7 +44,7 @@ const base = QUIET_BENCH_SAMPLE;
 
 /** Feeds ticks from `fromMs` to `toMs` shaped by `at`; returns the tracker. */
 function feed(tracker: SetupTracker, fromMs: number, toMs: number, at: (ms: number) => Partial<Omit<SetupSample, 'atMs'>>): SetupTracker {
-  for (let ms = fromMs; ms <= toMs; ms += SETUP_TICK_MS) tracker.feed({ ...base, ...at(ms), atMs: ms });
+  for (let ms = fromMs; ms <= toMs; ms += DISPLAY_TICK_MS) tracker.feed({ ...base, ...at(ms), atMs: ms });
   return tracker;
 }
 

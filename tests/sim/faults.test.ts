@@ -5,6 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { defaultVehicleParams } from '../../sim/params';
 import { FAULT_CATALOG, FAULT_KINDS, applyFaults, isFaultActive } from '../../sim/faults';
 import type { Fault } from '../../sim/faults';
+import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import { Bench } from './bench';
 
 const fault = (kind: Fault['kind'], extra: Partial<Fault> = {}): Fault => ({ id: kind, kind, severity01: 0.5, onsetS: 0, ...extra });
@@ -13,8 +14,9 @@ describe('fault transforms', () => {
   it('cover every kind in the catalog with a label, a description and the tests that reveal it', () => {
     for (const kind of FAULT_KINDS) {
       const entry = FAULT_CATALOG[kind];
-      expect(entry.label.length).toBeGreaterThan(3);
-      expect(entry.description.length).toBeGreaterThan(10);
+      expect(FAULT_TEXT[kind].label.length).toBeGreaterThan(3);
+      expect(FAULT_TEXT[kind].description.length).toBeGreaterThan(10);
+      expect(FAULT_TEXT[kind].severityMeaning.length).toBeGreaterThan(3);
       expect(entry.revealedBy.length).toBeGreaterThan(0);
       const p = defaultVehicleParams();
       const before = JSON.stringify(p);

@@ -3,6 +3,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { VEHICLE_PARAM_BOUNDS, copperResistanceOhm, defaultVehicleParams } from '../../sim/params';
+import { PARAM_LABELS } from '../../shared/param-labels.ts';
 import type { NumericParamPath } from '../../sim/params';
 
 function valueAt(path: NumericParamPath): unknown {
@@ -27,7 +28,7 @@ describe('the default vehicle', () => {
       expect(v as number, path).toBeGreaterThanOrEqual(bound.min);
       expect(v as number, path).toBeLessThanOrEqual(bound.max);
       if (bound.integer) expect(Number.isInteger(v), path).toBe(true);
-      expect(bound.label.length, path).toBeGreaterThan(3);
+      expect(PARAM_LABELS[path].length, path).toBeGreaterThan(3);
     }
   });
 

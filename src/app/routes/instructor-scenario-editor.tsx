@@ -1,6 +1,6 @@
 import { useMemo } from 'react';
 import { Link, useNavigate, useParams, type LoaderFunctionArgs } from 'react-router-dom';
-import { FAULT_CATALOG } from '../../../sim/faults.ts';
+import { FAULT_TEXT } from '../../../shared/fault-catalogue-text.ts';
 import { blankScenario } from '../../../shared/scenario.ts';
 import { paths } from '../../config/paths.ts';
 import { Button } from '../../components/ui/button.tsx';
@@ -50,7 +50,7 @@ export function EditScenarioPage() {
   if (scenario.isPending) return <Spinner label="Loading the scenario" />;
   if (scenario.isError) return <ErrorState error={scenario.error} retry={() => void scenario.refetch()} what="scenario" back={{ to: paths.scenarios.href(), label: 'Back to the library' }} />;
   const s = scenario.data;
-  const faults = s.definition.faults.map((f) => FAULT_CATALOG[f.kind].label);
+  const faults = s.definition.faults.map((f) => FAULT_TEXT[f.kind].label);
   return (
     <>
       <PageHeader

@@ -11,7 +11,7 @@
  */
 import { memo, type ReactNode, type Ref, type SVGProps } from 'react';
 import { curveBasis, line } from 'd3-shape';
-import type { ClampArrow, ConnectionPoint, Conductor } from '../../../sim/inputs.ts';
+import type { ClampArrow, ConnectionPoint, Conductor, Controls } from '../../../sim/inputs.ts';
 import {
   CLAMP_SPOTS,
   CONDUCTOR_LABEL_AT,
@@ -45,6 +45,34 @@ export interface BayState {
   lamp: boolean;
   pileHot: boolean;
   pileOver: boolean;
+}
+
+/** The lamp and the pile's heat, as the drawing shows them. */
+export interface BayReadings {
+  chargeWarning: boolean;
+  pileHot: boolean;
+  pileOverheated: boolean;
+}
+
+/**
+ * The drawing's state from the bench's controls and readings, the same way on
+ * the live bench and in the replay. `linkOpen`: the link burnt open during the
+ * attempt (the live bench: on that bench).
+ */
+export function bayStateOf(controls: Controls, linkOpen: boolean, readings: BayReadings): BayState {
+  return {
+    red: controls.leads.red,
+    black: controls.leads.black,
+    conductor: controls.clamp.conductor,
+    arrow: controls.clamp.arrow,
+    ammeter: controls.ammeterInSeries,
+    bplus: controls.bplusConnected,
+    accessoriesOn: controls.accessoriesOn.join(','),
+    linkOpen,
+    lamp: readings.chargeWarning,
+    pileHot: readings.pileHot,
+    pileOver: readings.pileOverheated,
+  };
 }
 
 export type LeadTool = 'red' | 'black' | 'clamp';

@@ -11,7 +11,7 @@ import { shownWithUnit } from '../../../../shared/meter-display.ts';
 import { diagnosisLabel } from '../../../../shared/scenario.ts';
 import type { DiagnosticTest } from '../../../../sim/faults.ts';
 import { paths } from '../../../config/paths.ts';
-import { OutputCurveChart } from './output-curve-chart.tsx';
+import { OutputCurveChart } from '../../../components/output-curve-chart.tsx';
 
 const mmss = (ms: number) => `${Math.floor(ms / 60_000)} min ${Math.floor((ms % 60_000) / 1000)} s`;
 const when = (iso: string) => new Date(iso).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' });

@@ -10,7 +10,7 @@ import { useEffect, useRef, useState, type PointerEvent } from 'react';
 import type { Controls } from '../../../../sim/inputs.ts';
 import { CONDUCTORS, CONNECTION_POINTS } from '../../../../sim/inputs.ts';
 import type { AccessoryParams } from '../../../../sim/params.ts';
-import { EngineBay, type BayState } from '../../../components/schematic/engine-bay.tsx';
+import { EngineBay, bayStateOf, type BayReadings, type BayState } from '../../../components/schematic/engine-bay.tsx';
 import { CLAMP_SPOTS, CONDUCTOR_LABELS, CONDUCTOR_PATHS, PARKED, POINT_LABELS, POINT_XY, VIEW_H, VIEW_W, nearestConductor, nearestPoint, targetRadius, type Pt } from '../../../components/schematic/layout.ts';
 import { benchActions } from '../stores/bench-actions.ts';
 import type { BenchTool } from '../stores/bench-ui-store.ts';
@@ -24,19 +24,7 @@ interface Drag {
   moved: boolean;
 }
 
-export const selectBay = (s: { controls: Controls; linkBlownHere: boolean; readings: { chargeWarning: boolean; pileHot: boolean; pileOverheated: boolean } }): BayState => ({
-  red: s.controls.leads.red,
-  black: s.controls.leads.black,
-  conductor: s.controls.clamp.conductor,
-  arrow: s.controls.clamp.arrow,
-  ammeter: s.controls.ammeterInSeries,
-  bplus: s.controls.bplusConnected,
-  accessoriesOn: s.controls.accessoriesOn.join(','),
-  linkOpen: s.linkBlownHere,
-  lamp: s.readings.chargeWarning,
-  pileHot: s.readings.pileHot,
-  pileOver: s.readings.pileOverheated,
-});
+export const selectBay = (s: { controls: Controls; linkBlownHere: boolean; readings: BayReadings }): BayState => bayStateOf(s.controls, s.linkBlownHere, s.readings);
 
 /**
  * The drawing's box in CSS pixels (the size of the box it fills), and the

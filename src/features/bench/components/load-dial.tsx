@@ -8,6 +8,7 @@
 import { useEffect, useId, useRef, type KeyboardEvent, type PointerEvent } from 'react';
 import { arc } from 'd3-shape';
 import { scaleLinear } from 'd3-scale';
+import { clampDial, dialPercent } from '../../../../shared/dial.ts';
 
 export interface LoadDialProps {
   value01: number;
@@ -26,21 +27,19 @@ const START = -SWEEP / 2;
 const KEY_STEP = 0.01;
 const PAGE_STEP = 0.1;
 
-const clamp01 = (x: number) => (x < 0 ? 0 : x > 1 ? 1 : x);
-
 /** The value a key press leads to, or null for keys the dial does not use. */
 export function dialKeyValue(key: string, value01: number): number | null {
   switch (key) {
     case 'ArrowUp':
     case 'ArrowRight':
-      return clamp01(value01 + KEY_STEP);
+      return clampDial(value01 + KEY_STEP);
     case 'ArrowDown':
     case 'ArrowLeft':
-      return clamp01(value01 - KEY_STEP);
+      return clampDial(value01 - KEY_STEP);
     case 'PageUp':
-      return clamp01(value01 + PAGE_STEP);
+      return clampDial(value01 + PAGE_STEP);
     case 'PageDown':
-      return clamp01(value01 - PAGE_STEP);
+      return clampDial(value01 - PAGE_STEP);
     case 'Home':
       return 0;
     case 'End':
@@ -53,11 +52,11 @@ export function dialKeyValue(key: string, value01: number): number | null {
 /** Dial value from a pointer position relative to the dial's centre (0 at 12 o'clock, clockwise). */
 export function dialValueAt(dx: number, dy: number): number {
   const angle = Math.atan2(dx, -dy);
-  return clamp01((angle - START) / SWEEP);
+  return clampDial((angle - START) / SWEEP);
 }
 
 export function dialValueText(value01: number, pileA: number, hot: boolean, tripped: boolean): string {
-  const pct = Math.round(value01 * 100);
+  const pct = dialPercent(value01);
   const state = tripped ? ', pile cut out: overheated' : hot ? ', pile hot' : '';
   return `${pct} percent, pile drawing ${Math.round(pileA)} amps${state}`;
 }
@@ -92,7 +91,7 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
     const onWheel = (e: WheelEvent) => {
       e.preventDefault();
       const step = e.shiftKey ? PAGE_STEP : KEY_STEP;
-      onChangeRef.current(clamp01(valueRef.current + (e.deltaY < 0 ? step : -step)));
+      onChangeRef.current(clampDial(valueRef.current + (e.deltaY < 0 ? step : -step)));
     };
     el.addEventListener('wheel', onWheel, { passive: false });
     return () => el.removeEventListener('wheel', onWheel);
@@ -124,7 +123,7 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
       aria-label="Carbon pile load"
       aria-valuemin={0}
       aria-valuemax={100}
-      aria-valuenow={Math.round(value01 * 100)}
+      aria-valuenow={dialPercent(value01)}
       aria-valuetext={dialValueText(value01, pileA, hot, tripped)}
       aria-orientation="vertical"
       viewBox="-1.28 -1.28 2.56 2.56"
@@ -179,7 +178,7 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
         load
       </text>
       <text y={0.34} textAnchor="middle" className="fill-slate-100 font-mono" fontSize={0.22}>
-        {Math.round(value01 * 100)}%
+        {dialPercent(value01)}%
       </text>
       <text y={1.04} textAnchor="middle" className={`font-sans font-semibold ${tripped ? 'fill-stop-700' : hot ? 'fill-warn-700' : 'fill-slate-600'}`} fontSize={0.16}>
         {Math.round(pileTempC)} °C

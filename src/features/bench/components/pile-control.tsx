@@ -1,7 +1,8 @@
 /** The carbon-pile dial wired to the bench, with the pile's heat, its cut-out and the time the load has been on. */
 import type { PileParams } from '../../../../sim/params.ts';
 import type { BenchSnapshot } from '../stores/bench-engine.ts';
-import { benchActions, quantiseDial } from '../stores/bench-actions.ts';
+import { quantiseDial } from '../../../../shared/dial.ts';
+import { benchActions } from '../stores/bench-actions.ts';
 import { shallowEqual, useBench, useBenchDispatch } from '../hooks/use-bench.ts';
 import { LoadDial } from './load-dial.tsx';
 

@@ -3,6 +3,7 @@
  * criterion the scenario grades by (from its pass rules) and the cautions.
  * The wording is ours; the limits come from the scenario.
  */
+import { assertNever } from '../../../../sim/assert-never.ts';
 import type { DiagnosticTest } from '../../../../sim/faults.ts';
 import type { PassRules } from '../../../../shared/scenario.ts';
 import { outputPassMarkA } from '../../../../shared/scenario.ts';
@@ -140,10 +141,6 @@ export function procedureFor(test: DiagnosticTest, rules: PassRules, ratedA: num
         cautions: [CAUTION.exhaust, CAUTION.fan, CAUTION.gases],
       };
     default:
-      return assertNever(test);
+      return assertNever(test, 'test');
   }
-}
-
-function assertNever(x: never): never {
-  throw new Error(`Unknown test ${String(x)}`);
 }

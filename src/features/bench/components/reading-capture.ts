@@ -7,6 +7,7 @@ import type { DiagnosticTest } from '../../../../sim/faults.ts';
 import type { Controls } from '../../../../sim/inputs.ts';
 import type { Readings } from '../../../../sim/instruments.ts';
 import type { ReadingQuantity } from '../../../../shared/api/attempts.ts';
+import { dialPercent } from '../../../../shared/dial.ts';
 import { meterShows, type MeterShown } from '../../../../shared/meter-display.ts';
 import { TEST_SETUPS, type SetupStatus } from '../../../../shared/test-setups.ts';
 import { CONDUCTOR_WORDS, POINT_WORDS } from '../../../components/schematic/layout.ts';
@@ -45,7 +46,7 @@ export function describeSetup(c: Controls, r: Readings, accessories: readonly { 
   if (c.clamp.conductor) parts.push(`clamp on ${CONDUCTOR_WORDS[c.clamp.conductor]} (${c.clamp.arrow === 'toward-battery' ? 'arrow toward battery' : 'arrow toward alternator'})`);
   if (c.ammeterInSeries) parts.push('series ammeter at battery −');
   parts.push(r.engine === 'running' ? `engine ${Math.round(r.tachRpm / 10) * 10} rpm` : `engine ${r.engine}, key ${c.key}`);
-  if (c.pileDial01 > 0) parts.push(`pile ${Math.round(c.pileDial01 * 100)} %, ${Math.round(r.pileA)} A`);
+  if (c.pileDial01 > 0) parts.push(`pile ${dialPercent(c.pileDial01)} %, ${Math.round(r.pileA)} A`);
   if (c.accessoriesOn.length) {
     const names = c.accessoriesOn.map((id) => accessories.find((a) => a.id === id)?.label.toLowerCase() ?? 'an accessory');
     parts.push(`${names.join(', ')} on`);

@@ -6,7 +6,7 @@
  */
 import { useEffect, useMemo, useState } from 'react';
 import { compileCar } from '../../../../sim/compiled-car.ts';
-import { FAULT_CATALOG } from '../../../../sim/faults.ts';
+import { FAULT_TEXT } from '../../../../shared/fault-catalogue-text.ts';
 import { outputCurve } from '../../../../sim/instruments.ts';
 import { benchScenarioView, type RecordedReading } from '../../../../shared/api/attempts.ts';
 import { diagnosisLabel, type ScenarioDefinition } from '../../../../shared/scenario.ts';
@@ -17,7 +17,7 @@ import { createBenchEngine } from '../stores/bench-engine.ts';
 import { BenchWorkspace } from './bench-workspace.tsx';
 import { DiagnosisForm, type DiagnosisValues } from './diagnosis-form.tsx';
 import { HintsPanel } from './hints-panel.tsx';
-import { OutputCurveChart } from './output-curve-chart.tsx';
+import { OutputCurveChart } from '../../../components/output-curve-chart.tsx';
 import { ReadingsList, RecordBar } from './readings-panel.tsx';
 
 function TryOutVerdict({ definition, diagnosis, onAgain }: { definition: ScenarioDefinition; diagnosis: DiagnosisValues; onAgain: () => void }) {
@@ -29,7 +29,7 @@ function TryOutVerdict({ definition, diagnosis, onAgain }: { definition: Scenari
         {right ? 'Right' : 'Not this time'}: you named “{diagnosisLabel(diagnosis.faultKind)}”.
       </p>
       <p className="text-slate-700">
-        The scenario’s {actual.length === 1 ? 'fault is' : 'faults are'}: {actual.map((k) => (k === 'none' ? diagnosisLabel('none') : FAULT_CATALOG[k].label)).join('; ')}.
+        The scenario’s {actual.length === 1 ? 'fault is' : 'faults are'}: {actual.map((k) => (k === 'none' ? diagnosisLabel('none') : FAULT_TEXT[k].label)).join('; ')}.
       </p>
       <p className="text-slate-600">A try-out is not graded and nothing of it is stored. Students are graded on the server’s re-run of their own attempt.</p>
       <Button variant="secondary" onClick={onAgain}>

@@ -17,7 +17,8 @@ import { applyInput } from '../../../../sim/inputs.ts';
 import { rawClampReadingA, readMeters, rippleTrace } from '../../../../sim/instruments.ts';
 import { advance, startPoint } from '../../../../sim/replay.ts';
 import { DT_MS } from '../../../../sim/step.ts';
-import { SETUP_TICK_MS, SetupTracker, setupCarOf, setupSampleOf, type SetupStatus } from '../../../../shared/test-setups.ts';
+import { DISPLAY_TICK_MS } from '../../../../shared/meter-display.ts';
+import { SetupTracker, setupCarOf, setupSampleOf, type SetupStatus } from '../../../../shared/test-setups.ts';
 import { MAX_ATTEMPT_MS } from '../../../../shared/api/attempts.ts';
 
 type DistributiveOmit<T, K extends PropertyKey> = T extends unknown ? Omit<T, K> : never;
@@ -33,13 +34,6 @@ export const HISTORY_SPAN_MS = 60_000;
 /** The scope view refreshes a few times a second, like a real sweep. */
 const TRACE_INTERVAL_MS = 200;
 const TRACE_SAMPLES = 240;
-/**
- * The meters' display refreshes on this grid of sim time, like a bench meter
- * settling ten times a second; a recorded reading is the value on display,
- * at that moment (the server samples its re-run, and feeds the set-ups, on
- * the same grid).
- */
-export const DISPLAY_INTERVAL_MS = SETUP_TICK_MS;
 /** The key springs back from start to on after this long, or once the engine runs. */
 export const START_HOLD_MS = 1500;
 /** The pile counts as loaded (a burst under way) above this current. */
@@ -135,7 +129,7 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
   const lastEventMs = student.length ? student[student.length - 1]!.atMs : 0;
   const resumeMs = Math.max(lastEventMs, options.resumeAtMs ?? 0);
   // Resume on a display tick, so the readouts are on the grid from the first frame.
-  const resumeAt = Math.ceil(resumeMs / DISPLAY_INTERVAL_MS) * DISPLAY_INTERVAL_MS;
+  const resumeAt = Math.ceil(resumeMs / DISPLAY_TICK_MS) * DISPLAY_TICK_MS;
   const tracker = new SetupTracker(setupCarOf(params));
   let point: ReplayPoint = startPoint(params, seed, options.changes);
   /** Feeds the tracker the display tick the model is on and reads the meters there. */
@@ -146,8 +140,8 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
   };
   // From the start, a display tick at a time, so the set-ups have seen every tick the server's re-run sees.
   tracker.feed(setupSampleOf(params, point.state, readMeters(params, point.state)));
-  for (let t = 0; t < resumeAt; t += DISPLAY_INTERVAL_MS) {
-    point = advance(params, point, events, DISPLAY_INTERVAL_MS / DT_MS);
+  for (let t = 0; t < resumeAt; t += DISPLAY_TICK_MS) {
+    point = advance(params, point, events, DISPLAY_TICK_MS / DT_MS);
     if (point.state.timeMs < resumeAt) tracker.feed(setupSampleOf(params, point.state, readMeters(params, point.state)));
   }
 
@@ -215,12 +209,12 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
     // The clock stops at the longest an attempt may run (the server refuses events after it).
     let left = Math.min(steps, Math.max(0, Math.floor((MAX_ATTEMPT_MS - point.state.timeMs) / DT_MS)));
     while (left > 0) {
-      const toTick = (DISPLAY_INTERVAL_MS - (point.state.timeMs % DISPLAY_INTERVAL_MS)) / DT_MS;
+      const toTick = (DISPLAY_TICK_MS - (point.state.timeMs % DISPLAY_TICK_MS)) / DT_MS;
       const slice = Math.min(left, toTick);
       point = advance(params, point, events, slice);
       shownControls = point.controls;
       left -= slice;
-      if (point.state.timeMs % DISPLAY_INTERVAL_MS === 0) {
+      if (point.state.timeMs % DISPLAY_TICK_MS === 0) {
         display = tickDisplay();
         sample();
       }

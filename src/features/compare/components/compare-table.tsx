@@ -2,14 +2,15 @@
 import { useMemo, useState, type ReactNode } from 'react';
 import { Link } from 'react-router-dom';
 import { createColumnHelper, flexRender, getCoreRowModel, getSortedRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
-import { FAULT_CATALOG, FAULT_KINDS, type FaultKind } from '../../../../sim/faults.ts';
+import { FAULT_KINDS, type FaultKind } from '../../../../sim/faults.ts';
+import { FAULT_TEXT } from '../../../../shared/fault-catalogue-text.ts';
 import { mistakeLabel } from '../../../../shared/api/attempts.ts';
 import type { CompareRow } from '../../../../shared/api/compare.ts';
 import { paths } from '../../../config/paths.ts';
 
 export const formatMinutes = (ms: number | null) => (ms === null ? '—' : `${(ms / 60_000).toFixed(1)} min`);
 
-const faultName = (k: string | null) => (k === null ? '—' : k === 'none' ? 'No fault' : (FAULT_KINDS as readonly string[]).includes(k) ? FAULT_CATALOG[k as FaultKind].label : 'Another fault');
+const faultName = (k: string | null) => (k === null ? '—' : k === 'none' ? 'No fault' : (FAULT_KINDS as readonly string[]).includes(k) ? FAULT_TEXT[k as FaultKind].label : 'Another fault');
 
 const col = createColumnHelper<CompareRow>();
 

@@ -1,6 +1,7 @@
 /** The instructor's fault for one running bench: any fault of the model, its severity, a delay, an optional on/off pattern. */
 import { useId, useState, type FormEvent } from 'react';
-import { FAULT_CATALOG, FAULT_KINDS, type FaultKind } from '../../../../sim/faults.ts';
+import { FAULT_KINDS, type FaultKind } from '../../../../sim/faults.ts';
+import { FAULT_TEXT } from '../../../../shared/fault-catalogue-text.ts';
 import { LIVE_BOUNDS } from '../../../../shared/api/live.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { SelectField, TextField } from '../../../components/ui/field.tsx';
@@ -35,10 +36,10 @@ export function InjectForm({ attemptId, studentName, onDone }: { attemptId: numb
 
   return (
     <form onSubmit={submit} className="mt-3 space-y-3 rounded-lg bg-stone-50 p-3 ring-1 ring-slate-200" aria-label={`Inject a fault for ${studentName}`}>
-      <SelectField label="Fault" value={kind} onChange={(e) => setKind(e.target.value as FaultKind)} error={fieldError('kind')} hint={FAULT_CATALOG[kind].severityMeaning}>
+      <SelectField label="Fault" value={kind} onChange={(e) => setKind(e.target.value as FaultKind)} error={fieldError('kind')} hint={FAULT_TEXT[kind].severityMeaning}>
         {FAULT_KINDS.map((k) => (
           <option key={k} value={k}>
-            {FAULT_CATALOG[k].label}
+            {FAULT_TEXT[k].label}
           </option>
         ))}
       </SelectField>

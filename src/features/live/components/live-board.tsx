@@ -1,6 +1,6 @@
 /** The running attempts of a class, one card each, kept live by the board's stream. */
 import { useEffect, useState } from 'react';
-import { FAULT_CATALOG } from '../../../../sim/faults.ts';
+import { FAULT_TEXT } from '../../../../shared/fault-catalogue-text.ts';
 import { BENCH_GONE_AFTER_MS, BENCH_IDLE_AFTER_MS, type BoardAttempt, type InjectionView, type LiveReadings } from '../../../../shared/api/live.ts';
 import { DIAGNOSTIC_TEST_LABELS } from '../../../../shared/scenario.ts';
 import { Button } from '../../../components/ui/button.tsx';
@@ -29,7 +29,7 @@ function Reading({ label, value }: { label: string; value: string }) {
 }
 
 function injectionText(i: InjectionView): string {
-  const label = i.kind ? FAULT_CATALOG[i.kind].label : 'Fault';
+  const label = i.kind ? FAULT_TEXT[i.kind].label : 'Fault';
   const parts = [label];
   if (i.severity01 !== null && i.severity01 < 1) parts.push(`${Math.round(i.severity01 * 100)} %`);
   if (i.delayS) parts.push(`after ${i.delayS} s`);

@@ -6,8 +6,9 @@
  */
 import { isScheduledActive } from '../../../../sim/car-changes.ts';
 import type { AccessoryParams } from '../../../../sim/params.ts';
+import { dialPercent } from '../../../../shared/dial.ts';
 import { NO_READING, meterShows, type MeterQuantity } from '../../../../shared/meter-display.ts';
-import { EngineBay, type BayState } from '../../../components/schematic/engine-bay.tsx';
+import { EngineBay, bayStateOf, type BayState } from '../../../components/schematic/engine-bay.tsx';
 import type { ReplayFrame } from '../hooks/use-replay-player.ts';
 
 const KEY_WORDS = { off: 'Off', on: 'On', start: 'Start' } as const;
@@ -24,23 +25,8 @@ function Readout({ label, value, testId }: { label: string; value: string; testI
   );
 }
 
-export function bayStateOf(frame: ReplayFrame): BayState {
-  const c = frame.point.controls;
-  return {
-    red: c.leads.red,
-    black: c.leads.black,
-    conductor: c.clamp.conductor,
-    arrow: c.clamp.arrow,
-    ammeter: c.ammeterInSeries,
-    bplus: c.bplusConnected,
-    accessoriesOn: c.accessoriesOn.join(','),
-    // As on the bench: the link is drawn open once it burnt open during the attempt.
-    linkOpen: frame.point.state.fusibleLinkBlown,
-    lamp: frame.readings.chargeWarning,
-    pileHot: frame.readings.pileHot,
-    pileOver: frame.readings.pileOverheated,
-  };
-}
+/** The bench's drawing state at a frame: as on the bench, the link is drawn open once it burnt open during the attempt. */
+const replayBayState = (frame: ReplayFrame): BayState => bayStateOf(frame.point.controls, frame.point.state.fusibleLinkBlown, frame.readings);
 
 /** A readout as the bench's display showed it (shared/meter-display.ts). */
 function shown(q: MeterQuantity, d: ReplayFrame['display']['readings']): string {
@@ -69,7 +55,7 @@ export function ReplayBenchView({
   const on = controls.accessoriesOn.map((id) => accessories.find((a) => a.id === id)?.label ?? 'an accessory');
   return (
     <div className="space-y-3">
-      <EngineBay state={bayStateOf(frame)} accessories={accessories} className="h-auto w-full rounded-lg bg-stone-50 ring-1 ring-slate-200" />
+      <EngineBay state={replayBayState(frame)} accessories={accessories} className="h-auto w-full rounded-xl bg-stone-50 ring-1 ring-slate-200" />
       <dl className="grid grid-cols-2 gap-2 sm:grid-cols-4" aria-live="off" data-testid="replay-readouts" data-at-ms={frame.display.atMs}>
         <Readout label="Volts" value={shown('voltage', d)} testId="replay-volts" />
         <Readout label="Ripple" value={shown('ripple', d)} testId="replay-ripple" />
@@ -81,7 +67,7 @@ export function ReplayBenchView({
         <Readout label="Key · engine" value={`${KEY_WORDS[controls.key]} · ${ENGINE_WORDS[r.engine] ?? r.engine}`} />
       </dl>
       <p className="text-sm text-slate-700">
-        Pile dial {Math.round(controls.pileDial01 * 100)} % · assistant holds {controls.heldRpm > 0 ? `${Math.round(controls.heldRpm).toLocaleString('en-US')} rpm` : 'idle'}
+        Pile dial {dialPercent(controls.pileDial01)} % · assistant holds {controls.heldRpm > 0 ? `${Math.round(controls.heldRpm).toLocaleString('en-US')} rpm` : 'idle'}
         {on.length ? ` · switched on: ${on.join(', ')}` : ''}
         {controls.ammeterInSeries ? ' · series ammeter fitted' : ''}
         {!controls.bplusConnected ? ' · B+ lead off' : ''}

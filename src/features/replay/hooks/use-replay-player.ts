@@ -15,7 +15,7 @@ import type { VehicleParams } from '../../../../sim/params.ts';
 import type { ReplayPoint } from '../../../../sim/replay.ts';
 import { advance, runAttempt, stateAt } from '../../../../sim/replay.ts';
 import { DT_MS } from '../../../../sim/step.ts';
-import { SETUP_TICK_MS } from '../../../../shared/test-setups.ts';
+import { DISPLAY_TICK_MS } from '../../../../shared/meter-display.ts';
 
 export const REPLAY_SPEEDS = [0.5, 1, 2, 4, 8] as const;
 export type ReplaySpeed = (typeof REPLAY_SPEEDS)[number];
@@ -57,7 +57,7 @@ export function useReplayPlayer(
     (ms: number): ReplayFrame => {
       const atMs = Math.min(durationMs, Math.max(0, toGrid(ms)));
       const point = stateAt(params, seed, events, atMs, run.snapshots, changes);
-      const tickMs = Math.floor(atMs / SETUP_TICK_MS) * SETUP_TICK_MS;
+      const tickMs = Math.floor(atMs / DISPLAY_TICK_MS) * DISPLAY_TICK_MS;
       const tick = tickMs === atMs ? point : stateAt(params, seed, events, tickMs, run.snapshots, changes);
       return { point, readings: readMeters(params, point.state), display: { atMs: tickMs, readings: readMeters(params, tick.state) } };
     },
@@ -98,10 +98,10 @@ export function useReplayPlayer(
         // Step in slices ending on display ticks, so the readouts take each tick's meters as the bench's did.
         for (let done = 0; done < n; ) {
           const t = pointRef.current.state.timeMs;
-          const slice = Math.min(n - done, (SETUP_TICK_MS - (t % SETUP_TICK_MS)) / DT_MS);
+          const slice = Math.min(n - done, (DISPLAY_TICK_MS - (t % DISPLAY_TICK_MS)) / DT_MS);
           pointRef.current = advance(params, pointRef.current, events, slice);
           done += slice;
-          if (pointRef.current.state.timeMs % SETUP_TICK_MS === 0) display = { atMs: pointRef.current.state.timeMs, readings: readMeters(params, pointRef.current.state) };
+          if (pointRef.current.state.timeMs % DISPLAY_TICK_MS === 0) display = { atMs: pointRef.current.state.timeMs, readings: readMeters(params, pointRef.current.state) };
         }
         displayRef.current = display;
         setFrame({ point: pointRef.current, readings: readMeters(params, pointRef.current.state), display });

@@ -1,5 +1,6 @@
 import { get, useFieldArray, useFormContext, useWatch, type FieldPath } from 'react-hook-form';
 import { FAULT_CATALOG, FAULT_KINDS, type FaultKind } from '../../../../sim/faults.ts';
+import { FAULT_TEXT } from '../../../../shared/fault-catalogue-text.ts';
 import { DIAGNOSTIC_TEST_LABELS, FAULT_BOUNDS } from '../../../../shared/scenario.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { SelectField } from '../../../components/ui/field.tsx';
@@ -19,7 +20,8 @@ function FaultRow({ index, remove }: { index: number; remove: () => void }) {
   const { register, control, setValue, formState } = useFormContext<ScenarioFormValues>();
   const kind = useWatch({ control, name: `faults.${index}.kind` }) as FaultKind;
   const intermittent = useWatch({ control, name: `faults.${index}.intermittent` });
-  const entry = FAULT_CATALOG[kind] ?? FAULT_CATALOG['diode-open'];
+  const entry = FAULT_TEXT[kind] ?? FAULT_TEXT['diode-open'];
+  const claims = FAULT_CATALOG[kind] ?? FAULT_CATALOG['diode-open'];
   const kindError = (get(formState.errors, `faults.${index}.kind`) as { message?: string } | undefined)?.message;
   const caution = CAUTIONS[kind];
   return (
@@ -28,7 +30,7 @@ function FaultRow({ index, remove }: { index: number; remove: () => void }) {
         <SelectField label={`Fault ${index + 1}`} error={kindError} {...register(`faults.${index}.kind`)}>
           {FAULT_KINDS.map((k) => (
             <option key={k} value={k}>
-              {FAULT_CATALOG[k].label}
+              {FAULT_TEXT[k].label}
             </option>
           ))}
         </SelectField>
@@ -41,7 +43,7 @@ function FaultRow({ index, remove }: { index: number; remove: () => void }) {
         </div>
       </div>
       <p className="mt-2 text-sm text-slate-600">{entry.description}</p>
-      <p className="mt-1 text-xs text-slate-500">Revealed by: {entry.revealedBy.map((t) => DIAGNOSTIC_TEST_LABELS[t]).join(', ')}</p>
+      <p className="mt-1 text-xs text-slate-500">Revealed by: {claims.revealedBy.map((t) => DIAGNOSTIC_TEST_LABELS[t]).join(', ')}</p>
       {caution && <p className="mt-2 rounded bg-warn-100 px-2 py-1 text-xs text-warn-700">Caution on a real vehicle: {caution} Follow the maker’s service information.</p>}
       <div className="mt-3">
         <label className="inline-flex items-center gap-2 text-sm">

@@ -1,5 +1,6 @@
 import { Controller, get, useFieldArray, useFormContext, useWatch, type FieldPath } from 'react-hook-form';
 import { FAULT_CATALOG, FAULT_KINDS, type DiagnosticTest, type FaultKind } from '../../../../sim/faults.ts';
+import { FAULT_TEXT } from '../../../../shared/fault-catalogue-text.ts';
 import { ACCESSORY_BOUNDS, DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, NO_FAULT_LABEL, PASS_RULE_BOUNDS, type DiagnosisChoice } from '../../../../shared/scenario.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { FieldShell } from '../../../components/ui/field.tsx';
@@ -107,7 +108,7 @@ export function DiagnosisChoicesSection() {
   const faults = useWatch({ control, name: 'faults' }) ?? [];
   const present = new Set(faults.map((f) => f.kind));
   const options: { value: DiagnosisChoice; label: string; note?: string }[] = [
-    ...FAULT_KINDS.map((k) => ({ value: k, label: FAULT_CATALOG[k].label, ...(present.has(k) ? { note: 'in this scenario' } : {}) })),
+    ...FAULT_KINDS.map((k) => ({ value: k, label: FAULT_TEXT[k].label, ...(present.has(k) ? { note: 'in this scenario' } : {}) })),
     { value: 'none' as const, label: NO_FAULT_LABEL },
   ];
   const includeFaults = () => {

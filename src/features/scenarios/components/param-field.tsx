@@ -1,6 +1,7 @@
 import { get, useFormContext, type FieldPath } from 'react-hook-form';
 import type { z } from 'zod';
-import { VEHICLE_PARAM_BOUNDS, type NumericParamPath, type ParamBound } from '../../../../sim/params.ts';
+import type { NumericParamPath, ParamBound } from '../../../../sim/params.ts';
+import { labelledBound, type LabelledBound } from '../../../../shared/param-labels.ts';
 import type { scenarioSchema } from '../../../../shared/scenario.ts';
 import { TextField } from '../../../components/ui/field.tsx';
 
@@ -13,7 +14,7 @@ export function unitText(b: Pick<ParamBound, 'unit'>): string {
 }
 
 /** A number input with its label, unit, allowed range and the schema's message when out of range. */
-export function BoundedNumberField({ name, bound, hint }: { name: FieldPath<ScenarioFormValues>; bound: ParamBound; hint?: string }) {
+export function BoundedNumberField({ name, bound, hint }: { name: FieldPath<ScenarioFormValues>; bound: LabelledBound; hint?: string }) {
   const { register, formState } = useFormContext<ScenarioFormValues>();
   const error = (get(formState.errors, name) as { message?: string } | undefined)?.message;
   const unit = bound.unit && bound.unit !== ':1' ? ` (${bound.unit})` : bound.unit === ':1' ? ' (:1)' : '';
@@ -34,7 +35,7 @@ export function BoundedNumberField({ name, bound, hint }: { name: FieldPath<Scen
 
 /** A vehicle parameter, by its dotted path in the model's parameters. */
 export function ParamField({ path, hint }: { path: NumericParamPath; hint?: string }) {
-  return <BoundedNumberField name={`vehicle.params.${path}` as FieldPath<ScenarioFormValues>} bound={VEHICLE_PARAM_BOUNDS[path]} {...(hint ? { hint } : {})} />;
+  return <BoundedNumberField name={`vehicle.params.${path}` as FieldPath<ScenarioFormValues>} bound={labelledBound(path)} {...(hint ? { hint } : {})} />;
 }
 
 export function FieldGrid({ children }: { children: React.ReactNode }) {

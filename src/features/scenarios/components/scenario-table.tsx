@@ -11,7 +11,8 @@ import {
 } from '@tanstack/react-table';
 import { useMemo, useState } from 'react';
 import { Link, useNavigate } from 'react-router-dom';
-import { FAULT_CATALOG, FAULT_KINDS, type DiagnosticTest, type FaultKind } from '../../../../sim/faults.ts';
+import { FAULT_KINDS, type DiagnosticTest, type FaultKind } from '../../../../sim/faults.ts';
+import { FAULT_TEXT } from '../../../../shared/fault-catalogue-text.ts';
 import type { ScenarioListItem } from '../../../../shared/api/scenarios.ts';
 import { DIAGNOSTIC_TEST_LABELS, DIAGNOSTIC_TESTS, DIFFICULTIES, DIFFICULTY_LABELS } from '../../../../shared/scenario.ts';
 import { Button } from '../../../components/ui/button.tsx';
@@ -103,7 +104,7 @@ export function ScenarioTable({ scenarios }: { scenarios: ScenarioListItem[] }) 
           c.getValue().length ? (
             <div className="flex flex-wrap gap-1">
               {c.getValue().map((k) => (
-                <Badge key={k}>{FAULT_CATALOG[k].label}</Badge>
+                <Badge key={k}>{FAULT_TEXT[k].label}</Badge>
               ))}
             </div>
           ) : (
@@ -188,7 +189,7 @@ export function ScenarioTable({ scenarios }: { scenarios: ScenarioListItem[] }) 
             <option value="">Any fault</option>
             {FAULT_KINDS.map((k: FaultKind) => (
               <option key={k} value={k}>
-                {FAULT_CATALOG[k].label}
+                {FAULT_TEXT[k].label}
               </option>
             ))}
           </select>
