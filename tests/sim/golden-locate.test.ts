@@ -4,6 +4,7 @@
  * in the fields the change touches, and nowhere earlier.
  */
 import { describe, expect, it } from 'vitest';
+import { DT_MS } from '../../sim/step';
 import { digestRun, goldenRuns } from './golden';
 import { CHECKPOINT_EVERY_MS, locateDifference, type RunCheckpoints } from './golden-locate';
 
@@ -26,6 +27,14 @@ describe('where a golden run first differs', () => {
     expect(where).toMatch(/\bnet\.branchA\b/);
     // What the pile cannot touch is not named: the key, the ammeter's fuses.
     expect(where).not.toMatch(/\blastKey\b|\bammeterFusesSeen\b/);
+  });
+
+  it('with windows of one step, names the very step where the run departs', () => {
+    // The pile event at 25 s takes effect in the step that starts there: the state after it, at 25.01 s, is the first to differ.
+    const changedRun = { ...base, events: [...base.events, { kind: 'pile' as const, atMs: 25_000, dial01: 0.3 }] };
+    const where = locateDifference(digestRun(base, DT_MS).checkpoints, digestRun(changedRun, DT_MS).checkpoints, DT_MS)!;
+    expect(where).toMatch(/^first differs between 25\.01 s and 25\.02 s of sim time \(earlier windows agree\), in \d+ of \d+ fields/);
+    expect(where).toMatch(/\bcontrols\b/);
   });
 
   it('names a single field alone, a changed run length, changed fields and parts', () => {

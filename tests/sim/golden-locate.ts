@@ -16,7 +16,7 @@
  */
 import { readFileSync } from 'node:fs';
 
-/** Sim time each checkpoint window spans. */
+/** Sim time each recorded checkpoint window spans (record-golden.ts can record finer ones to compare by hand). */
 export const CHECKPOINT_EVERY_MS = 10_000;
 
 /** The parts of a run's digest that are not its step-by-step states, in the order the tags keep them. */
@@ -26,7 +26,7 @@ export const RUN_PARTS = ['runAttempt snapshots, their meters and the final poin
 export interface RunCheckpoints {
   /** The fields tagged, in the order of each window's tags. */
   fields: string[];
-  /** Per window of CHECKPOINT_EVERY_MS, four hex digits per field. */
+  /** Per window of sim time, four hex digits per field. */
   windows: string[];
   /** Four hex digits per part of RUN_PARTS. */
   parts: string;
@@ -41,11 +41,10 @@ export interface StoredCheckpoints {
   runs: Record<string, Omit<RunCheckpoints, 'fields'> & { fields?: string[] }>;
 }
 
-/** The recorded checkpoints, each run with its fields. */
-export function readCheckpoints(file: URL): { math: Record<string, string>; runs: Record<string, RunCheckpoints> } {
+/** Recorded checkpoints, each run with its fields. */
+export function readCheckpoints(file: URL | string): { everyMs: number; math: Record<string, string>; runs: Record<string, RunCheckpoints> } {
   const stored = JSON.parse(readFileSync(file, 'utf8')) as StoredCheckpoints;
-  if (stored.everyMs !== CHECKPOINT_EVERY_MS) throw new Error(`the checkpoints were recorded every ${stored.everyMs} ms, not every ${CHECKPOINT_EVERY_MS} ms: re-record them`);
-  return { math: stored.math, runs: Object.fromEntries(Object.entries(stored.runs).map(([name, r]) => [name, { fields: r.fields ?? stored.fields, windows: r.windows, parts: r.parts }])) };
+  return { everyMs: stored.everyMs, math: stored.math, runs: Object.fromEntries(Object.entries(stored.runs).map(([name, r]) => [name, { fields: r.fields ?? stored.fields, windows: r.windows, parts: r.parts }])) };
 }
 
 const f64 = new Float64Array(1);
@@ -53,6 +52,8 @@ const u32 = new Uint32Array(f64.buffer);
 
 /** One 32-bit running hash per field, over a window at a time. */
 export class FieldTags {
+  constructor(private readonly everyMs = CHECKPOINT_EVERY_MS) {}
+
   readonly fields: string[] = [];
   private readonly index = new Map<string, number>();
   private acc: number[] = [];
@@ -62,7 +63,7 @@ export class FieldTags {
 
   /** Starts the window that holds `timeMs`, closing the ones before it. */
   at(timeMs: number): void {
-    const w = Math.floor(timeMs / CHECKPOINT_EVERY_MS);
+    const w = Math.floor(timeMs / this.everyMs);
     while (this.window < w) this.close();
   }
 
@@ -147,7 +148,7 @@ const tagsOf = (s: string): string[] => s.match(/.{4}/g) ?? [];
  * the parts that differ when every step's state agrees. Null when nothing the
  * checkpoints hold differs.
  */
-export function locateDifference(recorded: RunCheckpoints | undefined, now: RunCheckpoints): string | null {
+export function locateDifference(recorded: RunCheckpoints | undefined, now: RunCheckpoints, everyMs = CHECKPOINT_EVERY_MS): string | null {
   if (!recorded) return 'no checkpoints are recorded for this run (record them: see golden-runs.test.ts)';
   const added = now.fields.filter((f) => !recorded.fields.includes(f));
   const removed = recorded.fields.filter((f) => !now.fields.includes(f));
@@ -158,14 +159,14 @@ export function locateDifference(recorded: RunCheckpoints | undefined, now: RunC
   for (let w = 0; w < windows; w++) {
     const was = tagsOf(recorded.windows[w] ?? '');
     const is = tagsOf(now.windows[w] ?? '');
-    const from = w * CHECKPOINT_EVERY_MS;
+    const from = w * everyMs;
     if (!recorded.windows[w] || !now.windows[w]) {
-      lines.push(`the run ${recorded.windows[w] ? 'now ends' : 'now goes on'} at ${seconds(from)} of sim time (recorded: ${recorded.windows.length} windows of ${seconds(CHECKPOINT_EVERY_MS)})`);
+      lines.push(`the run ${recorded.windows[w] ? 'now ends' : 'now goes on'} at ${seconds(from)} of sim time (recorded: ${recorded.windows.length} windows of ${seconds(everyMs)})`);
       break;
     }
     const differ = common.filter((f) => was[recorded.fields.indexOf(f)] !== is[now.fields.indexOf(f)]);
     if (differ.length) {
-      const when = `first differs between ${seconds(from)} and ${seconds(from + CHECKPOINT_EVERY_MS)} of sim time (earlier windows agree)`;
+      const when = `first differs between ${seconds(from)} and ${seconds(from + everyMs)} of sim time (earlier windows agree)`;
       lines.push(differ.length === 1 ? `${when}, in the field ${differ[0]} alone` : `${when}, in ${differ.length} of ${common.length} fields, in the state's order: ${differ.join(', ')}`);
       break;
     }

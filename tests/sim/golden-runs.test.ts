@@ -15,12 +15,14 @@
 import { describe, expect, it } from 'vitest';
 import * as detMath from '../../sim/det-math';
 import { digestMathParts, digestOtherSteps, digestRun, goldenRuns, OTHER_STEP_LENGTHS_MS, OTHER_STEPS_NAME, OTHER_STEPS_RUN_MS } from './golden';
-import { locateDifference, readCheckpoints, type RunCheckpoints } from './golden-locate';
+import { CHECKPOINT_EVERY_MS, locateDifference, readCheckpoints, type RunCheckpoints } from './golden-locate';
 
 /** Where each run stood at each checkpoint, recorded with the digests below. */
 const CHECKPOINTS = readCheckpoints(new URL('./golden-checkpoints.json', import.meta.url));
+if (CHECKPOINTS.everyMs !== CHECKPOINT_EVERY_MS) throw new Error(`golden-checkpoints.json holds windows of ${CHECKPOINTS.everyMs} ms, not ${CHECKPOINT_EVERY_MS} ms: re-record it`);
 
 const RECORD = 'npx tsx tests/sim/record-golden.ts';
+const finer = (name: string) => `To the step: record the earlier model's checkpoints of this run every 10 ms (${RECORD} --every-ms 10 --only "${name}" --to <file>, in a checkout of it) and compare the model here with them (${RECORD} --compare <file>)`;
 
 /**
  * Checks a run's digest; when it differs, the message names where the run
@@ -31,7 +33,7 @@ function expectAsRecorded(name: string, now: { digest: string; checkpoints: RunC
   const recorded = CHECKPOINTS.runs[name];
   if (now.digest !== GOLDEN[name]) {
     const where = locateDifference(recorded, now.checkpoints) ?? 'the checkpoints agree: the difference is in what only the digest takes';
-    expect.fail(`the digest of "${name}" differs from the recorded one: ${where}${note}`);
+    expect.fail(`the digest of "${name}" differs from the recorded one: ${where}${note}. ${finer(name)}`);
   }
   expect(JSON.stringify(now.checkpoints) === JSON.stringify(recorded), `the checkpoints of "${name}" are not the ones recorded with its digest: re-record both with ${RECORD}`).toBe(true);
 }

@@ -30,7 +30,7 @@ import { DT_MS, initialState, step } from '../../sim/step';
 import type { SimState } from '../../sim/step';
 import { outputCurve, readMeters, rippleTrace } from '../../sim/instruments';
 import { rectifierCircuitAt, solveRectifier } from '../../sim/rectifier';
-import { FieldTags, partTag, RUN_PARTS, type RunCheckpoints } from './golden-locate';
+import { CHECKPOINT_EVERY_MS, FieldTags, partTag, RUN_PARTS, type RunCheckpoints } from './golden-locate';
 
 export interface GoldenRun {
   name: string;
@@ -497,7 +497,8 @@ function tagState(tags: FieldTags, s: SimState): void {
   }
 }
 
-export function digestRun(run: GoldenRun): RunDigest {
+/** A run's digest and the checkpoints beside it (windows of `everyMs` of sim time). */
+export function digestRun(run: GoldenRun, everyMs = CHECKPOINT_EVERY_MS): RunDigest {
   const h = createHash('sha256');
   const { params, seed, untilMs } = run;
   const ordered = orderEvents(run.events);
@@ -507,7 +508,7 @@ export function digestRun(run: GoldenRun): RunDigest {
     h.update(text);
     parts[part]!.update(text);
   };
-  const tags = new FieldTags();
+  const tags = new FieldTags(everyMs);
 
   // runAttempt: snapshots and the final point, as JSON (key order included), with the instruments.
   const attempt = runAttempt(params, seed, run.events, untilMs, { snapshotEveryMs: SNAPSHOT_EVERY_MS });
@@ -588,9 +589,9 @@ export const OTHER_STEPS_RUN_MS = 20_000;
 export const OTHER_STEP_LENGTHS_MS = [5, 20, 10, 1] as const;
 
 /** The bare step at other step lengths than the replay's (the step's dt is a parameter). */
-export function digestOtherSteps(): { digest: string; checkpoints: RunCheckpoints } {
+export function digestOtherSteps(everyMs = CHECKPOINT_EVERY_MS): { digest: string; checkpoints: RunCheckpoints } {
   const h = createHash('sha256');
-  const tags = new FieldTags();
+  const tags = new FieldTags(everyMs);
   const params = defaultVehicleParams();
   OTHER_STEP_LENGTHS_MS.forEach((dtMs, k) => {
     let s = initialState(params, 3);
@@ -659,12 +660,13 @@ export function digestMathParts(f: MathFunctions): { digest: string; byFunction:
 export const OTHER_STEPS_NAME = 'bare step at 5, 20, 10 and 1 ms';
 
 /** Every digest and its checkpoints, by run name (record-golden.ts records them). */
-export function goldenDigests(): Record<string, { digest: string; checkpoints: RunCheckpoints }> {
+export function goldenDigests(everyMs = CHECKPOINT_EVERY_MS, only?: (name: string) => boolean): Record<string, { digest: string; checkpoints: RunCheckpoints }> {
   const out: Record<string, { digest: string; checkpoints: RunCheckpoints }> = {};
   for (const run of goldenRuns()) {
-    const { digest, checkpoints } = digestRun(run);
+    if (only && !only(run.name)) continue;
+    const { digest, checkpoints } = digestRun(run, everyMs);
     out[run.name] = { digest, checkpoints };
   }
-  out[OTHER_STEPS_NAME] = digestOtherSteps();
+  if (!only || only(OTHER_STEPS_NAME)) out[OTHER_STEPS_NAME] = digestOtherSteps(everyMs);
   return out;
 }
