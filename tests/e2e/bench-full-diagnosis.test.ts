@@ -6,7 +6,7 @@ import { scenarios, scenarioVersions } from '../../server/db/schema.ts';
 import { restoreScenario } from '../../shared/scenario.ts';
 import { SCREENSHOT_DIR } from './browser.ts';
 import { browserAndServerForFile, signInAs, watchConsole } from './support.ts';
-import { assignToStudent, diagnose, holdRpm, hookUp, loadDownTo, reading, recordReading, startEngine } from './bench-helpers.ts';
+import { assignToStudent, awaitSetup, diagnose, holdRpm, hookUp, loadDownTo, reading, recordReading, startEngine, turnDial } from './bench-helpers.ts';
 
 const e2e = browserAndServerForFile();
 
@@ -41,8 +41,9 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await dial.focus();
     for (let i = 0; i < 100 && (await pileAmps(page)) < 300; i++) await page.keyboard.press((await pileAmps(page)) < 240 ? 'PageUp' : 'ArrowUp');
     expect(await pileAmps(page)).toBeGreaterThanOrEqual(300);
+    // Ten seconds of the burst at once, then the rest of its hold as the bench runs.
     await page.getByRole('button', { name: 'Let 10 s pass on the bench' }).click();
-    await page.waitForTimeout(5200);
+    await awaitSetup(page, 'battery-load');
     values.loaded = await reading(page, 'volts');
     await recordReading(page, 'battery-load');
     await page.getByRole('button', { name: 'Load off' }).click();
@@ -52,23 +53,20 @@ describe('a whole diagnosis of an assigned scenario', () => {
     await startEngine(page);
     await holdRpm(page, '2,000');
     await page.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
-    await page.waitForTimeout(1000);
+    await awaitSetup(page, 'regulated-voltage');
     values.regulated = await reading(page, 'volts');
     await recordReading(page, 'regulated-voltage');
 
     // 4. Output: load to about 12 V, hold it a moment, read the clamp, load off quickly.
     await loadDownTo(page, 12.05);
-    await page.waitForTimeout(1500);
+    await awaitSetup(page, 'output');
     values.output = await reading(page, 'amps');
     await recordReading(page, 'output');
     await page.getByRole('button', { name: 'Load off' }).click();
 
     // 5 and 6. Voltage drops with the pile on the posts drawing about 20 A, so the current runs through every joint.
     await dial.focus();
-    for (let i = 0; i < 60 && (await pileAmps(page)) < 18; i++) {
-      await page.keyboard.press((await pileAmps(page)) < 6 ? 'PageUp' : 'ArrowUp');
-      await page.waitForTimeout(150);
-    }
+    for (let i = 0; i < 60 && (await pileAmps(page)) < 18; i++) await turnDial(page, (await pileAmps(page)) < 6 ? 'PageUp' : 'ArrowUp');
     expect(await pileAmps(page)).toBeGreaterThanOrEqual(15);
     expect(await pileAmps(page)).toBeLessThanOrEqual(30);
     values.chargeAmps = await reading(page, 'amps');
@@ -86,14 +84,11 @@ describe('a whole diagnosis of an assigned scenario', () => {
     const [healthy] = await e2e.app.server.ctx.db.select({ definition: scenarioVersions.definition }).from(scenarios).innerJoin(scenarioVersions, eq(scenarioVersions.id, scenarios.publishedVersionId)).where(eq(scenarios.slug, 'healthy-control-corvane-linden'));
     const ratedA = restoreScenario(healthy!.definition).vehicle.params.alternator.ratedCurrentA;
     await dial.focus();
-    for (let i = 0; i < 80 && (await reading(page, 'amps')) < 0.5 * ratedA; i++) {
-      await page.keyboard.press((await reading(page, 'amps')) < 0.5 * ratedA - 40 ? 'PageUp' : 'ArrowUp');
-      await page.waitForTimeout(150);
-    }
+    for (let i = 0; i < 80 && (await reading(page, 'amps')) < 0.5 * ratedA; i++) await turnDial(page, (await reading(page, 'amps')) < 0.5 * ratedA - 40 ? 'PageUp' : 'ArrowUp');
     values.rippleLoadA = await reading(page, 'amps');
     expect(values.rippleLoadA).toBeGreaterThanOrEqual(0.45 * ratedA);
     expect(values.rippleLoadA).toBeLessThanOrEqual(0.7 * ratedA);
-    await page.waitForTimeout(6000);
+    await awaitSetup(page, 'ripple');
     values.rippleMv = await reading(page, 'ripple');
     await recordReading(page, 'ripple', 'ripple');
     await page.getByRole('button', { name: 'Load off' }).click();

@@ -44,6 +44,28 @@ export const reading = async (page: Page, id: 'volts' | 'amps' | 'rpm' | 'ripple
   return Number(text.replace('\u2212', '-').replace(/,/g, ''));
 };
 
+/** The bench time, in ms, of the display tick the readouts show now. */
+export const shownAtMs = async (page: Page): Promise<number> => Number(await page.getByTestId('reading-strip').getAttribute('data-at-ms'));
+
+/**
+ * Waits until the readouts show a display tick at least `ms` of bench time
+ * later than the one they show now: what a change needs to reach the meters,
+ * however little bench time a busy machine gives each real second.
+ */
+export async function letReadoutsMoveOn(page: Page, ms: number): Promise<void> {
+  const from = await shownAtMs(page);
+  await expect.poll(() => shownAtMs(page), { timeout: 30_000 }).toBeGreaterThanOrEqual(from + ms);
+}
+
+/** Bench time the readouts are given to follow one turn of the pile's dial (three display ticks). */
+export const DIAL_SETTLE_MS = 300;
+
+/** Turns the pile's dial by one key press and waits until the readouts show the load it gives. */
+export async function turnDial(page: Page, key: 'ArrowUp' | 'PageUp' | 'ArrowDown' | 'PageDown'): Promise<void> {
+  await page.keyboard.press(key);
+  await letReadoutsMoveOn(page, DIAL_SETTLE_MS);
+}
+
 /** Opens one of the bench's side panels (Procedure, Hook-up, Car, Readings, Charts, Diagnose). */
 export async function openPanel(page: Page, name: 'Procedure' | 'Hook-up' | 'Car' | 'Readings' | 'Charts' | 'Diagnose'): Promise<void> {
   const tab = page.getByRole('tablist', { name: 'Bench panels' }).getByRole('tab', { name: new RegExp(`^${name}`) });
@@ -79,8 +101,7 @@ export async function loadDownTo(page: Page, volts: number): Promise<void> {
   await dial.focus();
   for (let i = 0; i < 100; i++) {
     if ((await reading(page, 'volts')) <= volts) return;
-    await page.keyboard.press((await reading(page, 'volts')) > volts + 0.6 ? 'PageUp' : 'ArrowUp');
-    await page.waitForTimeout(250);
+    await turnDial(page, (await reading(page, 'volts')) > volts + 0.6 ? 'PageUp' : 'ArrowUp');
   }
   throw new Error(`could not load the system down to ${volts} V`);
 }
@@ -94,11 +115,22 @@ export async function loadDownTo(page: Page, volts: number): Promise<void> {
 export async function recordReading(page: Page, test: DiagnosticTest, quantity: ReadingQuantity = TEST_SETUPS[test].quantity, opts: { inSetup?: boolean } = {}): Promise<void> {
   expect(TEST_SETUPS[test].quantity).toBe(quantity);
   const form = page.getByRole('form', { name: 'Record a reading' });
-  await form.getByLabel('Test').selectOption(test);
-  if (opts.inSetup) await expect.poll(() => page.getByTestId('setup-status').textContent(), { timeout: 30_000 }).toMatch(/^Set-up holds/);
+  if (opts.inSetup) await awaitSetup(page, test);
+  else await form.getByLabel('Test').selectOption(test);
   const before = await page.getByTestId('recorded-reading').count();
   await form.getByRole('button', { name: 'Record this reading' }).click();
   await expect.poll(() => page.getByTestId('recorded-reading').count()).toBe(before + 1);
+}
+
+/**
+ * Chooses `test` in the record bar and waits until the bar says its set-up
+ * holds (shared/test-setups.ts: the conditions, held their time), so a
+ * reading taken next counts.
+ */
+export async function awaitSetup(page: Page, test: DiagnosticTest): Promise<void> {
+  const form = page.getByRole('form', { name: 'Record a reading' });
+  await form.getByLabel('Test').selectOption(test);
+  await expect.poll(() => page.getByTestId('setup-status').textContent(), { timeout: 30_000 }).toMatch(/^Set-up holds/);
 }
 
 export async function diagnose(page: Page, verdicts: Record<string, 'Pass' | 'Fail'>, fault: string): Promise<void> {

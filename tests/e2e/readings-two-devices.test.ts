@@ -34,11 +34,9 @@ describe('readings on two devices', () => {
     await startEngine(a);
     await holdRpm(a, '2,000');
     await a.getByRole('button', { name: 'Let 1 min pass on the bench' }).click();
-    await a.waitForTimeout(1000);
-    await recordReading(a, 'regulated-voltage', 'voltage');
+    await recordReading(a, 'regulated-voltage', 'voltage', { inSetup: true });
     await loadDownTo(a, 12.05);
-    await a.waitForTimeout(1500);
-    await recordReading(a, 'output', 'current');
+    await recordReading(a, 'output', 'current', { inSetup: true });
     await a.getByRole('button', { name: 'Load off' }).click();
     // "saved" on every reading once the server has stored it.
     await expect.poll(async () => (await a.getByTestId('reading-saved').allTextContents()).join(','), { timeout: 15_000 }).toBe('saved,saved,saved');

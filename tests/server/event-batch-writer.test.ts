@@ -172,6 +172,7 @@ describe('the event batch writer', () => {
 
   it('stores every event of any mix of batches exactly once, however they are grouped (property)', async () => {
     const ids = await Promise.all([1, 2, 3].map(() => start()));
+    const RUNS = 25;
     let round = 0;
     await fc.assert(
       fc.asyncProperty(
@@ -194,8 +195,8 @@ describe('the event batch writer', () => {
           }
         },
       ),
-      { numRuns: 25 },
+      { numRuns: RUNS },
     );
-    expect(round).toBe(25);
+    expect(round).toBe(RUNS);
   });
 });

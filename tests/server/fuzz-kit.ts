@@ -148,23 +148,32 @@ export async function fingerprint(pool: pg.Pool): Promise<string> {
 }
 
 export interface Checker {
-  /** Checks one answer; `validated` says the route validates this input (so a 400 names a field). */
-  check(what: string, answer: Answer): Promise<void>;
+  /**
+   * Checks one answer; `validated` says the route validates this input (so a 400 names a field).
+   * `plan` names the planned run the case belongs to (the target's name unless given).
+   */
+  check(what: string, answer: Answer, plan?: string): Promise<void>;
   /** Takes a new baseline after the test itself wrote something. */
   rebase(): Promise<void>;
+  /** Cases checked in all. */
   cases(): number;
+  /** Cases checked for each planned run, by its name. */
+  casesByPlan(): Record<string, number>;
 }
 
 export async function checker(pool: pg.Pool): Promise<Checker> {
   let last = await fingerprint(pool);
   let count = 0;
+  const byPlan: Record<string, number> = {};
   return {
     cases: () => count,
+    casesByPlan: () => ({ ...byPlan }),
     async rebase() {
       last = await fingerprint(pool);
     },
-    async check(what, answer) {
+    async check(what, answer, plan = what) {
       count++;
+      byPlan[plan] = (byPlan[plan] ?? 0) + 1;
       const label = `${what} -> ${answer.status} ${answer.text.slice(0, 200)}`;
       const before = last;
       const now = await fingerprint(pool);
@@ -214,6 +223,27 @@ export async function runTarget(ck: Checker, target: Target): Promise<void> {
     }),
     { numRuns: target.runs },
   );
+}
+
+/**
+ * The plan a file's "ran every planned case" check compares with: each planned
+ * run's name and case count, taken from the very list the runs iterate.
+ */
+export function planOf(runs: readonly { name: string; runs: number }[]): { byPlan: Record<string, number>; total: number } {
+  const byPlan: Record<string, number> = {};
+  for (const r of runs) {
+    if (r.name in byPlan) throw new Error(`two planned runs are named "${r.name}"`);
+    byPlan[r.name] = r.runs;
+  }
+  return { byPlan, total: runs.reduce((sum, r) => sum + r.runs, 0) };
+}
+
+/** Checks that every planned run ran each of its cases, and nothing else ran. */
+export function expectRanThePlan(ck: Checker, runs: readonly { name: string; runs: number }[]): void {
+  const plan = planOf(runs);
+  expect(plan.total).toBeGreaterThan(0);
+  expect(ck.casesByPlan()).toEqual(plan.byPlan);
+  expect(ck.cases()).toBe(plan.total);
 }
 
 /** A fuzz test runs many requests: a generous limit for a busy machine (no test fails on speed below it). */

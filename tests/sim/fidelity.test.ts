@@ -240,7 +240,8 @@ describe('cars inside the editor’s bounds', () => {
     return p;
   });
 
-  it('start when their design passes the editor’s cold-start rule and their battery is in service (300 cars)', () => {
+  const COLD_START_CARS = 300;
+  it(`start when their design passes the editor’s cold-start rule and their battery is in service (${COLD_START_CARS} cars)`, () => {
     // The CCA rating's temperature, -18 °C (OEM GM 1999 Chevrolet Prizm); shared/vehicle-rules.ts.
     let checked = 0;
     fc.assert(
@@ -250,9 +251,10 @@ describe('cars inside the editor’s bounds', () => {
         checked++;
         return crankTrial(p).started;
       }),
-      { numRuns: 300 },
+      { numRuns: COLD_START_CARS },
     );
-    expect(checked).toBeGreaterThan(100);
+    // More than a third of the planned cars pass the cold-start rule, so the property is not checked on a few.
+    expect(checked).toBeGreaterThan(COLD_START_CARS / 3);
   });
 
   it('deliver their nameplate within 15 % once the stator is sized for it, as the editor shows', () => {

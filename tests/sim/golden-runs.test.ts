@@ -5,11 +5,38 @@
  * meant only to make the model faster must leave every digest as it is, bit
  * for bit: the bench and the server's grading re-run the same model and must
  * agree. A change meant to alter the model's behaviour re-records the digests
- * (print `goldenDigests()` from golden.ts) and says why in its commit.
+ * and their checkpoints (`npx tsx tests/sim/record-golden.ts`, which prints
+ * the digests that changed) and says why in its commit.
+ *
+ * When a digest differs, the failure says where the run first departs: the
+ * first 10 s of sim time whose checkpoint tags differ and the state fields
+ * that differ in it (golden-locate.ts, golden-checkpoints.json).
  */
 import { describe, expect, it } from 'vitest';
 import * as detMath from '../../sim/det-math';
-import { digestMath, digestOtherSteps, digestRun, goldenRuns } from './golden';
+import { digestMathParts, digestOtherSteps, digestRun, goldenRuns, OTHER_STEP_LENGTHS_MS, OTHER_STEPS_NAME, OTHER_STEPS_RUN_MS } from './golden';
+import { CHECKPOINT_EVERY_MS, locateDifference, readCheckpoints, type RunCheckpoints } from './golden-locate';
+
+/** Where each run stood at each checkpoint, recorded with the digests below. */
+const CHECKPOINTS = readCheckpoints(new URL('./golden-checkpoints.json', import.meta.url));
+if (CHECKPOINTS.everyMs !== CHECKPOINT_EVERY_MS) throw new Error(`golden-checkpoints.json holds windows of ${CHECKPOINTS.everyMs} ms, not ${CHECKPOINT_EVERY_MS} ms: re-record it`);
+
+const RECORD = 'npx tsx tests/sim/record-golden.ts';
+const finer = (name: string) => `To the step: record the earlier model's checkpoints of this run every 10 ms (${RECORD} --every-ms 10 --only "${name}" --to <file>, in a checkout of it) and compare the model here with them (${RECORD} --compare <file>)`;
+
+/**
+ * Checks a run's digest; when it differs, the message names where the run
+ * first departs. With the digest equal, the checkpoints must be the ones
+ * recorded with it (else they were not re-recorded together).
+ */
+function expectAsRecorded(name: string, now: { digest: string; checkpoints: RunCheckpoints }, note = ''): void {
+  const recorded = CHECKPOINTS.runs[name];
+  if (now.digest !== GOLDEN[name]) {
+    const where = locateDifference(recorded, now.checkpoints) ?? 'the checkpoints agree: the difference is in what only the digest takes';
+    expect.fail(`the digest of "${name}" differs from the recorded one: ${where}${note}. ${finer(name)}`);
+  }
+  expect(JSON.stringify(now.checkpoints) === JSON.stringify(recorded), `the checkpoints of "${name}" are not the ones recorded with its digest: re-record both with ${RECORD}`).toBe(true);
+}
 
 /** The elementary functions in det-math.ts over golden.ts's inputs (recorded before their speed work too). */
 const GOLDEN_MATH = 'd83c4102d2f463fdbcae5724910c0112002fe75904ca5f693800063e0e4fd205';
@@ -79,14 +106,15 @@ const GOLDEN: Readonly<Record<string, string>> = {
 describe('golden runs (self-consistency: digests recorded from the model before its speed work)', () => {
   const runs = goldenRuns();
 
-  it('has a recorded digest for every run and a run for every digest', () => {
-    expect([...runs.map((r) => r.name), 'bare step at 5, 20, 10 and 1 ms'].sort()).toEqual(Object.keys(GOLDEN).sort());
+  it('has a recorded digest for every run and a run for every digest, with checkpoints for each', () => {
+    expect([...runs.map((r) => r.name), OTHER_STEPS_NAME].sort()).toEqual(Object.keys(GOLDEN).sort());
+    expect(Object.keys(CHECKPOINTS.runs).sort()).toEqual(Object.keys(GOLDEN).sort());
   });
 
   for (const run of runs) {
     it(run.name, () => {
       const result = digestRun(run);
-      expect(result.digest).toBe(GOLDEN[run.name]);
+      expectAsRecorded(run.name, result);
       // Stepping one step at a time ends where runAttempt does, and seeks from stored snapshots agree.
       expect(result.consistent).toBe(true);
       if (run.reaches) expect(run.reaches(result.reached), `the run no longer reaches what it is for: ${JSON.stringify(result.reached)}`).toBe(true);
@@ -94,10 +122,14 @@ describe('golden runs (self-consistency: digests recorded from the model before 
   }
 
   it('the elementary functions, bit for bit', () => {
-    expect(digestMath(detMath)).toBe(GOLDEN_MATH);
+    const now = digestMathParts(detMath);
+    const differ = Object.keys(now.byFunction).filter((name) => now.byFunction[name] !== CHECKPOINTS.math[name]);
+    expect(now.digest, `the elementary functions differ from the recorded ones: ${differ.join(', ') || 'none by its own tag'}`).toBe(GOLDEN_MATH);
+    expect(now.byFunction, `the functions' tags are not the ones recorded with the digest: re-record with ${RECORD}`).toEqual(CHECKPOINTS.math);
   });
 
-  it('bare step at 5, 20, 10 and 1 ms', () => {
-    expect(digestOtherSteps()).toBe(GOLDEN['bare step at 5, 20, 10 and 1 ms']);
+  it(OTHER_STEPS_NAME, () => {
+    const order = OTHER_STEP_LENGTHS_MS.map((dt, k) => `${dt} ms from ${(k * OTHER_STEPS_RUN_MS) / 1000} s`).join(', ');
+    expectAsRecorded(OTHER_STEPS_NAME, digestOtherSteps(), ` (the step lengths run one after another on the checkpoints' clock: ${order})`);
   });
 });

@@ -11,7 +11,9 @@
  * output, not a check against the outside world: the digests stored in
  * golden-runs.test.ts were recorded from the model before its speed work, so
  * any change meant only to make it faster must leave every digest as it is.
- * A change meant to alter the physics re-records them (`goldenDigests()`).
+ * A change meant to alter the physics re-records them, and the checkpoints
+ * that say where a digest first differs (golden-locate.ts), with
+ * `npx tsx tests/sim/record-golden.ts`.
  */
 import { createHash } from 'node:crypto';
 import type { Hash } from 'node:crypto';
@@ -28,6 +30,7 @@ import { DT_MS, initialState, step } from '../../sim/step';
 import type { SimState } from '../../sim/step';
 import { outputCurve, readMeters, rippleTrace } from '../../sim/instruments';
 import { rectifierCircuitAt, solveRectifier } from '../../sim/rectifier';
+import { CHECKPOINT_EVERY_MS, FieldTags, partTag, RUN_PARTS, type RunCheckpoints } from './golden-locate';
 
 export interface GoldenRun {
   name: string;
@@ -477,28 +480,48 @@ function noteReached(f: ReachedFlags, s: SimState, prev: SimState): void {
 
 export interface RunDigest {
   digest: string;
+  /** Where the run stands at each checkpoint, for naming where a digest first differs (golden-locate.ts). */
+  checkpoints: RunCheckpoints;
   reached: ReachedFlags;
   /** Whether the step-by-step run and runAttempt ended on the same point, and seeks from stored snapshots agreed. */
   consistent: boolean;
 }
 
-export function digestRun(run: GoldenRun): RunDigest {
+/** Tags one state's fields (the network's parts one by one) for the checkpoints; the controls are tagged where they change. */
+function tagState(tags: FieldTags, s: SimState): void {
+  tags.at(s.timeMs);
+  for (const key of Object.keys(s) as (keyof SimState)[]) {
+    if (key === 'controls') continue;
+    if (key === 'net') for (const part of Object.keys(s.net) as (keyof SimState['net'])[]) tags.add(`net.${part}`, s.net[part]);
+    else tags.add(key, s[key]);
+  }
+}
+
+/** A run's digest and the checkpoints beside it (windows of `everyMs` of sim time). */
+export function digestRun(run: GoldenRun, everyMs = CHECKPOINT_EVERY_MS): RunDigest {
   const h = createHash('sha256');
   const { params, seed, untilMs } = run;
   const ordered = orderEvents(run.events);
+  // Each part of the digest once more on its own, and the states field by field, to say where a digest differs.
+  const parts = RUN_PARTS.map(() => createHash('sha256'));
+  const feed = (part: number, text: string) => {
+    h.update(text);
+    parts[part]!.update(text);
+  };
+  const tags = new FieldTags(everyMs);
 
   // runAttempt: snapshots and the final point, as JSON (key order included), with the instruments.
   const attempt = runAttempt(params, seed, run.events, untilMs, { snapshotEveryMs: SNAPSHOT_EVERY_MS });
   attempt.snapshots.forEach((snap, k) => {
-    h.update(exactJson(snap));
-    h.update(exactJson(readMeters(params, snap.state, snap.controls)));
+    feed(0, exactJson(snap));
+    feed(0, exactJson(readMeters(params, snap.state, snap.controls)));
     if (k % 5 === 0) {
-      h.update(exactJson(rippleTrace(params, snap.state, 72)));
-      h.update(exactJson(solveRectifier(rectifierCircuitAt(params, snap.state))));
+      feed(1, exactJson(rippleTrace(params, snap.state, 72)));
+      feed(1, exactJson(solveRectifier(rectifierCircuitAt(params, snap.state))));
     }
   });
-  h.update(exactJson(attempt.final));
-  h.update(exactJson(readMeters(params, attempt.final.state, attempt.final.controls)));
+  feed(0, exactJson(attempt.final));
+  feed(0, exactJson(readMeters(params, attempt.final.state, attempt.final.controls)));
 
   // Every step on its own, bit for bit, and the meters every 100 ms as the grader takes them.
   const reached: ReachedFlags = {
@@ -515,6 +538,8 @@ export function digestRun(run: GoldenRun): RunDigest {
   };
   let point: ReplayPoint = startPoint(params, seed);
   feedBits(h, point.state);
+  tagState(tags, point.state);
+  tags.add('controls', exactJson(point.state.controls));
   const total = Math.floor(untilMs / DT_MS);
   let lastControls = null as unknown;
   for (let i = 1; i <= total; i++) {
@@ -522,13 +547,20 @@ export function digestRun(run: GoldenRun): RunDigest {
     point = advance(params, point, ordered, 1);
     const s = point.state;
     noteReached(reached, s, prev);
+    tagState(tags, s);
     if (s.controls !== lastControls) {
       lastControls = s.controls;
-      h.update(exactJson(s.controls));
+      const controls = exactJson(s.controls);
+      h.update(controls);
+      tags.add('controls', controls);
     }
     const { controls: _controls, ...rest } = s;
     feedBits(h, rest);
-    if (i % 10 === 0) feedBits(h, readMeters(params, s));
+    if (i % 10 === 0) {
+      const meters = readMeters(params, s);
+      feedBits(h, meters);
+      tags.add('meters', meters);
+    }
   }
   let consistent = exactJson(point) === exactJson(attempt.final);
 
@@ -540,32 +572,40 @@ export function digestRun(run: GoldenRun): RunDigest {
     const a = stateAt(params, seed, run.events, atMs, stored);
     const b = stateAt(params, seed, run.events, atMs, attempt.snapshots);
     if (JSON.stringify(a) !== JSON.stringify(b)) consistent = false;
-    h.update(exactJson(a));
-    h.update(exactJson(b));
+    feed(2, exactJson(a));
+    feed(2, exactJson(b));
   }
 
   // The output curves for the changes (faults) in place at the end.
   const changes = attempt.final.controls.changes;
-  h.update(exactJson(outputCurve(params, changes, { hot: false })));
-  h.update(exactJson(outputCurve(params, changes, { hot: true })));
-  return { digest: h.digest('hex'), reached, consistent };
+  feed(3, exactJson(outputCurve(params, changes, { hot: false })));
+  feed(3, exactJson(outputCurve(params, changes, { hot: true })));
+  const checkpoints = { fields: tags.fields, windows: tags.finish(), parts: parts.map((p) => partTag(p.digest('hex'))).join('') };
+  return { digest: h.digest('hex'), checkpoints, reached, consistent };
 }
 
+/** Sim time each step length of `digestOtherSteps` runs; its checkpoints run the four one after another. */
+export const OTHER_STEPS_RUN_MS = 20_000;
+export const OTHER_STEP_LENGTHS_MS = [5, 20, 10, 1] as const;
+
 /** The bare step at other step lengths than the replay's (the step's dt is a parameter). */
-export function digestOtherSteps(): string {
+export function digestOtherSteps(everyMs = CHECKPOINT_EVERY_MS): { digest: string; checkpoints: RunCheckpoints } {
   const h = createHash('sha256');
+  const tags = new FieldTags(everyMs);
   const params = defaultVehicleParams();
-  for (const dtMs of [5, 20, 10, 1]) {
+  OTHER_STEP_LENGTHS_MS.forEach((dtMs, k) => {
     let s = initialState(params, 3);
     const starting = { ...s.controls, key: 'start' as const, leads: { red: 'battery-pos' as const, black: 'battery-neg' as const } };
     const running = { ...starting, key: 'on' as const, heldRpm: 2200, pileDial01: 0.35, accessoriesOn: ['blower', 'headlamps'] };
-    const n = Math.round(20_000 / dtMs);
+    const n = Math.round(OTHER_STEPS_RUN_MS / dtMs);
     for (let i = 0; i < n; i++) {
       s = step(params, s, i < 1500 / dtMs ? starting : running, dtMs);
       feedBits(h, s);
+      tagState(tags, { ...s, timeMs: k * OTHER_STEPS_RUN_MS + s.timeMs - dtMs });
+      tags.add('controls', s.controls);
     }
-  }
-  return h.digest('hex');
+  });
+  return { digest: h.digest('hex'), checkpoints: { fields: tags.fields, windows: tags.finish(), parts: '' } };
 }
 
 /** The model's elementary functions, as golden.ts digests them. */
@@ -581,7 +621,17 @@ export interface MathFunctions {
 
 /** Every elementary function, bit for bit, over wide random ranges and the awkward values. */
 export function digestMath(f: MathFunctions): string {
+  return digestMathParts(f).digest;
+}
+
+/** The digest of `digestMath` and, beside it, a tag of each function's own outputs (to name the one that differs). */
+export function digestMathParts(f: MathFunctions): { digest: string; byFunction: Record<string, string> } {
   const h = createHash('sha256');
+  const byFunction: Record<string, string> = {};
+  const own = (name: string, bytes: Uint8Array) => {
+    h.update(bytes);
+    byFunction[name] = partTag(createHash('sha256').update(bytes).digest('hex'));
+  };
   const r = generator(99);
   const special = [0, -0, 1, -1, 0.5, 2, 1e-300, 5e-324, 2.2250738585072014e-308, 1e-4, -1e-4, 0.35, -0.35, 20, -20, 709.78, -745.2, 1e308, Infinity, -Infinity, NaN];
   const xs: number[] = [...special];
@@ -589,25 +639,34 @@ export function digestMath(f: MathFunctions): string {
   for (let i = 0; i < 20_000; i++) xs.push((r() - 0.5) * 1500);
   for (let i = 0; i < 20_000; i++) xs.push(10 ** (r() * 600 - 300));
   const out = new Float64Array(xs.length);
-  const fns: ((x: number) => number)[] = [f.detExp, f.detExpm1, f.detLog, f.detLog1p, f.detTanh];
-  for (const fn of fns) {
+  const fns = ['detExp', 'detExpm1', 'detLog', 'detLog1p', 'detTanh'] as const;
+  for (const name of fns) {
+    const fn = f[name];
     xs.forEach((x, k) => (out[k] = fn(x)));
-    h.update(new Uint8Array(out.buffer));
+    own(name, new Uint8Array(out.buffer));
   }
   // The trigonometric functions within the few turns the model asks.
   const angles = [...special.filter((x) => Math.abs(x) < 30), ...Array.from({ length: 20_000 }, () => (r() - 0.5) * 60)];
   const trig = new Float64Array(angles.length);
-  for (const fn of [f.detSin, f.detCos]) {
+  for (const name of ['detSin', 'detCos'] as const) {
+    const fn = f[name];
     angles.forEach((x, k) => (trig[k] = fn(x)));
-    h.update(new Uint8Array(trig.buffer));
+    own(name, new Uint8Array(trig.buffer));
   }
-  return h.digest('hex');
+  return { digest: h.digest('hex'), byFunction };
 }
 
-/** Every digest, by run name (used to record them). */
-export function goldenDigests(): Record<string, string> {
-  const out: Record<string, string> = {};
-  for (const run of goldenRuns()) out[run.name] = digestRun(run).digest;
-  out['bare step at 5, 20, 10 and 1 ms'] = digestOtherSteps();
+/** The name the bare-step digest is recorded under. */
+export const OTHER_STEPS_NAME = 'bare step at 5, 20, 10 and 1 ms';
+
+/** Every digest and its checkpoints, by run name (record-golden.ts records them). */
+export function goldenDigests(everyMs = CHECKPOINT_EVERY_MS, only?: (name: string) => boolean): Record<string, { digest: string; checkpoints: RunCheckpoints }> {
+  const out: Record<string, { digest: string; checkpoints: RunCheckpoints }> = {};
+  for (const run of goldenRuns()) {
+    if (only && !only(run.name)) continue;
+    const { digest, checkpoints } = digestRun(run, everyMs);
+    out[run.name] = { digest, checkpoints };
+  }
+  if (!only || only(OTHER_STEPS_NAME)) out[OTHER_STEPS_NAME] = digestOtherSteps(everyMs);
   return out;
 }

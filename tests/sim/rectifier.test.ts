@@ -43,8 +43,9 @@ describe('the ripple trace', () => {
     // Self-consistency: the trace and the AC reading come from the same periodic solution.
     for (const kind of [undefined, 'diode-open'] as const) {
       const b = loadedAt2000(kind);
-      const trace = rippleTrace(b.params, b.point.state, 300)!;
-      expect(trace.acV.length).toBe(300);
+      const samples = 300;
+      const trace = rippleTrace(b.params, b.point.state, samples)!;
+      expect(trace.acV.length).toBe(samples);
       const mean = trace.acV.reduce((a, v) => a + v, 0) / trace.acV.length;
       const rms = Math.sqrt(trace.acV.reduce((a, v) => a + (v - mean) ** 2, 0) / trace.acV.length);
       expect(Math.abs(mean)).toBeLessThan(0.05 * rms + 1e-6);

@@ -117,10 +117,12 @@ export function ReadingStrip() {
   const engine = useBenchEngine();
   const [hold] = useState(() => createVoltHold(engine));
   const readings = useBench((s) => s.display.readings);
+  // The bench time of the display tick shown, for a page to tell that the readouts have moved on.
+  const atMs = useBench((s) => s.display.atMs);
   const v = stripValues(readings);
   const drawUnit = v.draw.endsWith(' A') ? '' : UNITS.draw;
   return (
-    <div className="rounded-xl bg-slate-900 shadow-sm" data-testid="reading-strip">
+    <div className="rounded-xl bg-slate-900 shadow-sm" data-testid="reading-strip" data-at-ms={atMs}>
       <dl className="grid grid-cols-3 gap-y-1 divide-slate-800 sm:grid-cols-5 sm:divide-x">
         <Readout label="Volts (DC)" shortLabel="Volts" value={v.volts} unit={UNITS.volts} testId="reading-volts" extra={<VoltHoldSwitch store={hold} />} below={<HoldValues store={hold} />} />
         <Readout label="Amps (clamp)" value={v.amps} unit={UNITS.amps} testId="reading-amps" />
