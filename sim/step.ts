@@ -320,8 +320,10 @@ function solveAt(n: NetworkInputs, out: NetworkSolution): NetworkSolution {
   ni.negG = !c.ammeterInSeries ? m.negG : n.ammeterFuseBlown ? 0 : m.negGWithAmmeter;
   ni.loadG = loadG;
   ni.starterG = cranking ? m.starterG : 0;
+  // The driver switches its supply onto the field for the duty's share of each cycle; in the rest the field
+  // current freewheels inside the regulator. Either feed therefore carries the duty's share of the field current.
   ni.fieldSupplyA = n.fieldFromIgnition ? 0 : n.fieldDuty01 * n.fieldCurrentA;
-  ni.ignitionFieldA = n.fieldFromIgnition ? n.fieldCurrentA : 0;
+  ni.ignitionFieldA = n.fieldFromIgnition ? n.fieldDuty01 * n.fieldCurrentA : 0;
   ni.openRippleRatio = m.openRippleRatio;
   ni.table = m.table;
   ni.emfPeakV = m.emfConstantVsPerRad * omegaE * flux;

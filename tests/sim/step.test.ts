@@ -134,3 +134,24 @@ describe('the step function', () => {
     expect(JSON.parse(JSON.stringify(s1))).toEqual(s1);
   });
 });
+
+describe('the field’s feed', () => {
+  it('draws only the duty’s share of the field current from its supply, the rest freewheeling inside the regulator, for either kind of unit', () => {
+    // A switched field driver with a freewheel diode across the winding: the supply carries the winding's current
+    // only while the switch is on, so its mean is duty x field current (common practice, no source: the mean
+    // current of a buck stage's switch). Key on with the engine stopped, the regulator pre-excites at a low duty.
+    for (const sense of ['battery', 'bplus'] as const) {
+      const p = defaultVehicleParams();
+      p.regulator.sense = sense;
+      const b = new Bench(p).key('on').wait(2);
+      const s = b.point.state;
+      expect(s.engineStatus).toBe('off');
+      expect(s.fieldDuty01).toBeGreaterThan(0);
+      expect(s.fieldDuty01).toBeLessThan(0.5);
+      expect(s.fieldCurrentA).toBeGreaterThan(0.1);
+      const fed = sense === 'battery' ? s.net.branchA.fieldFeed : s.net.fieldSupplyA;
+      expect(fed).toBeCloseTo(s.fieldDuty01 * s.fieldCurrentA, 6);
+      expect(fed).toBeLessThan(0.5 * s.fieldCurrentA);
+    }
+  });
+});
