@@ -11,13 +11,12 @@ import { currentUser } from '../accounts/guard.ts';
 import type { AppContext } from '../context.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseParams } from '../http/validate.ts';
-import { and, eq } from 'drizzle-orm';
-import { assignments } from '../db/schema.ts';
 import { hiddenFor } from './result-views.ts';
 import {
   accuracyByFault,
   accuracyByTest,
   assignmentHeader,
+  assignmentShowing,
   countedRows,
   distribution,
   drawnGroups,
@@ -50,11 +49,7 @@ export function compareRoutes(ctx: AppContext) {
       };
     } else {
       // A student sees their own row, without the fault they drew, and without the grade or the right answer while the assignment hides results.
-      const [showing] = await ctx.db
-        .select({ showFeedbackAfter: assignments.showFeedbackAfter, dueAt: assignments.dueAt })
-        .from(assignments)
-        .where(and(eq(assignments.id, id)));
-      const hidden = hiddenFor({ mode: 'assigned', showFeedbackAfter: showing?.showFeedbackAfter ?? true, dueAt: showing?.dueAt ?? null });
+      const hidden = hiddenFor(await assignmentShowing(ctx.db, id));
       const own = rows.find((r) => r.studentId === user.id) ?? null;
       const mine = own && { ...own, drawnFault: null, ...(hidden ? { grade: null, correct: null, verified: false } : {}) };
       body = { viewer: 'student', assignment, mine, distribution: distribution(rows, mine) };

@@ -14,6 +14,7 @@ import type { DbOrTx } from '../db/client.ts';
 import { assignments, attempts, classes, enrollments, scenarioVersions, users } from '../db/schema.ts';
 import { notFound } from '../http/errors.ts';
 import { loadDefinition } from '../library/definitions.ts';
+import type { ResultShowing } from './result-views.ts';
 
 const storedResultSchema = z.object({
   timeToDiagnosisMs: z.number().optional(),
@@ -210,4 +211,13 @@ export function csvCell(v: string | number | boolean | null): string {
 
 export function toCsv(header: readonly string[], rows: readonly (readonly (string | number | boolean | null)[])[]): string {
   return [header.join(','), ...rows.map((r) => r.map(csvCell).join(','))].join('\r\n') + '\r\n';
+}
+
+/** When an assignment's results are shown to its students. */
+export async function assignmentShowing(db: DbOrTx, assignmentId: number): Promise<ResultShowing> {
+  const [showing] = await db
+    .select({ showFeedbackAfter: assignments.showFeedbackAfter, dueAt: assignments.dueAt })
+    .from(assignments)
+    .where(and(eq(assignments.id, assignmentId)));
+  return { mode: 'assigned', showFeedbackAfter: showing?.showFeedbackAfter ?? true, dueAt: showing?.dueAt ?? null };
 }
