@@ -6,7 +6,7 @@ import { createCommentSchema, replayParamsSchema, type ReplayResponse } from '..
 import { requireAttemptInstructor, requireAttemptReader } from '../accounts/access.ts';
 import { currentUser } from '../accounts/guard.ts';
 import type { AppContext } from '../context.ts';
-import { badRequest, conflict } from '../http/errors.ts';
+import { badRequest } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody, parseParams } from '../http/validate.ts';
 import { addComment, commentsOf, replayOf } from './replay.ts';
