@@ -1,5 +1,4 @@
 /** The scenario library: list, read, create, version, publish, restore, duplicate, import and export. */
-import { and, asc, eq, isNotNull, type SQL } from 'drizzle-orm';
 import {
   createScenarioSchema,
   duplicateScenarioSchema,
@@ -11,18 +10,28 @@ import {
   scenarioVersionParamsSchema,
   updateScenarioSchema,
   versionActionSchema,
-  type PracticeScenario,
 } from '../../shared/api/scenarios.ts';
-import type { ScenarioDefinition } from '../../shared/scenario.ts';
-import { assertCanEditScenario, assertCanSeeScenario, assertCanSeeScenarioVersion, versionsWithheldFromPractice } from '../accounts/access.ts';
+import { assertCanSeeScenario, assertCanSeeScenarioVersion, versionsWithheldFromPractice } from '../accounts/access.ts';
 import { currentUser } from '../accounts/guard.ts';
 import type { AppContext } from '../context.ts';
-import { scenarios, scenarioVersions, users } from '../db/schema.ts';
-import { badRequest, conflict, HttpError, notFound } from '../http/errors.ts';
+import { badRequest } from '../http/errors.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { singleFileUpload, storedFileName } from '../http/uploads.ts';
 import { parseBody, parseParams, parseQuery } from '../http/validate.ts';
-import { appendVersion, exportFileName, insertScenario, listScenarios, parseScenarioDocument, scenarioDetail, versionColumns, versionSummary, visibleTo } from './store.ts';
+import {
+  createScenario,
+  definitionOfVersion,
+  exportFileName,
+  parseScenarioDocument,
+  patchScenario,
+  practiceScenarios,
+  publishVersion,
+  restoreVersion,
+  saveVersion,
+  scenarioDetail,
+  scenarioList,
+  versionDetail,
+} from './store.ts';
 
 const STAFF = ['instructor', 'admin'] as const;
 export const SCENARIO_FILE_MAX_BYTES = 512 * 1024;
@@ -45,12 +54,7 @@ export function scenarioRoutes(ctx: AppContext) {
   g.get('/', STAFF, async (req, res) => {
     const user = currentUser(req);
     const q = parseQuery(listScenariosQuerySchema, req);
-    const filters: SQL[] = [];
-    const visible = visibleTo(user);
-    if (visible) filters.push(visible);
-    if (q.owner === 'mine') filters.push(eq(scenarios.ownerId, user.id));
-    if (!q.includeArchived) filters.push(eq(scenarios.archived, false));
-    let items = await listScenarios(ctx.db, user, filters.length ? and(...filters) : undefined);
+    let items = await scenarioList(ctx.db, user, { mine: q.owner === 'mine', includeArchived: q.includeArchived });
     if (q.fault) items = items.filter((s) => s.faultKinds.includes(q.fault!));
     if (q.test) items = items.filter((s) => s.testsExpected.includes(q.test!));
     if (q.difficulty) items = items.filter((s) => s.difficulty === q.difficulty);
@@ -64,20 +68,7 @@ export function scenarioRoutes(ctx: AppContext) {
   // Anyone signed in may practise a published, shared scenario, except one an open or upcoming assignment of their class runs; the list carries no faults.
   g.get('/practice', 'signed-in', async (req, res) => {
     const withheld = await versionsWithheldFromPractice(ctx.db, currentUser(req).id);
-    const all = await ctx.db
-      .select({ id: scenarios.id, versionId: scenarioVersions.id, definition: scenarioVersions.definition })
-      .from(scenarios)
-      .innerJoin(scenarioVersions, eq(scenarioVersions.id, scenarios.publishedVersionId))
-      .where(and(eq(scenarios.visibility, 'shared'), eq(scenarios.archived, false), isNotNull(scenarios.publishedVersionId)))
-      .orderBy(asc(scenarios.id));
-    const rows = all.filter((r) => !withheld.has(r.versionId));
-    const order = { intro: 0, core: 1, advanced: 2 } as const;
-    const list: PracticeScenario[] = rows
-      .map((r) => {
-        const def = r.definition as ScenarioDefinition;
-        return { id: r.id, title: def.title, summary: def.summary, difficulty: def.difficulty, vehicleName: def.vehicle.name, vehicleKind: def.vehicle.kind };
-      })
-      .sort((a, b) => order[a.difficulty] - order[b.difficulty] || a.title.localeCompare(b.title));
+    const list = await practiceScenarios(ctx.db, withheld);
     res.json({ scenarios: list });
   });
 
@@ -85,7 +76,7 @@ export function scenarioRoutes(ctx: AppContext) {
     const user = currentUser(req);
     const input = parseBody(createScenarioSchema, req);
     const definition = parseScenarioDocument(input.definition, 'definition');
-    const created = await ctx.db.transaction((tx) => insertScenario(tx, { definition, ownerId: user.id, visibility: input.visibility, note: input.note || 'Created' }));
+    const created = await createScenario(ctx.db, { definition, ownerId: user.id, visibility: input.visibility, note: input.note || 'Created' });
     res.status(201).json(await scenarioDetail(ctx.db, user, created.scenarioId));
   });
 
@@ -104,9 +95,7 @@ export function scenarioRoutes(ctx: AppContext) {
       throw badRequest('Attach the scenario file in the "file" field, or send the document as JSON', { field: 'file' });
     }
     const definition = parseScenarioDocument(raw);
-    const created = await ctx.db.transaction((tx) =>
-      insertScenario(tx, { definition, ownerId: user.id, visibility, note: `Imported from ${fileName}`.slice(0, 500) }),
-    );
+    const created = await createScenario(ctx.db, { definition, ownerId: user.id, visibility, note: `Imported from ${fileName}`.slice(0, 500) });
     res.status(201).json(await scenarioDetail(ctx.db, user, created.scenarioId));
   });
 
@@ -121,13 +110,7 @@ export function scenarioRoutes(ctx: AppContext) {
     const user = currentUser(req);
     const { id, versionId } = parseParams(scenarioVersionParamsSchema, req);
     const { scenario } = await assertCanSeeScenarioVersion(ctx.db, user, id, versionId);
-    const [v] = await ctx.db
-      .select(versionColumns)
-      .from(scenarioVersions)
-      .leftJoin(users, eq(users.id, scenarioVersions.createdBy))
-      .where(eq(scenarioVersions.id, versionId));
-    if (!v) throw notFound('No such version');
-    res.json({ ...versionSummary(v, scenario.publishedVersionId), scenarioId: id, definition: v.definition });
+    res.json(await versionDetail(ctx.db, id, versionId, scenario.publishedVersionId));
   });
 
   // An edit is a new immutable version.
@@ -136,13 +119,7 @@ export function scenarioRoutes(ctx: AppContext) {
     const { id } = parseParams(scenarioIdParamsSchema, req);
     const input = parseBody(updateScenarioSchema, req);
     const definition = parseScenarioDocument(input.definition, 'definition');
-    await ctx.db.transaction(async (tx) => {
-      const row = await assertCanEditScenario(tx, user, id, { lock: true });
-      if (input.baseVersion !== undefined && input.baseVersion !== row.latestVersion) {
-        throw conflict(`Version ${row.latestVersion} was saved since you opened version ${input.baseVersion}; reload to see it`, 'baseVersion');
-      }
-      await appendVersion(tx, row, definition, input.note, user.id);
-    });
+    await saveVersion(ctx.db, user, id, { definition, note: input.note, baseVersion: input.baseVersion });
     res.json(await scenarioDetail(ctx.db, user, id));
   });
 
@@ -150,10 +127,7 @@ export function scenarioRoutes(ctx: AppContext) {
     const user = currentUser(req);
     const { id } = parseParams(scenarioIdParamsSchema, req);
     const input = parseBody(patchScenarioSchema, req);
-    await ctx.db.transaction(async (tx) => {
-      await assertCanEditScenario(tx, user, id, { lock: true });
-      await tx.update(scenarios).set({ ...input, updatedAt: new Date() }).where(eq(scenarios.id, id));
-    });
+    await patchScenario(ctx.db, user, id, input);
     res.json(await scenarioDetail(ctx.db, user, id));
   });
 
@@ -161,11 +135,7 @@ export function scenarioRoutes(ctx: AppContext) {
     const user = currentUser(req);
     const { id } = parseParams(scenarioIdParamsSchema, req);
     const { versionId } = parseBody(versionActionSchema, req);
-    await ctx.db.transaction(async (tx) => {
-      await assertCanEditScenario(tx, user, id, { lock: true });
-      await assertCanSeeScenarioVersion(tx, user, id, versionId);
-      await tx.update(scenarios).set({ publishedVersionId: versionId, updatedAt: new Date() }).where(eq(scenarios.id, id));
-    });
+    await publishVersion(ctx.db, user, id, versionId);
     res.json(await scenarioDetail(ctx.db, user, id));
   });
 
@@ -174,12 +144,7 @@ export function scenarioRoutes(ctx: AppContext) {
     const user = currentUser(req);
     const { id } = parseParams(scenarioIdParamsSchema, req);
     const { versionId } = parseBody(versionActionSchema, req);
-    await ctx.db.transaction(async (tx) => {
-      const row = await assertCanEditScenario(tx, user, id, { lock: true });
-      const { version } = await assertCanSeeScenarioVersion(tx, user, id, versionId);
-      const definition = parseScenarioDocument(version.definition);
-      await appendVersion(tx, row, definition, `Restored from version ${version.version}`, user.id);
-    });
+    await restoreVersion(ctx.db, user, id, versionId);
     res.json(await scenarioDetail(ctx.db, user, id));
   });
 
@@ -191,9 +156,7 @@ export function scenarioRoutes(ctx: AppContext) {
     const source = await scenarioDetail(ctx.db, user, (await assertCanSeeScenario(ctx.db, user, id)).id);
     const title = (input.title ?? `Copy of ${source.definition.title}`).slice(0, 120);
     const definition = parseScenarioDocument({ ...source.definition, title });
-    const created = await ctx.db.transaction((tx) =>
-      insertScenario(tx, { definition, ownerId: user.id, visibility: 'private', note: `Duplicated from “${source.definition.title}” version ${source.latestVersion}` }),
-    );
+    const created = await createScenario(ctx.db, { definition, ownerId: user.id, visibility: 'private', note: `Duplicated from “${source.definition.title}” version ${source.latestVersion}` });
     res.status(201).json(await scenarioDetail(ctx.db, user, created.scenarioId));
   });
 
@@ -203,12 +166,7 @@ export function scenarioRoutes(ctx: AppContext) {
     const { version } = parseQuery(exportQuerySchema, req);
     const row = await assertCanSeeScenario(ctx.db, user, id);
     const wanted = version ?? row.latestVersion;
-    const [v] = await ctx.db
-      .select({ definition: scenarioVersions.definition })
-      .from(scenarioVersions)
-      .where(and(eq(scenarioVersions.scenarioId, id), eq(scenarioVersions.version, wanted)));
-    if (!v) throw new HttpError(404, `This scenario has no version ${wanted}`, { field: 'version' });
-    const def = v.definition as ScenarioDefinition;
+    const def = await definitionOfVersion(ctx.db, id, wanted);
     res.setHeader('Content-Disposition', `attachment; filename="${exportFileName(row.slug, wanted)}"`);
     res.type('application/json').send(`${JSON.stringify(def, null, 2)}\n`);
   });

@@ -3,14 +3,14 @@
  * holding a whole document valid against the shared scenario schema.
  */
 import { randomBytes } from 'node:crypto';
-import { and, desc, eq, inArray, or, type SQL } from 'drizzle-orm';
-import type { ScenarioDetail, ScenarioListItem, ScenarioVersionSummary, Visibility } from '../../shared/api/scenarios.ts';
+import { and, asc, desc, eq, inArray, isNotNull, or, type SQL } from 'drizzle-orm';
+import type { PracticeScenario, ScenarioDetail, ScenarioListItem, ScenarioVersionSummary, Visibility } from '../../shared/api/scenarios.ts';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import { formatIssues, safeRestoreScenario, scenarioFaultKinds, scenarioFieldInWords, type ScenarioDefinition } from '../../shared/scenario.ts';
-import { canEditScenario } from '../accounts/access.ts';
-import type { DbOrTx } from '../db/client.ts';
+import { assertCanEditScenario, assertCanSeeScenarioVersion, canEditScenario } from '../accounts/access.ts';
+import type { Db, DbOrTx } from '../db/client.ts';
 import { scenarios, scenarioVersions, users } from '../db/schema.ts';
-import { badRequest, HttpError, notFound } from '../http/errors.ts';
+import { badRequest, conflict, HttpError, notFound } from '../http/errors.ts';
 
 type Who = Pick<SessionUser, 'id' | 'role'>;
 
@@ -205,4 +205,96 @@ export function versionSummary(
 /** The file name an exported document is offered under. */
 export function exportFileName(slug: string, version: number): string {
   return `${slug}-v${version}.loadline.json`;
+}
+
+/** The scenarios a user may list: their own or shared ones (an admin: all), archived ones only when asked. */
+export async function scenarioList(db: DbOrTx, user: Who, opts: { mine: boolean; includeArchived: boolean }): Promise<ScenarioListItem[]> {
+  const filters: SQL[] = [];
+  const visible = visibleTo(user);
+  if (visible) filters.push(visible);
+  if (opts.mine) filters.push(eq(scenarios.ownerId, user.id));
+  if (!opts.includeArchived) filters.push(eq(scenarios.archived, false));
+  return listScenarios(db, user, filters.length ? and(...filters) : undefined);
+}
+
+/** The published, shared scenarios anyone may practise, less the versions withheld from this student; no faults. */
+export async function practiceScenarios(db: DbOrTx, withheld: ReadonlySet<number>): Promise<PracticeScenario[]> {
+  const all = await db
+    .select({ id: scenarios.id, versionId: scenarioVersions.id, definition: scenarioVersions.definition })
+    .from(scenarios)
+    .innerJoin(scenarioVersions, eq(scenarioVersions.id, scenarios.publishedVersionId))
+    .where(and(eq(scenarios.visibility, 'shared'), eq(scenarios.archived, false), isNotNull(scenarios.publishedVersionId)))
+    .orderBy(asc(scenarios.id));
+  const rows = all.filter((r) => !withheld.has(r.versionId));
+  const order = { intro: 0, core: 1, advanced: 2 } as const;
+  const list: PracticeScenario[] = rows
+    .map((r) => {
+      const def = r.definition as ScenarioDefinition;
+      return { id: r.id, title: def.title, summary: def.summary, difficulty: def.difficulty, vehicleName: def.vehicle.name, vehicleKind: def.vehicle.kind };
+    })
+    .sort((a, b) => order[a.difficulty] - order[b.difficulty] || a.title.localeCompare(b.title));
+  return list;
+}
+
+/** Creates a scenario and its version 1 in a transaction of its own. */
+export function createScenario(db: Db, opts: Parameters<typeof insertScenario>[1]): Promise<{ scenarioId: number; versionId: number }> {
+  return db.transaction((tx) => insertScenario(tx, opts));
+}
+
+/** One version of a scenario, with its document. */
+export async function versionDetail(db: DbOrTx, scenarioId: number, versionId: number, publishedVersionId: number | null) {
+  const [v] = await db
+    .select(versionColumns)
+    .from(scenarioVersions)
+    .leftJoin(users, eq(users.id, scenarioVersions.createdBy))
+    .where(eq(scenarioVersions.id, versionId));
+  if (!v) throw notFound('No such version');
+  return { ...versionSummary(v, publishedVersionId), scenarioId, definition: v.definition };
+}
+
+/** An edit: a new immutable version, refused when another was saved since `baseVersion`. */
+export async function saveVersion(db: Db, user: SessionUser, scenarioId: number, input: { definition: ScenarioDefinition; note: string; baseVersion?: number }): Promise<void> {
+  await db.transaction(async (tx) => {
+    const row = await assertCanEditScenario(tx, user, scenarioId, { lock: true });
+    if (input.baseVersion !== undefined && input.baseVersion !== row.latestVersion) {
+      throw conflict(`Version ${row.latestVersion} was saved since you opened version ${input.baseVersion}; reload to see it`, 'baseVersion');
+    }
+    await appendVersion(tx, row, input.definition, input.note, user.id);
+  });
+}
+
+/** Changes a scenario's own fields (not its document). */
+export async function patchScenario(db: Db, user: SessionUser, scenarioId: number, input: Partial<Pick<typeof scenarios.$inferInsert, 'visibility' | 'archived'>>): Promise<void> {
+  await db.transaction(async (tx) => {
+    await assertCanEditScenario(tx, user, scenarioId, { lock: true });
+    await tx.update(scenarios).set({ ...input, updatedAt: new Date() }).where(eq(scenarios.id, scenarioId));
+  });
+}
+
+export async function publishVersion(db: Db, user: SessionUser, scenarioId: number, versionId: number): Promise<void> {
+  await db.transaction(async (tx) => {
+    await assertCanEditScenario(tx, user, scenarioId, { lock: true });
+    await assertCanSeeScenarioVersion(tx, user, scenarioId, versionId);
+    await tx.update(scenarios).set({ publishedVersionId: versionId, updatedAt: new Date() }).where(eq(scenarios.id, scenarioId));
+  });
+}
+
+/** Restore: a new version that copies an old one (history is never rewritten). */
+export async function restoreVersion(db: Db, user: SessionUser, scenarioId: number, versionId: number): Promise<void> {
+  await db.transaction(async (tx) => {
+    const row = await assertCanEditScenario(tx, user, scenarioId, { lock: true });
+    const { version } = await assertCanSeeScenarioVersion(tx, user, scenarioId, versionId);
+    const definition = parseScenarioDocument(version.definition);
+    await appendVersion(tx, row, definition, `Restored from version ${version.version}`, user.id);
+  });
+}
+
+/** The document of a scenario's numbered version. */
+export async function definitionOfVersion(db: DbOrTx, scenarioId: number, version: number): Promise<ScenarioDefinition> {
+  const [v] = await db
+    .select({ definition: scenarioVersions.definition })
+    .from(scenarioVersions)
+    .where(and(eq(scenarioVersions.scenarioId, scenarioId), eq(scenarioVersions.version, version)));
+  if (!v) throw new HttpError(404, `This scenario has no version ${version}`, { field: 'version' });
+  return v.definition as ScenarioDefinition;
 }
