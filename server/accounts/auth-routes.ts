@@ -15,22 +15,20 @@
  *   own message: a class accepting its invitations together is never refused.
  */
 import { createHash } from 'node:crypto';
-import { eq, sql } from 'drizzle-orm';
 import type { Request, Response } from 'express';
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
 import { signInSchema, type SessionUser } from '../../shared/api/auth.ts';
 import { resetRequestSchema, setPasswordSchema } from '../../shared/api/password.ts';
 import { csrf, newCsrfToken } from '../http/csrf.ts';
 import { hashPassword, verifyPassword } from './passwords.ts';
-import { endSessionsOf, forgetSessionsOf, SESSION_COOKIE } from './session.ts';
+import { forgetSessionsOf, SESSION_COOKIE } from './session.ts';
 import type { AppContext } from '../context.ts';
-import { users } from '../db/schema.ts';
 import { HttpError } from '../http/errors.ts';
 import { minutesUntil, PgCounter, PgRateLimitStore } from '../http/rate-limit-store.ts';
 import { routeGroup } from '../http/route-table.ts';
 import { parseBody } from '../http/validate.ts';
 import { sendPasswordLink } from './invitations.ts';
-import { consumeToken, endTokensOf } from './tokens.ts';
+import { accountForReset, accountForSignIn, emailOf, setPasswordByToken } from './users.ts';
 
 const WINDOW_MS = 15 * 60 * 1000;
 
@@ -80,10 +78,7 @@ export function authRoutes(ctx: AppContext) {
     if (addressOver) {
       throw tooMany(res, addressOver, (wait) => `Too many failed sign-ins from your network; try again in ${wait}`);
     }
-    const [row] = await ctx.db
-      .select({ id: users.id, email: users.email, name: users.name, role: users.role, passwordHash: users.passwordHash, disabled: users.disabled })
-      .from(users)
-      .where(sql`lower(${users.email}) = ${input.email}`);
+    const row = await accountForSignIn(ctx.db, input.email);
     const ok = await verifyPassword(input.password, row?.passwordHash ?? null);
     if (!row || !ok) {
       await addressFailures.hit(address);
@@ -116,10 +111,7 @@ export function authRoutes(ctx: AppContext) {
     const over = await resetsPerEmail.hit(emailKey(email));
     if (over) throw tooMany(res, over, () => 'Too many reset requests; wait a few minutes and try again');
     ctx.background.run('password reset mail', async () => {
-      const [row] = await ctx.db
-        .select({ id: users.id, email: users.email, name: users.name, disabled: users.disabled })
-        .from(users)
-        .where(sql`lower(${users.email}) = ${email}`);
+      const row = await accountForReset(ctx.db, email);
       if (row && !row.disabled) await sendPasswordLink(ctx, row, 'reset');
     });
     res.status(202).json({ message: 'If that address has an account, a reset link is on its way.' });
@@ -135,22 +127,15 @@ export function authRoutes(ctx: AppContext) {
       throw tooMany(res, over, (wait) => `Too many links that do not work were tried from your network; wait ${wait}, then open the newest link you were sent`, 'token');
     }
     const hash = await hashPassword(input.password);
-    const userId = await ctx.db.transaction(async (tx) => {
-      const token = await consumeToken(tx, input.token);
-      if (!token) return null;
-      await tx.update(users).set({ passwordHash: hash, updatedAt: new Date() }).where(eq(users.id, token.userId));
-      await endTokensOf(tx, token.userId);
-      await endSessionsOf(tx, token.userId, req.session.userId === token.userId ? req.sessionID : null);
-      return token.userId;
-    });
+    const userId = await setPasswordByToken(ctx.db, input.token, hash, (id) => (req.session.userId === id ? req.sessionID : null));
     if (userId === null) {
       await badLinks.hit(address);
       throw new HttpError(400, 'This link has expired or was already used; ask for a new one', { field: 'token' });
     }
     forgetSessionsOf(ctx.pool, userId);
     // The new password opens the account again wherever failed guesses had shut it.
-    const [account] = await ctx.db.select({ email: users.email }).from(users).where(eq(users.id, userId));
-    if (account) await accountFailures.clearStartingWith(`${emailKey(account.email.toLowerCase())}:`);
+    const email = await emailOf(ctx.db, userId);
+    if (email !== null) await accountFailures.clearStartingWith(`${emailKey(email.toLowerCase())}:`);
     res.status(204).end();
   });
 
