@@ -18,7 +18,7 @@ import type { Fault } from '../../sim/faults.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
 import { outputCurve } from '../../sim/instruments.ts';
 import type { VehicleParams } from '../../sim/params.ts';
-import { finishRerun, rerunAttempt, type RerunCursor } from './rerun.ts';
+import { finishRerun, rerunAttempt, type SampledRerun } from './rerun.ts';
 import { correctVerdicts, gradeAttempt } from './grade-attempt.ts';
 import { Lru } from '../db/scoped-cache.ts';
 
@@ -74,7 +74,7 @@ export function healthyParams(params: VehicleParams): VehicleParams {
  * and checked against this job (RunAhead.take): it is carried on to the
  * submission instead of re-running from the start.
  */
-export function gradeRun(job: GradeJob, ahead: RerunCursor | null = null): AttemptResult {
+export function gradeRun(job: GradeJob, ahead: SampledRerun | null = null): AttemptResult {
   const { definition, submission, car } = job;
   const rerun = ahead ? finishRerun(ahead, submission.atMs) : rerunAttempt(car.params, job.seed, job.events, submission.atMs, car.changes);
   const curve = job.showCurve

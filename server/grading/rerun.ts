@@ -8,17 +8,19 @@
  * What grading reads of each moment (grading.ts `RunSample`) is kept in
  * columns (`SampleLog`), 112 bytes a sample: a 10-minute re-run holds
  * about 0.7 MB, so one can be carried along for every student at a bench
- * while they work (run-ahead.ts). A re-run is a cursor that can be carried on
- * from any sample boundary: carried on in pieces or run in one go, it takes
- * the same steps and the same samples.
+ * while they work (run-ahead.ts). A re-run is the server's re-run cursor
+ * (attempts/rerun-cursor.ts) with a sample log, carried on from any sample
+ * boundary: carried on in pieces or run in one go, it takes the same steps
+ * and the same samples.
  */
 import type { CarChange } from '../../sim/car-changes.ts';
 import { CONDUCTORS, CONNECTION_POINTS, type Conductor, type ConnectionPoint, type InputEvent, type KeyPosition } from '../../sim/inputs.ts';
 import { readMeters } from '../../sim/instruments.ts';
 import type { VehicleParams } from '../../sim/params.ts';
-import { advance, orderEvents, startPoint, type ReplayPoint } from '../../sim/replay.ts';
+import type { ReplayPoint } from '../../sim/replay.ts';
 import { DT_MS, type EngineStatus, type SimState } from '../../sim/step.ts';
 import { SETUP_TICK_MS, setupSampleOf } from '../../shared/test-setups.ts';
+import { cursorTimeMs, startCursor, stepCursor, type RerunCursor } from '../attempts/rerun-cursor.ts';
 import type { RunSample, SampleReadings } from './grade-attempt.ts';
 
 export const SAMPLE_EVERY_MS = SETUP_TICK_MS;
@@ -176,23 +178,17 @@ export class SampleLog {
   }
 }
 
-/** A re-run under way: where it has got to, the events it runs over (in time order) and its samples so far. */
-export interface RerunCursor {
-  readonly params: VehicleParams;
-  /** The car's schedule the run started with. */
-  readonly changes: readonly CarChange[];
-  point: ReplayPoint;
-  /** In time order; more may be appended as long as none is earlier than the last. */
-  events: readonly InputEvent[];
+/** A re-run under way (attempts/rerun-cursor.ts) with its samples so far. */
+export interface SampledRerun extends RerunCursor {
   readonly log: SampleLog;
 }
 
 /** A re-run at 0 ms, with its first sample taken. */
-export function startRerun(params: VehicleParams, seed: number, events: readonly InputEvent[], changes: readonly CarChange[] = []): RerunCursor {
-  const point = startPoint(params, seed, changes);
+export function startRerun(params: VehicleParams, seed: number, events: readonly InputEvent[], changes: readonly CarChange[] = []): SampledRerun {
+  const cursor = startCursor(params, seed, events, changes);
   const log = new SampleLog();
-  log.push(params, point.state);
-  return { params, changes, point, events: orderEvents(events), log };
+  log.push(params, cursor.point.state);
+  return Object.assign(cursor, { log });
 }
 
 /**
@@ -202,15 +198,15 @@ export function startRerun(params: VehicleParams, seed: number, events: readonly
  * piece, so its samples fall where those of a run in one go do; `maxSamples`
  * bounds the samples taken by this call. True when `untilMs` is reached.
  */
-export function carryRerun(c: RerunCursor, untilMs: number, maxSamples = Infinity): boolean {
-  const fromSteps = c.point.state.timeMs / DT_MS;
+export function carryRerun(c: SampledRerun, untilMs: number, maxSamples = Infinity): boolean {
+  const fromSteps = cursorTimeMs(c) / DT_MS;
   if (fromSteps % STEPS_PER_SAMPLE !== 0) throw new Error(`a re-run can be carried on only from a sample boundary, not ${c.point.state.timeMs} ms`);
   const totalSteps = Math.floor(untilMs / DT_MS);
   let taken = 0;
   for (let done = fromSteps; done < totalSteps; ) {
     if (taken === maxSamples) return false;
     const n = Math.min(STEPS_PER_SAMPLE, totalSteps - done);
-    c.point = advance(c.params, c.point, c.events, n);
+    stepCursor(c, n);
     done += n;
     c.log.push(c.params, c.point.state);
     taken++;
@@ -224,7 +220,7 @@ export interface Rerun {
 }
 
 /** A re-run carried on to `untilMs` and done with: its samples as grading reads them, and where it ended. */
-export function finishRerun(c: RerunCursor, untilMs: number): Rerun {
+export function finishRerun(c: SampledRerun, untilMs: number): Rerun {
   carryRerun(c, untilMs);
   return { samples: c.log.toSamples(), final: c.point };
 }

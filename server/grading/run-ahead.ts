@@ -17,7 +17,7 @@
  */
 import type { CompiledCar } from '../../sim/compiled-car.ts';
 import type { InputEvent } from '../../sim/inputs.ts';
-import { carryRerun, SAMPLE_EVERY_MS, startRerun, type RerunCursor } from './rerun.ts';
+import { carryRerun, SAMPLE_EVERY_MS, startRerun, type SampledRerun } from './rerun.ts';
 
 /** A batch just stored, as sent to the grading worker. */
 export interface AheadFeed {
@@ -51,7 +51,7 @@ interface Entry {
   maxAtMs: number;
   /** The events run over, in order; the cursor reads this same array. */
   events: InputEvent[];
-  cursor: RerunCursor;
+  cursor: SampledRerun;
   bytes: number;
 }
 
@@ -157,7 +157,7 @@ export class RunAhead {
    * The attempt's re-run carried on to the claim's submission, when the claim
    * bears it out; null otherwise. Either way the entry is gone afterwards.
    */
-  take(claim: AheadClaim): RerunCursor | null {
+  take(claim: AheadClaim): SampledRerun | null {
     const e = this.entries.get(claim.attemptId);
     if (!e) return null;
     this.drop(claim.attemptId);

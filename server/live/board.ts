@@ -16,11 +16,8 @@ import type { DiagnosticTest } from '../../sim/faults.ts';
 import type { Controls, InputEvent } from '../../sim/inputs.ts';
 import type { Readings } from '../../sim/instruments.ts';
 import { readMeters } from '../../sim/instruments.ts';
-import type { VehicleParams } from '../../sim/params.ts';
-import type { ReplayPoint } from '../../sim/replay.ts';
-import { advance, orderEvents, startPoint } from '../../sim/replay.ts';
+import { orderEvents } from '../../sim/replay.ts';
 import { DT_MS } from '../../sim/step.ts';
-import type { CarChange } from '../../sim/car-changes.ts';
 import { isNoteEvent, readingsOfLog, type LogEvent } from '../../shared/api/attempts.ts';
 import type { BoardAttempt, LiveReadings } from '../../shared/api/live.ts';
 import type { DbOrTx } from '../db/client.ts';
@@ -29,6 +26,7 @@ import { notFound } from '../http/errors.ts';
 import { loadDefinition } from '../library/definitions.ts';
 import type { LoggedEvent } from './injection-authority.ts';
 import { carOf, rowToLogEvent } from '../attempts/rerun-inputs.ts';
+import { cursorTimeMs, rewindCursor, startCursor, stepCursor, type RerunCursor } from '../attempts/rerun-cursor.ts';
 import { injectionsByAttempt, injectionViews, resolveRows, type InjectionRow } from './injections.ts';
 
 /** A re-run longer than this many steps is not made for the board (it would hold the process). */
@@ -242,22 +240,18 @@ interface RunItem {
 const byTimeThenSeq = (a: RunItem, b: RunItem) => a.event.atMs - b.event.atMs || a.seq - b.seq;
 
 interface RunCacheEntry {
-  seed: number;
   scenarioVersionId: number;
-  params: VehicleParams;
-  /** The car's schedule, in force from the first state. */
-  changes: readonly CarChange[];
   /** The readings' events and the changes' events held, by seq (the model ignores the first; the injections' statuses read the second). */
   notes: { seq: number; event: LogEvent }[];
   /** Every stored event with a seq up to this one is held (later ones past a gap may be held too). */
   through: number;
   seqs: Set<number>;
-  /** The held events in the model's order, and the same events alone for the model. */
+  /** The held events in the model's order, and the same events alone for the model (the re-run's). */
   items: RunItem[];
   events: InputEvent[];
   lastAtMs: number;
-  /** How far the re-run has got; events before point.nextEventIndex are applied. */
-  point: ReplayPoint;
+  /** The re-run, carried on to the attempt's sim time at each refresh. */
+  run: RerunCursor;
 }
 
 export interface LiveView {
@@ -330,18 +324,16 @@ async function eventsAfter(db: DbOrTx, after: ReadonlyMap<number, number>): Prom
 
 async function newEntry(db: DbOrTx, row: BoardRunRow): Promise<RunCacheEntry> {
   const car = carOf(await loadDefinition(db, row.scenarioVersionId));
+  const events: InputEvent[] = [];
   return {
-    seed: row.seed,
     scenarioVersionId: row.scenarioVersionId,
-    params: car.params,
-    changes: car.changes,
     notes: [],
     through: 0,
     seqs: new Set(),
     items: [],
-    events: [],
+    events,
     lastAtMs: 0,
-    point: startPoint(car.params, row.seed, car.changes),
+    run: startCursor(car.params, row.seed, events, car.changes),
   };
 }
 
@@ -353,7 +345,7 @@ async function newEntry(db: DbOrTx, row: BoardRunRow): Promise<RunCacheEntry> {
  */
 function takeIn(entry: RunCacheEntry, fresh: RunItem[]): boolean {
   if (fresh.length === 0) return true;
-  const lastStepAt = entry.point.state.timeMs - DT_MS;
+  const lastStepAt = cursorTimeMs(entry.run) - DT_MS;
   const keep = fresh.every((i) => i.event.atMs > lastStepAt);
   fresh.sort(byTimeThenSeq);
   const last = entry.items[entry.items.length - 1];
@@ -364,10 +356,11 @@ function takeIn(entry: RunCacheEntry, fresh: RunItem[]): boolean {
     }
   } else {
     // Re-sort only what is not applied yet (all of it when the moment is dropped).
-    const from = keep ? entry.point.nextEventIndex : 0;
+    const from = keep ? entry.run.point.nextEventIndex : 0;
     const tail = entry.items.splice(from).concat(fresh).sort(byTimeThenSeq);
     entry.items.push(...tail);
     entry.events = entry.items.map((i) => i.event);
+    entry.run.events = entry.events;
   }
   for (const i of fresh) entry.lastAtMs = Math.max(entry.lastAtMs, i.event.atMs);
   return keep;
@@ -386,7 +379,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
     for (const row of rows) {
       const held = cache.get(row.attemptId);
       // Another scenario or seed, or a log that went back: start this attempt over.
-      if (held && (held.seed !== row.seed || held.scenarioVersionId !== row.scenarioVersionId || row.lastSeq < held.through)) cache.delete(row.attemptId);
+      if (held && (held.run.seed !== row.seed || held.scenarioVersionId !== row.scenarioVersionId || row.lastSeq < held.through)) cache.delete(row.attemptId);
       after.set(row.attemptId, cache.get(row.attemptId)?.through ?? 0);
     }
     let loaded: LoadedEvent[];
@@ -425,7 +418,7 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
           }
         }
         entry.notes.sort((a, b) => a.seq - b.seq);
-        if (!takeIn(entry, fresh)) entry.point = startPoint(entry.params, entry.seed, entry.changes);
+        if (!takeIn(entry, fresh)) rewindCursor(entry.run);
         entry.through = Math.max(entry.through, row.lastSeq);
         views.set(row.attemptId, await carryTo(entry, boardTimeMs(row), slices));
       } catch (err) {
@@ -446,23 +439,22 @@ export function createBoardRuns(log: (message: string, err: unknown) => void): B
   async function carryTo(entry: RunCacheEntry, simTimeMs: number, slices: { pace(): Promise<void> }): Promise<LiveView | null> {
     const targetMs = Math.ceil(Math.max(simTimeMs, entry.lastAtMs) / DT_MS) * DT_MS;
     if (targetMs / DT_MS > MAX_BOARD_STEPS) return null;
-    let point = entry.point;
-    if (point.state.timeMs === 0 || point.state.timeMs > targetMs) {
-      point = startPoint(entry.params, entry.seed, entry.changes);
+    const run = entry.run;
+    if (cursorTimeMs(run) === 0 || cursorTimeMs(run) > targetMs) {
+      rewindCursor(run);
       stats.fullRuns++;
     } else stats.carried++;
-    const events = orderEvents(entry.events);
-    for (let steps = Math.round((targetMs - point.state.timeMs) / DT_MS); steps > 0; ) {
+    run.events = orderEvents(entry.events);
+    for (let steps = Math.round((targetMs - cursorTimeMs(run)) / DT_MS); steps > 0; ) {
       const n = Math.min(steps, BOARD_CHUNK_STEPS);
-      point = advance(entry.params, point, events, n);
+      stepCursor(run, n);
       steps -= n;
       if (steps > 0) await slices.pace();
     }
-    entry.point = point;
-    const readings = readMeters(entry.params, entry.point.state);
+    const readings = readMeters(run.params, run.point.state);
     const recorded = readingsOfLog(entry.notes.map((n) => n.event)).map((r) => ({ id: r.id, test: r.test, value: r.value, unit: r.unit, atMs: r.atMs }));
     const changes = entry.notes.filter((n) => n.event.kind === 'change-apply' || n.event.kind === 'change-clear');
-    return { currentTest: testOfSetup(entry.point.controls, readings), readings: liveReadings(readings, entry.point.state.fusibleLinkBlown), recorded, changes };
+    return { currentTest: testOfSetup(run.point.controls, readings), readings: liveReadings(readings, run.point.state.fusibleLinkBlown), recorded, changes };
   }
 
   return {
