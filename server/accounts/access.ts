@@ -1,5 +1,5 @@
 /**
- * Ownership checks: the role checks live in the route table (guard.ts); these
+ * Ownership checks: the role checks live in the route table (http/guards.ts); these
  * say whether this user may touch this class, assignment or attempt. Each
  * throws 404 when the thing does not exist and 403 when it is not theirs.
  * Admins pass every instructor check.

@@ -8,7 +8,7 @@
  * at the end of the turn it arrived in, as it would have been on its own.
  *
  * Within a statement each batch keeps the meaning of the statement it would
- * have had alone (attempt-events.ts): its attempt's row is locked, its events
+ * have had alone (events.ts): its attempt's row is locked, its events
  * are stored only when the attempt is the student's and still running, each
  * once, and the attempt is moved on when its prediction holds. Rows are locked
  * in attempt order, so two statements in flight never wait on each other in a

@@ -217,7 +217,7 @@ export function storedResult(raw: unknown): AttemptResult | null {
   return parsed.success ? parsed.data : null;
 }
 
-/** Who reads a bootstrap: its student sees the result as result-views.ts allows; instructors see it whole. */
+/** Who reads a bootstrap: its student sees the result as grading/result-views.ts allows; instructors see it whole. */
 export interface BootstrapReader {
   isOwner: boolean;
 }

@@ -4,7 +4,7 @@
  * with the instructor's injections where the server says they were delivered,
  * up to the submission's sim time; the right verdicts; the curves), then
  * store the readings of the log, the diagnosis and the result, and answer
- * with the result as the student may see it (result-views.ts). Time to
+ * with the result as the student may see it (grading/result-views.ts). Time to
  * diagnosis is the sim time of the submission (what the student spent at the
  * bench, pauses and reloads aside).
  *

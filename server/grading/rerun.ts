@@ -5,7 +5,7 @@
  * meters and the test set-ups' inputs every 100 ms of sim time (the bench's
  * display tick).
  *
- * What grading reads of each moment (grading.ts `RunSample`) is kept in
+ * What grading reads of each moment (grade-attempt.ts `RunSample`) is kept in
  * columns (`SampleLog`), 112 bytes a sample: a 10-minute re-run holds
  * about 0.7 MB, so one can be carried along for every student at a bench
  * while they work (run-ahead.ts). A re-run is the server's re-run cursor

@@ -51,7 +51,7 @@ function hintsOpenedIn(stored: AttemptRunInputs['stored'], untilMs: number | nul
   return out;
 }
 
-/** A submitted attempt's replay as the viewer may see it (its student: as result-views.ts allows). */
+/** A submitted attempt's replay as the viewer may see it (its student: as grading/result-views.ts allows). */
 export async function replayOf(db: DbOrTx, attemptId: number, viewer: { isOwner: boolean }): Promise<Omit<ReplayResponse, 'canComment' | 'comments'>> {
   const run = await loadAttemptRun(db, attemptId);
   if (run.status !== 'submitted') throw conflict('Only a submitted attempt can be replayed', 'id');
