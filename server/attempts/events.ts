@@ -14,10 +14,7 @@
 import type pg from 'pg';
 import type { DiagnosticTest } from '../../sim/faults.ts';
 import { sameEffect } from '../../sim/car-changes.ts';
-import type { Controls } from '../../sim/inputs.ts';
-import { applyInput, initialControls } from '../../sim/inputs.ts';
-import { orderEvents } from '../../sim/replay.ts';
-import { isNoteEvent, modelEvents, postEventsSchema, READING_LAG_MS, type LogEvent, type PostEventsResponse } from '../../shared/api/attempts.ts';
+import { modelEvents, postEventsSchema, READING_LAG_MS, type LogEvent, type PostEventsResponse } from '../../shared/api/attempts.ts';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import { pendingActionSchema, type PendingAction } from '../../shared/api/live.ts';
 import type { Db } from '../db/client.ts';
@@ -29,6 +26,7 @@ import { batchWriterOf } from './event-batch-writer.ts';
 import { sendAhead } from '../grading/pool.ts';
 import { injectionChange } from '../live/injection-authority.ts';
 import { carOf, rowToLogEvent } from './rerun-inputs.ts';
+import { carryOnSetup, initialSetup, setupAfter, type Setup } from './rerun-cursor.ts';
 import { testOfSetup } from '../live/board.ts';
 
 /** The instructor's injections of an attempt that the server has delivered to its bench. */
@@ -60,42 +58,6 @@ export function matchesInjection(event: LogEvent, actions: readonly PendingActio
   }
   if (event.kind === 'change-clear') return actions.some((a) => a.type === 'clear' && a.faultId === event.changeId);
   return true;
-}
-
-/** The bench set-up after a run of events: what names the test being set up for the live board's list. */
-export interface Setup {
-  controls: Controls;
-  /** Running after a start until the key goes off. */
-  engineGuess: 'off' | 'cranking' | 'running';
-  /** The latest sim time among the events folded in. */
-  maxAtMs: number;
-}
-
-export const initialSetup = (): Setup => ({ controls: initialControls(), engineGuess: 'off', maxAtMs: 0 });
-
-/** The set-up after `events` too, taken in time order (equal times in the order given); readings change nothing of it. */
-export function foldSetup(from: Setup, events: readonly LogEvent[]): Setup {
-  let { controls, engineGuess, maxAtMs } = from;
-  for (const e of orderEvents(events)) {
-    maxAtMs = Math.max(maxAtMs, e.atMs);
-    if (isNoteEvent(e)) continue;
-    controls = applyInput(controls, e, 0);
-    if (e.kind === 'key') engineGuess = e.position === 'start' ? 'cranking' : e.position === 'off' ? 'off' : engineGuess === 'cranking' ? 'running' : engineGuess;
-  }
-  return { controls, engineGuess, maxAtMs };
-}
-
-/**
- * The set-up after the whole log: enough to name the test being set up for
- * the live board's list, which re-runs the model for anything finer.
- */
-export function setupAfter(events: readonly LogEvent[]): Setup {
-  return foldSetup(initialSetup(), events);
-}
-
-/** The set-up after `base` and then `added`, when it can be carried on: none of `added` is earlier in sim time than the events folded into `base`. */
-function carryOn(base: Setup, added: readonly LogEvent[]): Setup | null {
-  return added.every((e) => e.atMs >= base.maxAtMs) ? foldSetup(base, added) : null;
 }
 
 /**
@@ -131,7 +93,7 @@ async function setupThrough(
       if (!e) break;
       added.push(e);
     }
-    const carried = added.length === newLastSeq - oldLastSeq ? carryOn(cached.setup, added) : null;
+    const carried = added.length === newLastSeq - oldLastSeq ? carryOnSetup(cached.setup, added) : null;
     if (carried) return carried;
   }
   const { rows } = await ctx.pool.query<{ kind: string; simTimeMs: number; payload: unknown }>({
@@ -188,7 +150,7 @@ function predictMoveOn(
   const base = cached ?? (events[0]?.seq === 1 ? { lastSeq: 0, setup: initialSetup() } : undefined);
   if (!base || events.length === 0) return null;
   if (events.some((e, i) => e.seq !== base.lastSeq + i + 1)) return null;
-  const setup = carryOn(base.setup, events.map((e) => e.event));
+  const setup = carryOnSetup(base.setup, events.map((e) => e.event));
   if (!setup) return null;
   return { fromSeq: base.lastSeq, lastSeq: base.lastSeq + events.length, setup, simTimeMs: setup.maxAtMs };
 }

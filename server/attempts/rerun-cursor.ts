@@ -11,11 +11,17 @@
  * so a cursor can be carried on from wherever it stopped. Events may be
  * appended to `events` as long as none is due before the cursor's last step;
  * one that is must rewind it.
+ *
+ * Storing a batch of events (attempts/events.ts) carries only the bench's
+ * set-up forward, without the model: the controls the events leave, folded
+ * in time order, which is enough to name the test being set up. It is carried
+ * on the same way, from where it stopped, while no event comes before it.
  */
 import type { CarChange } from '../../sim/car-changes.ts';
-import type { InputEvent } from '../../sim/inputs.ts';
+import { applyInput, initialControls, type Controls, type InputEvent } from '../../sim/inputs.ts';
 import type { VehicleParams } from '../../sim/params.ts';
 import { advance, orderEvents, startPoint, type ReplayPoint } from '../../sim/replay.ts';
+import { isNoteEvent, type LogEvent } from '../../shared/api/attempts.ts';
 
 export interface RerunCursor {
   readonly params: VehicleParams;
@@ -45,3 +51,39 @@ export function stepCursor(c: RerunCursor, steps: number): void {
 
 /** The sim time the cursor has reached. */
 export const cursorTimeMs = (c: RerunCursor): number => c.point.state.timeMs;
+
+/** The bench set-up after a run of events: what names the test being set up for the live board's list. */
+export interface Setup {
+  controls: Controls;
+  /** Running after a start until the key goes off. */
+  engineGuess: 'off' | 'cranking' | 'running';
+  /** The latest sim time among the events folded in. */
+  maxAtMs: number;
+}
+
+export const initialSetup = (): Setup => ({ controls: initialControls(), engineGuess: 'off', maxAtMs: 0 });
+
+/** The set-up after `events` too, taken in time order (equal times in the order given); readings change nothing of it. */
+export function foldSetup(from: Setup, events: readonly LogEvent[]): Setup {
+  let { controls, engineGuess, maxAtMs } = from;
+  for (const e of orderEvents(events)) {
+    maxAtMs = Math.max(maxAtMs, e.atMs);
+    if (isNoteEvent(e)) continue;
+    controls = applyInput(controls, e, 0);
+    if (e.kind === 'key') engineGuess = e.position === 'start' ? 'cranking' : e.position === 'off' ? 'off' : engineGuess === 'cranking' ? 'running' : engineGuess;
+  }
+  return { controls, engineGuess, maxAtMs };
+}
+
+/**
+ * The set-up after the whole log: enough to name the test being set up for
+ * the live board's list, which re-runs the model for anything finer.
+ */
+export function setupAfter(events: readonly LogEvent[]): Setup {
+  return foldSetup(initialSetup(), events);
+}
+
+/** The set-up after `base` and then `added`, when it can be carried on: none of `added` is earlier in sim time than the events folded into `base`. */
+export function carryOnSetup(base: Setup, added: readonly LogEvent[]): Setup | null {
+  return added.every((e) => e.atMs >= base.maxAtMs) ? foldSetup(base, added) : null;
+}
