@@ -1,6 +1,7 @@
 // Lint, and the dependency rules of the layout: sim/ imports nothing of ours but
 // itself and nothing of React, the DOM, Node or the database; src/ never imports
-// server/; shared/ imports neither; no import cycles anywhere.
+// server/; shared/ imports neither; no import cycles anywhere. Inside server/,
+// http/ and db/ import no domain folder, and route files make no queries.
 import js from '@eslint/js';
 import { createTypeScriptImportResolver } from 'eslint-import-resolver-typescript';
 import importX from 'eslint-plugin-import-x';
@@ -31,6 +32,12 @@ export default tseslint.config(
             { target: './sim', from: ['./src', './server', './shared', './tests', './scripts'], message: 'sim/ imports nothing of ours but itself.' },
             { target: './src', from: './server', message: 'The client never imports server code.' },
             { target: './shared', from: ['./src', './server'], message: 'shared/ is imported by client and server, never the reverse.' },
+            {
+              target: ['./server/http', './server/db'],
+              from: './server',
+              except: ['./http', './db', './env.ts', './context.ts', './background.ts'],
+              message: 'http/ and db/ are the bottom of the server: they import no domain folder, and no app or route list.',
+            },
             {
               target: './server',
               from: './server/lti/local-platform.ts',
@@ -63,7 +70,7 @@ export default tseslint.config(
   },
   {
     // A domain's route file parses, checks access, calls its domain and answers: its queries live in the domain.
-    files: ['server/lti/routes.ts'],
+    files: ['server/**/routes.ts', 'server/**/*-routes.ts'],
     rules: {
       'no-restricted-imports': [
         'error',

@@ -20,7 +20,7 @@ import { readdirSync, readFileSync } from 'node:fs';
 import { cpus, loadavg } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import pg from 'pg';
-import { hashPassword } from '../server/auth/passwords.ts';
+import { hashPassword } from '../server/accounts/passwords.ts';
 import { DEMO_PASSWORD } from '../server/db/demo-people.ts';
 import { withTestCluster } from './test-cluster.ts';
 import { parseServerTiming } from '../server/http/server-timing.ts';

@@ -1,10 +1,10 @@
 /**
  * `npm run docs:table`: rewrites the fault x test table in docs/model.md
- * from the model (shared/diagnosis-table.ts), between its two markers. A
+ * from the model (server/grading/diagnosis-table.ts), between its two markers. A
  * unit test fails when the docs and the model disagree.
  */
 import { readFileSync, writeFileSync } from 'node:fs';
-import { diagnosisTable, diagnosisTableMarkdown } from '../shared/diagnosis-table.ts';
+import { diagnosisTable, diagnosisTableMarkdown } from '../server/grading/diagnosis-table.ts';
 
 const file = new URL('../docs/model.md', import.meta.url);
 const doc = readFileSync(file, 'utf8');

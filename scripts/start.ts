@@ -14,11 +14,11 @@ import { join } from 'node:path';
 import { build } from 'vite';
 import { connect } from '../server/db/client.ts';
 import { applyMigrations } from '../server/db/migrate.ts';
-import { isEmpty, seedDemo } from '../server/db/seed.ts';
+import { isEmpty, seedDemo } from '../server/demo/seed.ts';
 import { DEMO_PASSWORD, DEMO_PEOPLE, DEMO_SCHOOL } from '../server/db/demo-people.ts';
 import { readEnv } from '../server/env.ts';
 import { startServer } from '../server/main.ts';
-import { startSmtpFake } from '../server/services/smtp-fake.ts';
+import { startSmtpFake } from '../server/mail/smtp-fake.ts';
 import { ensureDatabase, startCluster } from './pg-cluster.ts';
 import { serverSecret } from './server-secret.ts';
 

@@ -7,7 +7,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { connect } from '../server/db/client.ts';
 import { applyMigrations } from '../server/db/migrate.ts';
-import { seedDemo } from '../server/db/seed.ts';
+import { seedDemo } from '../server/demo/seed.ts';
 import { ensureDatabase, startCluster } from './pg-cluster.ts';
 
 export const TEMPLATE_DB = 'loadline_template';

@@ -2,16 +2,16 @@ import { existsSync } from 'node:fs';
 import { resolve } from 'node:path';
 import express from 'express';
 import helmet from 'helmet';
-import { csrf } from './auth/csrf.ts';
-import { loadUser } from './auth/guard.ts';
-import { sessionMiddleware } from './auth/session.ts';
+import { csrf } from './http/csrf.ts';
+import { loadUser } from './accounts/guard.ts';
+import { sessionMiddleware } from './accounts/session.ts';
 import type { AppContext } from './context.ts';
 import { apiNotFound, errorHandler } from './http/errors.ts';
 import { allowPlatformFrames, formTargets, frameAncestors, framePolicy } from './lti/frame-policy.ts';
 import type { RouteSpec } from './http/route-table.ts';
 import { markReceived } from './http/server-timing.ts';
-import { allRouteGroups } from './routes/all.ts';
-import { sessionBusFor } from './services/live-bus.ts';
+import { allRouteGroups } from './routes.ts';
+import { sessionBusFor } from './db/live-bus.ts';
 
 export interface CreatedApp {
   app: express.Express;

@@ -64,13 +64,13 @@ const envSchema = z.object({
   /** Submissions a student may send in an hour (each attempt is graded by a re-run of the model). */
   SUBMISSIONS_PER_HOUR: count(60),
   /**
-   * Worker threads that grade submissions (server/services/grading-pool.ts), so a
+   * Worker threads that grade submissions (server/grading/pool.ts), so a
    * re-run does not hold up other requests; 0 grades in the request's own thread.
    */
   GRADING_WORKERS: z.coerce.number().int().min(0).max(8).default(1),
   /**
    * Memory each grading worker may hold for attempts it runs ahead while
-   * students work (server/services/run-ahead.ts), in MB: about 0.4 MB per
+   * students work (server/grading/run-ahead.ts), in MB: about 0.4 MB per
    * 10 minutes of sim time. 0 runs nothing ahead.
    */
   GRADING_AHEAD_MB: z.coerce.number().min(0).max(4096).default(128),

@@ -11,10 +11,10 @@ import type { AppContext } from './context.ts';
 import { connect } from './db/client.ts';
 import { readEnv, type Env } from './env.ts';
 import { makeLogger } from './logger.ts';
-import { backgroundTasks } from './services/background.ts';
-import { openSharedGradingPool } from './services/grading-pool.ts';
-import { closeLiveBus } from './services/live-bus.ts';
-import { smtpMailer } from './services/mailer.ts';
+import { backgroundTasks } from './background.ts';
+import { openSharedGradingPool } from './grading/pool.ts';
+import { closeLiveBus } from './db/live-bus.ts';
+import { smtpMailer } from './mail/mailer.ts';
 import { startScoreWorker } from './lti/scores.ts';
 
 export interface RunningServer {

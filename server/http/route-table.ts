@@ -4,7 +4,7 @@
  * test is generated from it).
  */
 import { Router, type RequestHandler } from 'express';
-import { requireAccess, type Access } from '../auth/guard.ts';
+import { requireAccess, type Access } from './guards.ts';
 
 export type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
 

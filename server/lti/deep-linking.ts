@@ -11,7 +11,7 @@ import { and, eq } from 'drizzle-orm';
 import type { SessionUser } from '../../shared/api/auth.ts';
 import type { DeepLinkChoice, DeepLinkResponse, DeepLinkView } from '../../shared/api/lti.ts';
 import { studentScenarioView, type ScenarioDefinition } from '../../shared/scenario.ts';
-import { assertCanManageClass, assertCanSeeScenario, requireDeepLinkOwner } from '../auth/access.ts';
+import { assertCanManageClass, assertCanSeeScenario, requireDeepLinkOwner } from '../accounts/access.ts';
 import type { AppContext } from '../context.ts';
 import type { DbOrTx } from '../db/client.ts';
 import { assignments, classes, scenarioVersions } from '../db/schema.ts';

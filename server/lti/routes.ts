@@ -17,9 +17,9 @@ import {
   platformIdParamsSchema,
   platformInputSchema,
 } from '../../shared/api/lti.ts';
-import { assertCanManageAssignment, assertCanManageClass, requireAttemptInstructor } from '../auth/access.ts';
-import { newCsrfToken } from '../auth/csrf.ts';
-import { currentUser } from '../auth/guard.ts';
+import { assertCanManageAssignment, assertCanManageClass, requireAttemptInstructor } from '../accounts/access.ts';
+import { newCsrfToken } from '../http/csrf.ts';
+import { currentUser } from '../accounts/guard.ts';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/errors.ts';
 import { routeGroup, type RouteGroup } from '../http/route-table.ts';

@@ -56,7 +56,7 @@ const wakers = new WeakMap<Db, Set<() => void>>();
 /**
  * Queues the score of a graded attempt for every platform that launched its
  * assignment for its student; nothing when the attempt is not linked to a
- * launch. Called where a submission's result is stored (attempt-submit.ts).
+ * launch. Called where a submission's result is stored (attempts/submit.ts).
  */
 export async function queueScoresForAttempt(db: Db, attemptId: number): Promise<number> {
   const queued = await insertScores(db, sql`a.id = ${attemptId}`);

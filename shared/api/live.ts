@@ -9,7 +9,7 @@
  * bench applies it at its current sim time, the onset counted from there, and
  * logs it as a `change-apply` / `change-clear` event; storing that event marks
  * the injection applied. The server is the authority on when it counts:
- * server/services/injection-authority.ts.
+ * server/live/injection-authority.ts.
  */
 import { z } from 'zod';
 import { FAULT_KINDS, type FaultKind } from '../../sim/faults.ts';

@@ -5,7 +5,7 @@ import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll } from 'vitest';
 import { readEnv } from '../../server/env.ts';
 import { startServer, type RunningServer } from '../../server/main.ts';
-import { startSmtpFake, type SmtpFake } from '../../server/services/smtp-fake.ts';
+import { startSmtpFake, type SmtpFake } from '../../server/mail/smtp-fake.ts';
 import { connect } from '../../server/db/client.ts';
 import { DEMO_PASSWORD } from '../../server/db/demo-people.ts';
 import { createTestDatabase } from '../server/support.ts';

@@ -54,4 +54,23 @@ describe('the layer boundaries', () => {
     expect(routes).toContain('no-restricted-imports');
     expect(await rulesBroken('tests/server/boundary-probe.ts', "import { startLocalPlatform } from '../../server/lti/local-platform.ts';\nexport const probe = startLocalPlatform;\n")).toEqual([]);
   });
+
+  it('keep queries out of the route files of every domain, and let its other modules make them', async () => {
+    for (const file of ['server/classes/routes.ts', 'server/accounts/user-routes.ts', 'server/grading/sign-off-routes.ts']) {
+      expect(await rulesBroken(file, "import { eq } from 'drizzle-orm';\nexport const probe = eq;\n")).toContain('no-restricted-imports');
+      expect(await rulesBroken(file, "import { users } from '../db/schema.ts';\nexport const probe = users;\n")).toContain('no-restricted-imports');
+    }
+    expect(await rulesBroken('server/classes/boundary-probe.ts', "import { eq } from 'drizzle-orm';\nimport { users } from '../db/schema.ts';\nexport const probe = [eq, users];\n")).toEqual([]);
+  });
+
+  it('keep http/ and db/ at the bottom of the server: they import no domain', async () => {
+    const http = await rulesBroken('server/http/boundary-probe.ts', "import { currentUser } from '../accounts/guard.ts';\nexport const probe = currentUser;\n");
+    expect(http).toContain('import-x/no-restricted-paths');
+    const db = await rulesBroken('server/db/boundary-probe.ts', "import { hashPassword } from '../accounts/passwords.ts';\nexport const probe = hashPassword;\n");
+    expect(db).toContain('import-x/no-restricted-paths');
+    const routeList = await rulesBroken('server/http/boundary-probe.ts', "import { allRouteGroups } from '../routes.ts';\nexport const probe = allRouteGroups;\n");
+    expect(routeList).toContain('import-x/no-restricted-paths');
+    expect(await rulesBroken('server/http/boundary-probe.ts', "import type { Db } from '../db/client.ts';\nimport type { AppContext } from '../context.ts';\nexport type Probe = [Db, AppContext];\n")).toEqual([]);
+    expect(await rulesBroken('server/accounts/boundary-probe.ts', "import { HttpError } from '../http/errors.ts';\nimport { users } from '../db/schema.ts';\nexport const probe = [HttpError, users];\n")).toEqual([]);
+  });
 });

@@ -11,7 +11,7 @@ import type { ReplayResponse } from '../../shared/api/replay.ts';
 import { restoreScenario } from '../../shared/scenario.ts';
 import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import { assignments, attempts, scenarios, scenarioVersions } from '../../server/db/schema.ts';
-import { referenceStudent, type StudentRun } from '../shared/reference-student.ts';
+import { referenceStudent, type StudentRun } from './reference-student.ts';
 import { assignmentId, benchModel, leads, numbered, readingEvent, readingFrom, startEngine } from './attempts-bench.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
 

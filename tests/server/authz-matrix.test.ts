@@ -13,7 +13,7 @@
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
-import { hashPassword } from '../../server/auth/passwords.ts';
+import { hashPassword } from '../../server/accounts/passwords.ts';
 import { assignments, classes, classInstructors, enrollments, signOffs, users } from '../../server/db/schema.ts';
 import { ltiDeepLinkRequests, ltiPlatforms, ltiScoreOutbox } from '../../server/lti/tables.ts';
 import type { Method } from '../../server/http/route-table.ts';

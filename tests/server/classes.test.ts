@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
-import { NOT_A_STUDENT } from '../../server/routes/classes.ts';
+import { NOT_A_STUDENT } from '../../server/classes/queries.ts';
 import { anonymousAgent, linkToken, signIn, startTestApp, waitForMail, type Agent, type TestApp } from './support.ts';
 
 const admin = DEMO_PEOPLE.find((p) => p.role === 'admin')!;

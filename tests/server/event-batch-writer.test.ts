@@ -1,6 +1,6 @@
 /**
  * Event batches handed in during one turn of the event loop are stored in one
- * statement (server/services/event-batch-writer.ts), each batch with the
+ * statement (server/attempts/event-batch-writer.ts), each batch with the
  * meaning it has alone: stored once, only on the student's own running
  * attempt, the attempt moved on only when its prediction holds.
  */
@@ -9,7 +9,7 @@ import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CarInput as InputEvent } from '../../shared/api/attempts.ts';
 import { attemptEvents, attempts, users } from '../../server/db/schema.ts';
-import { createBatchWriter, MAX_GROUP, type BatchToStore } from '../../server/services/event-batch-writer.ts';
+import { createBatchWriter, MAX_GROUP, type BatchToStore } from '../../server/attempts/event-batch-writer.ts';
 import { numbered, pileRamp, scenarioId } from './attempts-bench.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
 

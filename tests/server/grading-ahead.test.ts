@@ -7,11 +7,11 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AttemptBootstrap, AttemptResult, LogEvent, SubmitInput } from '../../shared/api/attempts.ts';
-import { gradeRun } from '../../server/services/grade-run.ts';
-import { openSharedGradingPool, type GradingPool } from '../../server/services/grading-pool.ts';
-import { loadAttemptRun } from '../../server/services/live-attempt-run.ts';
-import { loadAttempt, showAfter } from '../../server/services/attempt-store.ts';
-import { gradeJobOf } from '../../server/services/attempt-submit.ts';
+import { gradeRun } from '../../server/grading/grade-run.ts';
+import { openSharedGradingPool, type GradingPool } from '../../server/grading/pool.ts';
+import { loadAttemptRun } from '../../server/attempts/rerun-inputs.ts';
+import { loadAttempt, showAfter } from '../../server/attempts/store.ts';
+import { gradeJobOf } from '../../server/attempts/submit.ts';
 import { parseServerTiming } from '../../server/http/server-timing.ts';
 import { assignmentId, leads, numbered, pileRamp, readingEvent, startEngine } from './attempts-bench.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';

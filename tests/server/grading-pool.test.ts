@@ -10,8 +10,8 @@ import type { InputEvent } from '../../sim/inputs.ts';
 import { compileCar } from '../../sim/compiled-car.ts';
 import { faultChange } from '../../sim/faults.ts';
 import { HttpError } from '../../server/http/errors.ts';
-import { gradeRun, warmUpJob, type GradeJob } from '../../server/services/grade-run.ts';
-import { gradeSubmission, openSharedGradingPool, startGradingPool, type GradingPool } from '../../server/services/grading-pool.ts';
+import { gradeRun, warmUpJob, type GradeJob } from '../../server/grading/grade-run.ts';
+import { gradeSubmission, openSharedGradingPool, startGradingPool, type GradingPool } from '../../server/grading/pool.ts';
 
 const logged: { level: string; message: string }[] = [];
 const log = (level: 'info' | 'warn' | 'error', message: string) => void logged.push({ level, message });
@@ -67,7 +67,7 @@ describe('the grading pool', () => {
 
   it('grades in the request thread, warning once, when the worker cannot load', async () => {
     // The TypeScript module itself, with no loader: Node cannot load it.
-    const p = await pool({ workerUrl: new URL('../../server/services/grading-worker.ts', import.meta.url), execArgv: [] });
+    const p = await pool({ workerUrl: new URL('../../server/grading/worker.ts', import.meta.url), execArgv: [] });
     expect(p.stats().workers).toBe(0);
     expect(p.stats().inThreadBecause).toMatch(/could not start/);
     const job = warmUpJob(30);

@@ -6,7 +6,7 @@
 import { EventEmitter } from 'node:events';
 import type { Request, Response } from 'express';
 import { describe, expect, it } from 'vitest';
-import { openSse } from '../../server/services/live-sse.ts';
+import { openSse } from '../../server/live/sse.ts';
 
 /** Just enough of a request and response for openSse, recording each write. */
 function fakeExchange() {

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { attemptEvents, attempts, pendingInjections } from '../../server/db/schema.ts';
 import { benchInjectionSchema, boardAttemptSchema, boardSnapshotSchema, liveFaultId, type BenchInjection } from '../../shared/api/live.ts';
 import type { AttemptResult } from '../../shared/api/attempts.ts';
-import { ACK_BOUND_MS } from '../../server/services/injection-authority.ts';
+import { ACK_BOUND_MS } from '../../server/live/injection-authority.ts';
 import { faultOps } from '../../sim/faults.ts';
 import { FAULT_TEXT } from '../../shared/fault-catalogue-text.ts';
 import { startTestApp, type TestApp } from './support.ts';

@@ -2,7 +2,7 @@ import { eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
 import { outbox, rosterImports, users } from '../../server/db/schema.ts';
-import { NOT_A_STUDENT } from '../../server/routes/classes.ts';
+import { NOT_A_STUDENT } from '../../server/classes/queries.ts';
 import { anonymousAgent, linkToken, signIn, startTestApp, waitForMail, type Agent, type TestApp } from './support.ts';
 
 const [rune, tamsin] = DEMO_PEOPLE.filter((p) => p.role === 'instructor');

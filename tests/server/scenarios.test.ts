@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
 import { scenarios, scenarioVersions } from '../../server/db/schema.ts';
-import { readLibrary } from '../../server/db/seed-library.ts';
+import { readLibrary } from '../../server/demo/seed-library.ts';
 import { blankScenario, type ScenarioDefinition } from '../../shared/scenario.ts';
 import { anonymousAgent, signIn, startTestApp, type Agent, type TestApp } from './support.ts';
 

@@ -21,10 +21,10 @@
 import { eq } from 'drizzle-orm';
 import supertest from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { hashPassword } from '../../server/auth/passwords.ts';
+import { hashPassword } from '../../server/accounts/passwords.ts';
 import { classes, enrollments, users } from '../../server/db/schema.ts';
 import { readEnv } from '../../server/env.ts';
-import { sendPasswordLink } from '../../server/services/invitations.ts';
+import { sendPasswordLink } from '../../server/accounts/invitations.ts';
 import { linkToken, startTestApp, waitForMail, type TestApp } from './support.ts';
 
 const SCHOOL = '198.51.100.20';

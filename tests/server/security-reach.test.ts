@@ -15,7 +15,7 @@ import { and, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
 import { assignments, attempts, classes, classInstructors, signOffs } from '../../server/db/schema.ts';
-import { NOT_A_STUDENT } from '../../server/routes/classes.ts';
+import { NOT_A_STUDENT } from '../../server/classes/queries.ts';
 import { progressResponseSchema } from '../../shared/api/compare.ts';
 import { instructor, makeAttempt, makeClass, makeSubmitted, otherInstructor, students, userId, type ClassFixture } from './live-fixtures.ts';
 import { signIn, startTestApp, waitForMail, type Agent, type TestApp } from './support.ts';

@@ -7,7 +7,7 @@ import { eq, sql } from 'drizzle-orm';
 import supertest from 'supertest';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import type { Cookie, SessionData } from 'express-session';
-import { SESSION_MAX_AGE_MS, SESSION_TOUCH_EVERY_MS, throttledPgStore } from '../../server/auth/session.ts';
+import { SESSION_MAX_AGE_MS, SESSION_TOUCH_EVERY_MS, throttledPgStore } from '../../server/accounts/session.ts';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
 import { users } from '../../server/db/schema.ts';
 import { anonymousAgent, DEMO_PASSWORD, signIn, startTestApp, type TestApp } from './support.ts';

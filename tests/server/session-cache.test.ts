@@ -1,5 +1,5 @@
 /**
- * The session cache (server/auth/session.ts): a signed-in request is usually
+ * The session cache (server/accounts/session.ts): a signed-in request is usually
  * served without reading its session, yet a session that ends, is cut short
  * or whose account changes stops working in every process: at once in the
  * process that made the change, and within moments in the others, which hear
@@ -9,9 +9,9 @@
 import type { Cookie, SessionData } from 'express-session';
 import supertest from 'supertest';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import { SESSION_KEPT_MS, SESSION_MAX_AGE_MS, throttledPgStore } from '../../server/auth/session.ts';
+import { SESSION_KEPT_MS, SESSION_MAX_AGE_MS, throttledPgStore } from '../../server/accounts/session.ts';
 import { DEMO_PEOPLE } from '../../server/db/demo-people.ts';
-import { sessionBusFor, SESSION_CHANNEL, USER_CHANNEL, type LiveBus } from '../../server/services/live-bus.ts';
+import { sessionBusFor, SESSION_CHANNEL, USER_CHANNEL, type LiveBus } from '../../server/db/live-bus.ts';
 import { signIn, startTestApp, type TestApp } from './support.ts';
 
 const student = DEMO_PEOPLE.find((p) => p.role === 'student')!;

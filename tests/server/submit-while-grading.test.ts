@@ -10,11 +10,11 @@ import pg from 'pg';
 import type { CarInput as InputEvent } from '../../shared/api/attempts.ts';
 import type { AttemptBootstrap, AttemptResult, SubmitInput } from '../../shared/api/attempts.ts';
 import { HttpError } from '../../server/http/errors.ts';
-import { gradeRun, type GradeJob } from '../../server/services/grade-run.ts';
-import { gradeJobOf, submitAttempt } from '../../server/services/attempt-submit.ts';
-import { loadAttempt, showAfter } from '../../server/services/attempt-store.ts';
-import { loadAttemptRun } from '../../server/services/live-attempt-run.ts';
-import { studentResult } from '../../server/services/result-views.ts';
+import { gradeRun, type GradeJob } from '../../server/grading/grade-run.ts';
+import { gradeJobOf, submitAttempt } from '../../server/attempts/submit.ts';
+import { loadAttempt, showAfter } from '../../server/attempts/store.ts';
+import { loadAttemptRun } from '../../server/attempts/rerun-inputs.ts';
+import { studentResult } from '../../server/grading/result-views.ts';
 import { leads, numbered, scenarioId, startEngine } from './attempts-bench.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
 
@@ -64,7 +64,7 @@ const storedRow = async (id: number) =>
 /**
  * The stored result is whole; the submission answers with what the student
  * may see of it, and these attempts are practice, whose result shows nothing
- * of the key (server/services/result-views.ts).
+ * of the key (server/grading/result-views.ts).
  */
 const seenByStudent = (result: AttemptResult): AttemptResult => studentResult(result, { mode: 'practice', showFeedbackAfter: true, dueAt: null });
 

@@ -13,7 +13,7 @@ import { outbox } from '../../server/db/schema.ts';
 import { DEMO_PASSWORD } from '../../server/db/demo-people.ts';
 import { readEnv, type Env } from '../../server/env.ts';
 import { buildContext } from '../../server/main.ts';
-import { startSmtpFake, type SmtpFake } from '../../server/services/smtp-fake.ts';
+import { startSmtpFake, type SmtpFake } from '../../server/mail/smtp-fake.ts';
 
 export { DEMO_PASSWORD };
 

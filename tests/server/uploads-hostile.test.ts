@@ -11,7 +11,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ROSTER_MAX_BYTES, ROSTER_MAX_ROWS } from '../../shared/api/classes.ts';
 import { blankScenario } from '../../shared/scenario.ts';
-import { SCENARIO_FILE_MAX_BYTES } from '../../server/routes/scenarios.ts';
+import { SCENARIO_FILE_MAX_BYTES } from '../../server/library/routes.ts';
 import { instructor, makeClass, type ClassFixture } from './live-fixtures.ts';
 import { signIn, startTestApp, type Agent, type TestApp } from './support.ts';
 
