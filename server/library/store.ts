@@ -84,20 +84,21 @@ export function visibleTo(user: Who): SQL | undefined {
   return or(eq(scenarios.visibility, 'shared'), eq(scenarios.ownerId, user.id));
 }
 
+/** A scenario's own columns with its owner's name, as the list and the detail read them. */
+const scenarioColumns = {
+  id: scenarios.id,
+  slug: scenarios.slug,
+  ownerId: scenarios.ownerId,
+  ownerName: users.name,
+  visibility: scenarios.visibility,
+  publishedVersionId: scenarios.publishedVersionId,
+  latestVersion: scenarios.latestVersion,
+  archived: scenarios.archived,
+};
+
 export async function listScenarios(db: DbOrTx, user: Who, where: SQL | undefined): Promise<ScenarioListItem[]> {
   const rows = await db
-    .select({
-      id: scenarios.id,
-      slug: scenarios.slug,
-      ownerId: scenarios.ownerId,
-      ownerName: users.name,
-      visibility: scenarios.visibility,
-      publishedVersionId: scenarios.publishedVersionId,
-      latestVersion: scenarios.latestVersion,
-      archived: scenarios.archived,
-      updatedAt: scenarios.updatedAt,
-      definition: scenarioVersions.definition,
-    })
+    .select({ ...scenarioColumns, updatedAt: scenarios.updatedAt, definition: scenarioVersions.definition })
     .from(scenarios)
     .innerJoin(scenarioVersions, and(eq(scenarioVersions.scenarioId, scenarios.id), eq(scenarioVersions.version, scenarios.latestVersion)))
     .leftJoin(users, eq(users.id, scenarios.ownerId))
@@ -150,16 +151,7 @@ export const versionColumns = {
 
 export async function scenarioDetail(db: DbOrTx, user: Who, scenarioId: number): Promise<ScenarioDetail> {
   const [s] = await db
-    .select({
-      id: scenarios.id,
-      slug: scenarios.slug,
-      ownerId: scenarios.ownerId,
-      ownerName: users.name,
-      visibility: scenarios.visibility,
-      publishedVersionId: scenarios.publishedVersionId,
-      latestVersion: scenarios.latestVersion,
-      archived: scenarios.archived,
-    })
+    .select(scenarioColumns)
     .from(scenarios)
     .leftJoin(users, eq(users.id, scenarios.ownerId))
     .where(eq(scenarios.id, scenarioId));
