@@ -272,6 +272,31 @@ describe('the readings of the log', () => {
     expect(server.stored.get(2)).toEqual({ kind: 'reading-remove', atMs: 7000, readingId: 'a' });
   });
 
+  it('keeps the same list while the outbox sends other events, and a new one when a reading is taken or stored', async () => {
+    const server = fakeServer();
+    const timer = new ManualTimer();
+    const outbox = createOutbox({ attemptId: 5, storage: new MemoryStorage(), send: server.send, timer, serverSeq: 0, intervalMs: 1000 });
+    outbox.start();
+    const log = createReadingsLog([], outbox, () => 1000);
+    let notified = 0;
+    log.subscribe(() => notified++);
+    log.record(reading('a', 900));
+    const first = log.list();
+    // A turn of the pile's dial: the outbox changes (and tells its listeners), the readings do not.
+    outbox.push({ kind: 'pile', atMs: 1100, dial01: 0.3 });
+    outbox.push({ kind: 'pile', atMs: 1200, dial01: 0.4 });
+    expect(log.list()).toBe(first);
+    // Stored by the server: the reading's flag changes, so the list is new.
+    await timer.advance(1000);
+    const stored = log.list();
+    expect(stored).not.toBe(first);
+    expect(stored).toMatchObject([{ reading: { id: 'a' }, stored: true }]);
+    outbox.push({ kind: 'pile', atMs: 2100, dial01: 0 });
+    await timer.advance(1000);
+    expect(log.list()).toBe(stored);
+    expect(notified).toBeGreaterThan(0);
+  });
+
   it('takes the readings of a log from another device (the bootstrap’s events)', () => {
     const outbox = createOutbox({ attemptId: 4, storage: new MemoryStorage(), send: fakeServer().send, timer: new ManualTimer(), serverSeq: 3 });
     const log = createReadingsLog(

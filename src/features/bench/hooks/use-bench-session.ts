@@ -59,23 +59,28 @@ export function createReadingsLog(initial: readonly SequencedEvent[], outbox: Pi
   };
   for (const e of initial) take(e);
   const listeners = new Set<() => void>();
-  let cache: { acked: number; version: number; list: LoggedReading[] } | null = null;
+  // The list changes only when a reading is taken or struck out, or when the server stores one: every other
+  // event the outbox sends (a turn of the dial, a key) leaves it the same array, so nothing re-renders for it.
+  let cache: { version: number; stored: number; list: LoggedReading[] } | null = null;
   let version = 0;
   const changed = () => {
-    version++;
     for (const l of [...listeners]) l();
   };
   outbox.subscribe(changed);
   const log = (event: LogEvent) => {
     take(outbox.push(event));
+    version++;
     changed();
   };
   return {
     list() {
       const acked = outbox.view().ackedSeq;
-      if (cache && cache.acked === acked && cache.version === version) return cache.list;
+      // Stored readings are those at or below the acknowledged seq: for the same readings, their count says which.
+      let stored = 0;
+      for (const k of kept.values()) if (k.seq <= acked) stored++;
+      if (cache && cache.version === version && cache.stored === stored) return cache.list;
       const list = [...kept.values()].map((k) => ({ ...k, stored: k.seq <= acked }));
-      cache = { acked, version, list };
+      cache = { version, stored, list };
       return list;
     },
     subscribe(listener) {
