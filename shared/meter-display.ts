@@ -53,8 +53,25 @@ function fixedText(value: number, decimals: number): string {
 }
 
 function groupedText(value: number): string {
-  const text = Math.abs(value).toLocaleString('en-US');
+  const text = groupThousands(Math.abs(value));
   return value < 0 ? `${MINUS}${text}` : text;
+}
+
+/**
+ * A whole number with its digits grouped in threes by commas, as
+ * `toLocaleString('en-US')` writes it ("12,345", "-1,200"), without the
+ * locale machinery, which costs far more on every display tick. Anything
+ * else (a fraction, a huge number) is left to toLocaleString.
+ */
+export function groupThousands(n: number): string {
+  if (!Number.isInteger(n) || Math.abs(n) >= 1e15) return n.toLocaleString('en-US');
+  const digits = String(Math.abs(n));
+  let out = '';
+  for (let i = 0; i < digits.length; i++) {
+    if (i > 0 && (digits.length - i) % 3 === 0) out += ',';
+    out += digits[i];
+  }
+  return n < 0 ? `-${out}` : out;
 }
 
 /** DC volts as the voltmeter shows them. */

@@ -22,7 +22,7 @@ import type { ClampArrow, Conductor, ConnectionPoint, KeyPosition } from '../sim
 import type { Readings } from '../sim/instruments.ts';
 import type { VehicleParams } from '../sim/params.ts';
 import type { EngineStatus, SimState } from '../sim/step.ts';
-import { showVolts, type MeterQuantity } from './meter-display.ts';
+import { groupThousands, showVolts, type MeterQuantity } from './meter-display.ts';
 
 // ---------------------------------------------------------------------------
 // The conditions' numbers. The model's fidelity work may retune them; tests
@@ -333,7 +333,7 @@ const CONDUCTOR_WORDS: Readonly<Record<Conductor, string>> = {
   'sense-line': 'the sense line',
 };
 
-const n0 = (x: number) => Math.round(x).toLocaleString('en-US');
+const n0 = (x: number) => groupThousands(Math.round(x));
 const secs = (ms: number) => `${Math.floor(ms / 1000)} s`;
 const pairWords = (p: LeadPair) => `red on ${POINT_WORDS[p.red]}, black on ${POINT_WORDS[p.black]}`;
 

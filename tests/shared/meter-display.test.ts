@@ -6,7 +6,7 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { meterShows, sameShown, showAmps, showDraw, showRipple, showRpm, showVolts, shownWithUnit } from '../../shared/meter-display.ts';
+import { groupThousands, meterShows, sameShown, showAmps, showDraw, showRipple, showRpm, showVolts, shownWithUnit } from '../../shared/meter-display.ts';
 import { formatAmps, formatDrawMa, formatRippleMv, formatRpm, formatVolts } from '../../src/features/bench/components/reading-format.ts';
 
 describe('what a meter shows', () => {
@@ -51,5 +51,20 @@ describe('what a meter shows', () => {
     expect(shownWithUnit(99.9, 'A')).toBe('99.9 A');
     expect(shownWithUnit(1234, 'mV')).toBe('1,234 mV');
     expect(shownWithUnit(25, 'mA')).toBe('25 mA');
+  });
+});
+
+describe('grouping digits in threes', () => {
+  it('writes every whole number as toLocaleString(\'en-US\') does, and leaves fractions to it', () => {
+    // The en-US convention (common practice, no source): commas every three digits, a hyphen-minus.
+    expect(groupThousands(0)).toBe('0');
+    expect(groupThousands(999)).toBe('999');
+    expect(groupThousands(1000)).toBe('1,000');
+    expect(groupThousands(-1234567)).toBe('-1,234,567');
+    expect(groupThousands(1234.5)).toBe((1234.5).toLocaleString('en-US'));
+    fc.assert(
+      fc.property(fc.integer({ min: -1e12, max: 1e12 }).filter((n) => !Object.is(n, -0)), (n) => groupThousands(n) === n.toLocaleString('en-US')),
+      { numRuns: 2000 },
+    );
   });
 });

@@ -161,7 +161,7 @@ export function BenchWorkspace(p: BenchWorkspaceProps) {
                 <BenchAlerts />
               </div>
             </div>
-            <section aria-label="Engine and load controls" className="grid gap-3 rounded-xl [contain:layout_paint] bg-white p-3 shadow-sm ring-1 ring-slate-200 sm:grid-cols-[minmax(0,1fr)_auto]">
+            <section aria-label="Engine and load controls" className="grid gap-3 rounded-xl [contain:layout_paint] will-change-transform bg-white p-3 shadow-sm ring-1 ring-slate-200 sm:grid-cols-[minmax(0,1fr)_auto]">
               <div className="min-w-0 space-y-2">
                 <KeySwitch />
                 <RpmControl idleRpm={vehicle.engine.idleRpm} maxRpm={Math.min(3000, vehicle.engine.maxHeldRpm)} />
