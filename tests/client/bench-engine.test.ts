@@ -46,6 +46,29 @@ describe('the live bench engine', () => {
     expect(seen).toEqual([event]);
   });
 
+  it('knows every input dispatched while its loop runs, before the next frame shows it', () => {
+    const engine = createBenchEngine({ params, seed: SEED });
+    const raf = globalThis.requestAnimationFrame;
+    const caf = globalThis.cancelAnimationFrame;
+    globalThis.requestAnimationFrame = (() => 1) as typeof requestAnimationFrame;
+    globalThis.cancelAnimationFrame = (() => undefined) as typeof cancelAnimationFrame;
+    try {
+      engine.start();
+      const shown = engine.getSnapshot();
+      engine.dispatch(benchActions.setPile(0.1));
+      engine.dispatch(benchActions.setPile(0.2));
+      // Not yet shown (the next frame publishes it), but known: a second turn within the frame builds on the first.
+      expect(engine.getSnapshot()).toBe(shown);
+      expect(engine.controlsNow().pileDial01).toBeCloseTo(0.2, 9);
+      engine.tick(1000 / 60);
+      expect(engine.getSnapshot().controls.pileDial01).toBeCloseTo(0.2, 9);
+      engine.stop();
+    } finally {
+      globalThis.requestAnimationFrame = raf;
+      globalThis.cancelAnimationFrame = caf;
+    }
+  });
+
   it('springs the key back from start to on', () => {
     const engine = createBenchEngine({ params, seed: SEED });
     engine.dispatch(benchActions.turnKey('start'));

@@ -47,6 +47,27 @@ describe('the carbon-pile dial', () => {
     expect(d.getAttribute('aria-valuenow')).toBe('0');
   });
 
+  it('counts every key press when the value shown lags behind (presses faster than the display’s frames)', () => {
+    // The bench shows a turn on its next frame; until then the dial's value is the old one.
+    const sent: number[] = [];
+    render(<LoadDial value01={0.3} onChange={(v) => sent.push(v)} pileA={0} pileTempC={40} warnC={250} tripC={400} hot={false} tripped={false} />);
+    fireEvent.keyDown(dial(), { key: 'PageUp' });
+    fireEvent.keyDown(dial(), { key: 'PageUp' });
+    fireEvent.keyDown(dial(), { key: 'ArrowDown' });
+    fireEvent.wheel(dial(), { deltaY: -100 });
+    expect(sent.map((v) => Math.round(v * 100))).toEqual([40, 50, 49, 50]);
+  });
+
+  it('steps from the value shown once the bench shows a new one', () => {
+    const sent: number[] = [];
+    const props = { onChange: (v: number) => sent.push(v), pileA: 0, pileTempC: 40, warnC: 250, tripC: 400, hot: false, tripped: false };
+    const { rerender } = render(<LoadDial value01={0.3} {...props} />);
+    fireEvent.keyDown(dial(), { key: 'PageUp' });
+    rerender(<LoadDial value01={0.7} {...props} />);
+    fireEvent.keyDown(dial(), { key: 'PageUp' });
+    expect(sent.map((v) => Math.round(v * 100))).toEqual([40, 80]);
+  });
+
   it('ignores keys it does not use', () => {
     render(<Harness start={0.3} />);
     fireEvent.keyDown(dial(), { key: 'a' });

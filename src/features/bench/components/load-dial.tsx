@@ -79,10 +79,20 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
   const dragging = useRef(false);
   /** The dial's centre on screen, measured once per drag (no layout work per pointer move). */
   const centre = useRef<{ x: number; y: number }>({ x: 0, y: 0 });
-  const valueRef = useRef(value01);
-  valueRef.current = value01;
+  // The value last sent, until the bench shows a new one: the keys and the wheel step from it, so presses that
+  // come faster than the display's frames (a held key, a slow laptop) all count.
+  const shownRef = useRef(value01);
+  const latestRef = useRef(value01);
+  if (shownRef.current !== value01) {
+    shownRef.current = value01;
+    latestRef.current = value01;
+  }
   const onChangeRef = useRef(onChange);
   onChangeRef.current = onChange;
+  const send = (v: number) => {
+    latestRef.current = v;
+    onChangeRef.current(v);
+  };
 
   // React's wheel listener is passive; the dial must stop the page scrolling.
   useEffect(() => {
@@ -91,21 +101,23 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
     const onWheel = (e: WheelEvent) => {
       e.preventDefault();
       const step = e.shiftKey ? PAGE_STEP : KEY_STEP;
-      onChangeRef.current(clampDial(valueRef.current + (e.deltaY < 0 ? step : -step)));
+      const v = clampDial(latestRef.current + (e.deltaY < 0 ? step : -step));
+      latestRef.current = v;
+      onChangeRef.current(v);
     };
     el.addEventListener('wheel', onWheel, { passive: false });
     return () => el.removeEventListener('wheel', onWheel);
   }, []);
 
   const fromPointer = (e: PointerEvent<SVGSVGElement>) => {
-    onChange(dialValueAt(e.clientX - centre.current.x, e.clientY - centre.current.y));
+    send(dialValueAt(e.clientX - centre.current.x, e.clientY - centre.current.y));
   };
 
   const onKeyDown = (e: KeyboardEvent<SVGSVGElement>) => {
-    const next = dialKeyValue(e.key, value01);
+    const next = dialKeyValue(e.key, latestRef.current);
     if (next === null) return;
     e.preventDefault();
-    onChange(next);
+    send(next);
   };
 
   const temp = scaleLinear().domain([0, tripC]).range([START, START + SWEEP]).clamp(true);

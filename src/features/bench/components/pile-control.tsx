@@ -3,7 +3,7 @@ import type { PileParams } from '../../../../sim/params.ts';
 import type { BenchSnapshot } from '../stores/bench-engine.ts';
 import { quantiseDial } from '../../../../shared/dial.ts';
 import { benchActions } from '../stores/bench-actions.ts';
-import { shallowEqual, useBench, useBenchDispatch } from '../hooks/use-bench.ts';
+import { shallowEqual, useBench, useBenchDispatch, useBenchEngine } from '../hooks/use-bench.ts';
 import { LoadDial } from './load-dial.tsx';
 
 /** A loaded burst longer than this gets the amber caution (common practice: about 15 s, then let the pile cool). */
@@ -43,8 +43,10 @@ export function BurstTimer({ burstS, lastBurstS }: { burstS: number | null; last
 export function PileControl({ pile, dialSize = 160 }: { pile: PileParams; dialSize?: number }) {
   const p = useBench(selectPile, shallowEqual);
   const dispatch = useBenchDispatch();
+  const engine = useBenchEngine();
+  // Compared with the controls as dispatched, not as last shown: two turns within one frame both count.
   const change = (v: number) => {
-    if (quantiseDial(v) !== quantiseDial(p.dial)) dispatch(benchActions.setPile(v));
+    if (quantiseDial(v) !== quantiseDial(engine.controlsNow().pileDial01)) dispatch(benchActions.setPile(v));
   };
   return (
     <div className="flex items-center gap-3">

@@ -102,6 +102,8 @@ export interface BenchEngine {
   skipAhead(ms: number): void;
   /** The readouts as displayed now, with their sim time (what a recorded reading refers to). */
   readNow(): MeterDisplay;
+  /** The controls with every input dispatched so far, before the next frame publishes them. */
+  controlsNow(): Controls;
   studentEvents(): readonly InputEvent[];
   start(): void;
   stop(): void;
@@ -282,6 +284,7 @@ export function createBenchEngine(options: BenchEngineOptions): BenchEngine {
       publish();
     },
     readNow: () => display,
+    controlsNow: () => shownControls,
     studentEvents: () => student,
     start() {
       if (frame !== null) return;
