@@ -391,7 +391,6 @@ export function initialState(params: VehicleParams, seed: number, changes: reado
 
 // The step's operating point for solveAt, reused every step (solveAt keeps none of it).
 const { stepInputs } = workspace.step;
-stepInputs.controls = controlsRead;
 
 /** A state for stepInto to fill: fresh objects, every field in the order the step writes (and JSON shows) them. */
 export function blankState(): SimState {

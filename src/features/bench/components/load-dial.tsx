@@ -5,7 +5,7 @@
  * as the load scale, shows the pile's temperature: amber from its warning
  * temperature, red when it has cut out.
  */
-import { useEffect, useId, useRef, type KeyboardEvent, type PointerEvent } from 'react';
+import { useCallback, useEffect, useId, useRef, type KeyboardEvent, type PointerEvent } from 'react';
 import { arc } from 'd3-shape';
 import { scaleLinear } from 'd3-scale';
 import { clampDial, dialPercent } from '../../../../shared/dial.ts';
@@ -89,10 +89,11 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
   }
   const onChangeRef = useRef(onChange);
   onChangeRef.current = onChange;
-  const send = (v: number) => {
+  // Reads only refs, so the wheel listener registered once can call it too.
+  const send = useCallback((v: number) => {
     latestRef.current = v;
     onChangeRef.current(v);
-  };
+  }, []);
 
   // React's wheel listener is passive; the dial must stop the page scrolling.
   useEffect(() => {
@@ -101,13 +102,11 @@ export function LoadDial({ value01, onChange, pileA, pileTempC, warnC, tripC, ho
     const onWheel = (e: WheelEvent) => {
       e.preventDefault();
       const step = e.shiftKey ? PAGE_STEP : KEY_STEP;
-      const v = clampDial(latestRef.current + (e.deltaY < 0 ? step : -step));
-      latestRef.current = v;
-      onChangeRef.current(v);
+      send(clampDial(latestRef.current + (e.deltaY < 0 ? step : -step)));
     };
     el.addEventListener('wheel', onWheel, { passive: false });
     return () => el.removeEventListener('wheel', onWheel);
-  }, []);
+  }, [send]);
 
   const fromPointer = (e: PointerEvent<SVGSVGElement>) => {
     send(dialValueAt(e.clientX - centre.current.x, e.clientY - centre.current.y));
