@@ -59,7 +59,7 @@ describe('the inductive clamp and the drawing', () => {
 
     await hookUp(page, {});
     await page.getByRole('button', { name: 'Reverse clamp' }).click();
-    expect(await page.getByTestId('clamp-arrow').textContent()).toMatch(/toward the alternator/);
+    await expect.poll(() => page.getByTestId('clamp-arrow').textContent()).toMatch(/toward the alternator/);
     await expect.poll(() => reading(page, 'amps')).toBeLessThan(-5);
     const reversed = await reading(page, 'amps');
     expect(Math.abs(reversed + forward)).toBeLessThan(Math.max(3, 0.15 * forward));

@@ -116,11 +116,11 @@ describe('a whole diagnosis of an assigned scenario', () => {
       'AC ripple (diode) check',
     ];
     await diagnose(page, Object.fromEntries(tests.map((t) => [t, 'Pass' as const])), 'No fault: the charging system is healthy');
-    expect(await page.getByTestId('result-verified').textContent()).toMatch(/^Verified:/);
+    await expect.poll(() => page.getByTestId('result-verified').textContent()).toMatch(/^Verified:/);
     const grade = Number(((await page.getByTestId('result-grade').textContent()) ?? '').split(' / ')[0]);
     expect(grade).toBeGreaterThanOrEqual(90);
     const result = page.getByTestId('attempt-result');
-    for (const t of tests) expect(await result.getByRole('listitem').filter({ hasText: t }).textContent()).toMatch(/^OK/);
+    for (const t of tests) await expect.poll(() => result.getByRole('listitem').filter({ hasText: t }).textContent()).toMatch(/^OK/);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-full-diagnosis-result.png`, fullPage: true });
     expect(problems).toEqual([]);
     await page.close();

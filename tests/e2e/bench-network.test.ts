@@ -38,8 +38,8 @@ describe('the network cut mid-attempt', () => {
     await page.reload();
     await dial.waitFor();
     await openPanel(page, 'Car');
-    for (const name of switches) expect(await page.getByRole('button', { name, exact: true }).getAttribute('aria-pressed')).toBe('true');
-    expect(await dial.getAttribute('aria-valuenow')).toBe('30');
+    for (const name of switches) await expect.poll(() => page.getByRole('button', { name, exact: true }).getAttribute('aria-pressed')).toBe('true');
+    await expect.poll(() => dial.getAttribute('aria-valuenow')).toBe('30');
     await page.getByRole('button', { name: 'Wipers', exact: true }).click();
     await expect.poll(() => status.textContent(), { timeout: 15_000 }).toMatch(/^Offline — 8 events waiting$/);
     expect((await serverAttempt(page, attemptId)).events).toHaveLength(3);

@@ -20,7 +20,7 @@ describe('a healthy output test, end to end', () => {
     await hookUp(page, { red: 'battery-pos', black: 'battery-neg' });
     await page.getByRole('button', { name: 'Zero clamp' }).click();
     await page.getByLabel('Inductive clamp', { exact: true }).selectOption('bplus-cable');
-    expect(await page.getByTestId('clamp-arrow').textContent()).toMatch(/toward the battery/);
+    await expect.poll(() => page.getByTestId('clamp-arrow').textContent()).toMatch(/toward the battery/);
     await startEngine(page);
     await holdRpm(page, '2,000');
     await expect.poll(() => reading(page, 'rpm'), { timeout: 10_000 }).toBeGreaterThanOrEqual(1950);

@@ -33,7 +33,7 @@ describe('the bench tools', () => {
     await procedures.getByRole('tab', { name: 'Output' }).click();
     const form = page.getByRole('form', { name: 'Record a reading' });
     await expect.poll(() => form.getByLabel('Test').inputValue()).toBe('output');
-    expect(await page.getByTestId('record-reads').textContent()).toMatch(/Amps \(clamp\)/);
+    await expect.poll(() => page.getByTestId('record-reads').textContent()).toMatch(/Amps \(clamp\)/);
     // The procedure tabs move with the arrow keys (WAI-ARIA tabs): from Output, left is Regulated V, Home the first.
     await procedures.getByRole('tab', { name: 'Output' }).focus();
     await page.keyboard.press('ArrowLeft');
@@ -41,7 +41,7 @@ describe('the bench tools', () => {
     await page.keyboard.press('Home');
     await expect.poll(() => procedures.getByRole('tab', { selected: true }).textContent()).toBe('State of charge');
     await expect.poll(() => form.getByLabel('Test').inputValue()).toBe('battery-ocv');
-    expect(await page.getByTestId('record-reads').textContent()).toMatch(/DC volts/);
+    await expect.poll(() => page.getByTestId('record-reads').textContent()).toMatch(/DC volts/);
 
     // One action: Record. The reading is the volts shown, for the state-of-charge test.
     const shown = await reading(page, 'volts');
@@ -49,7 +49,7 @@ describe('the bench tools', () => {
     await openPanel(page, 'Readings');
     const recorded = page.getByTestId('recorded-reading');
     await expect.poll(() => recorded.count()).toBe(1);
-    expect(await recorded.first().textContent()).toMatch(/Battery state of charge/);
+    await expect.poll(() => recorded.first().textContent()).toMatch(/Battery state of charge/);
     const value = volts((await page.getByTestId('recorded-value').first().textContent())?.replace(/\s*V$/, '') ?? null);
     expect(Math.abs(value - shown)).toBeLessThanOrEqual(0.05);
     await expect.poll(() => page.getByTestId('reading-saved').first().textContent(), { timeout: 15_000 }).toBe('saved');
@@ -57,7 +57,7 @@ describe('the bench tools', () => {
     // The min/max hold: on, then crank; the lowest volts shown while cranking stays on the strip.
     const holdSwitch = page.getByRole('button', { name: 'Min/max hold on the voltmeter' });
     await holdSwitch.click();
-    expect(await holdSwitch.getAttribute('aria-pressed')).toBe('true');
+    await expect.poll(() => holdSwitch.getAttribute('aria-pressed')).toBe('true');
     const hold = page.getByTestId('volt-hold');
     const held = async () => {
       const m = /min ([\d.−-]+) · max ([\d.−-]+) V/.exec((await hold.textContent()) ?? '');
@@ -99,11 +99,11 @@ describe('the bench tools', () => {
     await openPanel(page, 'Procedure');
     const hints = page.getByTestId('hints');
     await hints.scrollIntoViewIfNeeded();
-    expect(await hints.textContent()).toMatch(/0 of 2 opened; each costs 5 points of the grade/);
+    await expect.poll(() => hints.textContent()).toMatch(/0 of 2 opened; each costs 5 points of the grade/);
     expect(await page.getByTestId('hint-text').count()).toBe(0);
     await page.getByTestId('hint-button').click();
     await expect.poll(() => page.getByTestId('hint-text').count()).toBe(1);
-    expect(await page.getByTestId('hint-text').first().textContent()).toBe(definition.hints[0]);
+    await expect.poll(() => page.getByTestId('hint-text').first().textContent()).toBe(definition.hints[0]);
     // The hint is an event of the attempt's log, stored by the server.
     await expect.poll(async () => (await serverAttempt(page, attemptId)).events.filter((e) => e.event.kind === 'hint').length, { timeout: 15_000 }).toBe(1);
     await page.screenshot({ path: `${SCREENSHOT_DIR}/bench-tools-hint.png` });
@@ -112,7 +112,7 @@ describe('the bench tools', () => {
     await page.reload();
     await openPanel(page, 'Procedure');
     await expect.poll(() => page.getByTestId('hint-text').count(), { timeout: 15_000 }).toBe(1);
-    expect(await page.getByTestId('hints').textContent()).toMatch(/1 of 2 opened/);
+    await expect.poll(() => page.getByTestId('hints').textContent()).toMatch(/1 of 2 opened/);
 
     // Submit (no readings: the bench asks first); the result counts the hint.
     await openPanel(page, 'Diagnose');

@@ -49,7 +49,7 @@ describe('readings on two devices', () => {
     await b.goto(`${e2e.app.url}/bench/${attemptId}`);
     await b.getByRole('slider', { name: 'Carbon pile load' }).waitFor();
     await expect.poll(() => b.getByTestId('recorded-value').allTextContents(), { timeout: 15_000 }).toEqual(recordedOnA);
-    expect(await b.getByTestId('reading-saved').allTextContents()).toEqual(['saved', 'saved', 'saved']);
+    await expect.poll(() => b.getByTestId('reading-saved').allTextContents()).toEqual(['saved', 'saved', 'saved']);
     expect(await b.getByText('No readings recorded yet').count()).toBe(0);
 
     await diagnose(
@@ -68,7 +68,7 @@ describe('readings on two devices', () => {
     for (const r of result) expect(r.shown).toBe(r.recorded);
     // The bench still open on the first device learns of the submission and closes, showing the same result.
     await expect.poll(() => a.getByTestId('result-reading').count(), { timeout: 20_000 }).toBe(3);
-    expect(await a.getByRole('slider', { name: 'Carbon pile load' }).count()).toBe(0);
+    await expect.poll(() => a.getByRole('slider', { name: 'Carbon pile load' }).count()).toBe(0);
     await b.screenshot({ path: `${SCREENSHOT_DIR}/two-devices-result.png`, fullPage: true });
 
     // The replay at each reading's moment: the reading as written and the bench's readout then.
@@ -82,7 +82,7 @@ describe('readings on two devices', () => {
       await item.getByRole('button').click();
       await expect.poll(() => b.getByTestId('replay-readouts').getAttribute('data-at-ms')).toBe(String(r.atMs));
       const unit = r.shown.split(' ').pop() as keyof typeof readoutOf;
-      expect(await b.getByTestId(readoutOf[unit]).textContent()).toBe(r.shown);
+      await expect.poll(() => b.getByTestId(readoutOf[unit]).textContent()).toBe(r.shown);
     }
     await b.screenshot({ path: `${SCREENSHOT_DIR}/two-devices-replay.png`, fullPage: true });
     expect(problemsA).toEqual([]);

@@ -3,16 +3,9 @@ import { useForm } from 'react-hook-form';
 import { z } from 'zod';
 import { createAssignmentSchema, type CreateAssignmentInput } from '../../../../shared/api/assignments.ts';
 import { Button } from '../../../components/ui/button.tsx';
-import { SelectField, TextField } from '../../../components/ui/field.tsx';
+import { ScheduleFields, scheduleDefaults, type PublishedScenarioChoice } from '../../../components/schedule-fields.tsx';
 import { useCreateAssignment } from '../api/create-assignment.ts';
-import { localToIso, localValue } from './local-dates.ts';
-
-export interface AssignableScenario {
-  id: number;
-  title: string;
-  publishedVersion: number | null;
-}
-
+import { localToIso } from '../../../lib/local-dates.ts';
 
 const formSchema = z
   .object({
@@ -41,24 +34,15 @@ const formSchema = z
 
 type FormInput = z.input<typeof formSchema>;
 
-
-export function AssignmentForm({ classId, scenarios }: { classId: number; scenarios: AssignableScenario[] }) {
+export function AssignmentForm({ classId, scenarios }: { classId: number; scenarios: readonly PublishedScenarioChoice[] }) {
   const create = useCreateAssignment();
-  const now = new Date();
-  now.setSeconds(0, 0);
   const defaults: FormInput = {
+    ...scheduleDefaults(),
     classId,
-    scenarioId: '',
-    title: '',
-    opensAt: localValue(now),
-    dueAt: localValue(new Date(now.getTime() + 14 * 24 * 3600 * 1000)),
-    attemptsAllowed: 3,
     showCurveAfter: true,
     showFeedbackAfter: true,
   };
   const form = useForm<FormInput, unknown, CreateAssignmentInput>({ resolver: zodResolver(formSchema), defaultValues: defaults });
-  const e = form.formState.errors;
-  const published = scenarios.filter((s) => s.publishedVersion !== null);
   return (
     <form
       noValidate
@@ -66,20 +50,11 @@ export function AssignmentForm({ classId, scenarios }: { classId: number; scenar
       className="grid gap-4 sm:grid-cols-2"
       onSubmit={form.handleSubmit((payload) => create.mutate(payload, { onSuccess: () => form.reset({ ...defaults, scenarioId: '' }) }))}
     >
-      <div className="sm:col-span-2">
-        <SelectField label="Scenario (its published version)" {...form.register('scenarioId')} error={e.scenarioId?.message}>
-          <option value="">Choose a published scenario</option>
-          {published.map((s) => (
-            <option key={s.id} value={s.id}>
-              {s.title} (v{s.publishedVersion})
-            </option>
-          ))}
-        </SelectField>
-      </div>
-      <TextField label="Title shown to students (optional)" placeholder="The scenario’s title" {...form.register('title')} error={e.title?.message} />
-      <TextField label="Attempts allowed" type="number" min={1} max={20} {...form.register('attemptsAllowed', { valueAsNumber: true })} error={e.attemptsAllowed?.message} />
-      <TextField label="Opens" type="datetime-local" {...form.register('opensAt')} error={e.opensAt?.message} />
-      <TextField label="Due" type="datetime-local" {...form.register('dueAt')} error={e.dueAt?.message} />
+      <ScheduleFields
+        form={form}
+        scenarios={scenarios}
+        titleLabel="Title shown to students (optional)"
+      />
       <fieldset className="space-y-1 text-sm sm:col-span-2">
         <legend className="font-medium text-slate-800">After a student submits, show</legend>
         <label className="flex items-center gap-2">

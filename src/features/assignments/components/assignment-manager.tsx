@@ -14,7 +14,7 @@ import { TextField } from '../../../components/ui/field.tsx';
 import { ErrorState, Spinner } from '../../../components/ui/states.tsx';
 import { paths } from '../../../config/paths.ts';
 import { useAssignmentStudents, useRemoveExtension, useSetExtension, useUpdateAssignment } from '../api/manage-assignment.ts';
-import { localToIso, localValue, when } from './local-dates.ts';
+import { localToIso, localValue, when } from '../../../lib/local-dates.ts';
 
 const editSchema = z
   .object({

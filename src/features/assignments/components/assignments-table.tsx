@@ -2,7 +2,7 @@ import type { Assignment } from '../../../../shared/api/assignments.ts';
 import { Button } from '../../../components/ui/button.tsx';
 import { EmptyState } from '../../../components/ui/states.tsx';
 import { useDeleteAssignment } from '../api/create-assignment.ts';
-import { when } from './local-dates.ts';
+import { when } from '../../../lib/local-dates.ts';
 
 function state(a: Assignment, now: number): { label: string; tone: string } {
   if (Date.parse(a.opensAt) > now) return { label: 'Not open yet', tone: 'text-slate-600' };
