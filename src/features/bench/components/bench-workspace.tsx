@@ -150,7 +150,7 @@ export function BenchWorkspace(p: BenchWorkspaceProps) {
             {p.status}
           </div>
         </div>
-        <div className="[contain:layout_paint] max-lg:sticky max-lg:top-0 max-lg:z-20">
+        <div className="[contain:layout_paint] will-change-transform max-lg:sticky max-lg:top-0 max-lg:z-20">
           <ReadingStrip />
         </div>
         <div className="grid min-h-0 flex-1 gap-2 lg:grid-cols-[minmax(0,1fr)_21rem] xl:grid-cols-[minmax(0,1fr)_25rem]">
@@ -194,7 +194,7 @@ export function BenchWorkspace(p: BenchWorkspaceProps) {
                 {k === 'diagnose' && p.diagnose}
               </TabPanel>
             ))}
-            <div className="border-t border-slate-200 bg-stone-50 p-2 max-lg:fixed max-lg:inset-x-0 max-lg:bottom-0 max-lg:z-20 max-lg:shadow-[0_-2px_8px_rgb(0_0_0/0.08)] lg:rounded-b-xl" data-testid="record-area">
+            <div className="border-t border-slate-200 bg-stone-50 p-2 will-change-transform max-lg:fixed max-lg:inset-x-0 max-lg:bottom-0 max-lg:z-20 max-lg:shadow-[0_-2px_8px_rgb(0_0_0/0.08)] lg:rounded-b-xl" data-testid="record-area">
               {p.recordBar}
             </div>
           </section>
